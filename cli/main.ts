@@ -1,0 +1,33 @@
+#!/usr/bin/env node
+/** sigmesh command-line entry: each command lives in its own file and only composes the library. */
+import { Command } from "commander";
+import { createRequire } from "node:module";
+import { setDebug, reportFailure } from "./common.js";
+import { registerCheck } from "./check.js";
+import { registerMesh } from "./mesh.js";
+
+const require = createRequire(import.meta.url);
+const pkg = require("../../package.json") as { version: string };
+
+export function buildProgram(): Command {
+  const program = new Command();
+  program
+    .name("sigmesh")
+    .description("Boundary-element capacitance, charge and surface-field extraction for 3D conductors given as triangle meshes.")
+    .version(pkg.version)
+    .option("--debug", "show stack traces and internal detail on failure")
+    .showHelpAfterError("(run sigmesh --help for usage)")
+    .hook("preAction", (cmd) => setDebug(Boolean(cmd.opts().debug)))
+    // Usage errors are bad input (exit 2); help and version are success.
+    .exitOverride((err) => {
+      if (err.code === "commander.helpDisplayed" || err.code === "commander.version" || err.code === "commander.help") process.exit(0);
+      process.exit(2);
+    });
+  registerCheck(program);
+  registerMesh(program);
+  return program;
+}
+
+buildProgram()
+  .parseAsync(process.argv)
+  .catch((err) => { process.exitCode = reportFailure(err); });

@@ -1,0 +1,12 @@
+import { defineConfig } from "vitest/config";
+
+export default defineConfig({
+  test: {
+    include: ["tests/**/*.test.ts"],
+    exclude: ["tests/bench/**", "node_modules/**", "dist/**"],
+    testTimeout: 120_000,
+    hookTimeout: 120_000,
+    pool: "forks",
+    maxWorkers: 2,
+  },
+});
