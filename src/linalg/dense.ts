@@ -1,0 +1,170 @@
+/**
+ * Dense row-major matrices as plain Float64Arrays, and the register-blocked micro-kernel
+ * that carries nearly all the flops of the factorisations (the trailing update).
+ *
+ * Layout: an m×p matrix at offset `off` with row stride `ld` holds entry (i, j) at
+ * `off + i*ld + j`. A block of k right-hand sides is an n×k row-major array: row i holds
+ * the k values of unknown i, so one pass over a matrix row serves all k columns.
+ *
+ * The kernel follows the GotoBLAS idea (Goto & van de Geijn, "Anatomy of high-performance
+ * matrix multiplication", ACM TOMS 34(3), 2008): pack the panels into contiguous storage,
+ * then keep a small tile of C in registers (here 4×4 scalars, V8 has no SIMD in plain
+ * loops) while the inner loop walks k over contiguous memory.
+ */
+
+/**
+ * C ← C − A·Bᵀ on an m×p block of C, where A is m×kc (rows `lda` apart) and B is p×kc
+ * (rows `ldb` apart): entry (i, j) loses the dot product of row i of A and row j of B.
+ *
+ * Only entries with j ≤ i + diag are touched, so `diag = p` updates the whole block and
+ * `diag = r0 − c0` (global row and column of the block's corner) updates the lower triangle
+ * of a symmetric trailing matrix (the SYRK case of Cholesky), leaving the upper part alone.
+ */
+export function gemmNTSub(
+  C: Float64Array, cOff: number, ldc: number,
+  A: Float64Array, aOff: number, lda: number,
+  B: Float64Array, bOff: number, ldb: number,
+  m: number, p: number, kc: number, diag: number,
+): void {
+  const m4 = m - (m % 4);
+  let i = 0;
+  for (; i < m4; i += 4) {
+    const a0 = aOff + i * lda, a1 = a0 + lda, a2 = a1 + lda, a3 = a2 + lda;
+    // Tiles with every column j ≤ i + diag are full; the next one straddles the diagonal.
+    let jEnd = i + 3 + diag + 1;
+    if (jEnd > p) jEnd = p;
+    const jFull = Math.max(0, Math.min(jEnd, i + diag + 1));
+    const jFull4 = jFull - (jFull % 4);
+    let j = 0;
+    for (; j < jFull4; j += 4) {
+      const b0 = bOff + j * ldb, b1 = b0 + ldb, b2 = b1 + ldb, b3 = b2 + ldb;
+      let c00 = 0, c01 = 0, c02 = 0, c03 = 0;
+      let c10 = 0, c11 = 0, c12 = 0, c13 = 0;
+      let c20 = 0, c21 = 0, c22 = 0, c23 = 0;
+      let c30 = 0, c31 = 0, c32 = 0, c33 = 0;
+      for (let k = 0; k < kc; k++) {
+        const x0 = A[a0 + k], x1 = A[a1 + k], x2 = A[a2 + k], x3 = A[a3 + k];
+        const y0 = B[b0 + k], y1 = B[b1 + k], y2 = B[b2 + k], y3 = B[b3 + k];
+        c00 += x0 * y0; c01 += x0 * y1; c02 += x0 * y2; c03 += x0 * y3;
+        c10 += x1 * y0; c11 += x1 * y1; c12 += x1 * y2; c13 += x1 * y3;
+        c20 += x2 * y0; c21 += x2 * y1; c22 += x2 * y2; c23 += x2 * y3;
+        c30 += x3 * y0; c31 += x3 * y1; c32 += x3 * y2; c33 += x3 * y3;
+      }
+      const r0 = cOff + i * ldc + j, r1 = r0 + ldc, r2 = r1 + ldc, r3 = r2 + ldc;
+      C[r0] -= c00; C[r0 + 1] -= c01; C[r0 + 2] -= c02; C[r0 + 3] -= c03;
+      C[r1] -= c10; C[r1 + 1] -= c11; C[r1 + 2] -= c12; C[r1 + 3] -= c13;
+      C[r2] -= c20; C[r2 + 1] -= c21; C[r2 + 2] -= c22; C[r2 + 3] -= c23;
+      C[r3] -= c30; C[r3 + 1] -= c31; C[r3 + 2] -= c32; C[r3 + 3] -= c33;
+    }
+    // Remaining columns of these four rows (diagonal straddle and the ragged right edge).
+    for (; j < jEnd; j++) {
+      const b0 = bOff + j * ldb;
+      let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+      for (let k = 0; k < kc; k++) {
+        const y = B[b0 + k];
+        s0 += A[a0 + k] * y; s1 += A[a1 + k] * y; s2 += A[a2 + k] * y; s3 += A[a3 + k] * y;
+      }
+      const r0 = cOff + i * ldc + j;
+      if (j <= i + diag) C[r0] -= s0;
+      if (j <= i + 1 + diag) C[r0 + ldc] -= s1;
+      if (j <= i + 2 + diag) C[r0 + 2 * ldc] -= s2;
+      if (j <= i + 3 + diag) C[r0 + 3 * ldc] -= s3;
+    }
+  }
+  for (; i < m; i++) {
+    const a0 = aOff + i * lda;
+    let jEnd = i + diag + 1;
+    if (jEnd > p) jEnd = p;
+    for (let j = 0; j < jEnd; j++) {
+      const b0 = bOff + j * ldb;
+      let s = 0;
+      for (let k = 0; k < kc; k++) s += A[a0 + k] * B[b0 + k];
+      C[cOff + i * ldc + j] -= s;
+    }
+  }
+}
+
+/**
+ * Copy an m×kc block (rows `lda` apart) into contiguous rows of length kc: the packed panel
+ * the micro-kernel streams.
+ */
+export function packRows(out: Float64Array, outOff: number, A: Float64Array, aOff: number, lda: number, m: number, kc: number): void {
+  for (let i = 0; i < m; i++) {
+    const s = aOff + i * lda, d = outOff + i * kc;
+    for (let k = 0; k < kc; k++) out[d + k] = A[s + k];
+  }
+}
+
+/** Copy the transpose of a kc×p block (rows `lda` apart) into p contiguous rows of length kc. */
+export function packTransposed(out: Float64Array, outOff: number, A: Float64Array, aOff: number, lda: number, kc: number, p: number): void {
+  for (let k = 0; k < kc; k++) {
+    const s = aOff + k * lda;
+    for (let j = 0; j < p; j++) out[outOff + j * kc + k] = A[s + j];
+  }
+}
+
+/**
+ * Y[r0..r1) ← A[r0..r1)·X for row-major n×n A and n×k X, Y (rows r0 to r1 only, so rows
+ * can be split among workers). Memory-bound: A is read once per call whatever k is.
+ */
+export function multiplyRows(A: Float64Array, n: number, X: Float64Array, k: number, Y: Float64Array, r0: number, r1: number): void {
+  if (k === 1) {
+    for (let i = r0; i < r1; i++) {
+      const a = i * n;
+      let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+      let j = 0;
+      for (; j + 3 < n; j += 4) {
+        s0 += A[a + j] * X[j]; s1 += A[a + j + 1] * X[j + 1];
+        s2 += A[a + j + 2] * X[j + 2]; s3 += A[a + j + 3] * X[j + 3];
+      }
+      for (; j < n; j++) s0 += A[a + j] * X[j];
+      Y[i] = s0 + s1 + s2 + s3;
+    }
+    return;
+  }
+  // Two rows at a time halve the passes over X; the k values of a row accumulate in Y.
+  let i = r0;
+  for (; i + 1 < r1; i += 2) {
+    const a0 = i * n, a1 = a0 + n, y0 = i * k, y1 = y0 + k;
+    for (let c = 0; c < k; c++) { Y[y0 + c] = 0; Y[y1 + c] = 0; }
+    for (let j = 0; j < n; j++) {
+      const u = A[a0 + j], v = A[a1 + j], x = j * k;
+      for (let c = 0; c < k; c++) {
+        const xv = X[x + c];
+        Y[y0 + c] += u * xv;
+        Y[y1 + c] += v * xv;
+      }
+    }
+  }
+  for (; i < r1; i++) {
+    const a0 = i * n, y0 = i * k;
+    for (let c = 0; c < k; c++) Y[y0 + c] = 0;
+    for (let j = 0; j < n; j++) {
+      const u = A[a0 + j], x = j * k;
+      for (let c = 0; c < k; c++) Y[y0 + c] += u * X[x + c];
+    }
+  }
+}
+
+/**
+ * Boundaries splitting rows r0..r1 into `parts` ranges of equal work, aligned to the
+ * kernel's 4-row tiles. For a triangular update (row r costs ∝ r − r0 + 1) the boundary t
+ * sits at r0 + m·√(t/parts), since the work above it grows with the square of its height.
+ */
+export function rowSplits(r0: number, r1: number, parts: number, triangular: boolean): number[] {
+  const m = r1 - r0, out = [r0];
+  for (let t = 1; t < parts; t++) {
+    const f = triangular ? Math.sqrt(t / parts) : t / parts;
+    let b = r0 + 4 * Math.round((m * f) / 4);
+    if (b < out[t - 1]) b = out[t - 1];
+    if (b > r1) b = r1;
+    out.push(b);
+  }
+  out.push(r1);
+  return out;
+}
+
+/** Whether a lives in shared memory, so workers can write it in place. */
+export function isShared(a: Float64Array): boolean {
+  return a.buffer instanceof SharedArrayBuffer;
+}

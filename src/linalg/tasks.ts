@@ -1,0 +1,40 @@
+/**
+ * Worker-side pieces of the parallel factorisations and products. Each export is a task
+ * for `WorkerPool.map`: it works in place on SharedArrayBuffer-backed arrays over a range
+ * of rows, so the caller splits a step's rows among workers and waits for all of them.
+ * The same functions run on the main thread for the serial path.
+ */
+import { gemmNTSub, multiplyRows, packRows } from "./dense.js";
+import { solveRowsLowerTransposedRight } from "./triangular.js";
+
+/**
+ * Cholesky panel: rows r0..r1 of column block j0..j0+nb become L21 = A21·L11⁻ᵀ (L11 already
+ * factored in place), and are copied into the packed panel P (row r at (r − j0 − nb)·nb).
+ */
+export function choleskyPanel(A: Float64Array, n: number, j0: number, nb: number, P: Float64Array, r0: number, r1: number): void {
+  if (r1 <= r0) return;
+  solveRowsLowerTransposedRight(A, j0 * n + j0, n, nb, A, r0 * n + j0, n, r1 - r0);
+  packRows(P, (r0 - j0 - nb) * nb, A, r0 * n + j0, n, r1 - r0, nb);
+}
+
+/** Cholesky trailing update of rows r0..r1, lower triangle only: A22 ← A22 − L21·L21ᵀ. */
+export function choleskyUpdate(A: Float64Array, n: number, j0: number, nb: number, P: Float64Array, r0: number, r1: number): void {
+  if (r1 <= r0) return;
+  const i0 = j0 + nb;
+  gemmNTSub(A, r0 * n + i0, n, P, (r0 - i0) * nb, nb, P, 0, nb, r1 - r0, r1 - i0, nb, r0 - i0);
+}
+
+/**
+ * LU trailing update of rows r0..r1: A22 ← A22 − L21·U12, with U12 packed transposed in Q
+ * (column j of U12 as row j − j0 − nb of Q, length nb).
+ */
+export function luUpdate(A: Float64Array, n: number, j0: number, nb: number, Q: Float64Array, r0: number, r1: number): void {
+  if (r1 <= r0) return;
+  const i0 = j0 + nb;
+  gemmNTSub(A, r0 * n + i0, n, A, r0 * n + j0, n, Q, 0, nb, r1 - r0, n - i0, nb, n);
+}
+
+/** Rows r0..r1 of Y = A·X (A n×n, X and Y n×k, all row-major). */
+export function multiplyRowRange(A: Float64Array, n: number, X: Float64Array, k: number, Y: Float64Array, r0: number, r1: number): void {
+  multiplyRows(A, n, X, k, Y, r0, r1);
+}
