@@ -168,3 +168,30 @@ export function rowSplits(r0: number, r1: number, parts: number, triangular: boo
 export function isShared(a: Float64Array): boolean {
   return a.buffer instanceof SharedArrayBuffer;
 }
+
+const tasksUrl = new URL(import.meta.url.endsWith(".ts") ? "./tasks.ts" : "./tasks.js", import.meta.url).href;
+
+/** Y = A·X for row-major n×n A and n×k X, Y, on the calling thread. */
+export function denseMultiplySerial(A: Float64Array, n: number, X: Float64Array, k: number, Y: Float64Array): void {
+  multiplyRows(A, n, X, k, Y, 0, n);
+}
+
+/**
+ * Y = A·X with the rows of Y split among the pool's workers. The product is memory-bound,
+ * so all k columns go through one pass over A. Workers need A, X and Y in shared memory:
+ * X and Y are staged through shared copies when they are not; an A that is not shared
+ * (or no pool) gives the serial product.
+ */
+export async function denseMultiply(
+  A: Float64Array, n: number, X: Float64Array, k: number, Y: Float64Array,
+  pool?: { size: number; map<T>(module: string, fn: string, argLists: unknown[][]): Promise<T[]> },
+): Promise<void> {
+  if (A.length < n * n || X.length < n * k || Y.length < n * k) throw new RangeError(`denseMultiply: arrays too short for n=${n}, k=${k}`);
+  if (!pool || pool.size < 2 || !isShared(A) || n < 64) { multiplyRows(A, n, X, k, Y, 0, n); return; }
+  const Xs = isShared(X) ? X : new Float64Array(new SharedArrayBuffer(8 * n * k));
+  if (Xs !== X) Xs.set(X.subarray(0, n * k));
+  const Ys = isShared(Y) ? Y : new Float64Array(new SharedArrayBuffer(8 * n * k));
+  const s = rowSplits(0, n, pool.size, false);
+  await pool.map(tasksUrl, "multiplyRowRange", s.slice(0, -1).map((r, t) => [A, n, Xs, k, Ys, r, s[t + 1]]));
+  if (Ys !== Y) Y.set(Ys.subarray(0, n * k));
+}

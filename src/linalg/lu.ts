@@ -1,0 +1,125 @@
+/**
+ * LU factorisation with partial (row) pivoting, P·A = L·U, of a dense n×n row-major matrix
+ * in place: the strictly lower part holds L (unit diagonal implied), the upper part U.
+ *
+ * Blocked right-looking algorithm (Golub & Van Loan, Matrix Computations, 4th ed., §3.4.7,
+ * as in LAPACK dgetrf): factor a column panel unblocked with row exchanges across whole
+ * rows, solve U12 = L11⁻¹·A12, then update A22 ← A22 − L21·U12 with the packed kernel of
+ * dense.ts; with a pool the trailing rows are split evenly among the workers.
+ * Pivots follow LAPACK's ipiv convention, 0-based: at step c rows c and piv[c] were swapped.
+ */
+import { isShared, packTransposed, rowSplits } from "./dense.js";
+import { luUpdate } from "./tasks.js";
+import { solveLower, solveUnitLowerLeft, solveUpper } from "./triangular.js";
+import { type WorkerPool, sharedFloat64 } from "./pool.js";
+
+/** The matrix is singular to working precision: no non-zero pivot in column `column`. */
+export class SingularMatrixError extends Error {
+  readonly column: number;
+  constructor(column: number) {
+    super(`matrix is singular: no non-zero pivot in column ${column}`);
+    this.name = "SingularMatrixError";
+    this.column = column;
+  }
+}
+
+export interface LuOptions {
+  /** Workers for the trailing updates; serial when absent or of size 1. */
+  pool?: WorkerPool;
+  /** Columns per block step (default 96). */
+  blockSize?: number;
+}
+
+const tasksUrl = new URL(import.meta.url.endsWith(".ts") ? "./tasks.ts" : "./tasks.js", import.meta.url).href;
+
+/** Unblocked LU of the panel of columns j0..j0+w over rows j0..n, swapping whole rows. */
+function factorPanel(A: Float64Array, n: number, j0: number, w: number, piv: Int32Array): void {
+  const jEnd = j0 + w;
+  for (let c = j0; c < jEnd; c++) {
+    let p = c, best = Math.abs(A[c * n + c]);
+    for (let r = c + 1; r < n; r++) {
+      const v = Math.abs(A[r * n + c]);
+      if (v > best) { best = v; p = r; }
+    }
+    if (!(best > 0) || !Number.isFinite(best)) throw new SingularMatrixError(c);
+    piv[c] = p;
+    if (p !== c) {
+      const a = c * n, b = p * n;
+      for (let j = 0; j < n; j++) { const t = A[a + j]; A[a + j] = A[b + j]; A[b + j] = t; }
+    }
+    const rc = c * n, inv = 1 / A[rc + c];
+    for (let r = c + 1; r < n; r++) {
+      const rr = r * n;
+      const l = (A[rr + c] *= inv);
+      if (l === 0) continue;
+      for (let q = c + 1; q < jEnd; q++) A[rr + q] -= l * A[rc + q];
+    }
+  }
+}
+
+/** Panel, row exchanges and U12 of the step at column j0; packs U12ᵀ into Q for the update. */
+function luPanelStep(A: Float64Array, n: number, j0: number, w: number, piv: Int32Array, Q: Float64Array): void {
+  const i0 = j0 + w;
+  factorPanel(A, n, j0, w, piv);
+  if (i0 >= n) return;
+  solveUnitLowerLeft(A, j0 * n + j0, n, w, A, j0 * n + i0, n, n - i0);
+  packTransposed(Q, 0, A, j0 * n + i0, n, w, n - i0);
+}
+
+/** Serial blocked LU in place; returns the pivots. Throws SingularMatrixError. */
+export function luFactorSerial(A: Float64Array, n: number, blockSize: number = 96): Int32Array {
+  checkSize(A, n);
+  const nb = Math.max(1, Math.floor(blockSize));
+  const piv = new Int32Array(n);
+  const Q = new Float64Array(Math.max(0, n - 1) * Math.min(nb, n));
+  for (let j0 = 0; j0 < n; j0 += nb) {
+    const w = Math.min(nb, n - j0);
+    luPanelStep(A, n, j0, w, piv, Q);
+    if (j0 + w < n) luUpdate(A, n, j0, w, Q, j0 + w, n);
+  }
+  return piv;
+}
+
+/**
+ * Blocked LU in place on the pool's workers when one is given (A not in shared memory is
+ * copied there and back); returns the pivots. Throws SingularMatrixError.
+ */
+export async function luFactor(A: Float64Array, n: number, opts: LuOptions = {}): Promise<Int32Array> {
+  checkSize(A, n);
+  const nb = Math.max(4, Math.floor(opts.blockSize ?? 96));
+  const pool = opts.pool;
+  if (!pool || pool.size < 2 || n <= 2 * nb) return luFactorSerial(A, n, nb);
+  const S = isShared(A) ? A : sharedFloat64(n * n);
+  if (S !== A) S.set(A.subarray(0, n * n));
+  const piv = new Int32Array(n);
+  const Q = sharedFloat64(n * nb);
+  for (let j0 = 0; j0 < n; j0 += nb) {
+    const w = Math.min(nb, n - j0), i0 = j0 + w;
+    luPanelStep(S, n, j0, w, piv, Q);
+    if (i0 >= n) break;
+    // Small trailing blocks are not worth a round trip to the workers.
+    if (n - i0 < 2 * nb) { luUpdate(S, n, j0, w, Q, i0, n); continue; }
+    const s = rowSplits(i0, n, pool.size, false);
+    await pool.map(tasksUrl, "luUpdate", s.slice(0, -1).map((r, t) => [S, n, j0, w, Q, r, s[t + 1]]));
+  }
+  if (S !== A) A.set(S);
+  return piv;
+}
+
+/** Solve A·X = B for k right-hand sides (B n×k row-major, overwritten by X) from luFactor. */
+export function luSolve(LU: Float64Array, piv: Int32Array, n: number, B: Float64Array, k: number): void {
+  if (B.length < n * k) throw new RangeError(`right-hand sides hold ${B.length} values, need ${n}×${k}`);
+  for (let c = 0; c < n; c++) {
+    const p = piv[c];
+    if (p === c) continue;
+    const a = c * k, b = p * k;
+    for (let j = 0; j < k; j++) { const t = B[a + j]; B[a + j] = B[b + j]; B[b + j] = t; }
+  }
+  solveLower(LU, 0, n, n, B, k, true);
+  solveUpper(LU, 0, n, n, B, k);
+}
+
+function checkSize(A: Float64Array, n: number): void {
+  if (!Number.isInteger(n) || n < 0) throw new RangeError(`matrix order ${n} is not a non-negative integer`);
+  if (A.length < n * n) throw new RangeError(`matrix holds ${A.length} values, need ${n}×${n}`);
+}
