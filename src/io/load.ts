@@ -1,0 +1,199 @@
+/**
+ * The loading pipeline: bytes → reader (file units) → metres → groups chosen and named →
+ * weld → degenerate triangles dropped → conductors (optionally split into connected
+ * components or merged into one).
+ *
+ * Naming: a file holding one body gives one conductor named after the file stem (or
+ * `name`); named solids, objects, groups or physical surfaces give conductors by those
+ * names, unnamed ones `stem_1`, `stem_2`, ... With `split`, a group falling apart into k > 1
+ * connected pieces gives `group_1` … `group_k` (`stem_1` … for a one-body file).
+ */
+import { readFileSync, statSync } from "node:fs";
+import { basename, extname } from "node:path";
+import { type SurfaceMesh, concatMeshes, uniqueNames } from "../mesh/model.js";
+import { weldVertices, dropDegenerate, DEFAULT_WELD_TOLERANCE } from "../mesh/weld.js";
+import { connectedComponents } from "../mesh/components.js";
+import { InputError, type Warning } from "./errors.js";
+import { metresPer, type LengthUnit } from "./units.js";
+import { detectFormat } from "./format.js";
+import { readStl } from "./stl.js";
+import { readObj } from "./obj.js";
+import { readMsh } from "./msh.js";
+import type { RawMesh } from "./raw.js";
+
+export interface LoadOptions {
+  /** Unit of the file's coordinates. */
+  unit: LengthUnit;
+  /** Each connected component becomes a conductor. */
+  split?: boolean;
+  /** All of the file's groups become one conductor named after the stem (or `name`). */
+  merge?: boolean;
+  /** Keep only these groups (by conductor name as loading would give it). */
+  groups?: string[];
+  /** Weld tolerance relative to the bounding-box diagonal; default 1e-6. */
+  weldTolerance?: number;
+  /** Name for a single-body file's conductor; also replaces the stem in generated names. */
+  name?: string;
+}
+
+export interface LoadedMesh {
+  /** Metres. */
+  mesh: SurfaceMesh;
+  warnings: Warning[];
+  files: string[];
+  unit: LengthUnit;
+  /** Degenerate triangles dropped. */
+  dropped: number;
+  /** Vertices removed by welding. */
+  welded: number;
+}
+
+/** Read and prepare one mesh file. Every failure is an InputError naming the file. */
+export function loadMeshFile(path: string, opts: LoadOptions): LoadedMesh {
+  return parseMeshBytes(readMeshBytes(path), path, opts);
+}
+
+/** Several files as one mesh; conductor names are made unique across files (`_2`, `_3`, ...). */
+export function loadMeshFiles(paths: string[], opts: LoadOptions): LoadedMesh {
+  if (paths.length === 0) throw new InputError("no mesh file given");
+  const parts = paths.map((p) => loadMeshFile(p, opts));
+  const taken = new Set<string>();
+  const meshes = parts.map((r) => ({ ...r.mesh, names: uniqueNames(r.mesh.names, taken) }));
+  return {
+    mesh: concatMeshes(meshes),
+    warnings: parts.flatMap((r) => r.warnings),
+    files: parts.flatMap((r) => r.files),
+    unit: opts.unit,
+    dropped: parts.reduce((s, r) => s + r.dropped, 0),
+    welded: parts.reduce((s, r) => s + r.welded, 0),
+  };
+}
+
+function readMeshBytes(path: string): Uint8Array {
+  try {
+    if (statSync(path).isDirectory()) throw new InputError("is a directory, not a mesh file", path);
+    return readFileSync(path);
+  } catch (err) {
+    if (err instanceof InputError) throw err;
+    const code = (err as NodeJS.ErrnoException).code;
+    const why = code === "ENOENT" ? "no such file" : code === "EACCES" || code === "EPERM" ? "permission denied"
+      : code === "EISDIR" ? "is a directory, not a mesh file" : code === "ERR_FS_FILE_TOO_LARGE" ? "file too large to read (over 2 GiB)"
+      : `cannot read the file (${code ?? (err as Error).message})`;
+    throw new InputError(why, path);
+  }
+}
+
+/** The same pipeline on bytes already in memory; `file` names them in messages and gives the stem. */
+export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOptions): LoadedMesh {
+  if (opts.split && opts.merge) throw new InputError("split and merge cannot both be set for one file", file);
+  if (bytes.length === 0) throw new InputError("empty file", file);
+  const format = detectFormat(file, bytes);
+  const raw: RawMesh = format === "stl" ? readStl(bytes, file) : format === "obj" ? readObj(bytes, file) : readMsh(bytes, file);
+  const warnings: Warning[] = raw.warnings.map((message) => ({ file, message }));
+  const stem = basename(file, extname(file)) || "conductor";
+  const base = opts.name !== undefined && opts.name.trim() !== "" ? opts.name.trim() : stem;
+
+  // Groups that hold triangles, in order of first appearance, with the names loading gives them.
+  const ng = raw.groupNames.length;
+  const nt = raw.triangles.length / 3;
+  const perGroup = new Uint32Array(ng);
+  for (let t = 0; t < nt; t++) perGroup[raw.group[t]]++;
+  const present: number[] = [];
+  for (let g = 0; g < ng; g++) if (perGroup[g] > 0) present.push(g);
+  if (present.length === 0) {
+    throw new InputError(`no triangles in the file${raw.warnings.length ? ` (${raw.warnings[raw.warnings.length - 1]})` : ""}`, file);
+  }
+  let unnamed = 0;
+  const shown = present.length === 1
+    ? [base]
+    : uniqueNames(present.map((g) => raw.groupNames[g].trim() !== "" ? raw.groupNames[g].trim() : `${base}_${++unnamed}`));
+
+  // Conductor of each raw group (-1: not kept), before splitting.
+  const conductorOf = new Int32Array(ng).fill(-1);
+  let names: string[];
+  if (opts.groups !== undefined) {
+    const wanted = new Set(opts.groups);
+    for (const w of wanted) {
+      if (!shown.includes(w)) throw new InputError(`no group "${w}" in the file; it has: ${shown.map((s) => `"${s}"`).join(", ")}`, file);
+    }
+    names = [];
+    present.forEach((g, k) => { if (wanted.has(shown[k])) { conductorOf[g] = names.length; names.push(shown[k]); } });
+  } else {
+    names = shown.slice();
+    present.forEach((g, k) => { conductorOf[g] = k; });
+  }
+  if (opts.merge) {
+    for (let g = 0; g < ng; g++) if (conductorOf[g] >= 0) conductorOf[g] = 0;
+    names = [base];
+  }
+
+  // Keep the chosen triangles, in metres.
+  let kept = 0;
+  for (let t = 0; t < nt; t++) if (conductorOf[raw.group[t]] >= 0) kept++;
+  const tri = kept === nt ? raw.triangles : new Uint32Array(3 * kept);
+  const cond = new Uint32Array(kept);
+  for (let t = 0, k = 0; t < nt; t++) {
+    const c = conductorOf[raw.group[t]];
+    if (c < 0) continue;
+    if (tri !== raw.triangles) { tri[3 * k] = raw.triangles[3 * t]; tri[3 * k + 1] = raw.triangles[3 * t + 1]; tri[3 * k + 2] = raw.triangles[3 * t + 2]; }
+    cond[k++] = c;
+  }
+  const scale = metresPer(opts.unit);
+  const metres = new Float64Array(raw.positions.length);
+  for (let i = 0; i < metres.length; i++) metres[i] = raw.positions[i] * scale;
+
+  const tol = opts.weldTolerance ?? DEFAULT_WELD_TOLERANCE;
+  if (!(tol >= 0) || !Number.isFinite(tol)) throw new InputError(`weld tolerance ${tol} must be a finite number >= 0`, file);
+  const welded = weldVertices(metres, tri, tol);
+  const clean = dropDegenerate(welded.positions, welded.triangles, cond);
+  if (clean.dropped > 0) {
+    warnings.push({ file, message: `${clean.dropped} degenerate triangle(s) dropped (repeated vertex or zero area after welding)` });
+  }
+  const left = new Uint32Array(names.length);
+  for (let t = 0; t < clean.group.length; t++) left[clean.group[t]]++;
+  for (let c = 0; c < names.length; c++) {
+    if (left[c] === 0) throw new InputError(`conductor "${names[c]}" has no valid triangle left: all of its triangles are degenerate (zero area)`, file);
+  }
+
+  let conductor = clean.group;
+  if (opts.split) {
+    const comp = connectedComponents(clean.triangles, welded.positions.length / 3);
+    // Number the pieces of each conductor in order of appearance.
+    // Groups sharing vertices stay apart: a piece is a (component, conductor) pair.
+    const pieceOf = new Map<number, number>();
+    const pieces: Array<{ c: number; k: number }> = [];
+    const countIn = new Uint32Array(names.length);
+    conductor = new Uint32Array(clean.group.length);
+    for (let t = 0; t < conductor.length; t++) {
+      const c = clean.group[t];
+      const key = comp.component[t] * names.length + c;
+      let piece = pieceOf.get(key);
+      if (piece === undefined) { piece = pieces.length; pieceOf.set(key, piece); pieces.push({ c, k: ++countIn[c] }); }
+      conductor[t] = piece;
+    }
+    names = uniqueNames(pieces.map(({ c, k }) => (countIn[c] > 1 ? `${names[c]}_${k}` : names[c])));
+  }
+  const compact = dropUnreferenced(welded.positions, clean.triangles);
+  const mesh: SurfaceMesh = { positions: compact, triangles: clean.triangles, conductor, names };
+  return { mesh, warnings, files: [file], unit: opts.unit, dropped: clean.dropped, welded: welded.merged };
+}
+
+/** Positions of the referenced vertices only; `triangles` is renumbered in place. */
+function dropUnreferenced(positions: Float64Array, triangles: Uint32Array): Float64Array {
+  const nv = positions.length / 3;
+  const remap = new Int32Array(nv).fill(-1);
+  let n = 0;
+  for (let k = 0; k < triangles.length; k++) { const v = triangles[k]; if (remap[v] < 0) remap[v] = n++; }
+  if (n === nv) {
+    let identity = true;
+    for (let v = 0; v < nv && identity; v++) identity = remap[v] === v;
+    if (identity) return positions;
+  }
+  const out = new Float64Array(3 * n);
+  for (let v = 0; v < nv; v++) {
+    const r = remap[v];
+    if (r >= 0) { out[3 * r] = positions[3 * v]; out[3 * r + 1] = positions[3 * v + 1]; out[3 * r + 2] = positions[3 * v + 2]; }
+  }
+  for (let k = 0; k < triangles.length; k++) triangles[k] = remap[triangles[k]];
+  return out;
+}

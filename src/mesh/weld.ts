@@ -1,0 +1,117 @@
+/**
+ * Welding coincident vertices and dropping degenerate triangles.
+ *
+ * STL stores every triangle with its own three vertices, so a closed body arrives as a
+ * soup; the solver and the topology checks need shared vertices. Welding is a uniform-grid
+ * spatial hash with cell size equal to the tolerance (common practice; see C. Ericson,
+ * "Real-Time Collision Detection", 2005, ch. 7.1): two points within the tolerance lie in the
+ * same or adjacent cells, so checking the 27 cells around a point finds every partner and the
+ * whole pass is O(N) expected. Clustering is greedy: a vertex joins the first earlier kept
+ * vertex within tolerance and keeps that vertex's position.
+ */
+/** Default weld tolerance, relative to the bounding-box diagonal. */
+export const DEFAULT_WELD_TOLERANCE = 1e-6;
+/** Default degeneracy threshold: twice the area over the longest edge squared (≈ height / length). */
+export const DEFAULT_AREA_TOLERANCE = 1e-10;
+
+const P1 = 0x9e3779b1 | 0, P2 = 0x85ebca77 | 0, P3 = 0xc2b2ae3d | 0;
+
+/**
+ * Merge referenced vertices closer than `relTol` × bounding-box diagonal (of the referenced
+ * vertices) and drop unreferenced ones. `merged` counts the referenced vertices removed.
+ */
+export function weldVertices(positions: Float64Array, triangles: Uint32Array, relTol = DEFAULT_WELD_TOLERANCE): { positions: Float64Array; triangles: Uint32Array; merged: number } {
+  const nv = positions.length / 3;
+  const used = new Uint8Array(nv);
+  let nUsed = 0;
+  for (let k = 0; k < triangles.length; k++) { const v = triangles[k]; if (used[v] === 0) { used[v] = 1; nUsed++; } }
+  let minx = Infinity, miny = Infinity, minz = Infinity, maxx = -Infinity, maxy = -Infinity, maxz = -Infinity;
+  for (let v = 0; v < nv; v++) {
+    if (used[v] === 0) continue;
+    const x = positions[3 * v], y = positions[3 * v + 1], z = positions[3 * v + 2];
+    if (x < minx) minx = x; if (x > maxx) maxx = x;
+    if (y < miny) miny = y; if (y > maxy) maxy = y;
+    if (z < minz) minz = z; if (z > maxz) maxz = z;
+  }
+  const diag = nUsed > 0 ? Math.hypot(maxx - minx, maxy - miny, maxz - minz) : 0;
+  const tol = relTol > 0 && Number.isFinite(relTol) ? relTol * diag : 0;
+  // With zero tolerance only exact repeats weld; any positive cell size keeps them in one cell.
+  const cell = tol > 0 ? tol : diag > 0 ? diag * 1e-9 : 1;
+  const tol2 = tol * tol;
+  const inv = 1 / cell;
+
+  let size = 16;
+  while (size < 2 * nUsed) size *= 2;
+  const mask = size - 1;
+  const head = new Int32Array(size).fill(-1);
+  const chain = new Int32Array(nUsed); // next kept vertex in the same hash slot
+  const keptPos = new Float64Array(3 * nUsed);
+  const remap = new Int32Array(nv).fill(-1);
+  let kept = 0;
+
+  for (let v = 0; v < nv; v++) {
+    if (used[v] === 0) continue;
+    const x = positions[3 * v], y = positions[3 * v + 1], z = positions[3 * v + 2];
+    const ix = Math.floor((x - minx) * inv), iy = Math.floor((y - miny) * inv), iz = Math.floor((z - minz) * inv);
+    let found = -1;
+    for (let dx = -1; dx <= 1 && found < 0; dx++) {
+      for (let dy = -1; dy <= 1 && found < 0; dy++) {
+        for (let dz = -1; dz <= 1 && found < 0; dz++) {
+          for (let k = head[slot(ix + dx, iy + dy, iz + dz) & mask]; k >= 0; k = chain[k]) {
+            const ex = keptPos[3 * k] - x, ey = keptPos[3 * k + 1] - y, ez = keptPos[3 * k + 2] - z;
+            if (ex * ex + ey * ey + ez * ez <= tol2) { found = k; break; }
+          }
+        }
+      }
+    }
+    if (found >= 0) { remap[v] = found; continue; }
+    const h = slot(ix, iy, iz) & mask;
+    keptPos[3 * kept] = x; keptPos[3 * kept + 1] = y; keptPos[3 * kept + 2] = z;
+    chain[kept] = head[h];
+    head[h] = kept;
+    remap[v] = kept++;
+  }
+  const out = new Uint32Array(triangles.length);
+  for (let k = 0; k < triangles.length; k++) out[k] = remap[triangles[k]];
+  return { positions: keptPos.slice(0, 3 * kept), triangles: out, merged: nUsed - kept };
+}
+
+/** Hash of an integer cell (cells far from the origin wrap modulo 2^32 consistently). */
+function slot(ix: number, iy: number, iz: number): number {
+  let h = Math.imul(ix | 0, P1) ^ Math.imul(iy | 0, P2) ^ Math.imul(iz | 0, P3);
+  h ^= h >>> 15;
+  h = Math.imul(h, 0x2c1b3c6d);
+  return h ^ (h >>> 12);
+}
+
+/**
+ * Drop triangles that repeat a vertex or have (near) zero area: twice the area at most
+ * `relAreaTol` × (longest edge)², i.e. height below that fraction of the length.
+ */
+export function dropDegenerate(positions: Float64Array, triangles: Uint32Array, group: Uint32Array, relAreaTol = DEFAULT_AREA_TOLERANCE): { triangles: Uint32Array; group: Uint32Array; dropped: number } {
+  const nt = triangles.length / 3;
+  const keep = new Uint8Array(nt);
+  let nk = 0;
+  const p = positions;
+  for (let t = 0; t < nt; t++) {
+    const ia = triangles[3 * t], ib = triangles[3 * t + 1], ic = triangles[3 * t + 2];
+    if (ia === ib || ib === ic || ia === ic) continue;
+    const a = 3 * ia, b = 3 * ib, c = 3 * ic;
+    const ux = p[b] - p[a], uy = p[b + 1] - p[a + 1], uz = p[b + 2] - p[a + 2];
+    const vx = p[c] - p[a], vy = p[c + 1] - p[a + 1], vz = p[c + 2] - p[a + 2];
+    const wx = p[c] - p[b], wy = p[c + 1] - p[b + 1], wz = p[c + 2] - p[b + 2];
+    const cx = uy * vz - uz * vy, cy = uz * vx - ux * vz, cz = ux * vy - uy * vx;
+    const twiceArea = Math.sqrt(cx * cx + cy * cy + cz * cz);
+    const l2 = Math.max(ux * ux + uy * uy + uz * uz, vx * vx + vy * vy + vz * vz, wx * wx + wy * wy + wz * wz);
+    if (!(twiceArea > relAreaTol * l2)) continue;
+    keep[t] = 1;
+    nk++;
+  }
+  const outT = new Uint32Array(3 * nk), outG = new Uint32Array(nk);
+  for (let t = 0, k = 0; t < nt; t++) {
+    if (keep[t] === 0) continue;
+    outT[3 * k] = triangles[3 * t]; outT[3 * k + 1] = triangles[3 * t + 1]; outT[3 * k + 2] = triangles[3 * t + 2];
+    outG[k++] = group[t];
+  }
+  return { triangles: outT, group: outG, dropped: nt - nk };
+}
