@@ -1,0 +1,47 @@
+/**
+ * Surface area and enclosed volume of a triangle mesh.
+ *
+ * The volume uses the divergence theorem: for a closed, consistently oriented surface,
+ * V = (1/3) \oint x.n dA = sum over triangles of a.(b x c)/6 (each term the signed volume
+ * of the tetrahedron on the triangle and the reference point). Outward orientation
+ * (counter-clockwise seen from outside) gives a positive volume. The reference point is
+ * the bounding-box centre, not the origin, so a small part far from the origin does not
+ * lose digits to cancellation. For an open or inconsistently oriented surface the sum
+ * depends on the reference point and means nothing.
+ */
+import type { SurfaceMesh } from "./model.js";
+import { boundingBox } from "./model.js";
+
+/** Total surface area; square metres. */
+export function surfaceArea(mesh: SurfaceMesh): number {
+  const p = mesh.positions, tr = mesh.triangles;
+  let sum = 0;
+  for (let i = 0; i < tr.length; i += 3) {
+    const a = 3 * tr[i], b = 3 * tr[i + 1], c = 3 * tr[i + 2];
+    const ux = p[b] - p[a], uy = p[b + 1] - p[a + 1], uz = p[b + 2] - p[a + 2];
+    const vx = p[c] - p[a], vy = p[c + 1] - p[a + 1], vz = p[c + 2] - p[a + 2];
+    const x = uy * vz - uz * vy, y = uz * vx - ux * vz, z = ux * vy - uy * vx;
+    sum += Math.sqrt(x * x + y * y + z * z);
+  }
+  return 0.5 * sum;
+}
+
+/**
+ * Signed enclosed volume (divergence theorem); cubic metres. Positive for a closed
+ * outward-oriented surface. With `conductor` given, only that conductor's triangles count.
+ */
+export function signedVolume(mesh: SurfaceMesh, conductor?: number): number {
+  const p = mesh.positions, tr = mesh.triangles;
+  const bb = boundingBox(p);
+  const ox = p.length ? 0.5 * (bb[0] + bb[3]) : 0, oy = p.length ? 0.5 * (bb[1] + bb[4]) : 0, oz = p.length ? 0.5 * (bb[2] + bb[5]) : 0;
+  let sum = 0;
+  for (let i = 0; i < tr.length; i += 3) {
+    if (conductor !== undefined && mesh.conductor[i / 3] !== conductor) continue;
+    const a = 3 * tr[i], b = 3 * tr[i + 1], c = 3 * tr[i + 2];
+    const ax = p[a] - ox, ay = p[a + 1] - oy, az = p[a + 2] - oz;
+    const bx = p[b] - ox, by = p[b + 1] - oy, bz = p[b + 2] - oz;
+    const cx = p[c] - ox, cy = p[c + 1] - oy, cz = p[c + 2] - oz;
+    sum += ax * (by * cz - bz * cy) + ay * (bz * cx - bx * cz) + az * (bx * cy - by * cx);
+  }
+  return sum / 6;
+}
