@@ -1,0 +1,30 @@
+import { rng } from "./random.js";
+
+/**
+ * Points in `groups` tight clusters (spread `spread` around centres in the unit cube).
+ * A generic stand-in for a clustered discretisation: linalg tests may not import bem.
+ */
+export function clusteredPoints(n: number, groups: number, spread: number, seed: number): Float64Array {
+  const r = rng(seed), centres = new Float64Array(3 * groups), pts = new Float64Array(3 * n);
+  for (let i = 0; i < 3 * groups; i++) centres[i] = r();
+  for (let i = 0; i < n; i++) {
+    const g = i % groups;
+    for (let d = 0; d < 3; d++) pts[3 * i + d] = centres[3 * g + d] + spread * (r() - 0.5);
+  }
+  return pts;
+}
+
+/**
+ * A[i][j] = 1/√(|xᵢ − xⱼ|² + δ²): the inverse multiquadric, a strictly positive definite
+ * kernel in ℝ³ (Wendland, Scattered Data Approximation, Cambridge 2005, Theorem 8.15), so
+ * A is SPD for distinct points; like a 1/r collocation matrix it is dominated by near pairs.
+ */
+export function inverseMultiquadricMatrix(pts: Float64Array, delta: number): Float64Array {
+  const n = pts.length / 3, A = new Float64Array(new SharedArrayBuffer(8 * n * n));
+  for (let i = 0; i < n; i++)
+    for (let j = 0; j < n; j++) {
+      const dx = pts[3 * i] - pts[3 * j], dy = pts[3 * i + 1] - pts[3 * j + 1], dz = pts[3 * i + 2] - pts[3 * j + 2];
+      A[i * n + j] = 1 / Math.sqrt(dx * dx + dy * dy + dz * dz + delta * delta);
+    }
+  return A;
+}
