@@ -1,0 +1,154 @@
+/**
+ * The mesh check: everything sigmesh can say about a conductor mesh before solving it.
+ * Composes topology (closed, boundary, non-manifold, orientation), panel quality and
+ * proximity between conductors into one report, all lengths in metres.
+ */
+import { type SurfaceMesh, triangleCount, vertexCount, conductorAreas } from "./model.js";
+import { buildEdgeTable, conductorTopology, orientSurfaces, conductorOrientation, type ConductorOrientation, type OrientationResult } from "./topology.js";
+import { conductorQuality } from "./quality.js";
+import { conductorProximity, enclosedConductors, type ProximityOptions } from "./proximity.js";
+
+export interface ConductorCheck {
+  name: string;
+  triangles: number;
+  /** Square metres. */
+  area: number;
+  /** [minx, miny, minz, maxx, maxy, maxz], metres; null without triangles. */
+  bbox: [number, number, number, number, number, number] | null;
+  /** Every edge shared by exactly two of this conductor's triangles. Open sheets are legal. */
+  closed: boolean;
+  /** Connected pieces (triangles joined across two-triangle edges). */
+  components: number;
+  boundaryEdges: number;
+  nonManifoldEdges: number;
+  /** Two-triangle edges whose triangles wind the same way (as given). */
+  inconsistentEdges: number;
+  orientation: ConductorOrientation;
+  /** Triangles whose winding `orientSurfaces` reverses. */
+  flippedTriangles: number;
+  /** Enclosed volume after orientation, cubic metres; null unless closed and orientable. */
+  volume: number | null;
+  /** Shortest and longest edge; metres. */
+  edgeLength: { min: number; max: number };
+  /** Worst radius ratio R/(2r) (1 = equilateral); null when a triangle is degenerate. */
+  worstAspect: number | null;
+  /** Centroid of the worst-shaped triangle; metres. */
+  worstAspectAt: [number, number, number] | null;
+  degenerateTriangles: number;
+}
+
+export type PairKind = "intersect" | "touch" | "inside" | "gap";
+
+export interface PairCheck {
+  kind: PairKind;
+  /** intersect, touch and inside fail the check; gap is a warning. */
+  severity: "error" | "warning";
+  a: string;
+  b: string;
+  /** Smallest distance found, metres (0 for intersect, touch within tolerance, inside). */
+  distance: number;
+  /** Where; metres. */
+  position: [number, number, number];
+  /** Local panel size there (longer of the two triangles' longest edges), metres; null for inside. */
+  panelSize: number | null;
+}
+
+export interface CheckReport {
+  conductors: ConductorCheck[];
+  pairs: PairCheck[];
+  triangles: number;
+  vertices: number;
+  /** True when any pair is an error (the check failed). */
+  failed: boolean;
+}
+
+export interface CheckOptions extends ProximityOptions {}
+
+/** Aspect ratio above which triangles are reported as thin (common practice for collocation BEM: ~10). */
+export const THIN_ASPECT = 10;
+
+/** Check a mesh (metres). Also returns the oriented copy the checks were made on. */
+export function checkMeshOriented(mesh: SurfaceMesh, opts: CheckOptions = {}): { report: CheckReport; oriented: OrientationResult } {
+  const nc = mesh.names.length, nt = triangleCount(mesh);
+  const table = buildEdgeTable(mesh);
+  const topo = conductorTopology(mesh, table);
+  const oriented = orientSurfaces(mesh, table);
+  const orientation = conductorOrientation(oriented, nc);
+  const quality = conductorQuality(mesh);
+  const areas = conductorAreas(mesh);
+
+  const count = new Uint32Array(nc), comps = new Uint32Array(nc), flipped = new Uint32Array(nc);
+  const volume = new Float64Array(nc), volumeOk = new Uint8Array(nc).fill(1);
+  for (let t = 0; t < nt; t++) count[mesh.conductor[t]]++;
+  for (const c of oriented.components) {
+    comps[c.conductor]++;
+    flipped[c.conductor] += c.flippedTriangles;
+    if (Number.isFinite(c.signedVolume)) volume[c.conductor] += c.signedVolume; else volumeOk[c.conductor] = 0;
+  }
+  const boxes: Float64Array[] = [];
+  for (let c = 0; c < nc; c++) boxes.push(new Float64Array([Infinity, Infinity, Infinity, -Infinity, -Infinity, -Infinity]));
+  const p = mesh.positions, tr = mesh.triangles;
+  for (let t = 0; t < nt; t++) {
+    const b = boxes[mesh.conductor[t]];
+    for (let j = 0; j < 3; j++) {
+      const v = 3 * tr[3 * t + j];
+      for (let k = 0; k < 3; k++) { const x = p[v + k]; if (x < b[k]) b[k] = x; if (x > b[k + 3]) b[k + 3] = x; }
+    }
+  }
+
+  const conductors: ConductorCheck[] = [];
+  for (let c = 0; c < nc; c++) {
+    const q = quality[c], b = boxes[c];
+    let at: [number, number, number] | null = null;
+    if (q.worstAspectTriangle >= 0) {
+      const t = q.worstAspectTriangle;
+      const i = 3 * tr[3 * t], j = 3 * tr[3 * t + 1], k = 3 * tr[3 * t + 2];
+      at = [(p[i] + p[j] + p[k]) / 3, (p[i + 1] + p[j + 1] + p[k + 1]) / 3, (p[i + 2] + p[j + 2] + p[k + 2]) / 3];
+    }
+    conductors.push({
+      name: mesh.names[c],
+      triangles: count[c],
+      area: areas[c],
+      bbox: count[c] > 0 ? [b[0], b[1], b[2], b[3], b[4], b[5]] : null,
+      closed: topo[c].closed,
+      components: comps[c],
+      boundaryEdges: topo[c].boundaryEdges,
+      nonManifoldEdges: topo[c].nonManifoldEdges,
+      inconsistentEdges: topo[c].inconsistentEdges,
+      orientation: orientation[c],
+      flippedTriangles: flipped[c],
+      volume: count[c] > 0 && volumeOk[c] ? volume[c] : null,
+      edgeLength: { min: q.minEdge, max: q.maxEdge },
+      worstAspect: Number.isFinite(q.worstAspect) ? q.worstAspect : null,
+      worstAspectAt: at,
+      degenerateTriangles: q.degenerateTriangles,
+    });
+  }
+
+  const pairs: PairCheck[] = [];
+  for (const f of conductorProximity(mesh, opts)) {
+    pairs.push({
+      kind: f.kind, severity: f.kind === "gap" ? "warning" : "error",
+      a: mesh.names[f.a], b: mesh.names[f.b], distance: f.distance, position: f.position, panelSize: f.panelSize,
+    });
+  }
+  // A conductor inside another's material meets no surface of it; only an enclosure test sees it.
+  const touching = new Set(pairs.filter((x) => x.severity === "error").map((x) => `${x.a}\u0000${x.b}`));
+  const solid = conductors.map((c) => c.closed && (c.orientation === "outward" || c.orientation === "inward-flipped" || c.orientation === "repaired"));
+  for (const e of enclosedConductors(oriented.mesh, solid, boxes)) {
+    const a = Math.min(e.inner, e.outer), b = Math.max(e.inner, e.outer);
+    if (touching.has(`${mesh.names[a]}\u0000${mesh.names[b]}`)) continue;
+    pairs.push({ kind: "inside", severity: "error", a: mesh.names[e.inner], b: mesh.names[e.outer], distance: 0, position: e.position, panelSize: null });
+  }
+  const rank: Record<PairKind, number> = { intersect: 3, inside: 2, touch: 1, gap: 0 };
+  pairs.sort((x, y) => rank[y.kind] - rank[x.kind]);
+  return {
+    report: { conductors, pairs, triangles: nt, vertices: vertexCount(mesh), failed: pairs.some((x) => x.severity === "error") },
+    oriented,
+  };
+}
+
+/** Check a mesh (metres): per-conductor topology and quality, and problems between conductors. */
+export function checkMesh(mesh: SurfaceMesh, opts: CheckOptions = {}): CheckReport {
+  return checkMeshOriented(mesh, opts).report;
+}

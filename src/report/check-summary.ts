@@ -1,0 +1,100 @@
+/**
+ * The human-readable summary of a mesh check: one aligned row per conductor, then the
+ * notes on each, then what lies between conductors, then the verdict. Lengths are in
+ * the user's unit, which is always stated.
+ */
+import { type LengthUnit, metresPer } from "../io/units.js";
+import type { CheckReport, ConductorCheck, PairCheck } from "../mesh/check.js";
+import { THIN_ASPECT } from "../mesh/check.js";
+import { formatNumber, formatLength, formatPoint, lengthValue, unitLabel } from "./si.js";
+
+export interface CheckSummaryOptions {
+  unit: LengthUnit;
+  /** True when the unit is the default rather than chosen by the user. */
+  unitAssumed: boolean;
+  files?: string[];
+}
+
+/** Pad cells to column widths; numeric-looking columns are right-aligned. */
+export function alignTable(header: string[], rows: string[][], rightAligned: boolean[]): string[] {
+  const width = header.map((h, i) => Math.max([...h].length, ...rows.map((r) => [...r[i]].length)));
+  const line = (cells: string[]) => cells.map((c, i) => {
+    const pad = " ".repeat(width[i] - [...c].length);
+    return rightAligned[i] ? pad + c : c + pad;
+  }).join("  ").trimEnd();
+  return [line(header), ...rows.map(line)];
+}
+
+function range(lo: number, hi: number, unit: LengthUnit): string {
+  return `${lengthValue(lo, unit)}..${lengthValue(hi, unit)}`;
+}
+
+function conductorNotes(c: ConductorCheck, unit: LengthUnit): string[] {
+  const notes: string[] = [];
+  const n = c.name;
+  if (c.triangles === 0) notes.push(`${n}: no triangles`);
+  switch (c.orientation) {
+    case "inward-flipped": notes.push(`${n}: surface was oriented inward; ${c.flippedTriangles} triangle windings reversed to face outward`); break;
+    case "repaired": notes.push(`${n}: ${c.inconsistentEdges} edges had disagreeing windings; ${c.flippedTriangles} triangles reversed to make the surface consistent and outward`); break;
+    case "inconsistent": notes.push(`${n}: windings cannot be made consistent (a one-sided, Möbius-like surface); normals and field sides are undefined there`); break;
+    case "non-manifold": notes.push(`${n}: ${c.nonManifoldEdges} edges are shared by three or more triangles; the inside of the surface is undefined there`); break;
+    default: break;
+  }
+  if (c.orientation === "open" && c.flippedTriangles > 0) notes.push(`${n}: ${c.flippedTriangles} triangles reversed to agree with their neighbours`);
+  if (!c.closed && c.triangles > 0 && c.nonManifoldEdges === 0) notes.push(`${n}: open surface with ${c.boundaryEdges} boundary edges (legal: treated as a zero-thickness sheet)`);
+  if (c.degenerateTriangles > 0) notes.push(`${n}: ${c.degenerateTriangles} degenerate (zero-area) triangles; remove or re-mesh them before solving`);
+  else if (c.worstAspect !== null && c.worstAspect > THIN_ASPECT && c.worstAspectAt) {
+    notes.push(`${n}: thin triangles, worst aspect ratio ${formatNumber(c.worstAspect, 3)} at ${formatPoint(c.worstAspectAt, unit)}; accuracy suffers above about ${THIN_ASPECT}`);
+  }
+  return notes;
+}
+
+/** The sentence for one finding between conductors. */
+export function pairSentence(p: PairCheck, unit: LengthUnit): string {
+  const at = formatPoint(p.position, unit);
+  switch (p.kind) {
+    case "intersect": return `conductors ${p.a} and ${p.b} intersect at ${at}`;
+    case "touch": return `conductors ${p.a} and ${p.b} touch at ${at} (gap ${formatLength(p.distance, unit)}); touching conductors are one net: merge them or separate them`;
+    case "inside": return `conductor ${p.a} lies inside conductor ${p.b} (at ${at})`;
+    case "gap": return `conductors ${p.a} and ${p.b} are only ${formatLength(p.distance, unit)} apart at ${at}, less than the local panel size ${formatLength(p.panelSize ?? NaN, unit)}; the boundary-element answer loses accuracy there: refine the mesh near the gap`;
+  }
+}
+
+export function formatCheckSummary(report: CheckReport, opts: CheckSummaryOptions): string {
+  const u = opts.unit, ul = unitLabel(u);
+  const out: string[] = [];
+  const files = opts.files && opts.files.length > 0 ? ` from ${opts.files.join(", ")}` : "";
+  out.push(`mesh check: ${report.conductors.length} conductor${report.conductors.length === 1 ? "" : "s"}, ${report.triangles} triangles, ${report.vertices} vertices${files}`);
+  out.push(`unit: ${ul} (${opts.unitAssumed ? "assumed; set with --unit" : "set with --unit"})`);
+  out.push("");
+  const header = ["conductor", "triangles", `area (${ul}²)`, `bbox x (${ul})`, `y (${ul})`, `z (${ul})`, "closed", "boundary", "non-manifold", "orientation", `edge (${ul})`, "worst aspect"];
+  const rows = report.conductors.map((c) => {
+    const b = c.bbox;
+    return [
+      c.name,
+      String(c.triangles),
+      formatNumber(c.area / metresPer(u) ** 2),
+      b ? range(b[0], b[3], u) : "-",
+      b ? range(b[1], b[4], u) : "-",
+      b ? range(b[2], b[5], u) : "-",
+      c.closed ? "yes" : "no",
+      String(c.boundaryEdges),
+      String(c.nonManifoldEdges),
+      c.orientation,
+      c.triangles > 0 ? range(c.edgeLength.min, c.edgeLength.max, u) : "-",
+      c.worstAspect === null ? (c.degenerateTriangles > 0 ? "degenerate" : "-") : formatNumber(c.worstAspect, 3),
+    ];
+  });
+  out.push(...alignTable(header, rows, [false, true, true, false, false, false, false, true, true, false, false, true]));
+  const notes = report.conductors.flatMap((c) => conductorNotes(c, u));
+  if (notes.length > 0) { out.push(""); out.push(...notes.map((n) => `note: ${n}`)); }
+  out.push("");
+  const errors = report.pairs.filter((p) => p.severity === "error");
+  const warnings = report.pairs.filter((p) => p.severity === "warning");
+  if (report.conductors.length < 2) out.push("between conductors: only one conductor");
+  else if (report.pairs.length === 0) out.push("between conductors: no intersections, touches or narrow gaps");
+  for (const w of warnings) out.push(`warning: ${pairSentence(w, u)}`);
+  for (const e of errors) out.push(`FAILED: ${pairSentence(e, u)}`);
+  if (errors.length === 0) out.push(`OK: mesh can be solved${warnings.length + notes.length > 0 ? " (see notes and warnings above)" : ""}`);
+  return out.join("\n") + "\n";
+}
