@@ -1,0 +1,127 @@
+/**
+ * Dense assembly of the single-layer matrix (Galerkin or collocation), serially by row range
+ * or on the worker pool, and entries for arbitrary index sets (the entry generator that
+ * low-rank compression calls). Units 1/metre, without the 1/(4πε) factor.
+ *
+ * The Galerkin row loop inlines the far-field Taylor term (galerkin.ts farTerm) so the bulk
+ * of the entries costs one square root and a few dozen flops; every other rung calls
+ * galerkinEntry. Both paths give identical numbers, so the dense matrix equals the entries.
+ */
+import type { PanelSet } from "./panels.js";
+import { galerkinEntry, RHO_FAR } from "./galerkin.js";
+import { collocationEntry } from "./collocation.js";
+import { sharedFloat64, sharedPool, type WorkerPool } from "../linalg/pool.js";
+
+export type Discretisation = "galerkin" | "collocation";
+
+/** Fill rows [rowStart, rowEnd) of the n×n row-major matrix `out`. Galerkin fills j ≥ i and mirrors. */
+export function assembleRows(P: PanelSet, method: Discretisation, rowStart: number, rowEnd: number, out: Float64Array): void {
+  const n = P.n;
+  if (out.length < n * n) throw new Error(`assembleRows: output holds ${out.length} entries, need ${n * n}`);
+  if (method === "collocation") {
+    for (let i = rowStart; i < rowEnd; i++) for (let j = 0; j < n; j++) out[i * n + j] = collocationEntry(P, i, j);
+    return;
+  }
+  if (method !== "galerkin") throw new Error(`assembleRows: unknown discretisation ${String(method)}`);
+  const c = P.centroids, M = P.moments2, T = P.moments3, V = P.traces3, rad = P.radii;
+  const far2 = RHO_FAR * RHO_FAR;
+  for (let i = rowStart; i < rowEnd; i++) {
+    out[i * n + i] = galerkinEntry(P, i, i);
+    const cx = c[3 * i], cy = c[3 * i + 1], cz = c[3 * i + 2], ri = rad[i];
+    const mxx = M[6 * i], myy = M[6 * i + 1], mzz = M[6 * i + 2], mxy = M[6 * i + 3], mxz = M[6 * i + 4], myz = M[6 * i + 5];
+    const ti = 10 * i;
+    const t0 = T[ti], t1 = T[ti + 1], t2 = T[ti + 2], t3 = T[ti + 3], t4 = T[ti + 4], t5 = T[ti + 5], t6 = T[ti + 6];
+    const t7 = T[ti + 7], t8 = T[ti + 8], t9 = T[ti + 9];
+    const vx = V[3 * i], vy = V[3 * i + 1], vz = V[3 * i + 2];
+    for (let j = i + 1; j < n; j++) {
+      const dx = cx - c[3 * j], dy = cy - c[3 * j + 1], dz = cz - c[3 * j + 2];
+      const r2 = dx * dx + dy * dy + dz * dz;
+      const rs = ri + rad[j];
+      let e: number;
+      if (r2 >= far2 * rs * rs) {
+        // Same expression, same operation order as galerkin.ts farTerm.
+        const oj = 6 * j, tj = 10 * j;
+        const sxx = mxx + M[oj], syy = myy + M[oj + 1], szz = mzz + M[oj + 2];
+        const sxy = mxy + M[oj + 3], sxz = mxz + M[oj + 4], syz = myz + M[oj + 5];
+        const uddd = (t0 - T[tj]) * dx * dx * dx + (t1 - T[tj + 1]) * dy * dy * dy + (t2 - T[tj + 2]) * dz * dz * dz
+          + 3 * ((t3 - T[tj + 3]) * dx * dx * dy + (t4 - T[tj + 4]) * dx * dx * dz + (t5 - T[tj + 5]) * dx * dy * dy
+            + (t6 - T[tj + 6]) * dy * dy * dz + (t7 - T[tj + 7]) * dx * dz * dz + (t8 - T[tj + 8]) * dy * dz * dz)
+          + 6 * (t9 - T[tj + 9]) * dx * dy * dz;
+        const vd = (vx - V[3 * j]) * dx + (vy - V[3 * j + 1]) * dy + (vz - V[3 * j + 2]) * dz;
+        const q = sxx * dx * dx + syy * dy * dy + szz * dz * dz + 2 * (sxy * dx * dy + sxz * dx * dz + syz * dy * dz);
+        const inv = 1 / Math.sqrt(r2), inv2 = inv * inv;
+        e = inv * (1 + inv2 * (0.5 * (3 * q * inv2 - (sxx + syy + szz)) + inv2 * (-2.5 * uddd * inv2 + 1.5 * vd)));
+      } else {
+        e = galerkinEntry(P, i, j);
+      }
+      out[i * n + j] = e;
+      out[j * n + i] = e;
+    }
+  }
+}
+
+/**
+ * Row boundaries splitting [0, n) into `parts` ranges of equal work: Galerkin row i costs
+ * n − i entries (upper triangle), collocation rows cost the same.
+ */
+export function rowSplit(n: number, parts: number, method: Discretisation): Uint32Array {
+  const b = new Uint32Array(parts + 1);
+  b[parts] = n;
+  for (let k = 1; k < parts; k++) {
+    if (method === "collocation") { b[k] = Math.round((n * k) / parts); continue; }
+    // Rows [0, i) hold n·i − i(i−1)/2 entries; solve for the k/parts share of n(n+1)/2.
+    const target = (n * (n + 1) / 2) * (k / parts);
+    const i = (2 * n + 1 - Math.sqrt((2 * n + 1) ** 2 - 8 * target)) / 2;
+    b[k] = Math.min(n, Math.max(b[k - 1], Math.round(i)));
+  }
+  return b;
+}
+
+/** Worker task: rows [rowStart, rowEnd) into the shared matrix; returns the row count. */
+export function assembleRowsTask(P: PanelSet, method: Discretisation, rowStart: number, rowEnd: number, out: Float64Array): number {
+  assembleRows(P, method, rowStart, rowEnd, out);
+  return rowEnd - rowStart;
+}
+
+/** A PanelSet whose arrays are all in shared memory (returned as is when they already are). */
+export function sharedPanels(P: PanelSet): PanelSet {
+  if (P.vertices.buffer instanceof SharedArrayBuffer) return P;
+  const f = (a: Float64Array) => { const s = sharedFloat64(a.length); s.set(a); return s; };
+  const corners = new Uint32Array(new SharedArrayBuffer(4 * P.corners.length));
+  corners.set(P.corners);
+  return {
+    n: P.n, vertices: f(P.vertices), corners, centroids: f(P.centroids), normals: f(P.normals), areas: f(P.areas),
+    radii: f(P.radii), moments2: f(P.moments2), moments3: f(P.moments3), traces3: f(P.traces3),
+  };
+}
+
+/**
+ * The full n×n matrix (row-major, in shared memory), assembled on every worker of `pool`
+ * (default: the process-wide pool) in equal-work row blocks.
+ */
+export async function assembleDense(P: PanelSet, method: Discretisation, pool: WorkerPool = sharedPool()): Promise<Float64Array> {
+  const n = P.n;
+  const out = sharedFloat64(n * n);
+  const S = sharedPanels(P);
+  const parts = Math.max(1, Math.min(pool.size, n));
+  const b = rowSplit(n, parts, method);
+  const args: unknown[][] = [];
+  for (let k = 0; k < parts; k++) args.push([S, method, b[k], b[k + 1], out]);
+  await pool.map(import.meta.url, "assembleRowsTask", args);
+  return out;
+}
+
+/**
+ * Entries for arbitrary index sets: out[a·cols.length + b] = M[rows[a], cols[b]] (row-major
+ * block), identical to the dense matrix's entries.
+ */
+export function assembleBlock(P: PanelSet, rows: Uint32Array, cols: Uint32Array, out: Float64Array,
+  method: Discretisation = "galerkin"): void {
+  const nc = cols.length;
+  if (out.length < rows.length * nc) throw new Error(`assembleBlock: output holds ${out.length} entries, need ${rows.length * nc}`);
+  const entry = method === "galerkin" ? galerkinEntry : collocationEntry;
+  for (let a = 0; a < rows.length; a++) {
+    const i = rows[a];
+    for (let b = 0; b < nc; b++) out[a * nc + b] = entry(P, i, cols[b]);
+  }
+}

@@ -1,0 +1,241 @@
+/**
+ * Galerkin entries of the single-layer operator for piecewise-constant panel charges:
+ *   P_ij = (1/(A_i A_j)) ∫_{T_i} ∫_{T_j} 1/|x − y| dS(y) dS(x)      (1/metre)
+ * (the 1/(4πε) factor is the caller's). P is symmetric: every entry is computed with the
+ * lower index as the outer panel, so P_ij and P_ji are the same floating-point number.
+ *
+ * The ladder, by ρ = |c_i − c_j| / (r_i + r_j) (centroid distance over the sum of the
+ * centroid-to-vertex radii); bounds measured in tests/bem/galerkin.test.ts against a
+ * reference with the analytic inner integral and a 4^3-fold subdivided degree-10 outer rule:
+ *   i = j            closed form (selfTerm), ~1e-15.
+ *   shared vertex    homogeneity reduction to edge integrals (touchingTerm), ≤ 1e-10.
+ *   ρ < RHO_NEAR     analytic inner, outer degree-10 rule on T_i split adaptively (outerRuleSplit).
+ *   ρ < RHO_MID      analytic inner, outer degree-8 rule.
+ *   ρ < RHO_FAR      degree-4 (6-point) rule on both panels.
+ *   ρ ≥ RHO_FAR      Taylor expansion about the centroids to third order (farTerm).
+ * Measured worst relative errors per rung are listed next to the constants.
+ */
+import type { PanelSet } from "./panels.js";
+import { trianglePotential } from "./triangle-potential.js";
+import { dunavantRule, type TriangleRule } from "./dunavant.js";
+import { gaussLegendre } from "./gauss-legendre.js";
+
+export const RHO_NEAR = 1.0;
+export const RHO_MID = 2.5;
+export const RHO_FAR = 5.0;
+
+const RULE_NEAR = dunavantRule(10);
+const RULE_MID = dunavantRule(8);
+const RULE_QQ = dunavantRule(4);
+const GL_SMOOTH = gaussLegendre(12);
+const GL_GRADED = gaussLegendre(8);
+/** Geometric grading toward a shared vertex: interval ratio and number of levels. */
+const GRADE_RATIO = 0.15;
+const GRADE_LEVELS = 9;
+
+/** P_ij (1/metre). */
+export function galerkinEntry(P: PanelSet, i: number, j: number): number {
+  if (i === j) return selfTerm(P, i);
+  if (i > j) { const t = i; i = j; j = t; }
+  const c = P.centroids;
+  const dx = c[3 * i] - c[3 * j], dy = c[3 * i + 1] - c[3 * j + 1], dz = c[3 * i + 2] - c[3 * j + 2];
+  const d2 = dx * dx + dy * dy + dz * dz;
+  const rs = P.radii[i] + P.radii[j];
+  if (d2 >= RHO_FAR * RHO_FAR * rs * rs) return farTerm(P, i, j);
+  if (d2 >= RHO_MID * RHO_MID * rs * rs) return doubleQuadrature(P, i, j, RULE_QQ);
+  const shared = sharedCorner(P, i, j);
+  if (shared >= 0) return touchingTerm(P, i, j, shared);
+  if (d2 >= RHO_NEAR * RHO_NEAR * rs * rs) return outerRule(P, i, j, RULE_MID);
+  return outerRuleSplit(P, i, j, RULE_NEAR);
+}
+
+/**
+ * ∫_T∫_T 1/|x−y| dS dS / A² for one triangle with sides a, b, c:
+ *   (4/3) Σ_sides (1/a) ln((a + b + c)/(b + c − a)),
+ * the classical closed form of the constant-basis self term (as used e.g. by Arcioni, Bressan &
+ * Perregrini, IEEE Trans. MTT 45(3), 1997; recalled from memory and verified in
+ * tests/bem/galerkin.test.ts against converged numerical integration and against the
+ * homogeneity reduction of touchingTerm).
+ */
+export function selfTerm(P: PanelSet, i: number): number {
+  const v = P.vertices, o = 9 * i;
+  const a = Math.hypot(v[o + 3] - v[o + 6], v[o + 4] - v[o + 7], v[o + 5] - v[o + 8]);
+  const b = Math.hypot(v[o + 6] - v[o], v[o + 7] - v[o + 1], v[o + 8] - v[o + 2]);
+  const c = Math.hypot(v[o] - v[o + 3], v[o + 1] - v[o + 4], v[o + 2] - v[o + 5]);
+  const p = a + b + c;
+  if (P.areas[i] === 0) return Infinity;
+  return (4 / 3) * (Math.log(p / (b + c - a)) / a + Math.log(p / (c + a - b)) / b + Math.log(p / (a + b - c)) / c);
+}
+
+/**
+ * Index 3·ki + kj of the first corner pair the panels share (by mesh vertex index), or −1.
+ * Panels that touch only geometrically (unwelded mesh) fall to the near rungs.
+ */
+export function sharedCorner(P: PanelSet, i: number, j: number): number {
+  const c = P.corners;
+  for (let a = 0; a < 3; a++) {
+    const va = c[3 * i + a];
+    for (let b = 0; b < 3; b++) if (c[3 * j + b] === va) return 3 * a + b;
+  }
+  return -1;
+}
+
+/**
+ * Panels with a common vertex V. The kernel is homogeneous of degree −1, so scaling both
+ * triangles about V gives 3J = h_i ∫_{e_i} I_j dl + h_j ∫_{e_j} I_i dl, where e_i is the edge
+ * of T_i opposite V, h_i the distance from V to its line and I_j the analytic potential
+ * integral of T_j (the reduction by homogeneity of M. Lenoir & N. Salles, SIAM J. Sci. Comput.
+ * 34(6), 2012, cited from memory; see also Gumerov, Kaneko & Duraiswami, arXiv:2302.03247).
+ * The edge integrands are smooth except for a t·ln t type point where the edge meets the other
+ * panel (a second shared vertex): Gauss–Legendre, geometrically graded toward such ends.
+ */
+export function touchingTerm(P: PanelSet, i: number, j: number, shared: number): number {
+  const ki = (shared / 3) | 0, kj = shared % 3;
+  const J = oppositeEdgeTerm(P, i, ki, j) + oppositeEdgeTerm(P, j, kj, i);
+  return J / (3 * P.areas[i] * P.areas[j]);
+}
+
+/** h_a ∫_{edge of a opposite its corner k} I_b dl. */
+function oppositeEdgeTerm(P: PanelSet, a: number, k: number, b: number): number {
+  const v = P.vertices, c = P.corners;
+  const k1 = (k + 1) % 3, k2 = (k + 2) % 3;
+  const o1 = 9 * a + 3 * k1, o2 = 9 * a + 3 * k2;
+  const x0 = v[o1], y0 = v[o1 + 1], z0 = v[o1 + 2];
+  const ex = v[o2] - x0, ey = v[o2 + 1] - y0, ez = v[o2 + 2] - z0;
+  const L = Math.sqrt(ex * ex + ey * ey + ez * ez);
+  const h = 2 * P.areas[a] / L;
+  const vb = c[3 * b], vb1 = c[3 * b + 1], vb2 = c[3 * b + 2];
+  const i1 = c[3 * a + k1], i2 = c[3 * a + k2];
+  const g0 = i1 === vb || i1 === vb1 || i1 === vb2;
+  const g1 = i2 === vb || i2 === vb1 || i2 === vb2;
+  const ob = 9 * b;
+  let s: number;
+  if (!g0 && !g1) s = lineIntegral(v, ob, x0, y0, z0, ex, ey, ez, 0, 1, GL_SMOOTH);
+  else if (g0 && !g1) s = gradedIntegral(v, ob, x0, y0, z0, ex, ey, ez, 0, 1);
+  else if (!g0 && g1) s = gradedIntegral(v, ob, x0, y0, z0, ex, ey, ez, 1, 0);
+  else s = gradedIntegral(v, ob, x0, y0, z0, ex, ey, ez, 0, 0.5) + gradedIntegral(v, ob, x0, y0, z0, ex, ey, ez, 1, 0.5);
+  return h * L * s;
+}
+
+/** ∫_{ta}^{tb} I_b(p0 + t e) dt with a Gauss–Legendre rule. */
+function lineIntegral(v: Float64Array, ob: number, x0: number, y0: number, z0: number,
+  ex: number, ey: number, ez: number, ta: number, tb: number, R: { n: number; t: Float64Array; w: Float64Array }): number {
+  const len = tb - ta;
+  let s = 0;
+  for (let k = 0; k < R.n; k++) {
+    const t = ta + len * R.t[k];
+    s += R.w[k] * trianglePotential(v, ob, x0 + t * ex, y0 + t * ey, z0 + t * ez);
+  }
+  return s * len;
+}
+
+/** ∫ between t = ts (singular end) and t = te, graded geometrically toward ts. Signed length handled. */
+function gradedIntegral(v: Float64Array, ob: number, x0: number, y0: number, z0: number,
+  ex: number, ey: number, ez: number, ts: number, te: number): number {
+  const span = te - ts, sg = span > 0 ? 1 : -1, len = Math.abs(span);
+  let s = 0, hi = 1;
+  for (let l = 0; l <= GRADE_LEVELS; l++) {
+    const lo = l === GRADE_LEVELS ? 0 : hi * GRADE_RATIO;
+    const a = ts + sg * len * lo, b = ts + sg * len * hi;
+    s += lineIntegral(v, ob, x0, y0, z0, ex, ey, ez, Math.min(a, b), Math.max(a, b), GL_GRADED);
+    hi = lo;
+  }
+  return s;
+}
+
+/** Analytic inner integral over T_j, outer rule on T_i. */
+export function outerRule(P: PanelSet, i: number, j: number, R: TriangleRule): number {
+  const v = P.vertices, o = 9 * i, oj = 9 * j;
+  return outerOn(v, oj, v[o], v[o + 1], v[o + 2], v[o + 3], v[o + 4], v[o + 5], v[o + 6], v[o + 7], v[o + 8], R) / P.areas[j];
+}
+
+/**
+ * As outerRule, with T_i split at its edge midpoints into four, recursively wherever a piece
+ * is still closer than RHO_NEAR (in the sum of its radius and T_j's) to T_j, up to
+ * NEAR_DEPTH levels; pieces use the degree-10 rule.
+ */
+export function outerRuleSplit(P: PanelSet, i: number, j: number, R: TriangleRule): number {
+  const v = P.vertices, o = 9 * i, oj = 9 * j, cj = 3 * j;
+  return adaptiveOuter(v, oj, P.centroids[cj], P.centroids[cj + 1], P.centroids[cj + 2], P.radii[j],
+    v[o], v[o + 1], v[o + 2], v[o + 3], v[o + 4], v[o + 5], v[o + 6], v[o + 7], v[o + 8], R, 0) / P.areas[j];
+}
+
+const NEAR_DEPTH = 5;
+
+function adaptiveOuter(v: Float64Array, oj: number, gx: number, gy: number, gz: number, rj: number,
+  ax: number, ay: number, az: number, bx: number, by: number, bz: number, cx: number, cy: number, cz: number,
+  R: TriangleRule, depth: number): number {
+  const mx = (ax + bx + cx) / 3, my = (ay + by + cy) / 3, mz = (az + bz + cz) / 3;
+  const r = Math.sqrt(Math.max((ax - mx) ** 2 + (ay - my) ** 2 + (az - mz) ** 2,
+    (bx - mx) ** 2 + (by - my) ** 2 + (bz - mz) ** 2, (cx - mx) ** 2 + (cy - my) ** 2 + (cz - mz) ** 2));
+  const d2 = (mx - gx) ** 2 + (my - gy) ** 2 + (mz - gz) ** 2;
+  if (depth > 0 && (depth >= NEAR_DEPTH || d2 >= RHO_NEAR * RHO_NEAR * (r + rj) * (r + rj))) {
+    return outerOn(v, oj, ax, ay, az, bx, by, bz, cx, cy, cz, R);
+  }
+  const abx = 0.5 * (ax + bx), aby = 0.5 * (ay + by), abz = 0.5 * (az + bz);
+  const bcx = 0.5 * (bx + cx), bcy = 0.5 * (by + cy), bcz = 0.5 * (bz + cz);
+  const cax = 0.5 * (cx + ax), cay = 0.5 * (cy + ay), caz = 0.5 * (cz + az);
+  const d = depth + 1;
+  return 0.25 * (adaptiveOuter(v, oj, gx, gy, gz, rj, ax, ay, az, abx, aby, abz, cax, cay, caz, R, d)
+    + adaptiveOuter(v, oj, gx, gy, gz, rj, abx, aby, abz, bx, by, bz, bcx, bcy, bcz, R, d)
+    + adaptiveOuter(v, oj, gx, gy, gz, rj, cax, cay, caz, bcx, bcy, bcz, cx, cy, cz, R, d)
+    + adaptiveOuter(v, oj, gx, gy, gz, rj, abx, aby, abz, bcx, bcy, bcz, cax, cay, caz, R, d));
+}
+
+/** Mean over the triangle (a, b, c) of I_j. */
+function outerOn(v: Float64Array, oj: number, ax: number, ay: number, az: number, bx: number, by: number, bz: number,
+  cx: number, cy: number, cz: number, R: TriangleRule): number {
+  let s = 0;
+  for (let k = 0; k < R.n; k++) {
+    const l1 = R.l1[k], l2 = R.l2[k], l3 = R.l3[k];
+    s += R.w[k] * trianglePotential(v, oj, l1 * ax + l2 * bx + l3 * cx, l1 * ay + l2 * by + l3 * cy, l1 * az + l2 * bz + l3 * cz);
+  }
+  return s;
+}
+
+/** The same rule on both panels: Σ_k Σ_l w_k w_l / |x_k − y_l|. */
+export function doubleQuadrature(P: PanelSet, i: number, j: number, R: TriangleRule): number {
+  const v = P.vertices, o = 9 * i, p = 9 * j;
+  const ax = v[o], ay = v[o + 1], az = v[o + 2], bx = v[o + 3], by = v[o + 4], bz = v[o + 5], cx = v[o + 6], cy = v[o + 7], cz = v[o + 8];
+  const dx = v[p], dy = v[p + 1], dz = v[p + 2], ex = v[p + 3], ey = v[p + 4], ez = v[p + 5], fx = v[p + 6], fy = v[p + 7], fz = v[p + 8];
+  const n = R.n, L1 = R.l1, L2 = R.l2, L3 = R.l3, W = R.w;
+  let s = 0;
+  for (let k = 0; k < n; k++) {
+    const l1 = L1[k], l2 = L2[k], l3 = L3[k];
+    const xx = l1 * ax + l2 * bx + l3 * cx, xy = l1 * ay + l2 * by + l3 * cy, xz = l1 * az + l2 * bz + l3 * cz;
+    let t = 0;
+    for (let m = 0; m < n; m++) {
+      const m1 = L1[m], m2 = L2[m], m3 = L3[m];
+      const rx = xx - (m1 * dx + m2 * ex + m3 * fx), ry = xy - (m1 * dy + m2 * ey + m3 * fy), rz = xz - (m1 * dz + m2 * ez + m3 * fz);
+      t += W[m] / Math.sqrt(rx * rx + ry * ry + rz * rz);
+    }
+    s += W[k] * t;
+  }
+  return s;
+}
+
+/**
+ * Taylor expansion of 1/|D + a − b| about D = c_i − c_j, averaged over both panels (a, b the
+ * offsets from the centroids): first-order terms vanish, the second-order term involves the
+ * summed second moments S, the third the difference U of third moments:
+ *   1/d + (3 DᵀSD/d⁵ − tr S/d³)/2 + (−15 U[D,D,D]/d⁷ + 9 (tr U)·D/d⁵)/6,
+ * from ∂_a∂_b(1/r) = (3x_a x_b − r²δ_ab)/r⁵ and ∂_a∂_b∂_c(1/r) = −15x_a x_b x_c/r⁷ +
+ * 3(x_a δ_bc + x_b δ_ac + x_c δ_ab)/r⁵ (common practice; textbook Cartesian multipoles).
+ */
+export function farTerm(P: PanelSet, i: number, j: number): number {
+  const c = P.centroids, M = P.moments2, T = P.moments3, V = P.traces3;
+  const dx = c[3 * i] - c[3 * j], dy = c[3 * i + 1] - c[3 * j + 1], dz = c[3 * i + 2] - c[3 * j + 2];
+  const oi = 6 * i, oj = 6 * j;
+  const sxx = M[oi] + M[oj], syy = M[oi + 1] + M[oj + 1], szz = M[oi + 2] + M[oj + 2];
+  const sxy = M[oi + 3] + M[oj + 3], sxz = M[oi + 4] + M[oj + 4], syz = M[oi + 5] + M[oj + 5];
+  const ti = 10 * i, tj = 10 * j;
+  const uddd = (T[ti] - T[tj]) * dx * dx * dx + (T[ti + 1] - T[tj + 1]) * dy * dy * dy + (T[ti + 2] - T[tj + 2]) * dz * dz * dz
+    + 3 * ((T[ti + 3] - T[tj + 3]) * dx * dx * dy + (T[ti + 4] - T[tj + 4]) * dx * dx * dz + (T[ti + 5] - T[tj + 5]) * dx * dy * dy
+      + (T[ti + 6] - T[tj + 6]) * dy * dy * dz + (T[ti + 7] - T[tj + 7]) * dx * dz * dz + (T[ti + 8] - T[tj + 8]) * dy * dz * dz)
+    + 6 * (T[ti + 9] - T[tj + 9]) * dx * dy * dz;
+  const vd = (V[3 * i] - V[3 * j]) * dx + (V[3 * i + 1] - V[3 * j + 1]) * dy + (V[3 * i + 2] - V[3 * j + 2]) * dz;
+  const q = sxx * dx * dx + syy * dy * dy + szz * dz * dz + 2 * (sxy * dx * dy + sxz * dx * dz + syz * dy * dz);
+  const r2 = dx * dx + dy * dy + dz * dz;
+  const inv = 1 / Math.sqrt(r2), inv2 = inv * inv;
+  return inv * (1 + inv2 * (0.5 * (3 * q * inv2 - (sxx + syy + szz)) + inv2 * (-2.5 * uddd * inv2 + 1.5 * vd)));
+}

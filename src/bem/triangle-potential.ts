@@ -1,0 +1,191 @@
+/**
+ * The potential integral of a flat triangle with unit surface density:
+ *   I(x) = ∫_T 1/|x − y| dS(y)   (metres),
+ * and its gradient ∇I(x) (dimensionless), for any observation point x.
+ *
+ * Closed form after D. R. Wilton, S. M. Rao, A. W. Glisson, D. H. Schaubert, O. M. Al-Bundak,
+ * C. M. Butler, "Potential integrals for uniform and linear source distributions on polygonal
+ * and polyhedral domains", IEEE Trans. Antennas Propag. 32(3):276–281, 1984, eq. (4) for I and
+ * eq. (7) (the constant-density part) for ∇I; notation as in R. D. Graglia, IEEE TAP 41(10),
+ * 1993. Per edge k with unit tangent l̂, outward in-plane normal û = l̂ × n̂, h = (x − v₁)·n̂:
+ *   t⁰ = (v_k − x)·û,  s∓ = (v_k∓ − x)·l̂,  R⁰² = t⁰² + h²,  R∓ = √(s∓² + R⁰²),
+ *   f  = ln((R⁺ + s⁺)/(R⁻ + s⁻)),
+ *   β  = atan(t⁰ s⁺ / (R⁰² + |h| R⁺)) − atan(t⁰ s⁻ / (R⁰² + |h| R⁻)),
+ *   I  = Σ_k t⁰ f − |h| Σ_k β,      ∇I = −Σ_k û f − sgn(h) n̂ Σ_k β.
+ * Σβ is the solid angle Ω the triangle subtends at x, so the normal derivative is −Ω on the
+ * +n̂ side and +Ω on the −n̂ side, tending to ∓2π at the panel itself (a jump of 4π in ∂I/∂n,
+ * which is the σ/ε jump of the normal field). On the plane (h = 0) the normal part is returned as its principal value 0,
+ * the mean of the two one-sided limits; callers add ±2π·n̂ for a one-sided value.
+ *
+ * Robustness: R ± s is formed without cancellation (R + s = R⁰²/(R − s) when s < 0) and f is
+ * taken as log1p of an exactly formed difference (R⁺ − R⁻ = L(s⁺ + s⁻)/(R⁺ + R⁻)), so far
+ * points keep their digits; beyond FAR_RATIO radii the sum Σ t⁰ f itself cancels, and the
+ * integral switches to a Dunavant rule whose error there is below 1e-14 (measured in
+ * tests/bem/triangle-potential.test.ts). On an edge or vertex, t⁰ f → 0 (t ln t) and β → 0 are
+ * taken as limits, so I is finite everywhere; the in-plane gradient is log-singular on edges.
+ */
+import { dunavantRule } from "./dunavant.js";
+
+/** Beyond this distance from the centroid, in centroid-to-vertex radii, use quadrature. */
+export const FAR_RATIO = 40;
+const FAR_RULE = dunavantRule(8);
+
+/**
+ * I(x) for the triangle whose 9 vertex coordinates (metres) are v[o..o+8], counter-clockwise
+ * about its normal. Returns metres (∫ dS / distance).
+ */
+export function trianglePotential(v: ArrayLike<number>, o: number, px: number, py: number, pz: number): number {
+  const ax = v[o], ay = v[o + 1], az = v[o + 2];
+  const bx = v[o + 3], by = v[o + 4], bz = v[o + 5];
+  const cx = v[o + 6], cy = v[o + 7], cz = v[o + 8];
+  const gx = (ax + bx + cx) / 3, gy = (ay + by + cy) / 3, gz = (az + bz + cz) / 3;
+  const dgx = px - gx, dgy = py - gy, dgz = pz - gz;
+  const dg2 = dgx * dgx + dgy * dgy + dgz * dgz;
+  const r2 = Math.max(
+    (ax - gx) ** 2 + (ay - gy) ** 2 + (az - gz) ** 2,
+    (bx - gx) ** 2 + (by - gy) ** 2 + (bz - gz) ** 2,
+    (cx - gx) ** 2 + (cy - gy) ** 2 + (cz - gz) ** 2);
+  let nx = (by - ay) * (cz - az) - (bz - az) * (cy - ay);
+  let ny = (bz - az) * (cx - ax) - (bx - ax) * (cz - az);
+  let nz = (bx - ax) * (cy - ay) - (by - ay) * (cx - ax);
+  const n2 = Math.sqrt(nx * nx + ny * ny + nz * nz);
+  if (n2 === 0) return 0;
+  const area = 0.5 * n2;
+  if (dg2 > FAR_RATIO * FAR_RATIO * r2) {
+    const R = FAR_RULE;
+    let s = 0;
+    for (let k = 0; k < R.n; k++) {
+      const l1 = R.l1[k], l2 = R.l2[k], l3 = R.l3[k];
+      const dx = px - (l1 * ax + l2 * bx + l3 * cx);
+      const dy = py - (l1 * ay + l2 * by + l3 * cy);
+      const dz = pz - (l1 * az + l2 * bz + l3 * cz);
+      s += R.w[k] / Math.sqrt(dx * dx + dy * dy + dz * dz);
+    }
+    return s * area;
+  }
+  nx /= n2; ny /= n2; nz /= n2;
+  const h = (px - ax) * nx + (py - ay) * ny + (pz - az) * nz;
+  const ah = Math.abs(h);
+  let sumTf = 0, sumB = 0;
+  for (let k = 0; k < 3; k++) {
+    let x0, y0, z0, x1, y1, z1;
+    if (k === 0) { x0 = ax; y0 = ay; z0 = az; x1 = bx; y1 = by; z1 = bz; }
+    else if (k === 1) { x0 = bx; y0 = by; z0 = bz; x1 = cx; y1 = cy; z1 = cz; }
+    else { x0 = cx; y0 = cy; z0 = cz; x1 = ax; y1 = ay; z1 = az; }
+    let lx = x1 - x0, ly = y1 - y0, lz = z1 - z0;
+    const L = Math.sqrt(lx * lx + ly * ly + lz * lz);
+    lx /= L; ly /= L; lz /= L;
+    const ux = ly * nz - lz * ny, uy = lz * nx - lx * nz, uz = lx * ny - ly * nx;
+    const wx = x0 - px, wy = y0 - py, wz = z0 - pz;
+    const t0 = wx * ux + wy * uy + wz * uz;
+    if (t0 === 0) continue;
+    const sm = wx * lx + wy * ly + wz * lz, sp = sm + L;
+    const R02 = t0 * t0 + h * h;
+    const Rm = Math.sqrt(sm * sm + R02), Rp = Math.sqrt(sp * sp + R02);
+    sumTf += t0 * edgeLog(L, sm, sp, Rm, Rp, R02);
+    sumB += Math.atan(t0 * sp / (R02 + ah * Rp)) - Math.atan(t0 * sm / (R02 + ah * Rm));
+  }
+  return sumTf - ah * sumB;
+}
+
+/** f = ln((R⁺+s⁺)/(R⁻+s⁻)) = ∫_edge dl / distance, formed without cancellation. */
+function edgeLog(L: number, sm: number, sp: number, Rm: number, Rp: number, R02: number): number {
+  const q = (sp + sm) / (Rp + Rm);
+  if (sp + sm >= 0) {
+    const am = sm >= 0 ? Rm + sm : R02 / (Rm - sm);
+    return Math.log1p(L * (1 + q) / am);
+  }
+  const bp = sp <= 0 ? Rp - sp : R02 / (Rp + sp);
+  return Math.log1p(L * (1 - q) / bp);
+}
+
+/**
+ * ∇I(x) into out[oo..oo+2] (dimensionless) and I(x) as the return value (metres). The field of
+ * a panel of density σ is −σ/(4πε)·∇I. Normal component at h = 0 is the principal value
+ * (see the module comment); the in-plane part is infinite exactly on an edge.
+ */
+export function trianglePotentialGradient(out: Float64Array, oo: number, v: ArrayLike<number>, o: number,
+  px: number, py: number, pz: number): number {
+  const ax = v[o], ay = v[o + 1], az = v[o + 2];
+  const bx = v[o + 3], by = v[o + 4], bz = v[o + 5];
+  const cx = v[o + 6], cy = v[o + 7], cz = v[o + 8];
+  const gx = (ax + bx + cx) / 3, gy = (ay + by + cy) / 3, gz = (az + bz + cz) / 3;
+  const dgx = px - gx, dgy = py - gy, dgz = pz - gz;
+  const dg2 = dgx * dgx + dgy * dgy + dgz * dgz;
+  const r2 = Math.max(
+    (ax - gx) ** 2 + (ay - gy) ** 2 + (az - gz) ** 2,
+    (bx - gx) ** 2 + (by - gy) ** 2 + (bz - gz) ** 2,
+    (cx - gx) ** 2 + (cy - gy) ** 2 + (cz - gz) ** 2);
+  let nx = (by - ay) * (cz - az) - (bz - az) * (cy - ay);
+  let ny = (bz - az) * (cx - ax) - (bx - ax) * (cz - az);
+  let nz = (bx - ax) * (cy - ay) - (by - ay) * (cx - ax);
+  const n2 = Math.sqrt(nx * nx + ny * ny + nz * nz);
+  out[oo] = 0; out[oo + 1] = 0; out[oo + 2] = 0;
+  if (n2 === 0) return 0;
+  const area = 0.5 * n2;
+  if (dg2 > FAR_RATIO * FAR_RATIO * r2) {
+    const R = FAR_RULE;
+    let s = 0, sx = 0, sy = 0, sz = 0;
+    for (let k = 0; k < R.n; k++) {
+      const l1 = R.l1[k], l2 = R.l2[k], l3 = R.l3[k];
+      const dx = px - (l1 * ax + l2 * bx + l3 * cx);
+      const dy = py - (l1 * ay + l2 * by + l3 * cy);
+      const dz = pz - (l1 * az + l2 * bz + l3 * cz);
+      const ir = 1 / Math.sqrt(dx * dx + dy * dy + dz * dz);
+      const w = R.w[k] * ir;
+      s += w;
+      const w3 = w * ir * ir;
+      sx -= w3 * dx; sy -= w3 * dy; sz -= w3 * dz;
+    }
+    out[oo] = sx * area; out[oo + 1] = sy * area; out[oo + 2] = sz * area;
+    return s * area;
+  }
+  nx /= n2; ny /= n2; nz /= n2;
+  const h = (px - ax) * nx + (py - ay) * ny + (pz - az) * nz;
+  const ah = Math.abs(h);
+  let sumTf = 0, sumB = 0, gxs = 0, gys = 0, gzs = 0;
+  for (let k = 0; k < 3; k++) {
+    let x0, y0, z0, x1, y1, z1;
+    if (k === 0) { x0 = ax; y0 = ay; z0 = az; x1 = bx; y1 = by; z1 = bz; }
+    else if (k === 1) { x0 = bx; y0 = by; z0 = bz; x1 = cx; y1 = cy; z1 = cz; }
+    else { x0 = cx; y0 = cy; z0 = cz; x1 = ax; y1 = ay; z1 = az; }
+    let lx = x1 - x0, ly = y1 - y0, lz = z1 - z0;
+    const L = Math.sqrt(lx * lx + ly * ly + lz * lz);
+    lx /= L; ly /= L; lz /= L;
+    const ux = ly * nz - lz * ny, uy = lz * nx - lx * nz, uz = lx * ny - ly * nx;
+    const wx = x0 - px, wy = y0 - py, wz = z0 - pz;
+    const t0 = wx * ux + wy * uy + wz * uz;
+    const sm = wx * lx + wy * ly + wz * lz, sp = sm + L;
+    const R02 = t0 * t0 + h * h;
+    const Rm = Math.sqrt(sm * sm + R02), Rp = Math.sqrt(sp * sp + R02);
+    const f = edgeLog(L, sm, sp, Rm, Rp, R02);
+    gxs -= ux * f; gys -= uy * f; gzs -= uz * f;
+    if (t0 === 0) continue;
+    sumTf += t0 * f;
+    sumB += Math.atan(t0 * sp / (R02 + ah * Rp)) - Math.atan(t0 * sm / (R02 + ah * Rm));
+  }
+  const sg = h > 0 ? 1 : h < 0 ? -1 : 0;
+  out[oo] = gxs - sg * nx * sumB;
+  out[oo + 1] = gys - sg * ny * sumB;
+  out[oo + 2] = gzs - sg * nz * sumB;
+  return sumTf - ah * sumB;
+}
+
+/**
+ * Solid angle (steradians, signed: positive seen from the +n̂ side) subtended by the triangle
+ * at x — Σβ of the formula above with the sign of h. Useful for the jump term of the double layer.
+ */
+export function triangleSolidAngle(v: ArrayLike<number>, o: number, px: number, py: number, pz: number): number {
+  // Van Oosterom & Strackee, IEEE Trans. Biomed. Eng. 30(2):125–126, 1983: tan(Ω/2) formula.
+  const ax = v[o] - px, ay = v[o + 1] - py, az = v[o + 2] - pz;
+  const bx = v[o + 3] - px, by = v[o + 4] - py, bz = v[o + 5] - pz;
+  const cx = v[o + 6] - px, cy = v[o + 7] - py, cz = v[o + 8] - pz;
+  const la = Math.sqrt(ax * ax + ay * ay + az * az);
+  const lb = Math.sqrt(bx * bx + by * by + bz * bz);
+  const lc = Math.sqrt(cx * cx + cy * cy + cz * cz);
+  const trip = ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
+  const den = la * lb * lc + (ax * bx + ay * by + az * bz) * lc + (ax * cx + ay * cy + az * cz) * lb
+    + (bx * cx + by * cy + bz * cz) * la;
+  // Seen from +n̂ the vertices run counter-clockwise, which makes the triple product negative.
+  return -2 * Math.atan2(trip, den);
+}
