@@ -16,8 +16,10 @@
  * it is a boundary (open sheet rim), non-manifold, joins two conductors or two inconsistently
  * oriented or degenerate triangles, or its dihedral angle exceeds the feature angle. Around
  * a vertex the triangle corners joined through non-feature edges form one patch, and each
- * patch has its own normal (angle-weighted mean of its face normals, G. Thürmer and
- * C. A. Wüthrich, "Computing vertex normals from polygonal facets", J. Graphics Tools 3(1), 1998).
+ * patch has its own normal: the mean of its face normals with the weights of N. Max,
+ * "Weights for computing vertex normals from facet normals", J. Graphics Tools 4(2), 1999,
+ * which are exact when the vertex and its neighbours lie on a sphere. Angle weights are only
+ * first-order accurate on irregular meshes and would cap the midpoint error at O(h^2).
  * Flat faces thus keep the exact face normal, so box faces stay flat and box edges straight.
  */
 import type { SurfaceMesh } from "./model.js";
@@ -185,11 +187,14 @@ export function refineUniform(mesh: SurfaceMesh, opts: RefineOptions = {}): Surf
       const ux = p[b] - p[a], uy = p[b + 1] - p[a + 1], uz = p[b + 2] - p[a + 2];
       const vx = p[c] - p[a], vy = p[c + 1] - p[a + 1], vz = p[c + 2] - p[a + 2];
       const cx = uy * vz - uz * vy, cy = uz * vx - ux * vz, cz = ux * vy - uy * vx;
-      const angle = Math.atan2(Math.sqrt(cx * cx + cy * cy + cz * cz), ux * vx + uy * vy + uz * vz);
+      // Max's weight sin(alpha)/(|u||v|) on the unit face normal, i.e. (u x v)/(|u|^2 |v|^2).
+      const uu = ux * ux + uy * uy + uz * uz, vv = vx * vx + vy * vy + vz * vz;
+      if (uu === 0 || vv === 0) continue;
+      const weight = Math.sqrt(cx * cx + cy * cy + cz * cz) / (uu * vv);
       const r = 3 * findRoot(parent, h);
-      acc[r] += angle * normals[3 * t];
-      acc[r + 1] += angle * normals[3 * t + 1];
-      acc[r + 2] += angle * normals[3 * t + 2];
+      acc[r] += weight * normals[3 * t];
+      acc[r + 1] += weight * normals[3 * t + 1];
+      acc[r + 2] += weight * normals[3 * t + 2];
     }
     cornerNormal = new Float64Array(3 * nh);
     for (let h = 0; h < nh; h++) {
