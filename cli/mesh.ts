@@ -1,4 +1,68 @@
+/**
+ * `sigmesh mesh <shape>`: write a generated mesh of a simple conductor to STL or OBJ.
+ * Parameters are in the user's unit; the library works in metres.
+ */
 import type { Command } from "commander";
+import { action } from "./common.js";
+import { InputError } from "../src/io/errors.js";
+import { parseUnit, metresPer, DEFAULT_UNIT } from "../src/io/units.js";
+import { encodeMesh, outputFormatFromPath, writeMeshFile } from "../src/io/write.js";
+import { generateShape, SHAPES, type ShapeParams } from "../src/mesh/primitives/index.js";
+import { surfaceArea } from "../src/mesh/measure.js";
+
+/** Option flag for a parameter name: panelSize -> --panel-size. */
+const flag = (param: string): string => "--" + param.replace(/[A-Z]/g, (c) => "-" + c.toLowerCase());
+
+const PARAMETERS: [string, string][] = [
+  ["radius", "radius (sphere, disk, cylinder)"],
+  ["majorRadius", "axis to tube centre (torus)"],
+  ["minorRadius", "tube radius (torus)"],
+  ["size", "edge lengths LX,LY,LZ (box) or LX,LY (plate)"],
+  ["length", "length along the axis (bar)"],
+  ["width", "width (bar)"],
+  ["thickness", "thickness (bar)"],
+  ["height", "length cap to cap (cylinder)"],
+  ["level", "icosphere subdivision level L, 20*4^L triangles (sphere; default 3)"],
+  ["panels", "least number of triangles (sphere)"],
+  ["divisions", "divisions per side N or NX,NY[,NZ]; rings (disk); segments around (cylinder, torus NU[,NV])"],
+  ["panelSize", "target panel edge length, instead of divisions"],
+  ["grading", "largest/smallest spacing along a side, toward edges and rims (1 = uniform)"],
+  ["center", "centre X,Y,Z"],
+  ["axis", "axis x, y or z: normal of a plate or disk, axis of a cylinder, torus or bar"],
+  ["name", "conductor name (default: the shape)"],
+];
+
 export function registerMesh(program: Command): void {
-  void program; // placeholder while the command is being written
+  const cmd = program
+    .command("mesh")
+    .argument("<shape>", `one of ${SHAPES.join(", ")}`)
+    .description("generate a boundary-element mesh of a simple conductor (closed shapes outward-oriented)");
+  for (const [param, help] of PARAMETERS) cmd.option(`${flag(param)} <value>`, help);
+  cmd
+    .option("--unit <unit>", "length unit of the parameters and the output file (m, cm, mm, um, in, mil)", DEFAULT_UNIT)
+    .option("-o, --output <file>", "output mesh: .stl (binary), .obj, or - for ASCII STL on stdout")
+    .option("--ascii", "write ASCII STL instead of binary")
+    .option("-q, --quiet", "no summary line")
+    .action(action((shape: string, opts: Record<string, string | boolean | undefined>) => {
+      const unit = parseUnit(String(opts.unit), "--unit");
+      const output = typeof opts.output === "string" ? opts.output : undefined;
+      if (output === undefined || output === "") throw new InputError("give the output file with -o (.stl or .obj, or - for stdout)");
+      const format = output === "-" ? "stl-ascii" : outputFormatFromPath(output, Boolean(opts.ascii));
+      const params: ShapeParams = {};
+      for (const [param] of PARAMETERS) {
+        const v = opts[param];
+        if (typeof v === "string") params[param] = v;
+      }
+      const mesh = generateShape(shape, params, { metresPerUnit: metresPer(unit), describe: flag });
+      if (output === "-") {
+        // A reader that stops early (`| head`) is not a failure of ours.
+        process.stdout.on("error", (err: NodeJS.ErrnoException) => { if (err.code === "EPIPE") process.exit(0); else throw err; });
+        process.stdout.write(encodeMesh(mesh, format, unit));
+      }
+      else writeMeshFile(output, mesh, format, unit);
+      if (!opts.quiet) {
+        const area = surfaceArea(mesh) / metresPer(unit) ** 2;
+        process.stderr.write(`sigmesh: ${shape} "${mesh.names[0]}": ${mesh.triangles.length / 3} triangles, ${mesh.positions.length / 3} vertices, area ${area.toPrecision(6)} ${unit}^2, unit ${unit} -> ${output === "-" ? "stdout" : output}\n`);
+      }
+    }));
 }
