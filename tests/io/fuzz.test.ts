@@ -1,0 +1,61 @@
+import { describe, it, expect } from "vitest";
+import fc from "fast-check";
+import { parseMeshBytes } from "../../src/io/load.js";
+import { InputError } from "../../src/io/errors.js";
+import { fixtureBytes } from "./helpers.js";
+
+// Corrupted real files must either load or fail with an InputError: never any other exception.
+const files = ["tetra_solid_header.stl", "two_solids.stl", "tetra_quirks.stl", "parts.obj", "groups.obj", "two_tets_41.msh", "two_tets_22.msh", "two_tets_41_nophys.msh"];
+
+const corruption = fc.oneof(
+  fc.record({ kind: fc.constant("truncate" as const), at: fc.double({ min: 0, max: 1, noNaN: true }) }),
+  fc.record({ kind: fc.constant("flip" as const), at: fc.array(fc.double({ min: 0, max: 1, noNaN: true }), { minLength: 1, maxLength: 8 }), bits: fc.integer({ min: 1, max: 255 }) }),
+  fc.record({ kind: fc.constant("insert" as const), at: fc.double({ min: 0, max: 1, noNaN: true }), junk: fc.uint8Array({ minLength: 1, maxLength: 40 }) }),
+  fc.record({ kind: fc.constant("count" as const), at: fc.double({ min: 0, max: 1, noNaN: true }), value: fc.constantFrom("0", "-1", "4294967295", "99999999999", "1e9", "3.5", "x") }),
+);
+
+function corrupt(bytes: Uint8Array, c: fc.Infer<typeof corruption>): Uint8Array {
+  const n = bytes.length;
+  const pos = (f: number) => Math.min(n, Math.floor(f * n));
+  switch (c.kind) {
+    case "truncate": return bytes.slice(0, pos(c.at));
+    case "flip": { const b = bytes.slice(); for (const f of c.at) { const i = Math.min(n - 1, pos(f)); b[i] ^= c.bits; } return b; }
+    case "insert": { const i = pos(c.at); const b = new Uint8Array(n + c.junk.length); b.set(bytes.subarray(0, i)); b.set(c.junk, i); b.set(bytes.subarray(i), i + c.junk.length); return b; }
+    case "count": {
+      // Replace the number nearest the chosen place (a count, a tag or a coordinate) with a bad one.
+      const text = new TextDecoder("latin1").decode(bytes);
+      const re = /-?\d+(\.\d+)?/g;
+      const target = pos(c.at);
+      let best: RegExpExecArray | null = null, m: RegExpExecArray | null;
+      while ((m = re.exec(text)) !== null) { if (!best || Math.abs(m.index - target) < Math.abs(best.index - target)) best = m; }
+      if (!best) return bytes;
+      const out = text.slice(0, best.index) + c.value + text.slice(best.index + best[0].length);
+      return Uint8Array.from(out, (ch) => ch.charCodeAt(0) & 255);
+    }
+  }
+}
+
+describe("fuzzed corruptions of real files", () => {
+  for (const f of files) {
+    it(`${f}: loads or throws InputError`, () => {
+      const original = fixtureBytes(f);
+      let failures = 0, loads = 0;
+      fc.assert(fc.property(corruption, (c) => {
+        const bytes = corrupt(original, c);
+        try {
+          const r = parseMeshBytes(bytes, f, { unit: "mm" });
+          loads++;
+          for (const x of r.mesh.positions) expect(Number.isFinite(x)).toBe(true);
+          for (const v of r.mesh.triangles) expect(v).toBeLessThan(r.mesh.positions.length / 3);
+          expect(r.mesh.conductor.length * 3).toBe(r.mesh.triangles.length);
+        } catch (e) {
+          if (!(e instanceof InputError)) throw e;
+          failures++;
+          expect(e.file).toBe(f);
+          expect(e.message).not.toMatch(/\n/);
+        }
+      }), { numRuns: 300, seed: 20261201 });
+      expect(loads + failures).toBe(300);
+    });
+  }
+});
