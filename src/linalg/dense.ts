@@ -13,18 +13,18 @@
  */
 
 /**
- * C ← C − A·Bᵀ on an m×p block of C, where A is m×kc (rows `lda` apart) and B is p×kc
- * (rows `ldb` apart): entry (i, j) loses the dot product of row i of A and row j of B.
+ * C ← C + α·A·Bᵀ on an m×p block of C, where A is m×kc (rows `lda` apart) and B is p×kc
+ * (rows `ldb` apart): entry (i, j) gains α times the dot product of row i of A and row j of B.
  *
  * Only entries with j ≤ i + diag are touched, so `diag = p` updates the whole block and
  * `diag = r0 − c0` (global row and column of the block's corner) updates the lower triangle
  * of a symmetric trailing matrix (the SYRK case of Cholesky), leaving the upper part alone.
  */
-export function gemmNTSub(
+export function gemmNT(
   C: Float64Array, cOff: number, ldc: number,
   A: Float64Array, aOff: number, lda: number,
   B: Float64Array, bOff: number, ldb: number,
-  m: number, p: number, kc: number, diag: number,
+  m: number, p: number, kc: number, diag: number, alpha: number,
 ): void {
   const m4 = m - (m % 4);
   let i = 0;
@@ -51,10 +51,10 @@ export function gemmNTSub(
         c30 += x3 * y0; c31 += x3 * y1; c32 += x3 * y2; c33 += x3 * y3;
       }
       const r0 = cOff + i * ldc + j, r1 = r0 + ldc, r2 = r1 + ldc, r3 = r2 + ldc;
-      C[r0] -= c00; C[r0 + 1] -= c01; C[r0 + 2] -= c02; C[r0 + 3] -= c03;
-      C[r1] -= c10; C[r1 + 1] -= c11; C[r1 + 2] -= c12; C[r1 + 3] -= c13;
-      C[r2] -= c20; C[r2 + 1] -= c21; C[r2 + 2] -= c22; C[r2 + 3] -= c23;
-      C[r3] -= c30; C[r3 + 1] -= c31; C[r3 + 2] -= c32; C[r3 + 3] -= c33;
+      C[r0] += alpha * c00; C[r0 + 1] += alpha * c01; C[r0 + 2] += alpha * c02; C[r0 + 3] += alpha * c03;
+      C[r1] += alpha * c10; C[r1 + 1] += alpha * c11; C[r1 + 2] += alpha * c12; C[r1 + 3] += alpha * c13;
+      C[r2] += alpha * c20; C[r2 + 1] += alpha * c21; C[r2 + 2] += alpha * c22; C[r2 + 3] += alpha * c23;
+      C[r3] += alpha * c30; C[r3 + 1] += alpha * c31; C[r3 + 2] += alpha * c32; C[r3 + 3] += alpha * c33;
     }
     // Remaining columns of these four rows (diagonal straddle and the ragged right edge).
     for (; j < jEnd; j++) {
@@ -65,10 +65,10 @@ export function gemmNTSub(
         s0 += A[a0 + k] * y; s1 += A[a1 + k] * y; s2 += A[a2 + k] * y; s3 += A[a3 + k] * y;
       }
       const r0 = cOff + i * ldc + j;
-      if (j <= i + diag) C[r0] -= s0;
-      if (j <= i + 1 + diag) C[r0 + ldc] -= s1;
-      if (j <= i + 2 + diag) C[r0 + 2 * ldc] -= s2;
-      if (j <= i + 3 + diag) C[r0 + 3 * ldc] -= s3;
+      if (j <= i + diag) C[r0] += alpha * s0;
+      if (j <= i + 1 + diag) C[r0 + ldc] += alpha * s1;
+      if (j <= i + 2 + diag) C[r0 + 2 * ldc] += alpha * s2;
+      if (j <= i + 3 + diag) C[r0 + 3 * ldc] += alpha * s3;
     }
   }
   for (; i < m; i++) {
@@ -79,7 +79,7 @@ export function gemmNTSub(
       const b0 = bOff + j * ldb;
       let s = 0;
       for (let k = 0; k < kc; k++) s += A[a0 + k] * B[b0 + k];
-      C[cOff + i * ldc + j] -= s;
+      C[cOff + i * ldc + j] += alpha * s;
     }
   }
 }
@@ -105,44 +105,32 @@ export function packTransposed(out: Float64Array, outOff: number, A: Float64Arra
 
 /**
  * Y[r0..r1) ← A[r0..r1)·X for row-major n×n A and n×k X, Y (rows r0 to r1 only, so rows
- * can be split among workers). Memory-bound: A is read once per call whatever k is.
+ * can be split among workers), given Xt = Xᵀ (k×n, from packTransposed) for k > 1.
+ * Memory-bound: A is read from memory once per call whatever k is; four rows share each
+ * load of X (k = 1) or go through the 4×4 kernel against Xt (k > 1), whose column tiles
+ * revisit the four rows while they are still in cache.
  */
-export function multiplyRows(A: Float64Array, n: number, X: Float64Array, k: number, Y: Float64Array, r0: number, r1: number): void {
-  if (k === 1) {
-    for (let i = r0; i < r1; i++) {
-      const a = i * n;
-      let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
-      let j = 0;
-      for (; j + 3 < n; j += 4) {
-        s0 += A[a + j] * X[j]; s1 += A[a + j + 1] * X[j + 1];
-        s2 += A[a + j + 2] * X[j + 2]; s3 += A[a + j + 3] * X[j + 3];
-      }
-      for (; j < n; j++) s0 += A[a + j] * X[j];
-      Y[i] = s0 + s1 + s2 + s3;
-    }
+export function multiplyRows(A: Float64Array, n: number, X: Float64Array, Xt: Float64Array, k: number, Y: Float64Array, r0: number, r1: number): void {
+  if (k !== 1) {
+    for (let i = r0 * k; i < r1 * k; i++) Y[i] = 0;
+    gemmNT(Y, r0 * k, k, A, r0 * n, n, Xt, 0, n, r1 - r0, k, n, k, 1);
     return;
   }
-  // Two rows at a time halve the passes over X; the k values of a row accumulate in Y.
   let i = r0;
-  for (; i + 1 < r1; i += 2) {
-    const a0 = i * n, a1 = a0 + n, y0 = i * k, y1 = y0 + k;
-    for (let c = 0; c < k; c++) { Y[y0 + c] = 0; Y[y1 + c] = 0; }
+  for (; i + 3 < r1; i += 4) {
+    const a = i * n, b = a + n, c = b + n, d = c + n;
+    let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
     for (let j = 0; j < n; j++) {
-      const u = A[a0 + j], v = A[a1 + j], x = j * k;
-      for (let c = 0; c < k; c++) {
-        const xv = X[x + c];
-        Y[y0 + c] += u * xv;
-        Y[y1 + c] += v * xv;
-      }
+      const x = X[j];
+      s0 += A[a + j] * x; s1 += A[b + j] * x; s2 += A[c + j] * x; s3 += A[d + j] * x;
     }
+    Y[i] = s0; Y[i + 1] = s1; Y[i + 2] = s2; Y[i + 3] = s3;
   }
   for (; i < r1; i++) {
-    const a0 = i * n, y0 = i * k;
-    for (let c = 0; c < k; c++) Y[y0 + c] = 0;
-    for (let j = 0; j < n; j++) {
-      const u = A[a0 + j], x = j * k;
-      for (let c = 0; c < k; c++) Y[y0 + c] += u * X[x + c];
-    }
+    const a = i * n;
+    let s = 0;
+    for (let j = 0; j < n; j++) s += A[a + j] * X[j];
+    Y[i] = s;
   }
 }
 
@@ -171,9 +159,17 @@ export function isShared(a: Float64Array): boolean {
 
 const tasksUrl = new URL(import.meta.url.endsWith(".ts") ? "./tasks.ts" : "./tasks.js", import.meta.url).href;
 
+// Xᵀ scratch for the products, grown on demand so repeated products do not allocate.
+let xtLocal = new Float64Array(0);
+let xtShared = new Float64Array(new SharedArrayBuffer(8));
+
 /** Y = A·X for row-major n×n A and n×k X, Y, on the calling thread. */
 export function denseMultiplySerial(A: Float64Array, n: number, X: Float64Array, k: number, Y: Float64Array): void {
-  multiplyRows(A, n, X, k, Y, 0, n);
+  if (k !== 1) {
+    if (xtLocal.length < n * k) xtLocal = new Float64Array(n * k);
+    packTransposed(xtLocal, 0, X, 0, k, n, k);
+  }
+  multiplyRows(A, n, X, xtLocal, k, Y, 0, n);
 }
 
 /**
@@ -187,11 +183,15 @@ export async function denseMultiply(
   pool?: { size: number; map<T>(module: string, fn: string, argLists: unknown[][]): Promise<T[]> },
 ): Promise<void> {
   if (A.length < n * n || X.length < n * k || Y.length < n * k) throw new RangeError(`denseMultiply: arrays too short for n=${n}, k=${k}`);
-  if (!pool || pool.size < 2 || !isShared(A) || n < 64) { multiplyRows(A, n, X, k, Y, 0, n); return; }
+  if (!pool || pool.size < 2 || !isShared(A) || n < 64) { denseMultiplySerial(A, n, X, k, Y); return; }
   const Xs = isShared(X) ? X : new Float64Array(new SharedArrayBuffer(8 * n * k));
   if (Xs !== X) Xs.set(X.subarray(0, n * k));
+  if (k !== 1) {
+    if (xtShared.length < n * k) xtShared = new Float64Array(new SharedArrayBuffer(8 * n * k));
+    packTransposed(xtShared, 0, X, 0, k, n, k);
+  }
   const Ys = isShared(Y) ? Y : new Float64Array(new SharedArrayBuffer(8 * n * k));
   const s = rowSplits(0, n, pool.size, false);
-  await pool.map(tasksUrl, "multiplyRowRange", s.slice(0, -1).map((r, t) => [A, n, Xs, k, Ys, r, s[t + 1]]));
+  await pool.map(tasksUrl, "multiplyRowRange", s.slice(0, -1).map((r, t) => [A, n, Xs, xtShared, k, Ys, r, s[t + 1]]));
   if (Ys !== Y) Y.set(Ys.subarray(0, n * k));
 }

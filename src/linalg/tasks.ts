@@ -4,7 +4,7 @@
  * of rows, so the caller splits a step's rows among workers and waits for all of them.
  * The same functions run on the main thread for the serial path.
  */
-import { gemmNTSub, multiplyRows, packRows } from "./dense.js";
+import { gemmNT, multiplyRows, packRows } from "./dense.js";
 import { solveRowsLowerTransposedRight } from "./triangular.js";
 
 /**
@@ -21,7 +21,7 @@ export function choleskyPanel(A: Float64Array, n: number, j0: number, nb: number
 export function choleskyUpdate(A: Float64Array, n: number, j0: number, nb: number, P: Float64Array, r0: number, r1: number): void {
   if (r1 <= r0) return;
   const i0 = j0 + nb;
-  gemmNTSub(A, r0 * n + i0, n, P, (r0 - i0) * nb, nb, P, 0, nb, r1 - r0, r1 - i0, nb, r0 - i0);
+  gemmNT(A, r0 * n + i0, n, P, (r0 - i0) * nb, nb, P, 0, nb, r1 - r0, r1 - i0, nb, r0 - i0, -1);
 }
 
 /**
@@ -31,10 +31,10 @@ export function choleskyUpdate(A: Float64Array, n: number, j0: number, nb: numbe
 export function luUpdate(A: Float64Array, n: number, j0: number, nb: number, Q: Float64Array, r0: number, r1: number): void {
   if (r1 <= r0) return;
   const i0 = j0 + nb;
-  gemmNTSub(A, r0 * n + i0, n, A, r0 * n + j0, n, Q, 0, nb, r1 - r0, n - i0, nb, n);
+  gemmNT(A, r0 * n + i0, n, A, r0 * n + j0, n, Q, 0, nb, r1 - r0, n - i0, nb, n, -1);
 }
 
-/** Rows r0..r1 of Y = A·X (A n×n, X and Y n×k, all row-major). */
-export function multiplyRowRange(A: Float64Array, n: number, X: Float64Array, k: number, Y: Float64Array, r0: number, r1: number): void {
-  multiplyRows(A, n, X, k, Y, r0, r1);
+/** Rows r0..r1 of Y = A·X (A n×n, X and Y n×k, all row-major; Xt = Xᵀ when k > 1). */
+export function multiplyRowRange(A: Float64Array, n: number, X: Float64Array, Xt: Float64Array, k: number, Y: Float64Array, r0: number, r1: number): void {
+  multiplyRows(A, n, X, Xt, k, Y, r0, r1);
 }

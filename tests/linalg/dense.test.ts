@@ -1,7 +1,7 @@
 import { describe, it, expect, afterAll } from "vitest";
 import fc from "fast-check";
 import { Matrix } from "ml-matrix";
-import { gemmNTSub, denseMultiply, denseMultiplySerial, rowSplits } from "../../src/linalg/dense.js";
+import { gemmNT, denseMultiply, denseMultiplySerial, rowSplits } from "../../src/linalg/dense.js";
 import { WorkerPool, sharedFloat64 } from "../../src/linalg/pool.js";
 import { randomBlock, relDiff, rows } from "./random.js";
 
@@ -9,17 +9,17 @@ describe("dense kernels", () => {
   const pool = new WorkerPool(2);
   afterAll(() => pool.close());
 
-  it("gemmNTSub equals C − A·Bᵀ by the definition, full and lower-triangle forms", () => {
-    fc.assert(fc.property(fc.integer({ min: 1, max: 23 }), fc.integer({ min: 1, max: 23 }), fc.integer({ min: 1, max: 19 }), fc.integer({ min: -25, max: 25 }), fc.integer(),
-      (m, p, kc, diag, seed) => {
+  it("gemmNT equals C + α·A·Bᵀ by the definition, full and lower-triangle forms", () => {
+    fc.assert(fc.property(fc.integer({ min: 1, max: 23 }), fc.integer({ min: 1, max: 23 }), fc.integer({ min: 1, max: 19 }), fc.integer({ min: -25, max: 25 }), fc.integer(), fc.constantFrom(-1, 1, 0.5),
+      (m, p, kc, diag, seed, alpha) => {
         const lda = kc + 3, ldb = kc + 1, ldc = p + 2;
         const A = randomBlock(m, lda, seed), B = randomBlock(p, ldb, seed + 1), C = randomBlock(m, ldc, seed + 2);
         const out = C.slice();
-        gemmNTSub(out, 0, ldc, A, 0, lda, B, 0, ldb, m, p, kc, diag);
+        gemmNT(out, 0, ldc, A, 0, lda, B, 0, ldb, m, p, kc, diag, alpha);
         for (let i = 0; i < m; i++)
           for (let j = 0; j < ldc; j++) {
             let want = C[i * ldc + j];
-            if (j < p && j <= i + diag) for (let q = 0; q < kc; q++) want -= A[i * lda + q] * B[j * ldb + q];
+            if (j < p && j <= i + diag) { let d = 0; for (let q = 0; q < kc; q++) d += A[i * lda + q] * B[j * ldb + q]; want += alpha * d; }
             if (Math.abs(out[i * ldc + j] - want) > 1e-13) return false;
           }
         return true;

@@ -1,0 +1,77 @@
+// Dense linear algebra figures: Cholesky and LU GFLOP/s on the calling thread and on a pool
+// of two workers, dense multiply GB/s. Run: npm run bench -- linalg  (or, after a build,
+// node tests/bench/linalg.bench.mjs [quick]).
+import { cpus } from "node:os";
+import { choleskyFactor, choleskyFactorSerial, choleskySolve } from "../../dist/src/linalg/cholesky.js";
+import { luFactor, luFactorSerial, luSolve } from "../../dist/src/linalg/lu.js";
+import { denseMultiply, denseMultiplySerial } from "../../dist/src/linalg/dense.js";
+import { WorkerPool, sharedFloat64 } from "../../dist/src/linalg/pool.js";
+
+const quick = process.argv.includes("quick");
+console.log(`linalg bench on ${cpus().length} x ${cpus()[0]?.model}, Node ${process.version}`);
+
+// Kac–Murdock–Szegő matrix ρ^|i−j| (SPD for |ρ| < 1; Kac, Murdock & Szegő, J. Rat. Mech.
+// Anal. 2, 1953), plus a small shift: cheap to build, known to be positive definite.
+function kms(n, rho) {
+  const A = sharedFloat64(n * n);
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) A[i * n + j] = rho ** Math.abs(i - j) + (i === j ? 0.1 : 0);
+  return A;
+}
+function general(n) {
+  const A = sharedFloat64(n * n);
+  let s = 12345;
+  for (let i = 0; i < n * n; i++) { s = (Math.imul(s, 1664525) + 1013904223) >>> 0; A[i] = s / 4294967296 - 0.5; }
+  for (let i = 0; i < n; i++) A[i * n + ((i * 7 + 3) % n)] += 4;
+  return A;
+}
+// ‖b − A·x‖∞/‖b‖∞ for b = A·1, to show the factor is right as well as fast.
+function residual(A0, n, solveInPlace) {
+  const one = new Float64Array(n).fill(1), b = new Float64Array(n);
+  denseMultiplySerial(A0, n, one, 1, b);
+  const x = b.slice();
+  solveInPlace(x);
+  const r = new Float64Array(n);
+  denseMultiplySerial(A0, n, x, 1, r);
+  let e = 0, m = 0;
+  for (let i = 0; i < n; i++) { e = Math.max(e, Math.abs(r[i] - b[i])); m = Math.max(m, Math.abs(b[i])); }
+  return e / m;
+}
+async function time(fn) { const t = performance.now(); await fn(); return (performance.now() - t) / 1e3; }
+
+const pool = new WorkerPool(2);
+
+for (const n of quick ? [1000] : [1000, 2000, 4000]) {
+  const A0 = kms(n, 0.9);
+  const reps = n >= 4000 ? 1 : 2;
+  for (const [label, run] of [["1 thread ", (A) => choleskyFactorSerial(A, n)], ["2 workers", (A) => choleskyFactor(A, n, { pool })]]) {
+    let best = Infinity, L;
+    for (let r = 0; r < reps; r++) { L = sharedFloat64(n * n); L.set(A0); best = Math.min(best, await time(() => run(L))); }
+    const res = residual(A0, n, (x) => choleskySolve(L, n, x, 1));
+    console.log(`cholesky n=${n} ${label}: ${(n ** 3 / 3 / best / 1e9).toFixed(2)} GFLOP/s (${best.toFixed(2)} s, residual ${res.toExponential(1)})`);
+  }
+}
+
+for (const n of quick ? [1000] : [2000]) {
+  const A0 = general(n);
+  for (const [label, run] of [["1 thread ", (A) => luFactorSerial(A, n)], ["2 workers", (A) => luFactor(A, n, { pool })]]) {
+    let best = Infinity, LU, piv;
+    for (let r = 0; r < 2; r++) { LU = sharedFloat64(n * n); LU.set(A0); best = Math.min(best, await time(async () => { piv = await run(LU); })); }
+    const res = residual(A0, n, (x) => luSolve(LU, piv, n, x, 1));
+    console.log(`lu       n=${n} ${label}: ${((2 * n ** 3) / 3 / best / 1e9).toFixed(2)} GFLOP/s (${best.toFixed(2)} s, residual ${res.toExponential(1)})`);
+  }
+}
+
+{
+  const n = quick ? 2000 : 5000, A = general(n);
+  for (const k of [1, 8]) {
+    const X = sharedFloat64(n * k).fill(1), Y = sharedFloat64(n * k);
+    for (const [label, run] of [["1 thread ", () => denseMultiplySerial(A, n, X, k, Y)], ["2 workers", () => denseMultiply(A, n, X, k, Y, pool)]]) {
+      // Warm-up: each worker is its own V8 isolate and optimises the kernel separately.
+      for (let r = 0; r < 4; r++) await run();
+      let best = Infinity;
+      for (let r = 0; r < 5; r++) best = Math.min(best, await time(run));
+      console.log(`multiply n=${n} k=${k} ${label}: ${(8 * n * n / best / 1e9).toFixed(2)} GB/s of A, ${(2 * n * n * k / best / 1e9).toFixed(2)} GFLOP/s (${(best * 1e3).toFixed(1)} ms)`);
+    }
+  }
+}
+await pool.close();
