@@ -126,7 +126,8 @@ export function checkMeshOriented(mesh: SurfaceMesh, opts: CheckOptions = {}): {
   }
 
   const pairs: PairCheck[] = [];
-  for (const f of conductorProximity(mesh, opts)) {
+  // Oriented copy: coincident faces facing the same way then mean overlapping solids.
+  for (const f of conductorProximity(oriented.mesh, opts)) {
     pairs.push({
       kind: f.kind, severity: f.kind === "gap" ? "warning" : "error",
       a: mesh.names[f.a], b: mesh.names[f.b], distance: f.distance, position: f.position, panelSize: f.panelSize,

@@ -19,7 +19,8 @@ const cp = new Float64Array(3);
 /**
  * Closest point to p on triangle abc, written into out; returns the squared distance.
  * Ericson, Real-Time Collision Detection (2005), 5.1.5 ClosestPtPointTriangle
- * (Voronoi-region tests on the barycentric parameters).
+ * (Voronoi-region tests on the barycentric parameters). Zero-length sides, which the
+ * book's version divides by, fall back on the nearer end.
  */
 export function closestPointTriangle(
   out: Float64Array, px: number, py: number, pz: number,
@@ -38,14 +39,15 @@ export function closestPointTriangle(
   if (d1 <= 0 && d2 <= 0) { qx = ax; qy = ay; qz = az; }
   else if (d3 >= 0 && d4 <= d3) { qx = bx; qy = by; qz = bz; }
   else if (vc <= 0 && d1 >= 0 && d3 <= 0) {
-    const v = d1 / (d1 - d3);
+    const v = d1 - d3 > 0 ? d1 / (d1 - d3) : 0;
     qx = ax + v * abx; qy = ay + v * aby; qz = az + v * abz;
   } else if (d6 >= 0 && d5 <= d6) { qx = cx; qy = cy; qz = cz; }
   else if (vb <= 0 && d2 >= 0 && d6 <= 0) {
-    const w = d2 / (d2 - d6);
+    const w = d2 - d6 > 0 ? d2 / (d2 - d6) : 0;
     qx = ax + w * acx; qy = ay + w * acy; qz = az + w * acz;
   } else if (va <= 0 && d4 - d3 >= 0 && d5 - d6 >= 0) {
-    const w = (d4 - d3) / ((d4 - d3) + (d5 - d6));
+    const den = (d4 - d3) + (d5 - d6);
+    const w = den > 0 ? (d4 - d3) / den : 0;
     qx = bx + w * (cx - bx); qy = by + w * (cy - by); qz = bz + w * (cz - bz);
   } else {
     const s = va + vb + vc;
@@ -337,6 +339,53 @@ function crossesProperly(tol: number): boolean {
   return true;
 }
 
+/**
+ * True when the loaded triangles lie in one plane (within tol, metres), face the same way
+ * and overlap with positive area: on outward-oriented surfaces that means both solids
+ * lie on the same side of the shared face, so they overlap rather than meet face to face.
+ * Positive-area overlap is taken as a strict crossing of two edges or the centroid of one
+ * triangle strictly inside the other.
+ */
+function coincidentSameFacing(tol: number): boolean {
+  const n1x = (V[4] - V[1]) * (V[8] - V[2]) - (V[5] - V[2]) * (V[7] - V[1]);
+  const n1y = (V[5] - V[2]) * (V[6] - V[0]) - (V[3] - V[0]) * (V[8] - V[2]);
+  const n1z = (V[3] - V[0]) * (V[7] - V[1]) - (V[4] - V[1]) * (V[6] - V[0]);
+  const n2x = (V[13] - V[10]) * (V[17] - V[11]) - (V[14] - V[11]) * (V[16] - V[10]);
+  const n2y = (V[14] - V[11]) * (V[15] - V[9]) - (V[12] - V[9]) * (V[17] - V[11]);
+  const n2z = (V[12] - V[9]) * (V[16] - V[10]) - (V[13] - V[10]) * (V[15] - V[9]);
+  const l1 = Math.hypot(n1x, n1y, n1z), l2 = Math.hypot(n2x, n2y, n2z);
+  if (l1 === 0 || l2 === 0) return false;
+  if (n1x * n2x + n1y * n2y + n1z * n2z < (1 - 1e-9) * l1 * l2) return false;
+  for (let k = 0; k < 3; k++) {
+    const d = (n1x * (V[9 + 3 * k] - V[0]) + n1y * (V[10 + 3 * k] - V[1]) + n1z * (V[11 + 3 * k] - V[2])) / l1;
+    if (Math.abs(d) > tol) return false;
+  }
+  const ax = Math.abs(n1x), ay = Math.abs(n1y), az = Math.abs(n1z);
+  const i0 = ax >= ay && ax >= az ? 1 : 0;
+  const i1 = ax >= ay && ax >= az ? 2 : ay >= az ? 2 : 1;
+  for (let i = 0; i < 3; i++) {
+    const i2 = i === 2 ? 0 : i + 1;
+    for (let j = 0; j < 3; j++) {
+      const j2 = j === 2 ? 0 : j + 1;
+      const pax = V[3 * i + i0], pay = V[3 * i + i1], pbx = V[3 * i2 + i0], pby = V[3 * i2 + i1];
+      const qax = V[9 + 3 * j + i0], qay = V[9 + 3 * j + i1], qbx = V[9 + 3 * j2 + i0], qby = V[9 + 3 * j2 + i1];
+      const o1 = orient2(pax, pay, pbx, pby, qax, qay), o2 = orient2(pax, pay, pbx, pby, qbx, qby);
+      const o3 = orient2(qax, qay, qbx, qby, pax, pay), o4 = orient2(qax, qay, qbx, qby, pbx, pby);
+      if (o1 * o2 < 0 && o3 * o4 < 0) return true;
+    }
+  }
+  const c1x = (V[i0] + V[3 + i0] + V[6 + i0]) / 3, c1y = (V[i1] + V[3 + i1] + V[6 + i1]) / 3;
+  const c2x = (V[9 + i0] + V[12 + i0] + V[15 + i0]) / 3, c2y = (V[9 + i1] + V[12 + i1] + V[15 + i1]) / 3;
+  return strictlyInside2(c1x, c1y, 9, i0, i1) || strictlyInside2(c2x, c2y, 0, i0, i1);
+}
+
+function strictlyInside2(px: number, py: number, o: number, i0: number, i1: number): boolean {
+  const d1 = orient2(V[o + i0], V[o + i1], V[o + 3 + i0], V[o + 3 + i1], px, py);
+  const d2 = orient2(V[o + 3 + i0], V[o + 3 + i1], V[o + 6 + i0], V[o + 6 + i1], px, py);
+  const d3 = orient2(V[o + 6 + i0], V[o + 6 + i1], V[o + i0], V[o + i1], px, py);
+  return (d1 > 0 && d2 > 0 && d3 > 0) || (d1 < 0 && d2 < 0 && d3 < 0);
+}
+
 export type ProximityKind = "intersect" | "touch" | "gap";
 
 export interface ProximityFinding {
@@ -370,6 +419,10 @@ const KIND_RANK: Record<ProximityKind, number> = { gap: 0, touch: 1, intersect: 
  * triangle pairs come from one BVH over triangle boxes grown by each panel's size,
  * traversed against itself with subtrees of a single conductor pruned, so the cost is
  * O(N log N) plus the triangle pairs that are actually close.
+ *
+ * Surfaces that cross are an intersection; surfaces that meet are touching, unless
+ * they share a face with the same facing, which on outward-oriented meshes (see
+ * `orientSurfaces`) means the solids overlap, reported as an intersection too.
  */
 export function conductorProximity(mesh: SurfaceMesh, opts: ProximityOptions = {}): ProximityFinding[] {
   const touchRel = opts.touchTolerance ?? 1e-6;
@@ -393,7 +446,7 @@ export function conductorProximity(mesh: SurfaceMesh, opts: ProximityOptions = {
     let kind: ProximityKind = "gap";
     if (d <= tol) {
       loadPair(p, tr, i, j);
-      kind = crossesProperly(tol) && trianglesIntersect(p, tr, i, j) ? "intersect" : "touch";
+      kind = (crossesProperly(tol) && trianglesIntersect(p, tr, i, j)) || coincidentSameFacing(tol) ? "intersect" : "touch";
     }
     const a = cond[i] < cond[j] ? cond[i] : cond[j], b = cond[i] < cond[j] ? cond[j] : cond[i];
     const key = a * nc + b;

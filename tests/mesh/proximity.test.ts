@@ -1,0 +1,210 @@
+import { describe, it, expect } from "vitest";
+import fc from "fast-check";
+import type { SurfaceMesh } from "../../src/mesh/model.js";
+import { concatMeshes } from "../../src/mesh/model.js";
+import { closestPointTriangle, closestPointsSegments, triangleTriangleDistance, trianglesIntersect, conductorProximity, nearestTriangle } from "../../src/mesh/proximity.js";
+import { buildBoxTree, triangleBoxes } from "../../src/mesh/bvh.js";
+
+function gridCube(n: number, o: number[], s: number[], name: string): SurfaceMesh {
+  const index = new Map<string, number>();
+  const pos: number[] = [];
+  const vert = (c: number[]) => {
+    const key = c.join(",");
+    let v = index.get(key);
+    if (v === undefined) { v = pos.length / 3; index.set(key, v); for (let k = 0; k < 3; k++) pos.push(o[k] + (c[k] / n) * s[k]); }
+    return v;
+  };
+  const tri: number[] = [];
+  for (let k = 0; k < 3; k++) {
+    const a = (k + 1) % 3, b = (k + 2) % 3;
+    for (const side of [0, 1]) for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) {
+      const at = (di: number, dj: number) => { const c = [0, 0, 0]; c[k] = side * n; c[a] = i + di; c[b] = j + dj; return vert(c); };
+      const q = [at(0, 0), at(1, 0), at(1, 1), at(0, 1)];
+      if (side === 1) tri.push(q[0], q[1], q[2], q[0], q[2], q[3]); else tri.push(q[0], q[2], q[1], q[0], q[3], q[2]);
+    }
+  }
+  return { positions: new Float64Array(pos), triangles: new Uint32Array(tri), conductor: new Uint32Array(tri.length / 3), names: [name] };
+}
+
+/** Points of a triangle on a barycentric grid of step 1/k. */
+function samples(c: number[], k: number): number[][] {
+  const out: number[][] = [];
+  for (let i = 0; i <= k; i++) for (let j = 0; j <= k - i; j++) {
+    const u = i / k, v = j / k, w = 1 - u - v;
+    out.push([0, 1, 2].map((a) => w * c[a] + u * c[3 + a] + v * c[6 + a]));
+  }
+  return out;
+}
+
+function diameter(c: number[]): number {
+  let d = 0;
+  for (let i = 0; i < 3; i++) for (let j = 0; j < 3; j++) d = Math.max(d, Math.hypot(c[3 * i] - c[3 * j], c[3 * i + 1] - c[3 * j + 1], c[3 * i + 2] - c[3 * j + 2]));
+  return d;
+}
+
+const coord = fc.integer({ min: -400, max: 400 }).map((k) => k / 100);
+const tri9 = fc.array(coord, { minLength: 9, maxLength: 9 });
+
+describe("closest points (Ericson 5.1.5, 5.1.9)", () => {
+  it("point–triangle distance matches dense sampling", () => {
+    const out = new Float64Array(3);
+    fc.assert(fc.property(tri9, coord, coord, coord, (c, x, y, z) => {
+      const d = Math.sqrt(closestPointTriangle(out, x, y, z, c[0], c[1], c[2], c[3], c[4], c[5], c[6], c[7], c[8]));
+      let best = Infinity;
+      for (const s of samples(c, 60)) best = Math.min(best, Math.hypot(s[0] - x, s[1] - y, s[2] - z));
+      // Sampling overestimates by at most the grid spacing; the exact value is never above it.
+      expect(d).toBeLessThanOrEqual(best + 1e-12);
+      expect(best - d).toBeLessThanOrEqual(diameter(c) / 60 + 1e-12);
+      expect(Math.hypot(out[0] - x, out[1] - y, out[2] - z)).toBeCloseTo(d, 12);
+    }), { numRuns: 150 });
+  });
+
+  it("segment–segment distance matches dense sampling, parallel and crossing cases included", () => {
+    const out = new Float64Array(6);
+    const d = Math.sqrt(closestPointsSegments(out, 0, 0, 0, 1, 0, 0, 0.5, 1, 0, 2, 1, 0));
+    expect(d).toBeCloseTo(1, 14);
+    expect(Math.sqrt(closestPointsSegments(out, -1, 0, 0, 1, 0, 0, 0, -1, 2, 0, 1, 2))).toBeCloseTo(2, 14);
+    fc.assert(fc.property(fc.array(coord, { minLength: 12, maxLength: 12 }), (c) => {
+      const e = Math.sqrt(closestPointsSegments(out, c[0], c[1], c[2], c[3], c[4], c[5], c[6], c[7], c[8], c[9], c[10], c[11]));
+      let best = Infinity;
+      const k = 300;
+      for (let i = 0; i <= k; i++) for (let j = 0; j <= k; j += 1) {
+        const s = i / k, t = j / k;
+        const dx = c[0] + s * (c[3] - c[0]) - c[6] - t * (c[9] - c[6]);
+        const dy = c[1] + s * (c[4] - c[1]) - c[7] - t * (c[10] - c[7]);
+        const dz = c[2] + s * (c[5] - c[2]) - c[8] - t * (c[11] - c[8]);
+        best = Math.min(best, Math.hypot(dx, dy, dz));
+      }
+      const len = Math.hypot(c[3] - c[0], c[4] - c[1], c[5] - c[2]) + Math.hypot(c[9] - c[6], c[10] - c[7], c[11] - c[8]);
+      expect(e).toBeLessThanOrEqual(best + 1e-12);
+      expect(best - e).toBeLessThanOrEqual(len / k + 1e-12);
+    }), { numRuns: 40 });
+  });
+});
+
+function pairMesh(a: number[], b: number[]): { p: Float64Array; t: Uint32Array } {
+  return { p: new Float64Array([...a, ...b]), t: new Uint32Array([0, 1, 2, 3, 4, 5]) };
+}
+
+describe("triangle–triangle distance", () => {
+  it("matches brute-force sampling of both triangles", () => {
+    const out = new Float64Array(6);
+    fc.assert(fc.property(tri9, tri9, (a, b) => {
+      const { p, t } = pairMesh(a, b);
+      const d = triangleTriangleDistance(p, t, 0, 1, out);
+      const k = 24;
+      const sa = samples(a, k), sb = samples(b, k);
+      let best = Infinity;
+      for (const x of sa) for (const y of sb) best = Math.min(best, Math.hypot(x[0] - y[0], x[1] - y[1], x[2] - y[2]));
+      expect(d).toBeLessThanOrEqual(best + 1e-12);
+      expect(best - d).toBeLessThanOrEqual((diameter(a) + diameter(b)) / k + 1e-12);
+      // The reported points realise the distance.
+      expect(Math.hypot(out[0] - out[3], out[1] - out[4], out[2] - out[5])).toBeCloseTo(d, 10);
+    }), { numRuns: 60 });
+  });
+
+  it("is zero where one triangle pierces the other", () => {
+    const out = new Float64Array(6);
+    const { p, t } = pairMesh([0, 0, 0, 2, 0, 0, 0, 2, 0], [0.5, 0.5, -1, 0.6, 0.5, 1, 0.5, 0.7, 1]);
+    expect(triangleTriangleDistance(p, t, 0, 1, out)).toBe(0);
+    expect(out[2]).toBeCloseTo(0, 14);
+  });
+});
+
+describe("triangle–triangle intersection (Möller 1997)", () => {
+  const cases: Array<[string, number[], number[], boolean]> = [
+    ["piercing", [0, 0, 0, 2, 0, 0, 0, 2, 0], [0.5, 0.5, -1, 0.6, 0.5, 1, 0.5, 0.7, 1], true],
+    ["parallel planes apart", [0, 0, 0, 1, 0, 0, 0, 1, 0], [0, 0, 0.1, 1, 0, 0.1, 0, 1, 0.1], false],
+    ["coplanar overlapping", [0, 0, 0, 2, 0, 0, 0, 2, 0], [0.5, 0.5, 0, 3, 0.5, 0, 0.5, 3, 0], true],
+    ["coplanar one inside the other", [0, 0, 0, 4, 0, 0, 0, 4, 0], [0.5, 0.5, 0, 1, 0.5, 0, 0.5, 1, 0], true],
+    ["coplanar disjoint", [0, 0, 0, 1, 0, 0, 0, 1, 0], [2, 2, 0, 3, 2, 0, 2, 3, 0], false],
+    ["sharing a vertex", [0, 0, 0, 1, 0, 0, 0, 1, 0], [0, 0, 0, -1, 0, 1, 0, -1, 1], true],
+    ["planes cross but triangles miss", [0, 0, 0, 1, 0, 0, 0, 1, 0], [2, 2, -1, 2, 3, 1, 3, 2, 1], false],
+    ["edge touching a face", [0, 0, 0, 2, 0, 0, 0, 2, 0], [0.2, 0.2, 0, 1, 0.2, 0, 0.5, 0.5, 1], true],
+  ];
+  for (const [name, a, b, want] of cases) {
+    it(name, () => {
+      const { p, t } = pairMesh(a, b);
+      expect(trianglesIntersect(p, t, 0, 1)).toBe(want);
+      expect(trianglesIntersect(p, t, 1, 0)).toBe(want);
+    });
+  }
+
+  it("agrees with the exact distance on random pairs away from contact", () => {
+    const out = new Float64Array(6);
+    let hits = 0;
+    fc.assert(fc.property(tri9, tri9, (a, b) => {
+      const { p, t } = pairMesh(a, b);
+      const d = triangleTriangleDistance(p, t, 0, 1, out);
+      const x = trianglesIntersect(p, t, 0, 1);
+      if (d === 0) { hits++; return x; }
+      if (d > 1e-6) return !x;
+      return true;
+    }), { numRuns: 2000 });
+    expect(hits).toBeGreaterThan(10);
+  });
+});
+
+describe("conductorProximity", () => {
+  const two = (o: number[], s = 1) => {
+    const m = concatMeshes([gridCube(2, [0, 0, 0], [1, 1, 1], "a"), gridCube(2, o, [s, s, s], "b")]);
+    return m;
+  };
+
+  it("reports overlapping cubes as intersecting", () => {
+    const f = conductorProximity(two([0.5, 0.3, 0.4]));
+    expect(f).toHaveLength(1);
+    expect(f[0].kind).toBe("intersect");
+    expect([f[0].a, f[0].b]).toEqual([0, 1]);
+    // The point lies on both surfaces: on the boundary of each unit box.
+    const [x, y, z] = f[0].position;
+    expect(x >= 0.5 - 1e-12 && x <= 1 + 1e-12 && y >= 0.3 - 1e-12 && y <= 1 + 1e-12 && z >= 0.4 - 1e-12 && z <= 1 + 1e-12).toBe(true);
+  });
+
+  it("reports cubes face to face as touching", () => {
+    const f = conductorProximity(two([1, 0.25, 0.25], 0.5));
+    expect(f).toHaveLength(1);
+    expect(f[0].kind).toBe("touch");
+    expect(f[0].distance).toBe(0);
+    expect(f[0].position[0]).toBeCloseTo(1, 12);
+  });
+
+  it("warns on a gap below the panel size with the exact gap and place", () => {
+    const f = conductorProximity(two([1.05, 0, 0]));
+    expect(f).toHaveLength(1);
+    expect(f[0].kind).toBe("gap");
+    expect(f[0].distance).toBeCloseTo(0.05, 12);
+    expect(f[0].position[0]).toBeCloseTo(1.025, 12);
+    expect(f[0].panelSize).toBeCloseTo(Math.SQRT2 / 2, 12);
+  });
+
+  it("finds nothing between cubes far apart, or a gap wider than the panels", () => {
+    expect(conductorProximity(two([5, 0, 0]))).toEqual([]);
+    expect(conductorProximity(two([1.8, 0, 0]))).toEqual([]);
+  });
+
+  it("keeps one finding per pair and ignores triangles of the same conductor", () => {
+    const m = concatMeshes([gridCube(2, [0, 0, 0], [1, 1, 1], "a"), gridCube(2, [1.05, 0, 0], [1, 1, 1], "b"), gridCube(2, [0, 0, 0.5], [1, 1, 1], "c")]);
+    const f = conductorProximity(m);
+    const pairs = f.map((x) => `${x.a}-${x.b}:${x.kind}`).sort();
+    expect(pairs).toEqual(["0-1:gap", "0-2:intersect", "1-2:gap"]);
+  });
+});
+
+describe("nearestTriangle", () => {
+  it("matches brute force on a cube", () => {
+    const m = gridCube(3, [0, 0, 0], [1, 2, 3], "c");
+    const tree = buildBoxTree(triangleBoxes(m.positions, m.triangles));
+    const cp = new Float64Array(3);
+    fc.assert(fc.property(coord, coord, coord, (x, y, z) => {
+      const r = nearestTriangle(tree, m.positions, m.triangles, x, y, z);
+      let best = Infinity;
+      const p = m.positions, t = m.triangles;
+      for (let i = 0; i < t.length / 3; i++) {
+        const a = 3 * t[3 * i], b = 3 * t[3 * i + 1], c = 3 * t[3 * i + 2];
+        best = Math.min(best, closestPointTriangle(cp, x, y, z, p[a], p[a + 1], p[a + 2], p[b], p[b + 1], p[b + 2], p[c], p[c + 1], p[c + 2]));
+      }
+      expect(r.distance).toBeCloseTo(Math.sqrt(best), 12);
+    }), { numRuns: 100 });
+  });
+});
