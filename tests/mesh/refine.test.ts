@@ -3,7 +3,7 @@ import { refineUniform, meshEdges } from "../../src/mesh/refine.js";
 import { sphereMesh, boxMesh, plateMesh, diskMesh, cylinderMesh } from "../../src/mesh/primitives/index.js";
 import { surfaceArea, signedVolume } from "../../src/mesh/measure.js";
 import { concatMeshes, type SurfaceMesh } from "../../src/mesh/model.js";
-import { topology } from "./topology.js";
+import { topology } from "./edge-census.js";
 
 /** Largest |r - R| over the vertices of a mesh about the origin; metres. */
 function maxRadialError(m: SurfaceMesh, radius: number, firstVertex = 0): number {
