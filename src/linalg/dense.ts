@@ -27,62 +27,77 @@ export function gemmNT(
   m: number, p: number, kc: number, diag: number, alpha: number,
 ): void {
   const m4 = m - (m % 4);
-  let i = 0;
-  for (; i < m4; i += 4) {
-    const a0 = aOff + i * lda, a1 = a0 + lda, a2 = a1 + lda, a3 = a2 + lda;
-    // Tiles with every column j ≤ i + diag are full; the next one straddles the diagonal.
-    let jEnd = i + 3 + diag + 1;
-    if (jEnd > p) jEnd = p;
-    const jFull = Math.max(0, Math.min(jEnd, i + diag + 1));
-    const jFull4 = jFull - (jFull % 4);
-    let j = 0;
-    for (; j < jFull4; j += 4) {
-      const b0 = bOff + j * ldb, b1 = b0 + ldb, b2 = b1 + ldb, b3 = b2 + ldb;
-      let c00 = 0, c01 = 0, c02 = 0, c03 = 0;
-      let c10 = 0, c11 = 0, c12 = 0, c13 = 0;
-      let c20 = 0, c21 = 0, c22 = 0, c23 = 0;
-      let c30 = 0, c31 = 0, c32 = 0, c33 = 0;
-      for (let k = 0; k < kc; k++) {
-        const x0 = A[a0 + k], x1 = A[a1 + k], x2 = A[a2 + k], x3 = A[a3 + k];
-        const y0 = B[b0 + k], y1 = B[b1 + k], y2 = B[b2 + k], y3 = B[b3 + k];
-        c00 += x0 * y0; c01 += x0 * y1; c02 += x0 * y2; c03 += x0 * y3;
-        c10 += x1 * y0; c11 += x1 * y1; c12 += x1 * y2; c13 += x1 * y3;
-        c20 += x2 * y0; c21 += x2 * y1; c22 += x2 * y2; c23 += x2 * y3;
-        c30 += x3 * y0; c31 += x3 * y1; c32 += x3 * y2; c33 += x3 * y3;
+  // Column blocks of B small enough to stay in L2 while every row of A passes over them
+  // (the n_c blocking of Goto & van de Geijn, §6): otherwise each 4-row strip would pull
+  // the whole packed panel from memory again.
+  const JB = Math.max(4, 4 * Math.floor(COLUMN_BLOCK_BYTES / (32 * Math.max(1, kc))));
+  for (let jb = 0; jb < p; jb += JB) {
+    const jbEnd = Math.min(p, jb + JB);
+    // First 4-row strip that reaches column jb: i + 3 + diag ≥ jb.
+    let iStart = jb - diag - 3;
+    iStart = iStart <= 0 ? 0 : iStart - (iStart % 4);
+    let i = iStart;
+    for (; i < m4; i += 4) {
+      const a0 = aOff + i * lda, a1 = a0 + lda, a2 = a1 + lda, a3 = a2 + lda;
+      // Tiles with every column j ≤ i + diag are full; the next columns straddle the diagonal.
+      let jEnd = i + 3 + diag + 1;
+      if (jEnd > jbEnd) jEnd = jbEnd;
+      let jFull = i + diag + 1;
+      if (jFull > jEnd) jFull = jEnd;
+      if (jFull < jb) jFull = jb;
+      const jFull4 = jb + (jFull - jb) - ((jFull - jb) % 4);
+      let j = jb;
+      for (; j < jFull4; j += 4) {
+        const b0 = bOff + j * ldb, b1 = b0 + ldb, b2 = b1 + ldb, b3 = b2 + ldb;
+        let c00 = 0, c01 = 0, c02 = 0, c03 = 0;
+        let c10 = 0, c11 = 0, c12 = 0, c13 = 0;
+        let c20 = 0, c21 = 0, c22 = 0, c23 = 0;
+        let c30 = 0, c31 = 0, c32 = 0, c33 = 0;
+        for (let k = 0; k < kc; k++) {
+          const x0 = A[a0 + k], x1 = A[a1 + k], x2 = A[a2 + k], x3 = A[a3 + k];
+          const y0 = B[b0 + k], y1 = B[b1 + k], y2 = B[b2 + k], y3 = B[b3 + k];
+          c00 += x0 * y0; c01 += x0 * y1; c02 += x0 * y2; c03 += x0 * y3;
+          c10 += x1 * y0; c11 += x1 * y1; c12 += x1 * y2; c13 += x1 * y3;
+          c20 += x2 * y0; c21 += x2 * y1; c22 += x2 * y2; c23 += x2 * y3;
+          c30 += x3 * y0; c31 += x3 * y1; c32 += x3 * y2; c33 += x3 * y3;
+        }
+        const r0 = cOff + i * ldc + j, r1 = r0 + ldc, r2 = r1 + ldc, r3 = r2 + ldc;
+        C[r0] += alpha * c00; C[r0 + 1] += alpha * c01; C[r0 + 2] += alpha * c02; C[r0 + 3] += alpha * c03;
+        C[r1] += alpha * c10; C[r1 + 1] += alpha * c11; C[r1 + 2] += alpha * c12; C[r1 + 3] += alpha * c13;
+        C[r2] += alpha * c20; C[r2 + 1] += alpha * c21; C[r2 + 2] += alpha * c22; C[r2 + 3] += alpha * c23;
+        C[r3] += alpha * c30; C[r3 + 1] += alpha * c31; C[r3 + 2] += alpha * c32; C[r3 + 3] += alpha * c33;
       }
-      const r0 = cOff + i * ldc + j, r1 = r0 + ldc, r2 = r1 + ldc, r3 = r2 + ldc;
-      C[r0] += alpha * c00; C[r0 + 1] += alpha * c01; C[r0 + 2] += alpha * c02; C[r0 + 3] += alpha * c03;
-      C[r1] += alpha * c10; C[r1 + 1] += alpha * c11; C[r1 + 2] += alpha * c12; C[r1 + 3] += alpha * c13;
-      C[r2] += alpha * c20; C[r2 + 1] += alpha * c21; C[r2 + 2] += alpha * c22; C[r2 + 3] += alpha * c23;
-      C[r3] += alpha * c30; C[r3 + 1] += alpha * c31; C[r3 + 2] += alpha * c32; C[r3 + 3] += alpha * c33;
-    }
-    // Remaining columns of these four rows (diagonal straddle and the ragged right edge).
-    for (; j < jEnd; j++) {
-      const b0 = bOff + j * ldb;
-      let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
-      for (let k = 0; k < kc; k++) {
-        const y = B[b0 + k];
-        s0 += A[a0 + k] * y; s1 += A[a1 + k] * y; s2 += A[a2 + k] * y; s3 += A[a3 + k] * y;
+      // Remaining columns of these four rows (diagonal straddle and the ragged right edge).
+      for (; j < jEnd; j++) {
+        const b0 = bOff + j * ldb;
+        let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+        for (let k = 0; k < kc; k++) {
+          const y = B[b0 + k];
+          s0 += A[a0 + k] * y; s1 += A[a1 + k] * y; s2 += A[a2 + k] * y; s3 += A[a3 + k] * y;
+        }
+        const r0 = cOff + i * ldc + j;
+        if (j <= i + diag) C[r0] += alpha * s0;
+        if (j <= i + 1 + diag) C[r0 + ldc] += alpha * s1;
+        if (j <= i + 2 + diag) C[r0 + 2 * ldc] += alpha * s2;
+        if (j <= i + 3 + diag) C[r0 + 3 * ldc] += alpha * s3;
       }
-      const r0 = cOff + i * ldc + j;
-      if (j <= i + diag) C[r0] += alpha * s0;
-      if (j <= i + 1 + diag) C[r0 + ldc] += alpha * s1;
-      if (j <= i + 2 + diag) C[r0 + 2 * ldc] += alpha * s2;
-      if (j <= i + 3 + diag) C[r0 + 3 * ldc] += alpha * s3;
     }
-  }
-  for (; i < m; i++) {
-    const a0 = aOff + i * lda;
-    let jEnd = i + diag + 1;
-    if (jEnd > p) jEnd = p;
-    for (let j = 0; j < jEnd; j++) {
-      const b0 = bOff + j * ldb;
-      let s = 0;
-      for (let k = 0; k < kc; k++) s += A[a0 + k] * B[b0 + k];
-      C[cOff + i * ldc + j] += alpha * s;
+    for (i = Math.max(m4, iStart); i < m; i++) {
+      const a0 = aOff + i * lda;
+      let jEnd = i + diag + 1;
+      if (jEnd > jbEnd) jEnd = jbEnd;
+      for (let j = jb; j < jEnd; j++) {
+        const b0 = bOff + j * ldb;
+        let s = 0;
+        for (let k = 0; k < kc; k++) s += A[a0 + k] * B[b0 + k];
+        C[cOff + i * ldc + j] += alpha * s;
+      }
     }
   }
 }
+
+/** Bytes of packed B kept in cache per column block of gemmNT (half a typical 1–2 MiB L2). */
+const COLUMN_BLOCK_BYTES = 512 * 1024;
 
 /**
  * Copy an m×kc block (rows `lda` apart) into contiguous rows of length kc: the packed panel

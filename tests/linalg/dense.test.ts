@@ -26,6 +26,23 @@ describe("dense kernels", () => {
       }), { numRuns: 200 });
   });
 
+  it("gemmNT is right across its cache column blocks (long k makes the blocks narrow)", () => {
+    const m = 37, p = 70, kc = 3000, lda = kc, ldb = kc + 2, ldc = p;
+    const A = randomBlock(m, lda, 1), B = randomBlock(p, ldb, 2), C = randomBlock(m, ldc, 3);
+    for (const diag of [-40, -3, 0, 5, 30, 70]) {
+      const out = C.slice();
+      gemmNT(out, 0, ldc, A, 0, lda, B, 0, ldb, m, p, kc, diag, -1);
+      let err = 0;
+      for (let i = 0; i < m; i++)
+        for (let j = 0; j < p; j++) {
+          let want = C[i * ldc + j];
+          if (j <= i + diag) for (let q = 0; q < kc; q++) want -= A[i * lda + q] * B[j * ldb + q];
+          err = Math.max(err, Math.abs(out[i * ldc + j] - want));
+        }
+      expect(err).toBeLessThan(1e-10);
+    }
+  });
+
   it("rowSplits covers the range in order, aligned to 4, balanced for the triangle", () => {
     const s = rowSplits(100, 1100, 2, true);
     expect(s[0]).toBe(100);
