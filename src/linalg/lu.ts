@@ -8,7 +8,7 @@
  * dense.ts; with a pool the trailing rows are split evenly among the workers.
  * Pivots follow LAPACK's ipiv convention, 0-based: at step c rows c and piv[c] were swapped.
  */
-import { isShared, packTransposed, rowSplits } from "./dense.js";
+import { gemmNT, isShared, packTransposed, rowSplits } from "./dense.js";
 import { luUpdate } from "./tasks.js";
 import { solveLower, solveUnitLowerLeft, solveUpper } from "./triangular.js";
 import { type WorkerPool, sharedFloat64 } from "./pool.js";
@@ -32,8 +32,8 @@ export interface LuOptions {
 
 const tasksUrl = new URL(import.meta.url.endsWith(".ts") ? "./tasks.ts" : "./tasks.js", import.meta.url).href;
 
-/** Unblocked LU of the panel of columns j0..j0+w over rows j0..n, swapping whole rows. */
-function factorPanel(A: Float64Array, n: number, j0: number, w: number, piv: Int32Array): void {
+/** Unblocked LU of columns j0..j0+w over rows j0..n, swapping whole rows. */
+function factorColumns(A: Float64Array, n: number, j0: number, w: number, piv: Int32Array): void {
   const jEnd = j0 + w;
   for (let c = j0; c < jEnd; c++) {
     let p = c, best = Math.abs(A[c * n + c]);
@@ -57,10 +57,27 @@ function factorPanel(A: Float64Array, n: number, j0: number, w: number, piv: Int
   }
 }
 
+/**
+ * LU of the panel of columns j0..j0+w over rows j0..n by recursive halving (Toledo,
+ * "Locality of reference in LU decomposition with partial pivoting", SIAM J. Matrix Anal.
+ * Appl. 18(4), 1997): the right half is updated through the packed kernel, so the tall
+ * panel is swept a few times, not once per column. `S` is scratch for U12ᵀ.
+ */
+function factorPanel(A: Float64Array, n: number, j0: number, w: number, piv: Int32Array, S: Float64Array): void {
+  if (w <= 8) { factorColumns(A, n, j0, w, piv); return; }
+  const h = w >> 1, j1 = j0 + h, w2 = w - h;
+  factorPanel(A, n, j0, h, piv, S);
+  solveUnitLowerLeft(A, j0 * n + j0, n, h, A, j0 * n + j1, n, w2);
+  packTransposed(S, 0, A, j0 * n + j1, n, h, w2);
+  gemmNT(A, j1 * n + j1, n, A, j1 * n + j0, n, S, 0, h, n - j1, w2, h, w2, -1);
+  factorPanel(A, n, j1, w2, piv, S);
+}
+
 /** Panel, row exchanges and U12 of the step at column j0; packs U12ᵀ into Q for the update. */
 function luPanelStep(A: Float64Array, n: number, j0: number, w: number, piv: Int32Array, Q: Float64Array): void {
   const i0 = j0 + w;
-  factorPanel(A, n, j0, w, piv);
+  // Q is not needed until the panel is done, so it doubles as the panel's scratch.
+  factorPanel(A, n, j0, w, piv, Q);
   if (i0 >= n) return;
   solveUnitLowerLeft(A, j0 * n + j0, n, w, A, j0 * n + i0, n, n - i0);
   packTransposed(Q, 0, A, j0 * n + i0, n, w, n - i0);
@@ -71,7 +88,7 @@ export function luFactorSerial(A: Float64Array, n: number, blockSize: number = 9
   checkSize(A, n);
   const nb = Math.max(1, Math.floor(blockSize));
   const piv = new Int32Array(n);
-  const Q = new Float64Array(Math.max(0, n - 1) * Math.min(nb, n));
+  const Q = new Float64Array(Math.max(n * Math.min(nb, n), 64));
   for (let j0 = 0; j0 < n; j0 += nb) {
     const w = Math.min(nb, n - j0);
     luPanelStep(A, n, j0, w, piv, Q);
