@@ -6,7 +6,7 @@
 import { type SurfaceMesh, triangleCount, vertexCount, conductorAreas } from "./model.js";
 import { buildEdgeTable, conductorTopology, orientSurfaces, conductorOrientation, type ConductorOrientation, type OrientationResult } from "./topology.js";
 import { conductorQuality } from "./quality.js";
-import { conductorProximity, enclosedConductors, type ProximityOptions } from "./proximity.js";
+import { conductorProximity, enclosedConductors, resolveOverlaps, conductorTriangles, type ProximityOptions } from "./proximity.js";
 
 export interface ConductorCheck {
   name: string;
@@ -126,8 +126,12 @@ export function checkMeshOriented(mesh: SurfaceMesh, opts: CheckOptions = {}): {
   }
 
   const pairs: PairCheck[] = [];
+  const solid = conductors.map((c) => c.closed && (c.orientation === "outward" || c.orientation === "inward-flipped" || c.orientation === "repaired"));
+  const groups = conductorTriangles(oriented.mesh);
   // Oriented copy: coincident faces facing the same way then mean overlapping solids.
-  for (const f of conductorProximity(oriented.mesh, opts)) {
+  const findings = conductorProximity(oriented.mesh, opts);
+  resolveOverlaps(oriented.mesh, findings, solid, groups);
+  for (const f of findings) {
     pairs.push({
       kind: f.kind, severity: f.kind === "gap" ? "warning" : "error",
       a: mesh.names[f.a], b: mesh.names[f.b], distance: f.distance, position: f.position, panelSize: f.panelSize,
@@ -135,8 +139,7 @@ export function checkMeshOriented(mesh: SurfaceMesh, opts: CheckOptions = {}): {
   }
   // A conductor inside another's material meets no surface of it; only an enclosure test sees it.
   const touching = new Set(pairs.filter((x) => x.severity === "error").map((x) => `${x.a}\u0000${x.b}`));
-  const solid = conductors.map((c) => c.closed && (c.orientation === "outward" || c.orientation === "inward-flipped" || c.orientation === "repaired"));
-  for (const e of enclosedConductors(oriented.mesh, solid, boxes)) {
+  for (const e of enclosedConductors(oriented.mesh, solid, boxes, groups)) {
     const a = Math.min(e.inner, e.outer), b = Math.max(e.inner, e.outer);
     if (touching.has(`${mesh.names[a]}\u0000${mesh.names[b]}`)) continue;
     pairs.push({ kind: "inside", severity: "error", a: mesh.names[e.inner], b: mesh.names[e.outer], distance: 0, position: e.position, panelSize: null });

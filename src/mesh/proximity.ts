@@ -402,7 +402,12 @@ export interface ProximityFinding {
   panelSize: number;
   /** The triangle pair (mesh-wide indices). */
   triangles: [number, number];
+  /** For touches: up to CONTACT_SAMPLES touching triangle pairs (a's, b's), flattened. */
+  contacts: number[];
 }
+
+/** Touching triangle pairs kept per conductor pair to decide touch against overlap. */
+const CONTACT_SAMPLES = 16;
 
 export interface ProximityOptions {
   /** Conductors closer than this fraction of the local panel size are touching (default 1e-6). */
@@ -451,12 +456,14 @@ export function conductorProximity(mesh: SurfaceMesh, opts: ProximityOptions = {
     const a = cond[i] < cond[j] ? cond[i] : cond[j], b = cond[i] < cond[j] ? cond[j] : cond[i];
     const key = a * nc + b;
     const prev = found.get(key);
-    if (prev && (KIND_RANK[prev.kind] > KIND_RANK[kind] || (prev.kind === kind && prev.distance <= d))) return;
     const ta = cond[i] === a ? i : j, tb = ta === i ? j : i;
+    if (kind === "touch" && prev && prev.contacts.length < 2 * CONTACT_SAMPLES) prev.contacts.push(ta, tb);
+    if (prev && (KIND_RANK[prev.kind] > KIND_RANK[kind] || (prev.kind === kind && prev.distance <= d))) return;
     found.set(key, {
       kind, a, b, distance: kind === "intersect" ? 0 : d,
       position: [0.5 * (closest[0] + closest[3]), 0.5 * (closest[1] + closest[4]), 0.5 * (closest[2] + closest[5])],
       panelSize: local, triangles: [ta, tb],
+      contacts: prev ? prev.contacts : kind === "touch" ? [ta, tb] : [],
     });
   }, labels);
   return [...found.values()].sort((x, y) => KIND_RANK[y.kind] - KIND_RANK[x.kind] || x.a - y.a || x.b - y.b);
@@ -472,6 +479,76 @@ export function nearestTriangle(tree: BoxTree, positions: Float64Array, triangle
   return { triangle: r.item, distance: r.distance };
 }
 
+/** Triangles grouped by conductor: conductor c owns list[offset[c] .. offset[c+1]). */
+export interface ConductorTriangles { offset: Uint32Array; list: Uint32Array }
+
+export function conductorTriangles(mesh: SurfaceMesh): ConductorTriangles {
+  const nc = mesh.names.length, nt = triangleCount(mesh);
+  const offset = new Uint32Array(nc + 1);
+  for (let t = 0; t < nt; t++) offset[mesh.conductor[t] + 1]++;
+  for (let c = 0; c < nc; c++) offset[c + 1] += offset[c];
+  const list = new Uint32Array(nt), fill = offset.slice(0, nc);
+  for (let t = 0; t < nt; t++) list[fill[mesh.conductor[t]]++] = t;
+  return { offset, list };
+}
+
+/**
+ * Winding number of conductor c's surface about (x, y, z): the sum of its triangles'
+ * signed solid angles over 4π, 1 inside a closed outward surface and 0 outside.
+ * Solid angles by Van Oosterom & Strackee, "The solid angle of a plane triangle",
+ * IEEE Trans. Biomed. Eng. 30(2), 1983.
+ */
+export function windingNumber(mesh: SurfaceMesh, groups: ConductorTriangles, c: number, x: number, y: number, z: number): number {
+  const p = mesh.positions, tr = mesh.triangles;
+  let w = 0;
+  for (let q = groups.offset[c]; q < groups.offset[c + 1]; q++) {
+    const t = groups.list[q];
+    const i = 3 * tr[3 * t], j = 3 * tr[3 * t + 1], k = 3 * tr[3 * t + 2];
+    const ax = p[i] - x, ay = p[i + 1] - y, az = p[i + 2] - z;
+    const bx = p[j] - x, by = p[j + 1] - y, bz = p[j + 2] - z;
+    const cx = p[k] - x, cy = p[k + 1] - y, cz = p[k + 2] - z;
+    const la = Math.sqrt(ax * ax + ay * ay + az * az), lb = Math.sqrt(bx * bx + by * by + bz * bz), lc = Math.sqrt(cx * cx + cy * cy + cz * cz);
+    const num = ax * (by * cz - bz * cy) + ay * (bz * cx - bx * cz) + az * (bx * cy - by * cx);
+    const den = la * lb * lc + (ax * bx + ay * by + az * bz) * lc + (ax * cx + ay * cy + az * cz) * lb + (bx * cx + by * cy + bz * cz) * la;
+    w += 2 * Math.atan2(num, den);
+  }
+  return w / (4 * Math.PI);
+}
+
+/**
+ * Turn touches between two closed solids into intersections where their volumes overlap.
+ * Meshes whose edges lie exactly on the curve where two surfaces cross (common after CAD
+ * booleans) show no crossing triangle pair, only contacts; so each touching triangle's
+ * centroid is stepped a little (1e-4 of its size) into its own solid and tested for
+ * lying inside the other solid. Needs `mesh` oriented outward (`orientSurfaces`).
+ */
+export function resolveOverlaps(mesh: SurfaceMesh, findings: ProximityFinding[], solid: boolean[], groups: ConductorTriangles = conductorTriangles(mesh)): void {
+  const p = mesh.positions, tr = mesh.triangles;
+  for (const f of findings) {
+    if (f.kind !== "touch" || !solid[f.a] || !solid[f.b]) continue;
+    search: for (let s = 0; s < f.contacts.length; s += 2) {
+      for (let side = 0; side < 2; side++) {
+        const t = f.contacts[s + side], other = side === 0 ? f.b : f.a;
+        const i = 3 * tr[3 * t], j = 3 * tr[3 * t + 1], k = 3 * tr[3 * t + 2];
+        const ux = p[j] - p[i], uy = p[j + 1] - p[i + 1], uz = p[j + 2] - p[i + 2];
+        const vx = p[k] - p[i], vy = p[k + 1] - p[i + 1], vz = p[k + 2] - p[i + 2];
+        const nx = uy * vz - uz * vy, ny = uz * vx - ux * vz, nz = ux * vy - uy * vx;
+        const nl = Math.hypot(nx, ny, nz);
+        if (nl === 0) continue;
+        const h = Math.sqrt(Math.max(ux * ux + uy * uy + uz * uz, vx * vx + vy * vy + vz * vz));
+        const step = (1e-4 * h) / nl;
+        const x = (p[i] + p[j] + p[k]) / 3 - step * nx, y = (p[i + 1] + p[j + 1] + p[k + 1]) / 3 - step * ny, z = (p[i + 2] + p[j + 2] + p[k + 2]) / 3 - step * nz;
+        if (windingNumber(mesh, groups, other, x, y, z) > 0.5) {
+          f.kind = "intersect";
+          f.distance = 0;
+          f.position = [x, y, z];
+          break search;
+        }
+      }
+    }
+  }
+}
+
 export interface EnclosedConductor {
   /** The conductor lying inside the other's material. */
   inner: number;
@@ -485,50 +562,25 @@ export interface EnclosedConductor {
  * test can see (their surfaces never meet). `mesh` must be oriented outward
  * (`orientSurfaces`), so that a cavity wall cancels its enclosing surface: a wire in
  * the bore of a tube is outside the tube's material. The test point is the centroid of
- * the inner conductor's first triangle, and it is inside when the winding number of the
- * outer surface there exceeds one half (solid angles by Van Oosterom & Strackee,
- * IEEE Trans. Biomed. Eng. 30(2), 1983). Only pairs whose boxes nest are tested.
+ * the inner conductor's first triangle, inside when the winding number of the outer
+ * surface there exceeds one half. Only pairs whose boxes nest are tested.
  */
-export function enclosedConductors(mesh: SurfaceMesh, closed: boolean[], boxes: Float64Array[]): EnclosedConductor[] {
-  const nc = mesh.names.length, nt = triangleCount(mesh);
-  const first = new Int32Array(nc).fill(-1);
-  for (let t = nt - 1; t >= 0; t--) first[mesh.conductor[t]] = t;
-  const candidates: Array<[number, number]> = [];
-  for (let o = 0; o < nc; o++) {
-    if (!closed[o] || first[o] < 0) continue;
-    const ob = boxes[o];
-    for (let i = 0; i < nc; i++) {
-      if (i === o || first[i] < 0) continue;
-      const ib = boxes[i];
-      if (ob[0] <= ib[0] && ob[1] <= ib[1] && ob[2] <= ib[2] && ob[3] >= ib[3] && ob[4] >= ib[4] && ob[5] >= ib[5]) candidates.push([i, o]);
-    }
-  }
+export function enclosedConductors(mesh: SurfaceMesh, closed: boolean[], boxes: Float64Array[], groups: ConductorTriangles = conductorTriangles(mesh)): EnclosedConductor[] {
+  const nc = mesh.names.length;
   const out: EnclosedConductor[] = [];
-  if (candidates.length === 0) return out;
   const p = mesh.positions, tr = mesh.triangles;
-  // Triangles grouped by conductor, so each test walks the outer conductor only.
-  const offset = new Uint32Array(nc + 1);
-  for (let t = 0; t < nt; t++) offset[mesh.conductor[t] + 1]++;
-  for (let c = 0; c < nc; c++) offset[c + 1] += offset[c];
-  const byConductor = new Uint32Array(nt), fill = offset.slice(0, nc);
-  for (let t = 0; t < nt; t++) byConductor[fill[mesh.conductor[t]]++] = t;
-  for (const [inner, outer] of candidates) {
-    const t0 = first[inner];
-    const a = 3 * tr[3 * t0], b = 3 * tr[3 * t0 + 1], c = 3 * tr[3 * t0 + 2];
-    const x = (p[a] + p[b] + p[c]) / 3, y = (p[a + 1] + p[b + 1] + p[c + 1]) / 3, z = (p[a + 2] + p[b + 2] + p[c + 2]) / 3;
-    let w = 0;
-    for (let q = offset[outer]; q < offset[outer + 1]; q++) {
-      const t = byConductor[q];
-      const i = 3 * tr[3 * t], j = 3 * tr[3 * t + 1], k = 3 * tr[3 * t + 2];
-      const ax = p[i] - x, ay = p[i + 1] - y, az = p[i + 2] - z;
-      const bx = p[j] - x, by = p[j + 1] - y, bz = p[j + 2] - z;
-      const cx = p[k] - x, cy = p[k + 1] - y, cz = p[k + 2] - z;
-      const la = Math.sqrt(ax * ax + ay * ay + az * az), lb = Math.sqrt(bx * bx + by * by + bz * bz), lc = Math.sqrt(cx * cx + cy * cy + cz * cz);
-      const num = ax * (by * cz - bz * cy) + ay * (bz * cx - bx * cz) + az * (bx * cy - by * cx);
-      const den = la * lb * lc + (ax * bx + ay * by + az * bz) * lc + (ax * cx + ay * cy + az * cz) * lb + (bx * cx + by * cy + bz * cz) * la;
-      w += 2 * Math.atan2(num, den);
+  for (let o = 0; o < nc; o++) {
+    if (!closed[o] || groups.offset[o + 1] === groups.offset[o]) continue;
+    const ob = boxes[o];
+    for (let inner = 0; inner < nc; inner++) {
+      if (inner === o || groups.offset[inner + 1] === groups.offset[inner]) continue;
+      const ib = boxes[inner];
+      if (!(ob[0] <= ib[0] && ob[1] <= ib[1] && ob[2] <= ib[2] && ob[3] >= ib[3] && ob[4] >= ib[4] && ob[5] >= ib[5])) continue;
+      const t0 = groups.list[groups.offset[inner]];
+      const a = 3 * tr[3 * t0], b = 3 * tr[3 * t0 + 1], c = 3 * tr[3 * t0 + 2];
+      const x = (p[a] + p[b] + p[c]) / 3, y = (p[a + 1] + p[b + 1] + p[c + 1]) / 3, z = (p[a + 2] + p[b + 2] + p[c + 2]) / 3;
+      if (windingNumber(mesh, groups, o, x, y, z) > 0.5) out.push({ inner, outer: o, position: [x, y, z] });
     }
-    if (w / (4 * Math.PI) > 0.5) out.push({ inner, outer, position: [x, y, z] });
   }
   return out;
 }

@@ -1,0 +1,59 @@
+import { describe, it, expect } from "vitest";
+import { formatSI, formatLength, formatArea, formatPoint, formatFieldStrength, formatNumber } from "../../src/report/si.js";
+
+describe("formatSI", () => {
+  it("uses engineering prefixes with significant digits", () => {
+    expect(formatSI(12.345678e-12, "F")).toBe("12.35 pF");
+    expect(formatSI(1e-12, "F")).toBe("1.000 pF");
+    expect(formatSI(4.7e-9, "F", 2)).toBe("4.7 nF");
+    expect(formatSI(3.3e6, "V/m")).toBe("3.300 MV/m");
+    expect(formatSI(0.5, "C")).toBe("500.0 mC");
+    expect(formatSI(1, "N")).toBe("1.000 N");
+    expect(formatSI(2.5e-6, "J")).toBe("2.500 µJ");
+  });
+
+  it("carries rounding into the next prefix", () => {
+    expect(formatSI(999.95e-12, "F")).toBe("1.000 nF");
+    expect(formatSI(999.94e-12, "F")).toBe("999.9 pF");
+    expect(formatSI(999999, "V")).toBe("1.000 MV");
+  });
+
+  it("handles zero, negatives and non-finite values", () => {
+    expect(formatSI(0, "F")).toBe("0.000 F");
+    expect(formatSI(-12.345678e-12, "F")).toBe("-12.35 pF");
+    expect(formatSI(-999.95e-12, "F")).toBe("-1.000 nF");
+    expect(formatSI(NaN, "F")).toBe("NaN F");
+    expect(formatSI(Infinity, "F")).toBe("inf F");
+    expect(formatSI(-Infinity, "V")).toBe("-inf V");
+  });
+
+  it("falls back on an exponent outside the prefix range", () => {
+    expect(formatSI(1e-33, "F")).toBe("1.000e-3 qF");
+    expect(formatSI(1e-30, "F")).toBe("1.000 qF");
+  });
+
+  it("prints exact powers of ten with the right prefix", () => {
+    for (let e = -24; e <= 24; e += 3) expect(formatSI(10 ** e, "X")).toMatch(/^1\.000 [a-zµA-Z]?X$/);
+  });
+});
+
+describe("lengths and fields in the user's unit", () => {
+  it("converts metres to the unit", () => {
+    expect(formatLength(0.00125, "mm")).toBe("1.250 mm");
+    expect(formatLength(25.4e-3, "in")).toBe("1.000 in");
+    expect(formatLength(2e-6, "um")).toBe("2.000 µm");
+    expect(formatArea(6e-6, "mm")).toBe("6.000 mm²");
+    expect(formatPoint([1e-3, -2e-3, 0], "mm")).toBe("(1.000, -2.000, 0.000) mm");
+  });
+
+  it("formats field strengths in kV/mm", () => {
+    expect(formatFieldStrength(3.1e6)).toBe("3.100 kV/mm");
+    expect(formatFieldStrength(12e3)).toBe("12.00 kV/m");
+  });
+
+  it("switches to exponents for very large or small plain numbers", () => {
+    expect(formatNumber(1.5e-7)).toBe("1.500e-7");
+    expect(formatNumber(12345)).toBe("12350");
+    expect(formatNumber(2.5e7)).toBe("2.500e+7");
+  });
+});
