@@ -14,7 +14,7 @@
  *   I  = Σ_k t⁰ f − |h| Σ_k β,      ∇I = −Σ_k û f − sgn(h) n̂ Σ_k β.
  * Σβ is the solid angle Ω the triangle subtends at x, so the normal derivative is −Ω on the
  * +n̂ side and +Ω on the −n̂ side, tending to ∓2π at the panel itself (a jump of 4π in ∂I/∂n,
- * which is the σ/ε jump of the normal field). On the plane (h = 0) the normal part is returned as its principal value 0,
+ * which is the σ/ε jump of the normal field). On the plane (|h| ≤ PLANE_TOLERANCE radii) the normal part is returned as its principal value 0,
  * the mean of the two one-sided limits; callers add ±2π·n̂ for a one-sided value.
  *
  * Robustness: R ± s is formed without cancellation (R + s = R⁰²/(R − s) when s < 0) and f is
@@ -29,6 +29,8 @@ import { dunavantRule } from "./dunavant.js";
 /** Beyond this distance from the centroid, in centroid-to-vertex radii, use quadrature. */
 export const FAR_RATIO = 40;
 const FAR_RULE = dunavantRule(8);
+/** |h| below this fraction of the panel radius counts as on the plane (principal value). */
+export const PLANE_TOLERANCE = 1e-12;
 
 /**
  * I(x) for the triangle whose 9 vertex coordinates (metres) are v[o..o+8], counter-clockwise
@@ -164,7 +166,9 @@ export function trianglePotentialGradient(out: Float64Array, oo: number, v: Arra
     sumTf += t0 * f;
     sumB += Math.atan(t0 * sp / (R02 + ah * Rp)) - Math.atan(t0 * sm / (R02 + ah * Rm));
   }
-  const sg = h > 0 ? 1 : h < 0 ? -1 : 0;
+  // A point computed to lie on the panel carries a rounding-level h; it gets the principal value.
+  const onPlane = ah <= PLANE_TOLERANCE * Math.sqrt(r2);
+  const sg = onPlane ? 0 : h > 0 ? 1 : -1;
   out[oo] = gxs - sg * nx * sumB;
   out[oo + 1] = gys - sg * ny * sumB;
   out[oo + 2] = gzs - sg * nz * sumB;
@@ -173,7 +177,7 @@ export function trianglePotentialGradient(out: Float64Array, oo: number, v: Arra
 
 /**
  * Solid angle (steradians, signed: positive seen from the +n̂ side) subtended by the triangle
- * at x — Σβ of the formula above with the sign of h. Useful for the jump term of the double layer.
+ * at x, i.e. sgn(h)·Σβ of the formula above, so that ∂I/∂n = −Ω on both sides.
  */
 export function triangleSolidAngle(v: ArrayLike<number>, o: number, px: number, py: number, pz: number): number {
   // Van Oosterom & Strackee, IEEE Trans. Biomed. Eng. 30(2):125–126, 1983: tan(Ω/2) formula.
@@ -186,6 +190,6 @@ export function triangleSolidAngle(v: ArrayLike<number>, o: number, px: number, 
   const trip = ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
   const den = la * lb * lc + (ax * bx + ay * by + az * bz) * lc + (ax * cx + ay * cy + az * cz) * lb
     + (bx * cx + by * cy + bz * cz) * la;
-  // Seen from +n̂ the vertices run counter-clockwise, which makes the triple product negative.
+  // Seen from the +n̂ side the corners run counter-clockwise, making the triple product negative.
   return -2 * Math.atan2(trip, den);
 }
