@@ -3,13 +3,14 @@
  * in place: the strictly lower part holds L (unit diagonal implied), the upper part U.
  *
  * Blocked right-looking algorithm (Golub & Van Loan, Matrix Computations, 4th ed., §3.4.7,
- * as in LAPACK dgetrf): factor a column panel unblocked with row exchanges across whole
+ * as in LAPACK dgetrf): factor a column panel (recursively) with row exchanges across whole
  * rows, solve U12 = L11⁻¹·A12, then update A22 ← A22 − L21·U12 with the packed kernel of
- * dense.ts; with a pool the trailing rows are split evenly among the workers.
+ * dense.ts; with a pool the columns of U12 and then the trailing rows are split evenly
+ * among the workers. The panel itself stays on the caller.
  * Pivots follow LAPACK's ipiv convention, 0-based: at step c rows c and piv[c] were swapped.
  */
 import { gemmNT, isShared, packTransposed, rowSplits } from "./dense.js";
-import { luUpdate } from "./tasks.js";
+import { luBlockRow, luUpdate } from "./tasks.js";
 import { solveLower, solveUnitLowerLeft, solveUpper } from "./triangular.js";
 import { type WorkerPool, sharedFloat64 } from "./pool.js";
 
@@ -73,16 +74,6 @@ function factorPanel(A: Float64Array, n: number, j0: number, w: number, piv: Int
   factorPanel(A, n, j1, w2, piv, S);
 }
 
-/** Panel, row exchanges and U12 of the step at column j0; packs U12ᵀ into Q for the update. */
-function luPanelStep(A: Float64Array, n: number, j0: number, w: number, piv: Int32Array, Q: Float64Array): void {
-  const i0 = j0 + w;
-  // Q is not needed until the panel is done, so it doubles as the panel's scratch.
-  factorPanel(A, n, j0, w, piv, Q);
-  if (i0 >= n) return;
-  solveUnitLowerLeft(A, j0 * n + j0, n, w, A, j0 * n + i0, n, n - i0);
-  packTransposed(Q, 0, A, j0 * n + i0, n, w, n - i0);
-}
-
 /** Serial blocked LU in place; returns the pivots. Throws SingularMatrixError. */
 export function luFactorSerial(A: Float64Array, n: number, blockSize: number = 96): Int32Array {
   checkSize(A, n);
@@ -91,8 +82,10 @@ export function luFactorSerial(A: Float64Array, n: number, blockSize: number = 9
   const Q = new Float64Array(Math.max(n * Math.min(nb, n), 64));
   for (let j0 = 0; j0 < n; j0 += nb) {
     const w = Math.min(nb, n - j0);
-    luPanelStep(A, n, j0, w, piv, Q);
-    if (j0 + w < n) luUpdate(A, n, j0, w, Q, j0 + w, n);
+    factorPanel(A, n, j0, w, piv, Q);
+    if (j0 + w >= n) break;
+    luBlockRow(A, n, j0, w, Q, j0 + w, n);
+    luUpdate(A, n, j0, w, Q, j0 + w, n);
   }
   return piv;
 }
@@ -112,11 +105,12 @@ export async function luFactor(A: Float64Array, n: number, opts: LuOptions = {})
   const Q = sharedFloat64(n * nb);
   for (let j0 = 0; j0 < n; j0 += nb) {
     const w = Math.min(nb, n - j0), i0 = j0 + w;
-    luPanelStep(S, n, j0, w, piv, Q);
+    factorPanel(S, n, j0, w, piv, Q);
     if (i0 >= n) break;
     // Small trailing blocks are not worth a round trip to the workers.
-    if (n - i0 < 2 * nb) { luUpdate(S, n, j0, w, Q, i0, n); continue; }
+    if (n - i0 < 2 * nb) { luBlockRow(S, n, j0, w, Q, i0, n); luUpdate(S, n, j0, w, Q, i0, n); continue; }
     const s = rowSplits(i0, n, pool.size, false);
+    await pool.map(tasksUrl, "luBlockRow", s.slice(0, -1).map((c, t) => [S, n, j0, w, Q, c, s[t + 1]]));
     await pool.map(tasksUrl, "luUpdate", s.slice(0, -1).map((r, t) => [S, n, j0, w, Q, r, s[t + 1]]));
   }
   if (S !== A) A.set(S);

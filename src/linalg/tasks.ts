@@ -4,8 +4,8 @@
  * of rows, so the caller splits a step's rows among workers and waits for all of them.
  * The same functions run on the main thread for the serial path.
  */
-import { gemmNT, multiplyRows, packRows } from "./dense.js";
-import { solveRowsLowerTransposedRight } from "./triangular.js";
+import { gemmNT, multiplyRows, packRows, packTransposed } from "./dense.js";
+import { solveRowsLowerTransposedRight, solveUnitLowerLeft } from "./triangular.js";
 
 /**
  * Cholesky panel: rows r0..r1 of column block j0..j0+nb become L21 = A21·L11⁻ᵀ (L11 already
@@ -22,6 +22,16 @@ export function choleskyUpdate(A: Float64Array, n: number, j0: number, nb: numbe
   if (r1 <= r0) return;
   const i0 = j0 + nb;
   gemmNT(A, r0 * n + i0, n, P, (r0 - i0) * nb, nb, P, 0, nb, r1 - r0, r1 - i0, nb, r0 - i0, -1);
+}
+
+/**
+ * LU block row: columns c0..c1 of U12 = L11⁻¹·A12 for the column block j0..j0+nb (L11 in
+ * place), packed transposed into Q (column j as row j − j0 − nb).
+ */
+export function luBlockRow(A: Float64Array, n: number, j0: number, nb: number, Q: Float64Array, c0: number, c1: number): void {
+  if (c1 <= c0) return;
+  solveUnitLowerLeft(A, j0 * n + j0, n, nb, A, j0 * n + c0, n, c1 - c0);
+  packTransposed(Q, (c0 - j0 - nb) * nb, A, j0 * n + c0, n, nb, c1 - c0);
 }
 
 /**
