@@ -1,0 +1,129 @@
+import { describe, it, expect } from "vitest";
+import { panelSet, type PanelSet } from "../../src/bem/panels.js";
+import { galerkinEntry, selfTerm, farTerm, doubleQuadrature, RHO_FAR, RHO_MID, RHO_NEAR } from "../../src/bem/galerkin.js";
+import { trianglePotential } from "../../src/bem/triangle-potential.js";
+import { dunavantRule } from "../../src/bem/dunavant.js";
+import { icosphere } from "./icosphere.js";
+
+/**
+ * Reference: analytic inner integral (Wilton et al. 1984, tested in triangle-potential.test.ts)
+ * and the degree-10 Dunavant rule on T_i cut into 4^levels congruent pieces. For pairs whose
+ * outer integrand is smooth this converges fast; for touching pairs and the self term the
+ * error falls as h² (log-type edge behaviour), so two levels are combined by Richardson
+ * extrapolation (common practice).
+ */
+const R10 = dunavantRule(10);
+function subdivided(P: PanelSet, i: number, j: number, levels: number): number {
+  const v = P.vertices;
+  let s = 0;
+  const rec = (a: number[], b: number[], c: number[], l: number): void => {
+    if (l === 0) {
+      for (let k = 0; k < R10.n; k++) {
+        s += R10.w[k] * trianglePotential(v, 9 * j, R10.l1[k] * a[0] + R10.l2[k] * b[0] + R10.l3[k] * c[0],
+          R10.l1[k] * a[1] + R10.l2[k] * b[1] + R10.l3[k] * c[1], R10.l1[k] * a[2] + R10.l2[k] * b[2] + R10.l3[k] * c[2]);
+      }
+      return;
+    }
+    const ab = a.map((x, q) => (x + b[q]) / 2), bc = b.map((x, q) => (x + c[q]) / 2), ca = c.map((x, q) => (x + a[q]) / 2);
+    rec(a, ab, ca, l - 1); rec(ab, b, bc, l - 1); rec(ca, bc, c, l - 1); rec(ab, bc, ca, l - 1);
+  };
+  const o = 9 * i;
+  rec([v[o], v[o + 1], v[o + 2]], [v[o + 3], v[o + 4], v[o + 5]], [v[o + 6], v[o + 7], v[o + 8]], levels);
+  return s / 4 ** levels / P.areas[j];
+}
+const richardson = (P: PanelSet, i: number, j: number, l: number) => { const a = subdivided(P, i, j, l), b = subdivided(P, i, j, l + 1); return b + (b - a) / 3; };
+const rel = (a: number, b: number) => Math.abs(a - b) / Math.abs(b);
+
+let seed = 12345;
+const rnd = () => { seed = (seed * 16807) % 2147483647; return seed / 2147483647; };
+
+/** Two random triangles whose centroids are ρ·(r_i + r_j) apart in a random direction. */
+function pairAt(rho: number): PanelSet {
+  const pos = new Float64Array(18);
+  for (let k = 0; k < 18; k++) pos[k] = rnd() - 0.5;
+  const tris = new Uint32Array([0, 1, 2, 3, 4, 5]);
+  const P0 = panelSet(pos, tris);
+  const d = [rnd() - 0.5, rnd() - 0.5, rnd() - 0.5], dn = Math.hypot(...d);
+  const s = rho * (P0.radii[0] + P0.radii[1]);
+  for (let k = 3; k < 6; k++) for (let q = 0; q < 3; q++) pos[3 * k + q] += P0.centroids[q] - P0.centroids[3 + q] + (s * d[q]) / dn;
+  return panelSet(pos, tris);
+}
+function wellShaped(P: PanelSet): boolean {
+  for (let t = 0; t < P.n; t++) if (P.areas[t] < 0.2 * P.radii[t] ** 2) return false;
+  return true;
+}
+
+describe("Galerkin self term", () => {
+  it("closed form (4/3)Σ(1/a)ln(p/(p−2a)) agrees with converged numerical integration to 1e-9", () => {
+    for (const v of [[0, 0, 0, 1, 0, 0, 0.5, Math.sqrt(3) / 2, 0], [0, 0, 0, 1, 0.1, 0, 0.3, 0.8, 0.05], [0, 0, 0, 3, 0, 0, 0.2, 0.3, 0]]) {
+      const P = panelSet(Float64Array.from(v), new Uint32Array([0, 1, 2]));
+      expect(rel(selfTerm(P, 0), richardson(P, 0, 0, 5))).toBeLessThan(1e-9);
+    }
+  });
+  it("scales as 1/length", () => {
+    const v = [0, 0, 0, 1, 0.1, 0, 0.3, 0.8, 0.05];
+    const a = selfTerm(panelSet(Float64Array.from(v), new Uint32Array([0, 1, 2])), 0);
+    const b = selfTerm(panelSet(Float64Array.from(v.map((x) => x * 1e-3)), new Uint32Array([0, 1, 2])), 0);
+    expect(rel(b, a * 1e3)).toBeLessThan(1e-14);
+  });
+});
+
+describe("Galerkin touching pairs (homogeneity reduction)", () => {
+  it("edge- and vertex-sharing pairs, coplanar and folded, agree with the extrapolated reference to 1e-8", () => {
+    const cases: number[][] = [
+      [0, 0, 0, 1, 0, 0, 0.4, 0.9, 0, 0.6, -0.8, 0],          // shared edge, coplanar
+      [0, 0, 0, 1, 0, 0, 0.4, 0.9, 0, 0.5, -0.5, 0.6],        // shared edge, folded
+      [0, 0, 0, 1, 0, 0, 0.4, 0.9, 0, 0.5, -0.2, -0.9],       // shared edge, folded the other way
+    ];
+    for (const c of cases) {
+      const P = panelSet(Float64Array.from(c), new Uint32Array([0, 1, 2, 1, 0, 3]));
+      const ref = richardson(P, 0, 1, 5);
+      expect(rel(galerkinEntry(P, 0, 1), ref)).toBeLessThan(1e-8);
+    }
+    const vcases: number[][] = [
+      [0, 0, 0, 1, 0, 0, 0.4, 0.9, 0, -1, 0.2, 0, -0.6, -0.7, 0.1],   // shared vertex 0
+      [0, 0, 0, 1, 0, 0, 0.4, 0.9, 0, -0.3, -0.9, 0.4, 0.5, -0.6, -0.2],
+    ];
+    for (const c of vcases) {
+      const P = panelSet(Float64Array.from(c), new Uint32Array([0, 1, 2, 0, 3, 4]));
+      const ref = richardson(P, 0, 1, 5);
+      expect(rel(galerkinEntry(P, 0, 1), ref)).toBeLessThan(1e-8);
+    }
+  });
+});
+
+describe("Galerkin ladder errors on random pairs vs the subdivided reference", () => {
+  // Bounds the ladder is designed for (galerkin.ts): ≤ 1e-6 below RHO_FAR, ≤ 1e-5 beyond.
+  const bins: [number, number, number, number][] = [
+    [0.35, RHO_NEAR, 1e-6, 5], [RHO_NEAR, RHO_MID, 1e-6, 3], [RHO_MID, RHO_FAR, 1e-6, 3], [RHO_FAR, 8, 1e-5, 2], [8, 40, 1e-5, 2],
+  ];
+  for (const [lo, hi, tol, levels] of bins) {
+    it(`ρ in [${lo}, ${hi}): relative error < ${tol}`, () => {
+      let worst = 0, count = 0;
+      while (count < 25) {
+        const P = pairAt(lo + (hi - lo) * rnd());
+        if (!wellShaped(P)) continue;
+        count++;
+        worst = Math.max(worst, rel(galerkinEntry(P, 0, 1), subdivided(P, 0, 1, levels)));
+      }
+      expect(worst).toBeLessThan(tol);
+    });
+  }
+  it("the far rung is not over-trusted: the expansion at ρ = 1.5 is visibly worse than 1e-5", () => {
+    let worst = 0;
+    for (let k = 0; k < 10; k++) { const P = pairAt(1.5); worst = Math.max(worst, rel(farTerm(P, 0, 1), subdivided(P, 0, 1, 3))); }
+    expect(worst).toBeGreaterThan(1e-5);
+  });
+  it("double quadrature and far expansion agree where both apply", () => {
+    const P = pairAt(12);
+    expect(rel(farTerm(P, 0, 1), doubleQuadrature(P, 0, 1, dunavantRule(8)))).toBeLessThan(1e-6);
+  });
+});
+
+describe("Galerkin symmetry", () => {
+  it("P_ij and P_ji are the same number on an icosphere, every rung", () => {
+    const s = icosphere(2);
+    const P = panelSet(s.positions, s.triangles);
+    for (let i = 0; i < P.n; i += 7) for (let j = 0; j < P.n; j += 3) expect(galerkinEntry(P, i, j)).toBe(galerkinEntry(P, j, i));
+  });
+});
