@@ -33,23 +33,35 @@ export function triangleBoxes(positions: Float64Array, triangles: Uint32Array, p
     const g = pad ? pad[t] : 0;
     for (let k = 0; k < 3; k++) {
       const x = p[a + k], y = p[b + k], z = p[c + k];
-      out[6 * t + k] = Math.min(x, y, z) - g;
-      out[6 * t + 3 + k] = Math.max(x, y, z) + g;
+      let lo = x < y ? x : y, hi = x < y ? y : x;
+      if (z < lo) lo = z; if (z > hi) hi = z;
+      out[6 * t + k] = lo - g;
+      out[6 * t + 3 + k] = hi + g;
     }
   }
   return out;
 }
 
-/** Reorder order[lo..hi] so that order[k] holds the item with the k-th smallest key (Hoare's selection). */
-function select(order: Uint32Array, lo: number, hi: number, k: number, cen: Float64Array, axis: number): void {
+/**
+ * Reorder order[lo..hi] (and the centroids stored beside it) so that position k holds
+ * the item with the k-th smallest key on `axis` (Hoare's selection, median-of-three pivot).
+ */
+function select(order: Uint32Array, cen: Float64Array, lo: number, hi: number, k: number, axis: number): void {
   while (hi > lo) {
-    const a = cen[3 * order[lo] + axis], b = cen[3 * order[(lo + hi) >>> 1] + axis], c = cen[3 * order[hi] + axis];
+    const a = cen[3 * lo + axis], b = cen[3 * ((lo + hi) >>> 1) + axis], c = cen[3 * hi + axis];
     const pivot = a < b ? (b < c ? b : a < c ? c : a) : (a < c ? a : b < c ? c : b);
     let i = lo, j = hi;
     while (i <= j) {
-      while (cen[3 * order[i] + axis] < pivot) i++;
-      while (cen[3 * order[j] + axis] > pivot) j--;
-      if (i <= j) { const s = order[i]; order[i] = order[j]; order[j] = s; i++; j--; }
+      while (cen[3 * i + axis] < pivot) i++;
+      while (cen[3 * j + axis] > pivot) j--;
+      if (i <= j) {
+        const s = order[i]; order[i] = order[j]; order[j] = s;
+        const i3 = 3 * i, j3 = 3 * j;
+        let x = cen[i3]; cen[i3] = cen[j3]; cen[j3] = x;
+        x = cen[i3 + 1]; cen[i3 + 1] = cen[j3 + 1]; cen[j3 + 1] = x;
+        x = cen[i3 + 2]; cen[i3 + 2] = cen[j3 + 2]; cen[j3 + 2] = x;
+        i++; j--;
+      }
     }
     if (k <= j) hi = j;
     else if (k >= i) lo = i;
@@ -65,6 +77,7 @@ export function buildBoxTree(itemBounds: Float64Array, leafSize = 4): BoxTree {
   const left = new Int32Array(maxNodes).fill(-1);
   const start = new Uint32Array(maxNodes), count = new Uint32Array(maxNodes);
   const order = new Uint32Array(n);
+  // Centroids kept in the same permutation as `order`, so every scan below is sequential.
   const cen = new Float64Array(3 * n);
   for (let i = 0; i < n; i++) {
     order[i] = i;
@@ -77,36 +90,49 @@ export function buildBoxTree(itemBounds: Float64Array, leafSize = 4): BoxTree {
   stack[sp++] = 0; stack[sp++] = 0; stack[sp++] = n;
   while (sp > 0) {
     const e = stack[--sp], s = stack[--sp], node = stack[--sp];
-    let x0 = Infinity, y0 = Infinity, z0 = Infinity, x1 = -Infinity, y1 = -Infinity, z1 = -Infinity;
+    start[node] = s;
+    count[node] = e - s;
+    if (e - s <= leafSize) continue;
     let cx0 = Infinity, cy0 = Infinity, cz0 = Infinity, cx1 = -Infinity, cy1 = -Infinity, cz1 = -Infinity;
-    for (let k = s; k < e; k++) {
-      const i = order[k], o = 6 * i;
-      if (itemBounds[o] < x0) x0 = itemBounds[o];
-      if (itemBounds[o + 1] < y0) y0 = itemBounds[o + 1];
-      if (itemBounds[o + 2] < z0) z0 = itemBounds[o + 2];
-      if (itemBounds[o + 3] > x1) x1 = itemBounds[o + 3];
-      if (itemBounds[o + 4] > y1) y1 = itemBounds[o + 4];
-      if (itemBounds[o + 5] > z1) z1 = itemBounds[o + 5];
-      const cx = cen[3 * i], cy = cen[3 * i + 1], cz = cen[3 * i + 2];
+    for (let k = 3 * s, end = 3 * e; k < end; k += 3) {
+      const cx = cen[k], cy = cen[k + 1], cz = cen[k + 2];
       if (cx < cx0) cx0 = cx; if (cx > cx1) cx1 = cx;
       if (cy < cy0) cy0 = cy; if (cy > cy1) cy1 = cy;
       if (cz < cz0) cz0 = cz; if (cz > cz1) cz1 = cz;
     }
-    const b = 6 * node;
-    bounds[b] = x0; bounds[b + 1] = y0; bounds[b + 2] = z0; bounds[b + 3] = x1; bounds[b + 4] = y1; bounds[b + 5] = z1;
-    start[node] = s;
-    count[node] = e - s;
-    if (e - s <= leafSize) continue;
     const dx = cx1 - cx0, dy = cy1 - cy0, dz = cz1 - cz0;
     const axis = dx >= dy && dx >= dz ? 0 : dy >= dz ? 1 : 2;
     const mid = (s + e) >>> 1;
-    select(order, s, e - 1, mid, cen, axis);
+    select(order, cen, s, e - 1, mid, axis);
     const l = nodeCount;
     nodeCount += 2;
     left[node] = l;
     // The median split keeps the depth near log2(n), so this stack stays small.
     stack[sp++] = l; stack[sp++] = s; stack[sp++] = mid;
     stack[sp++] = l + 1; stack[sp++] = mid; stack[sp++] = e;
+  }
+  // Boxes bottom-up: children always have higher indices than their parent.
+  for (let node = nodeCount - 1; node >= 0; node--) {
+    const b = 6 * node, l = left[node];
+    if (l < 0) {
+      let x0 = Infinity, y0 = Infinity, z0 = Infinity, x1 = -Infinity, y1 = -Infinity, z1 = -Infinity;
+      for (let k = start[node], end = k + count[node]; k < end; k++) {
+        const o = 6 * order[k];
+        if (itemBounds[o] < x0) x0 = itemBounds[o];
+        if (itemBounds[o + 1] < y0) y0 = itemBounds[o + 1];
+        if (itemBounds[o + 2] < z0) z0 = itemBounds[o + 2];
+        if (itemBounds[o + 3] > x1) x1 = itemBounds[o + 3];
+        if (itemBounds[o + 4] > y1) y1 = itemBounds[o + 4];
+        if (itemBounds[o + 5] > z1) z1 = itemBounds[o + 5];
+      }
+      bounds[b] = x0; bounds[b + 1] = y0; bounds[b + 2] = z0; bounds[b + 3] = x1; bounds[b + 4] = y1; bounds[b + 5] = z1;
+    } else {
+      const p = 6 * l, q = 6 * (l + 1);
+      for (let k = 0; k < 3; k++) {
+        bounds[b + k] = bounds[p + k] < bounds[q + k] ? bounds[p + k] : bounds[q + k];
+        bounds[b + 3 + k] = bounds[p + 3 + k] > bounds[q + 3 + k] ? bounds[p + 3 + k] : bounds[q + 3 + k];
+      }
+    }
   }
   return {
     nodeCount,

@@ -1,0 +1,37 @@
+// Mesh check on a ~1M-triangle multi-conductor mesh: 12 icospheres (level 6, 81 920 triangles
+// each) on a 4 × 3 grid, one pair 10 µm apart (a narrow-gap warning), the others 0.5 mm apart.
+// Prints the time of each stage and of the whole checkMesh; not a pass/fail test.
+import { performance } from "node:perf_hooks";
+import { sphereMesh } from "../../dist/src/mesh/primitives/index.js";
+import { concatMeshes } from "../../dist/src/mesh/model.js";
+import { buildEdgeTable, conductorTopology, orientSurfaces } from "../../dist/src/mesh/topology.js";
+import { conductorQuality } from "../../dist/src/mesh/quality.js";
+import { conductorProximity } from "../../dist/src/mesh/proximity.js";
+import { checkMesh } from "../../dist/src/mesh/check.js";
+
+const r = 1e-3, pitch = 2 * r + 0.5e-3;
+const parts = [];
+for (let j = 0; j < 3; j++) for (let i = 0; i < 4; i++) {
+  const shift = i === 1 && j === 0 ? -0.49e-3 : 0; // sphere 1 sits 10 µm from sphere 0
+  parts.push(sphereMesh({ radius: r, level: 6, center: [i * pitch + shift, j * pitch, 0], name: `s${j}${i}` }));
+}
+const mesh = concatMeshes(parts);
+const nt = mesh.triangles.length / 3;
+console.log(`mesh: ${nt} triangles, ${mesh.positions.length / 3} vertices, ${mesh.names.length} conductors`);
+
+function time(label, fn) {
+  const t0 = performance.now();
+  const out = fn();
+  console.log(`${label.padEnd(28)} ${((performance.now() - t0) / 1000).toFixed(3)} s`);
+  return out;
+}
+const table = time("edge table", () => buildEdgeTable(mesh));
+time("closed/boundary counts", () => conductorTopology(mesh, table));
+time("orientation", () => orientSurfaces(mesh, table));
+time("quality", () => conductorQuality(mesh));
+const found = time("proximity (BVH)", () => conductorProximity(mesh));
+console.log(`  findings: ${found.map((f) => `${mesh.names[f.a]}/${mesh.names[f.b]} ${f.kind} ${(f.distance * 1e6).toFixed(3)} µm`).join("; ")}`);
+globalThis.gc?.();
+const rep = time("checkMesh total", () => checkMesh(mesh));
+console.log(`  failed: ${rep.failed}, pairs: ${rep.pairs.length}, closed: ${rep.conductors.every((c) => c.closed)}, orientation: ${[...new Set(rep.conductors.map((c) => c.orientation))].join(",")}`);
+console.log(`peak RSS ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MiB`);
