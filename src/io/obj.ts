@@ -14,7 +14,7 @@
 import type { SurfaceMesh } from "../mesh/model.js";
 import { InputError, atLine } from "./errors.js";
 import { GrowF64, GrowU32, decodeText, type RawMesh } from "./raw.js";
-import { formatCoordinate, trianglesByConductor } from "./stl.js";
+import { formatCoordinate, toFileUnits, trianglesByConductor } from "./stl.js";
 import { METRES_PER_UNIT } from "./units.js";
 
 export function readObj(text: string | Uint8Array, file: string): RawMesh {
@@ -225,8 +225,9 @@ export function writeObj(mesh: SurfaceMesh, metresPerUnit: number): string {
   let unit = `${metresPerUnit} m`;
   for (const [u, m] of Object.entries(METRES_PER_UNIT)) if (m === metresPerUnit) unit = u;
   const parts: string[] = [`# sigmesh OBJ; unit ${unit}; ${mesh.names.length} conductor(s)\n`];
+  const u = toFileUnits(metresPerUnit);
   for (let v = 0; v < p.length; v += 3) {
-    parts.push(`v ${formatCoordinate(p[v] / metresPerUnit)} ${formatCoordinate(p[v + 1] / metresPerUnit)} ${formatCoordinate(p[v + 2] / metresPerUnit)}\n`);
+    parts.push(`v ${formatCoordinate(u(p[v]))} ${formatCoordinate(u(p[v + 1]))} ${formatCoordinate(u(p[v + 2]))}\n`);
   }
   const order = trianglesByConductor(mesh.conductor, mesh.names.length);
   for (let c = 0; c < mesh.names.length; c++) {

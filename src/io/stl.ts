@@ -231,7 +231,7 @@ export function writeStlBinary(mesh: SurfaceMesh, metresPerUnit: number): Uint8A
   out.set(header.subarray(0, HEADER));
   const view = new DataView(out.buffer);
   view.setUint32(HEADER, n, true);
-  const p = mesh.positions, tr = mesh.triangles;
+  const p = mesh.positions, tr = mesh.triangles, u = toFileUnits(metresPerUnit);
   for (let t = 0; t < n; t++) {
     const rec = HEADER + 4 + RECORD * t;
     const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], c = 3 * tr[3 * t + 2];
@@ -241,9 +241,9 @@ export function writeStlBinary(mesh: SurfaceMesh, metresPerUnit: number): Uint8A
     view.setFloat32(rec + 8, NRM[2], true);
     for (let j = 0; j < 3; j++) {
       const v = 3 * tr[3 * t + j], o = rec + 12 + 12 * j;
-      view.setFloat32(o, p[v] / metresPerUnit, true);
-      view.setFloat32(o + 4, p[v + 1] / metresPerUnit, true);
-      view.setFloat32(o + 8, p[v + 2] / metresPerUnit, true);
+      view.setFloat32(o, u(p[v]), true);
+      view.setFloat32(o + 4, u(p[v + 1]), true);
+      view.setFloat32(o + 8, u(p[v + 2]), true);
     }
   }
   return out;
@@ -264,13 +264,33 @@ function facetNormal(p: Float64Array, a: number, b: number, c: number): void {
  * printed is right, and values that came from CAD come back as short as they went in.
  */
 export function formatCoordinate(x: number): string {
-  return String(Number(x.toPrecision(15)));
+  if (x === 0) return "0";
+  // toPrecision is exactly rounded by the language definition (ECMA-262, Number.prototype.toPrecision).
+  const s = x.toPrecision(15);
+  const e = s.indexOf("e");
+  const mantEnd = e < 0 ? s.length : e;
+  if (s.indexOf(".") < 0) return s;
+  let k = mantEnd;
+  while (s.charCodeAt(k - 1) === 48 /* 0 */) k--;
+  if (s.charCodeAt(k - 1) === 46 /* . */) k--;
+  return e < 0 ? s.slice(0, k) : s.slice(0, k) + s.slice(e);
+}
+
+/**
+ * File units from metres. When a unit is an exact integer fraction of the metre (m, cm, mm,
+ * um), multiplying by that integer is one correctly rounded operation on an exact factor;
+ * dividing by the inexact 1e-3 would add a second rounding. Inches and mils divide.
+ */
+export function toFileUnits(metresPerUnit: number): (x: number) => number {
+  const f = 1 / metresPerUnit;
+  if (Number.isInteger(f) && f * metresPerUnit === 1) return (x) => x * f;
+  return (x) => x / metresPerUnit;
 }
 
 /** ASCII STL, one `solid NAME` per conductor, coordinates divided by `metresPerUnit`. */
 export function writeStlAscii(mesh: SurfaceMesh, metresPerUnit: number): string {
-  const n = mesh.triangles.length / 3;
-  const p = mesh.positions, tr = mesh.triangles;
+  const p = mesh.positions, tr = mesh.triangles, u = toFileUnits(metresPerUnit);
+  const f = (x: number): string => formatCoordinate(u(x));
   const parts: string[] = [];
   const order = trianglesByConductor(mesh.conductor, mesh.names.length);
   for (let c = 0; c < mesh.names.length; c++) {
@@ -282,9 +302,9 @@ export function writeStlAscii(mesh: SurfaceMesh, metresPerUnit: number): string 
       facetNormal(p, a, b, cc);
       parts.push(
         `  facet normal ${formatCoordinate(NRM[0])} ${formatCoordinate(NRM[1])} ${formatCoordinate(NRM[2])}\n    outer loop\n` +
-        `      vertex ${formatCoordinate(p[a] / metresPerUnit)} ${formatCoordinate(p[a + 1] / metresPerUnit)} ${formatCoordinate(p[a + 2] / metresPerUnit)}\n` +
-        `      vertex ${formatCoordinate(p[b] / metresPerUnit)} ${formatCoordinate(p[b + 1] / metresPerUnit)} ${formatCoordinate(p[b + 2] / metresPerUnit)}\n` +
-        `      vertex ${formatCoordinate(p[cc] / metresPerUnit)} ${formatCoordinate(p[cc + 1] / metresPerUnit)} ${formatCoordinate(p[cc + 2] / metresPerUnit)}\n` +
+        `      vertex ${f(p[a])} ${f(p[a + 1])} ${f(p[a + 2])}\n` +
+        `      vertex ${f(p[b])} ${f(p[b + 1])} ${f(p[b + 2])}\n` +
+        `      vertex ${f(p[cc])} ${f(p[cc + 1])} ${f(p[cc + 2])}\n` +
         `    endloop\n  endfacet\n`,
       );
     }

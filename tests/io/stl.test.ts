@@ -1,6 +1,6 @@
 import { describe, it, expect } from "vitest";
 import fc from "fast-check";
-import { readStl, writeStlBinary, writeStlAscii } from "../../src/io/stl.js";
+import { readStl, writeStlBinary, writeStlAscii, formatCoordinate } from "../../src/io/stl.js";
 import { readDecimal } from "../../src/io/decimal.js";
 import { InputError } from "../../src/io/errors.js";
 import { fixtureBytes, rawArea, UNIT_TET_AREA } from "./helpers.js";
@@ -105,6 +105,19 @@ describe("readDecimal", () => {
       const b = enc(s);
       expect(readDecimal(b, 0, b.length)).toBeNaN();
     }
+  });
+});
+
+describe("formatCoordinate", () => {
+  // Reference: ECMA-262 Number.prototype.toPrecision (exactly rounded); we only drop trailing zeros.
+  it("prints the 15-significant-digit rounding, as short as possible", () => {
+    fc.assert(fc.property(fc.double({ noNaN: true, noDefaultInfinity: true }), (x) => {
+      const s = formatCoordinate(x);
+      expect(Number(s)).toBe(Number(x.toPrecision(15)));
+      expect(s).not.toMatch(/\.\d*0(e|$)|\.(e|$)/);
+    }), { numRuns: 5000, seed: 5 });
+    expect(formatCoordinate(64.99900000000001)).toBe("64.999");
+    expect(formatCoordinate(-0)).toBe("0");
   });
 });
 
