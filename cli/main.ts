@@ -5,6 +5,7 @@ import { createRequire } from "node:module";
 import { setDebug, reportFailure } from "./common.js";
 import { registerCheck } from "./check.js";
 import { registerMesh } from "./mesh.js";
+import { registerExtract } from "./extract.js";
 
 const require = createRequire(import.meta.url);
 const pkg = require("../../package.json") as { version: string };
@@ -25,6 +26,7 @@ export function buildProgram(): Command {
     });
   registerCheck(program);
   registerMesh(program);
+  registerExtract(program);
   return program;
 }
 

@@ -1,0 +1,126 @@
+/**
+ * `sigmesh extract <scene.json | mesh files...>`: capacitance matrices, charges, surface
+ * fields, energy, forces and (with --refine) an error estimate. A thin shell over
+ * `loadScene`, `checkMesh`, `extract`, `extractionReport` and `extractionSummary`.
+ */
+import type { Command } from "commander";
+import { createRequire } from "node:module";
+import { loadScene } from "../src/io/inputs.js";
+import { parseUnit } from "../src/io/units.js";
+import { InputError } from "../src/io/errors.js";
+import { checkMesh } from "../src/mesh/check.js";
+import { pairSentence } from "../src/report/check-summary.js";
+import { extract } from "../src/extract/extract.js";
+import { extractionReport } from "../src/report/json.js";
+import { extractionSummary } from "../src/report/extract-summary.js";
+import { closeSharedPool } from "../src/linalg/pool.js";
+import { action, printWarnings, writeOutput, collect } from "./common.js";
+import { progressBar } from "./progress.js";
+
+interface ExtractCliOptions {
+  unit?: string;
+  json?: string;
+  potential: string[];
+  method: string;
+  solver: string;
+  refine: string;
+  tol: string;
+  permittivity?: string;
+  breakdownField?: string;
+  split?: boolean;
+  merge?: boolean;
+  quiet?: boolean;
+}
+
+function version(): string {
+  return (createRequire(import.meta.url)("../../package.json") as { version: string }).version;
+}
+
+function number(text: string, option: string, check: (x: number) => boolean, what: string): number {
+  const x = Number(text);
+  if (text.trim() === "" || !Number.isFinite(x) || !check(x)) throw new InputError(`${option} "${text}": expected ${what}`);
+  return x;
+}
+
+/** Parse repeated NAME=VOLTS options. */
+export function parsePotentials(items: string[]): Record<string, number> {
+  const out: Record<string, number> = {};
+  for (const item of items) {
+    const eq = item.lastIndexOf("=");
+    if (eq <= 0) throw new InputError(`--potential "${item}": expected NAME=VOLTS, e.g. --potential pad=5`);
+    const name = item.slice(0, eq).trim();
+    const volts = number(item.slice(eq + 1), `--potential ${name}`, () => true, "a number of volts");
+    out[name] = volts;
+  }
+  return out;
+}
+
+function toJson(value: unknown): string {
+  return JSON.stringify(value, (_k, v) => (typeof v === "number" && !Number.isFinite(v) ? null : v), 2);
+}
+
+export function registerExtract(program: Command): void {
+  program
+    .command("extract")
+    .description("solve for the capacitance matrices, charges, surface fields, energy and forces of the conductors")
+    .argument("<inputs...>", "a scene file (.json) or mesh files (STL, OBJ, Gmsh MSH) whose bodies are the conductors")
+    .option("--unit <unit>", "length unit of the mesh files: m, cm, mm, um, in, mil (default: the scene's, else mm)")
+    .option("--potential <name=volts>", "working potential of a conductor (repeatable)", collect, [])
+    .option("--method <method>", "discretisation: galerkin or collocation", "galerkin")
+    .option("--solver <solver>", "auto, direct or iterative", "auto")
+    .option("--refine <K>", "also solve on K uniform refinements and extrapolate, with an error estimate", "0")
+    .option("--tol <relative>", "requested relative accuracy of the capacitances (solver tolerance)", "1e-4")
+    .option("--permittivity <er>", "relative permittivity of the medium (overrides the scene)")
+    .option("--breakdown-field <V/m>", "breakdown strength of the medium for the field check (default 3e6, air)")
+    .option("--split", "mesh files: each connected component is a conductor")
+    .option("--merge", "mesh files: all groups of a file are one conductor")
+    .option("--json <path>", "write the JSON report to a file, or - for standard output")
+    .option("--quiet", "print only errors and warnings")
+    .action(action(async (inputs: string[], opts: ExtractCliOptions) => {
+      const method = opts.method;
+      if (method !== "galerkin" && method !== "collocation") throw new InputError(`--method "${method}": use galerkin or collocation`);
+      const solver = opts.solver;
+      if (solver !== "auto" && solver !== "direct" && solver !== "iterative") throw new InputError(`--solver "${solver}": use auto, direct or iterative`);
+      const refine = number(opts.refine, "--refine", (x) => Number.isInteger(x) && x >= 0 && x <= 4, "a whole number from 0 to 4");
+      const tolerance = number(opts.tol, "--tol", (x) => x > 0 && x < 1, "a number between 0 and 1, e.g. 1e-4");
+      const permittivity = opts.permittivity === undefined ? undefined : number(opts.permittivity, "--permittivity", (x) => x >= 1, "a relative permittivity of at least 1");
+      const breakdown = opts.breakdownField === undefined ? undefined : number(opts.breakdownField, "--breakdown-field", (x) => x > 0, "a positive field in V/m, e.g. 3e6");
+      if (opts.split && opts.merge) throw new InputError("--split and --merge cannot be used together");
+
+      const scene = loadScene(inputs, {
+        unit: opts.unit === undefined ? undefined : parseUnit(opts.unit, "--unit"),
+        split: opts.split, merge: opts.merge, potentials: parsePotentials(opts.potential),
+      });
+      printWarnings(scene.warnings, false);
+      const check = checkMesh(scene.mesh);
+      const errors = check.pairs.filter((p) => p.severity === "error");
+      if (errors.length > 0) throw new InputError(`${pairSentence(errors[0], scene.unit)}${errors.length > 1 ? ` (and ${errors.length - 1} more; run sigmesh check)` : ""}`, scene.scene ?? scene.files.join(", "));
+      const inputWarnings = check.pairs.filter((p) => p.severity === "warning").map((p) => pairSentence(p, scene.unit));
+      printWarnings(inputWarnings.map((message) => ({ message })), false);
+
+      const bar = progressBar(!opts.quiet);
+      let result;
+      try {
+        result = await extract(scene.mesh, {
+          permittivity: permittivity ?? scene.permittivity,
+          method, solver, refine, tolerance, potentials: scene.potentials,
+          breakdownField: breakdown ?? scene.breakdownField,
+          progress: (phase, f, level, levels) => bar.update(phase, f, level, levels),
+        });
+      } finally {
+        bar.stop();
+        await closeSharedPool();
+      }
+      const report = extractionReport(result, {
+        version: version(), files: scene.files, scene: scene.scene, unit: scene.unit,
+        inputWarnings: [...scene.warnings.map((w) => (w.file ? `${w.file}: ` : "") + w.message), ...inputWarnings],
+      });
+      if (opts.json !== undefined) writeOutput(opts.json, toJson(report));
+      if (!opts.quiet) {
+        const text = extractionSummary(result, { unit: scene.unit, unitAssumed: scene.unitAssumed, source: scene.scene ?? scene.files.join(", ") });
+        (opts.json === "-" ? process.stderr : process.stdout).write(text);
+      } else {
+        printWarnings(result.warnings.map((message) => ({ message })), false);
+      }
+    }));
+}

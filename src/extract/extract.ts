@@ -1,0 +1,249 @@
+/**
+ * Extraction: conductor surfaces in, capacitance matrices, charges, fields, energy,
+ * forces and an accuracy estimate out. This is the library entry the CLI is built on.
+ */
+import type { SurfaceMesh } from "../mesh/model.js";
+import { triangleCount, conductorAreas } from "../mesh/model.js";
+import { orientSurfaces, conductorTopology, buildEdgeTable } from "../mesh/topology.js";
+import { refineUniform } from "../mesh/refine.js";
+import type { Discretisation } from "../bem/assembly.js";
+import { sharedPool, type WorkerPool } from "../linalg/pool.js";
+import { EPSILON_0, AIR_BREAKDOWN_FIELD } from "./constants.js";
+import { solveUnitPotentials, type SolverChoice, type SolveInfo, type UnitSolution } from "./solve.js";
+import { conductorCharges, capacitanceMatrices, chargesAt, storedEnergy, mutualFromMaxwell } from "./capacitance.js";
+import { richardson, type RichardsonResult } from "./accuracy.js";
+import { panelExcitation, peakFields, conductorForces, type PanelExcitation, type PeakField } from "./excitation.js";
+import { peakResidentBytes } from "./memory.js";
+import { InputError } from "../io/errors.js";
+
+export interface ExtractOptions {
+  /** Relative permittivity of the uniform medium (default 1). */
+  permittivity?: number;
+  method?: Discretisation;
+  solver?: SolverChoice;
+  /** Requested relative accuracy of C (default 1e-4): sets solver tolerances. */
+  tolerance?: number;
+  /** Working potentials in volts, one per conductor (default: first 1 V, rest 0 V). */
+  potentials?: ArrayLike<number>;
+  /** Breakdown strength of the medium; V/m (default 3 MV/m, air). */
+  breakdownField?: number;
+  /** Uniform refinements for the error estimate (0 = none). */
+  refine?: number;
+  /** Convergence order assumed when only two meshes are solved (default: see `assumedOrder`). */
+  assumedOrder?: number;
+  pool?: WorkerPool;
+  progress?: (phase: string, fraction: number, level: number, levels: number) => void;
+  memoryLimit?: number;
+}
+
+export interface ConductorResult {
+  name: string;
+  triangles: number;
+  /** m². */
+  area: number;
+  closed: boolean;
+  /** V. */
+  potential: number;
+  /** C. */
+  charge: number;
+  /** Peak normal surface field; V/m. */
+  peakField: number;
+  /** Centroid of the panel with the peak field; metres. */
+  peakFieldAt: [number, number, number];
+  /** Peak field over the breakdown strength. */
+  fieldRatio: number;
+  /** Net electrostatic force; newtons. */
+  force: [number, number, number];
+}
+
+export interface LevelResult {
+  panels: number;
+  maxwell: Float64Array;
+  info: SolveInfo;
+}
+
+export interface Accuracy {
+  levels: Array<{ panels: number; maxwell: Float64Array }>;
+  richardson: RichardsonResult;
+  /** The matrix reported is the extrapolated one. */
+  extrapolated: true;
+}
+
+export interface ExtractionResult {
+  names: string[];
+  conductors: ConductorResult[];
+  k: number;
+  /** Absolute permittivity of the medium; F/m. */
+  permittivity: number;
+  relativePermittivity: number;
+  breakdownField: number;
+  /** Maxwell matrix reported (extrapolated when refinement was asked for); F, row-major k×k. */
+  maxwell: Float64Array;
+  mutual: Float64Array;
+  asymmetry: number;
+  /** J. */
+  energy: number;
+  potentials: Float64Array;
+  /** On the finest mesh solved. */
+  mesh: SurfaceMesh;
+  panelConductor: Uint32Array;
+  excitation: PanelExcitation;
+  /** Unit-potential solutions on the finest mesh, n×k: Q = 4πε x (the columns of the Maxwell matrix per panel). */
+  unitCharges: Float64Array;
+  peaks: PeakField[];
+  forcesComplete: boolean;
+  accuracy?: Accuracy;
+  solver: SolveInfo & { seconds: number; peakMemory: number; levels: LevelResult[] };
+  /** Orientation fixes made to the input. */
+  orientation: { flippedComponents: number; unorientable: number };
+  warnings: string[];
+}
+
+/**
+ * Convergence order assumed from two meshes. Piecewise-constant Galerkin on a smooth body
+ * converges like h² in C (the flat facets' geometric error dominates the h³ of the charge
+ * functional); edges and corners, where σ is singular, make it slower, near h¹ (observed on
+ * cubes and plates in tests/reference). With three or more meshes the order is observed.
+ */
+export function assumedOrder(hasSharpFeatures: boolean): number {
+  return hasSharpFeatures ? 1 : 2;
+}
+
+export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Promise<ExtractionResult> {
+  const t0 = performance.now();
+  const k = input.names.length;
+  if (k === 0 || triangleCount(input) === 0) throw new InputError("nothing to extract: no conductor with triangles");
+  const er = opts.permittivity ?? 1;
+  if (!(er >= 1) || !Number.isFinite(er)) throw new InputError(`relative permittivity must be a number of at least 1, got ${er}`);
+  const eps = EPSILON_0 * er;
+  const method = opts.method ?? "galerkin";
+  const tolerance = opts.tolerance ?? 1e-4;
+  const refine = opts.refine ?? 0;
+  if (!Number.isInteger(refine) || refine < 0 || refine > 4) throw new InputError(`refine must be a whole number from 0 to 4, got ${refine}`);
+  const breakdownField = opts.breakdownField ?? AIR_BREAKDOWN_FIELD;
+  const potentials = new Float64Array(k);
+  if (opts.potentials) {
+    if (opts.potentials.length !== k) throw new InputError(`${opts.potentials.length} potentials given for ${k} conductors`);
+    for (let i = 0; i < k; i++) potentials[i] = opts.potentials[i];
+  } else potentials[0] = 1;
+  const pool = opts.pool ?? sharedPool();
+  const warnings: string[] = [];
+
+  // Every conductor needs triangles of its own.
+  const counts = new Uint32Array(k);
+  for (let t = 0; t < input.conductor.length; t++) counts[input.conductor[t]]++;
+  for (let c = 0; c < k; c++) if (counts[c] === 0) throw new InputError(`conductor ${input.names[c]} has no triangles`);
+
+  const oriented = orientSurfaces(input);
+  let flippedComponents = 0, unorientable = 0;
+  for (const c of oriented.components) {
+    if (c.status === "inward-flipped" || c.status === "repaired") flippedComponents++;
+    if (c.status === "non-orientable" || c.status === "non-manifold") unorientable++;
+  }
+  if (flippedComponents > 0) warnings.push(`${flippedComponents} surface component(s) were wound inward or inconsistently and have been reoriented`);
+  const topo = conductorTopology(oriented.mesh, buildEdgeTable(oriented.mesh));
+
+  const levels: LevelResult[] = [];
+  let mesh = oriented.mesh;
+  let last: UnitSolution | undefined;
+  const nLevels = refine + 1;
+  for (let level = 0; level <= refine; level++) {
+    if (level > 0) mesh = refineUniform(mesh);
+    const sol = await solveUnitPotentials(mesh.positions, mesh.triangles, mesh.conductor, k, {
+      method, solver: opts.solver ?? "auto", tolerance, pool, memoryLimit: opts.memoryLimit,
+      progress: (phase, f) => opts.progress?.(phase, f, level, nLevels),
+    });
+    const q = conductorCharges(sol.x, mesh.conductor, k);
+    const scale = 4 * Math.PI * eps;
+    for (let i = 0; i < q.length; i++) q[i] *= scale;
+    levels.push({ panels: sol.panels.n, maxwell: q, info: sol.info });
+    last = sol;
+  }
+  if (!last) throw new Error("no level solved");
+
+  const finest = capacitanceMatrices(levels[levels.length - 1].maxwell, k, input.names);
+  let maxwell = finest.maxwell;
+  let accuracy: Accuracy | undefined;
+  if (refine > 0) {
+    const sharp = topo.some((t) => !t.closed) || hasSharpEdges(oriented.mesh);
+    const sym = levels.map((l) => capacitanceMatrices(l.maxwell, k, input.names).maxwell);
+    const r = richardson(sym, k, { assumedOrder: opts.assumedOrder ?? assumedOrder(sharp), fromBelow: method === "galerkin" });
+    accuracy = { levels: levels.map((l, i) => ({ panels: l.panels, maxwell: sym[i] })), richardson: r, extrapolated: true };
+    maxwell = r.extrapolated;
+    warnings.push(...r.warnings);
+  }
+  const checked = refine > 0 ? capacitanceMatrices(maxwell, k, input.names) : finest;
+  warnings.push(...checked.warnings);
+  const mutual = mutualFromMaxwell(maxwell, k);
+
+  // Excitation on the finest mesh.
+  const P = last.panels;
+  const openPanel = new Uint8Array(P.n);
+  for (let p = 0; p < P.n; p++) openPanel[p] = topo[mesh.conductor[p]].closed ? 0 : 1;
+  const excitation = panelExcitation(last.x, k, P, potentials, eps, openPanel);
+  const peaks = peakFields(excitation.field, mesh.conductor, k, P);
+  const { force, complete } = conductorForces(excitation.sigma, P, mesh.conductor, k, eps, openPanel);
+  if (!complete) warnings.push("forces on open sheets need the two-sided field and are left out of the force figures");
+  const q = chargesAt(maxwell, k, potentials);
+  const energy = storedEnergy(maxwell, k, potentials);
+  const areas = conductorAreas(mesh);
+
+  const conductors: ConductorResult[] = input.names.map((name, i) => ({
+    name,
+    triangles: counts[i],
+    area: areas[i],
+    closed: topo[i].closed,
+    potential: potentials[i],
+    charge: q[i],
+    peakField: peaks[i].value,
+    peakFieldAt: peaks[i].at,
+    fieldRatio: peaks[i].value / breakdownField,
+    force: [force[3 * i], force[3 * i + 1], force[3 * i + 2]],
+  }));
+  const seconds = (performance.now() - t0) / 1e3;
+  const lastInfo = levels[levels.length - 1].info;
+  return {
+    names: input.names.slice(), conductors, k, permittivity: eps, relativePermittivity: er, breakdownField,
+    maxwell, mutual, asymmetry: finest.asymmetry, energy, potentials, mesh, panelConductor: mesh.conductor,
+    excitation, unitCharges: scaleCopy(last.x, 4 * Math.PI * eps), peaks, forcesComplete: complete, accuracy,
+    solver: { ...lastInfo, seconds, peakMemory: peakResidentBytes(), levels },
+    orientation: { flippedComponents, unorientable },
+    warnings,
+  };
+}
+
+function scaleCopy(a: Float64Array, s: number): Float64Array {
+  const out = new Float64Array(a.length);
+  for (let i = 0; i < a.length; i++) out[i] = a[i] * s;
+  return out;
+}
+
+/** Any interior edge whose dihedral angle exceeds 30°: the charge density is singular there. */
+function hasSharpEdges(mesh: SurfaceMesh): boolean {
+  const tr = mesh.triangles, p = mesh.positions, nt = tr.length / 3;
+  const normal = new Float64Array(3 * nt);
+  for (let t = 0; t < nt; t++) {
+    const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], c = 3 * tr[3 * t + 2];
+    const ux = p[b] - p[a], uy = p[b + 1] - p[a + 1], uz = p[b + 2] - p[a + 2];
+    const vx = p[c] - p[a], vy = p[c + 1] - p[a + 1], vz = p[c + 2] - p[a + 2];
+    const nx = uy * vz - uz * vy, ny = uz * vx - ux * vz, nz = ux * vy - uy * vx;
+    const l = Math.hypot(nx, ny, nz) || 1;
+    normal[3 * t] = nx / l; normal[3 * t + 1] = ny / l; normal[3 * t + 2] = nz / l;
+  }
+  const edges = new Map<number, number>();
+  const nv = p.length / 3;
+  const cos30 = Math.cos(Math.PI / 6);
+  for (let t = 0; t < nt; t++) {
+    for (let j = 0; j < 3; j++) {
+      const u = tr[3 * t + j], v = tr[3 * t + ((j + 1) % 3)];
+      const key = Math.min(u, v) * nv + Math.max(u, v);
+      const other = edges.get(key);
+      if (other === undefined) edges.set(key, t);
+      else {
+        const d = normal[3 * t] * normal[3 * other] + normal[3 * t + 1] * normal[3 * other + 1] + normal[3 * t + 2] * normal[3 * other + 2];
+        if (d < cos30) return true;
+      }
+    }
+  }
+  return false;
+}

@@ -1,0 +1,159 @@
+/**
+ * The boundary-element solve: assemble the operator of the chosen discretisation and solve
+ * it for every conductor at 1 V (one right-hand side per conductor, all at once).
+ *
+ * Unknowns are panel charges scaled by 4πε: with P the geometric operator of src/bem
+ * (entries in 1/m), P·x = v gives physical panel charges Q = 4π ε0 εr x.
+ */
+import { panelSetShared, type PanelSet } from "../bem/panels.js";
+import { assembleDense, type Discretisation } from "../bem/assembly.js";
+import { choleskyFactor, choleskySolve, NotPositiveDefiniteError } from "../linalg/cholesky.js";
+import { luFactor, luSolve } from "../linalg/lu.js";
+import { pcg } from "../linalg/cg.js";
+import { gmres } from "../linalg/gmres.js";
+import { blockJacobi } from "../linalg/block-jacobi.js";
+import { clusterPoints, leafIndexSets } from "../linalg/cluster.js";
+import { denseMultiply } from "../linalg/dense.js";
+import { sharedFloat64, type WorkerPool } from "../linalg/pool.js";
+import { assertDenseFits } from "./memory.js";
+
+export type SolverChoice = "auto" | "direct" | "iterative";
+
+export interface SolveOptions {
+  method: Discretisation;
+  solver: SolverChoice;
+  /** Requested relative accuracy of the capacitances (sets the Krylov tolerance). */
+  tolerance: number;
+  pool: WorkerPool;
+  progress?: (phase: string, fraction: number) => void;
+  /** Bytes available for the dense matrix (default: most of the free memory). */
+  memoryLimit?: number;
+}
+
+export interface SolveInfo {
+  method: Discretisation;
+  solver: "direct" | "iterative";
+  /** Why `auto` chose what it chose. */
+  choice: string;
+  panels: number;
+  rightHandSides: number;
+  assemblySeconds: number;
+  solveSeconds: number;
+  /** Matrix entries computed per second of assembly (unique entries for Galerkin). */
+  entriesPerSecond: number;
+  /** Factorisation rate (direct solver); GFLOP/s. */
+  factorGflops?: number;
+  iterations?: number;
+  /** Largest final relative residual over the right-hand sides (iterative solver). */
+  residual?: number;
+  krylovTolerance?: number;
+}
+
+export interface UnitSolution {
+  /** n×k row-major: scaled panel charges x (Q = 4πε x) with conductor j at 1 V in column j. */
+  x: Float64Array;
+  panels: PanelSet;
+  info: SolveInfo;
+}
+
+/**
+ * Cost model for `auto` (seconds), calibrated by tests/bench/solver.bench.mjs on a 2-core machine:
+ * dense Cholesky at FACTOR_RATE flop/s, an iteration of the dense product streaming the
+ * n×n matrix at PRODUCT_RATE entries/s, and iterations that grow slowly with n.
+ */
+const FACTOR_RATE = 5.5e9;
+const PRODUCT_RATE = 1.0e9;
+function expectedIterations(n: number): number {
+  return 12 + 3 * Math.log2(Math.max(2, n / 64));
+}
+
+export function chooseSolver(n: number, k: number): { solver: "direct" | "iterative"; reason: string } {
+  const direct = (n * n * n) / 3 / FACTOR_RATE + (2 * n * n * k) / FACTOR_RATE;
+  // One pass over the matrix serves all k columns; the arithmetic then grows with k.
+  const perProduct = (n * n) / PRODUCT_RATE + (2 * n * n * Math.max(0, k - 1)) / FACTOR_RATE;
+  const iterative = expectedIterations(n) * perProduct;
+  const solver = direct <= iterative ? "direct" : "iterative";
+  return { solver, reason: `estimated direct ${direct.toFixed(2)} s, iterative ${iterative.toFixed(2)} s` };
+}
+
+/** Krylov tolerance for a requested relative accuracy of C: the error of the charge functional
+ *  falls faster than the residual, but a factor of 100 keeps solver error far below the
+ *  discretisation error the tolerance refers to. */
+export function krylovTolerance(tolerance: number): number {
+  return Math.min(1e-4, Math.max(1e-12, tolerance * 1e-2));
+}
+
+export async function solveUnitPotentials(
+  positions: Float64Array, triangles: Uint32Array, conductorOf: Uint32Array, k: number, opts: SolveOptions,
+): Promise<UnitSolution> {
+  const n = conductorOf.length;
+  assertDenseFits(n, k, opts.memoryLimit);
+  const progress = opts.progress ?? (() => {});
+  const panels = panelSetShared(positions, triangles);
+
+  let solver: "direct" | "iterative";
+  let choice: string;
+  if (opts.solver === "auto") {
+    const c = chooseSolver(n, k);
+    solver = c.solver; choice = `auto: ${c.reason}`;
+  } else { solver = opts.solver; choice = "requested"; }
+
+  progress("assembly", 0);
+  const t0 = performance.now();
+  const A = await assembleDense(panels, opts.method, opts.pool);
+  const t1 = performance.now();
+  progress("assembly", 1);
+  const entries = opts.method === "galerkin" ? (n * (n + 1)) / 2 : n * n;
+
+  // Right-hand sides: column j is 1 on the panels of conductor j.
+  const B = sharedFloat64(n * k);
+  for (let p = 0; p < n; p++) B[p * k + conductorOf[p]] = 1;
+
+  const info: SolveInfo = {
+    method: opts.method, solver, choice, panels: n, rightHandSides: k,
+    assemblySeconds: (t1 - t0) / 1e3, solveSeconds: 0, entriesPerSecond: entries / Math.max(1e-9, (t1 - t0) / 1e3),
+  };
+  progress("solve", 0);
+  const t2 = performance.now();
+  let x: Float64Array;
+  if (solver === "direct") {
+    if (opts.method === "galerkin") {
+      try {
+        await choleskyFactor(A, n, { pool: opts.pool });
+      } catch (err) {
+        if (err instanceof NotPositiveDefiniteError) {
+          throw new Error(`the Galerkin matrix is not positive definite (pivot ${err.pivot}): the mesh has overlapping or duplicated panels`);
+        }
+        throw err;
+      }
+      const t = performance.now();
+      info.factorGflops = (n * n * n) / 3 / ((t - t2) / 1e3) / 1e9;
+      choleskySolve(A, n, B, k);
+    } else {
+      const piv = await luFactor(A, n, { pool: opts.pool });
+      const t = performance.now();
+      info.factorGflops = (2 * n * n * n) / 3 / ((t - t2) / 1e3) / 1e9;
+      luSolve(A, piv, n, B, k);
+    }
+    x = B;
+  } else {
+    const tol = krylovTolerance(opts.tolerance);
+    const tree = clusterPoints(panels.centroids, 64);
+    const precondition = blockJacobi(A, n, leafIndexSets(tree), { lu: opts.method !== "galerkin" });
+    const apply = (X: Float64Array, Y: Float64Array, kk: number) => denseMultiply(A, n, X, kk, Y, opts.pool);
+    const maxIter = Math.max(200, Math.ceil(4 * Math.sqrt(n)));
+    const res = opts.method === "galerkin"
+      ? await pcg(apply, precondition, B, k, { tol, maxIter })
+      : await gmres(apply, precondition, B, k, { tol, maxIter });
+    if (!res.converged) {
+      throw new Error(`the iterative solver did not converge in ${res.iterations} iterations (residual ${Math.max(...res.residuals).toExponential(2)}); try --solver direct`);
+    }
+    info.iterations = res.iterations;
+    info.residual = Math.max(...res.residuals);
+    info.krylovTolerance = tol;
+    x = res.X;
+  }
+  info.solveSeconds = (performance.now() - t2) / 1e3;
+  progress("solve", 1);
+  return { x, panels, info };
+}

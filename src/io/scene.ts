@@ -1,0 +1,169 @@
+/**
+ * Scene files: JSON describing the conductors of a job, their meshes and potentials,
+ * the medium and the breakdown strength used by the field check.
+ *
+ *   { "unit": "mm", "permittivity": 1.0,
+ *     "conductors": [ { "name": "pad", "mesh": "pad.stl", "potential": 1.0 } ] }
+ *
+ * The schema is kept in `schema/scene.schema.json`; this module is its validator and
+ * names the key path of every fault (`conductors[1].potential: expected a number`).
+ * Mesh paths are relative to the scene file.
+ */
+import { readFileSync, statSync } from "node:fs";
+import { dirname, resolve, basename, extname } from "node:path";
+import { InputError } from "./errors.js";
+import { parseUnit, DEFAULT_UNIT, type LengthUnit } from "./units.js";
+import { loadMeshFile, type LoadedMesh } from "./load.js";
+import { concatMeshes } from "../mesh/model.js";
+
+export interface SceneConductor {
+  /** Conductor name as given, or the mesh file stem / group name. */
+  name: string;
+  /** Absolute path of the mesh file. */
+  mesh: string;
+  /** Groups (named solids, OBJ groups, physical surfaces) of the file that make this conductor; all when absent. */
+  groups?: string[];
+  /** Working potential; volts. Undefined when the scene does not set it. */
+  potential?: number;
+}
+
+export interface Scene {
+  file: string;
+  unit: LengthUnit;
+  /** Relative permittivity of the uniform background medium. */
+  permittivity: number;
+  /** Breakdown strength of the medium used by the field check; V/m. */
+  breakdownField?: number;
+  conductors: SceneConductor[];
+}
+
+const TOP_KEYS = new Set(["$schema", "unit", "permittivity", "breakdownField", "conductors", "title", "description"]);
+const CONDUCTOR_KEYS = new Set(["name", "mesh", "group", "groups", "potential", "description"]);
+
+/** Turn a JSON.parse failure into a line and column. */
+function jsonPlace(text: string, err: unknown): string | undefined {
+  const m = /position (\d+)/.exec(String((err as Error)?.message ?? ""));
+  if (!m) return undefined;
+  const pos = Number(m[1]);
+  let line = 1, col = 1;
+  for (let i = 0; i < pos && i < text.length; i++) {
+    if (text.charCodeAt(i) === 10) { line++; col = 1; } else col++;
+  }
+  return `line ${line}, column ${col}`;
+}
+
+function isObject(v: unknown): v is Record<string, unknown> {
+  return typeof v === "object" && v !== null && !Array.isArray(v);
+}
+
+/** Parse and validate scene text; `file` names the scene in errors and anchors relative mesh paths. */
+export function parseScene(text: string, file: string): Scene {
+  let raw: unknown;
+  try {
+    raw = JSON.parse(text);
+  } catch (err) {
+    const detail = String((err as Error).message).replace(/ in JSON at position \d+.*$/, "").replace(/^Unexpected/, "unexpected");
+    throw new InputError(`not valid JSON (${detail})`, file, jsonPlace(text, err));
+  }
+  const fail = (path: string, fault: string): never => { throw new InputError(`${path}: ${fault}`, file); };
+  if (!isObject(raw)) fail("(top level)", "expected a JSON object");
+  const top = raw as Record<string, unknown>;
+  for (const k of Object.keys(top)) if (!TOP_KEYS.has(k)) fail(k, `unknown key (expected one of ${[...TOP_KEYS].filter((x) => x !== "$schema").join(", ")})`);
+
+  let unit: LengthUnit = DEFAULT_UNIT;
+  if (top.unit !== undefined) {
+    if (typeof top.unit !== "string") fail("unit", "expected a string such as \"mm\"");
+    try { unit = parseUnit(top.unit as string); } catch (e) { fail("unit", (e as InputError).fault); }
+  }
+  let permittivity = 1;
+  if (top.permittivity !== undefined) {
+    if (typeof top.permittivity !== "number" || !Number.isFinite(top.permittivity)) fail("permittivity", "expected a number");
+    if ((top.permittivity as number) < 1) fail("permittivity", `relative permittivity must be at least 1, got ${top.permittivity}`);
+    permittivity = top.permittivity as number;
+  }
+  let breakdownField: number | undefined;
+  if (top.breakdownField !== undefined) {
+    if (typeof top.breakdownField !== "number" || !Number.isFinite(top.breakdownField) || top.breakdownField <= 0) fail("breakdownField", "expected a positive number in V/m");
+    breakdownField = top.breakdownField as number;
+  }
+  if (!Array.isArray(top.conductors)) fail("conductors", top.conductors === undefined ? "missing (a list of conductors is required)" : "expected a list");
+  const list = top.conductors as unknown[];
+  if (list.length === 0) fail("conductors", "the list is empty");
+
+  const base = dirname(resolve(file));
+  const conductors: SceneConductor[] = list.map((entry, i) => {
+    const at = `conductors[${i}]`;
+    if (!isObject(entry)) fail(at, "expected an object");
+    const e = entry as Record<string, unknown>;
+    for (const k of Object.keys(e)) if (!CONDUCTOR_KEYS.has(k)) fail(`${at}.${k}`, `unknown key (expected one of ${[...CONDUCTOR_KEYS].join(", ")})`);
+    if (typeof e.mesh !== "string" || e.mesh.length === 0) fail(`${at}.mesh`, e.mesh === undefined ? "missing (path of the conductor's mesh file)" : "expected a file path");
+    const mesh = resolve(base, e.mesh as string);
+    let groups: string[] | undefined;
+    if (e.group !== undefined && e.groups !== undefined) fail(at, "give either group or groups, not both");
+    if (e.group !== undefined) {
+      if (typeof e.group !== "string") fail(`${at}.group`, "expected a string");
+      groups = [e.group as string];
+    }
+    if (e.groups !== undefined) {
+      if (!Array.isArray(e.groups) || e.groups.length === 0 || !e.groups.every((g) => typeof g === "string")) fail(`${at}.groups`, "expected a non-empty list of strings");
+      groups = e.groups as string[];
+    }
+    let name: string;
+    if (e.name !== undefined) {
+      if (typeof e.name !== "string" || e.name.trim().length === 0) fail(`${at}.name`, "expected a non-empty string");
+      name = (e.name as string).trim();
+    } else {
+      name = groups && groups.length === 1 ? groups[0] : basename(mesh, extname(mesh));
+    }
+    let potential: number | undefined;
+    if (e.potential !== undefined) {
+      if (typeof e.potential !== "number" || !Number.isFinite(e.potential)) fail(`${at}.potential`, "expected a number (volts)");
+      potential = e.potential as number;
+    }
+    return { name, mesh, groups, potential };
+  });
+  const seen = new Map<string, number>();
+  conductors.forEach((c, i) => {
+    const j = seen.get(c.name);
+    if (j !== undefined) fail(`conductors[${i}].name`, `"${c.name}" is already the name of conductors[${j}]`);
+    seen.set(c.name, i);
+  });
+  return { file, unit, permittivity, breakdownField, conductors };
+}
+
+/** Read and validate a scene file. */
+export function loadSceneFile(path: string): Scene {
+  let text: string;
+  try {
+    if (statSync(path).isDirectory()) throw new InputError("is a directory, not a scene file", path);
+    text = readFileSync(path, "utf8");
+  } catch (err) {
+    if (err instanceof InputError) throw err;
+    const code = (err as NodeJS.ErrnoException).code;
+    throw new InputError(code === "ENOENT" ? "no such file" : `cannot read (${code ?? String(err)})`, path);
+  }
+  if (text.trim().length === 0) throw new InputError("empty file", path);
+  return parseScene(text, path);
+}
+
+
+export interface SceneMesh extends LoadedMesh {
+  /** Potential of each conductor as the scene gives it; volts (undefined where it is silent). */
+  potentials: Array<number | undefined>;
+}
+
+/** Load every conductor of a scene: one conductor per entry, its file's groups joined. */
+export function loadSceneMesh(scene: Scene, opts: { weldTolerance?: number } = {}): SceneMesh {
+  const parts = scene.conductors.map((c) =>
+    loadMeshFile(c.mesh, { unit: scene.unit, groups: c.groups, merge: true, name: c.name, weldTolerance: opts.weldTolerance }));
+  const meshes = parts.map((p, i) => ({ ...p.mesh, names: [scene.conductors[i].name] }));
+  return {
+    mesh: concatMeshes(meshes),
+    warnings: parts.flatMap((p) => p.warnings),
+    files: parts.flatMap((p) => p.files),
+    unit: scene.unit,
+    dropped: parts.reduce((s, p) => s + p.dropped, 0),
+    welded: parts.reduce((s, p) => s + p.welded, 0),
+    potentials: scene.conductors.map((c) => c.potential),
+  };
+}

@@ -1,0 +1,94 @@
+/**
+ * The terminal summary of an extraction: aligned tables with engineering prefixes,
+ * the field check with margins, the accuracy estimate and the cautions.
+ */
+import type { ExtractionResult } from "../extract/extract.js";
+import type { LengthUnit } from "../io/units.js";
+import { formatSI, formatNumber, formatArea, formatPoint, formatFieldStrength, unitLabel } from "./si.js";
+import { cautionsFor } from "./cautions.js";
+
+/** Lay out rows as columns; `right` marks right-aligned columns. */
+export function table(rows: string[][], right: boolean[] = []): string[] {
+  const widths: number[] = [];
+  for (const r of rows) r.forEach((cell, i) => { widths[i] = Math.max(widths[i] ?? 0, [...cell].length); });
+  return rows.map((r) => r.map((cell, i) => {
+    const pad = " ".repeat(widths[i] - [...cell].length);
+    return right[i] ? pad + cell : cell + pad;
+  }).join("  ").trimEnd());
+}
+
+export interface SummaryContext {
+  unit: LengthUnit;
+  unitAssumed: boolean;
+  source: string;
+}
+
+export function extractionSummary(r: ExtractionResult, ctx: SummaryContext): string {
+  const k = r.k;
+  const out: string[] = [];
+  const unitNote = ctx.unitAssumed ? `${unitLabel(ctx.unit)} (assumed; set with --unit)` : unitLabel(ctx.unit);
+  out.push(`sigmesh extract: ${ctx.source}`);
+  out.push(`  ${k} conductor${k === 1 ? "" : "s"}, ${r.solver.panels} panels, length unit ${unitNote}, εr = ${formatNumber(r.relativePermittivity)}`);
+  out.push("");
+
+  out.push("Conductors");
+  const rows = [["name", "triangles", "area", "closed", "potential", "charge", "peak |E|", "at", "E/Eb"]];
+  for (const c of r.conductors) {
+    rows.push([c.name, String(c.triangles), formatArea(c.area, ctx.unit), c.closed ? "yes" : "sheet", formatSI(c.potential, "V"),
+      formatSI(c.charge, "C"), formatFieldStrength(c.peakField), formatPoint(c.peakFieldAt, ctx.unit, 3), formatNumber(c.fieldRatio, 3)]);
+  }
+  out.push(...table(rows, [false, true, true, false, true, true, true, false, true]).map((l) => "  " + l));
+  out.push("");
+
+  out.push(`Maxwell capacitance matrix${r.accuracy ? " (extrapolated)" : ""}`);
+  const mrows = [["", ...r.names]];
+  for (let i = 0; i < k; i++) mrows.push([r.names[i], ...Array.from({ length: k }, (_, j) => formatSI(r.maxwell[i * k + j], "F"))]);
+  out.push(...table(mrows, [false, ...r.names.map(() => true)]).map((l) => "  " + l));
+  out.push("");
+  out.push("Two-terminal capacitances (circuit values)");
+  const crows: string[][] = [];
+  for (let i = 0; i < k; i++) crows.push([`${r.names[i]} – reference (infinity)`, formatSI(r.mutual[i * k + i], "F")]);
+  for (let i = 0; i < k; i++) for (let j = i + 1; j < k; j++) crows.push([`${r.names[i]} – ${r.names[j]}`, formatSI(r.mutual[i * k + j], "F")]);
+  out.push(...table(crows, [false, true]).map((l) => "  " + l));
+  out.push("");
+  out.push(`Stored energy at the working potentials: ${formatSI(r.energy, "J")}`);
+  for (const c of r.conductors) {
+    const f = Math.hypot(...c.force);
+    if (f > 0) out.push(`  force on ${c.name}: ${formatSI(f, "N")} along (${c.force.map((x) => formatNumber(x / f, 3)).join(", ")})`);
+  }
+  if (!r.forcesComplete) out.push("  (forces on open sheets are not included)");
+  out.push("");
+
+  if (r.accuracy) {
+    const a = r.accuracy;
+    out.push(`Accuracy: estimated error ±${formatNumber(100 * a.richardson.relativeError, 2)} % of the largest entry in each row`);
+    out.push(`  Richardson extrapolation over ${a.levels.map((l) => l.panels).join(" → ")} panels, order ${formatNumber(a.richardson.order, 3)} ${a.richardson.orderObserved ? "(observed)" : "(assumed; use --refine 2 to observe it)"}`);
+    if (r.solver.method === "galerkin") out.push(`  Galerkin values converge from below: the finest-mesh diagonal ${formatSI(a.levels[a.levels.length - 1].maxwell[0], "F")} is a lower bound for ${r.names[0]}`);
+  } else {
+    out.push("Accuracy: not estimated (run with --refine 1 or more for a Richardson error estimate)");
+  }
+  out.push("");
+
+  const s = r.solver;
+  const solverLine = s.solver === "iterative"
+    ? `iterative (${s.iterations} iterations, residual ${s.residual?.toExponential(1)})`
+    : `direct (factorisation ${formatNumber(s.factorGflops ?? NaN, 3)} GFLOP/s)`;
+  out.push(`Solver: ${s.method}, ${solverLine}; ${s.panels} panels, ${formatNumber(s.seconds, 3)} s total, peak memory ${formatSI(s.peakMemory, "B", 3)}`);
+  out.push("");
+
+  out.push(`Field check (breakdown field ${formatFieldStrength(r.breakdownField)})`);
+  for (const c of r.conductors) {
+    const margin = c.fieldRatio > 0 ? 1 / c.fieldRatio : Infinity;
+    const verdict = c.fieldRatio >= 1 ? "EXCEEDS the breakdown field" : `${formatNumber(margin, 3)}× below breakdown`;
+    out.push(`  ${c.name}: peak ${formatFieldStrength(c.peakField)} — ${verdict}`);
+  }
+  out.push("");
+  out.push("Cautions");
+  for (const line of cautionsFor(r.potentials)) out.push(`  - ${line}`);
+  if (r.warnings.length) {
+    out.push("");
+    out.push("Warnings");
+    for (const w of r.warnings) out.push(`  - ${w}`);
+  }
+  return out.join("\n") + "\n";
+}

@@ -1,0 +1,91 @@
+/**
+ * The JSON report of an extraction. SI units throughout (m, m², V, C, F, V/m, J, N, s, bytes).
+ * Field names are documented in README.md ("JSON report"); keep the two in step.
+ */
+import type { ExtractionResult } from "../extract/extract.js";
+import { toRows } from "../extract/capacitance.js";
+import type { LengthUnit } from "../io/units.js";
+import { cautionsFor } from "./cautions.js";
+
+export interface ReportContext {
+  version: string;
+  files: string[];
+  scene?: string;
+  unit: LengthUnit;
+  /** Warnings from loading and checking, before extraction. */
+  inputWarnings: string[];
+}
+
+export const REPORT_FORMAT = "sigmesh-extraction/1";
+
+function finiteOrNull(x: number): number | null {
+  return Number.isFinite(x) ? x : null;
+}
+
+export function extractionReport(r: ExtractionResult, ctx: ReportContext): Record<string, unknown> {
+  const k = r.k;
+  const worst = r.conductors.reduce((a, c) => (c.fieldRatio > a.fieldRatio ? c : a), r.conductors[0]);
+  return {
+    format: REPORT_FORMAT,
+    sigmesh: ctx.version,
+    created: new Date().toISOString(),
+    input: { files: ctx.files, scene: ctx.scene ?? null, unit: ctx.unit },
+    medium: { relativePermittivity: r.relativePermittivity, permittivity: r.permittivity, breakdownField: r.breakdownField },
+    conductors: r.conductors.map((c) => ({
+      name: c.name,
+      triangles: c.triangles,
+      area: c.area,
+      closed: c.closed,
+      potential: c.potential,
+      charge: c.charge,
+      peakField: finiteOrNull(c.peakField),
+      peakFieldAt: c.peakFieldAt.map(finiteOrNull),
+      fieldRatio: finiteOrNull(c.fieldRatio),
+      force: c.force,
+    })),
+    capacitance: {
+      maxwell: toRows(r.maxwell, k),
+      mutual: toRows(r.mutual, k),
+      reference: "infinity",
+      asymmetry: r.asymmetry,
+      extrapolated: r.accuracy !== undefined,
+    },
+    energy: r.energy,
+    accuracy: r.accuracy
+      ? {
+          method: "richardson",
+          levels: r.accuracy.levels.map((l) => ({ panels: l.panels, maxwell: toRows(l.maxwell, k) })),
+          order: r.accuracy.richardson.order,
+          orderObserved: r.accuracy.richardson.orderObserved,
+          errorEstimate: toRows(r.accuracy.richardson.errorEstimate, k),
+          relativeError: r.accuracy.richardson.relativeError,
+        }
+      : null,
+    fieldCheck: {
+      breakdownField: r.breakdownField,
+      worstConductor: worst.name,
+      peakField: finiteOrNull(worst.peakField),
+      fieldRatio: finiteOrNull(worst.fieldRatio),
+      exceeded: r.conductors.filter((c) => c.fieldRatio >= 1).map((c) => c.name),
+      cautions: cautionsFor(r.potentials),
+    },
+    forcesComplete: r.forcesComplete,
+    solver: {
+      method: r.solver.method,
+      solver: r.solver.solver,
+      choice: r.solver.choice,
+      panels: r.solver.panels,
+      rightHandSides: r.solver.rightHandSides,
+      seconds: r.solver.seconds,
+      assemblySeconds: r.solver.assemblySeconds,
+      solveSeconds: r.solver.solveSeconds,
+      entriesPerSecond: r.solver.entriesPerSecond,
+      factorGflops: r.solver.factorGflops ?? null,
+      iterations: r.solver.iterations ?? null,
+      residual: r.solver.residual ?? null,
+      peakMemory: r.solver.peakMemory,
+    },
+    orientation: r.orientation,
+    warnings: [...ctx.inputWarnings, ...r.warnings],
+  };
+}
