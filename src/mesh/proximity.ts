@@ -10,7 +10,7 @@
  *
  * Kernels work on scalars and module-level scratch: no allocation per triangle pair.
  */
-import { type SurfaceMesh, triangleCount } from "./model.js";
+import { type SurfaceMesh, triangleCount, boundingDiagonal } from "./model.js";
 import { buildBoxTree, triangleBoxes, forEachOverlappingPair, nodeLabels, nearestItem, type BoxTree } from "./bvh.js";
 import { panelSizes } from "./quality.js";
 
@@ -410,7 +410,11 @@ export interface ProximityFinding {
 const CONTACT_SAMPLES = 16;
 
 export interface ProximityOptions {
-  /** Conductors closer than this fraction of the local panel size are touching (default 1e-6). */
+  /**
+   * Conductors closer than this fraction of the local panel size are touching (default 1e-6);
+   * never less than the same fraction of the mesh's bounding-box diagonal, the scale at
+   * which loading welds vertices (coordinates rounded by a CAD export differ by about that).
+   */
   touchTolerance?: number;
   /** Gaps narrower than this multiple of the local panel size are reported (default 1). */
   gapFactor?: number;
@@ -436,6 +440,7 @@ export function conductorProximity(mesh: SurfaceMesh, opts: ProximityOptions = {
   const nt = triangleCount(mesh);
   if (nt === 0 || mesh.names.length < 2) return [];
   const h = panelSizes(p, tr);
+  const floor = touchRel * boundingDiagonal(p);
   const pad = new Float64Array(nt);
   for (let t = 0; t < nt; t++) pad[t] = gapFactor * h[t];
   const tree = buildBoxTree(triangleBoxes(p, tr, pad));
@@ -447,7 +452,7 @@ export function conductorProximity(mesh: SurfaceMesh, opts: ProximityOptions = {
     const local = Math.max(h[i], h[j]);
     const d = triangleTriangleDistance(p, tr, i, j, closest);
     if (!(d < gapFactor * local)) return;
-    const tol = touchRel * local;
+    const tol = Math.max(touchRel * local, floor);
     let kind: ProximityKind = "gap";
     if (d <= tol) {
       loadPair(p, tr, i, j);

@@ -169,6 +169,14 @@ describe("conductorProximity", () => {
     expect(f[0].position[0]).toBeCloseTo(1, 12);
   });
 
+  it("treats gaps below the weld scale (1e-6 of the mesh diagonal) as touching", () => {
+    // Diagonal of the two-cube mesh is about 2.45, so 1e-6 of it is 2.4e-6; the panel-based tolerance would be 7e-7.
+    const f = conductorProximity(two([1 + 1.5e-6, 0, 0]));
+    expect(f.map((x) => x.kind)).toEqual(["touch"]);
+    expect(f[0].distance).toBeCloseTo(1.5e-6, 12);
+    expect(conductorProximity(two([1 + 5e-6, 0, 0])).map((x) => x.kind)).toEqual(["gap"]);
+  });
+
   it("warns on a gap below the panel size with the exact gap and place", () => {
     const f = conductorProximity(two([1.05, 0, 0]));
     expect(f).toHaveLength(1);
