@@ -177,6 +177,7 @@ const tasksUrl = new URL(import.meta.url.endsWith(".ts") ? "./tasks.ts" : "./tas
 // Xᵀ scratch for the products, grown on demand so repeated products do not allocate.
 let xtLocal = new Float64Array(0);
 let xtShared = new Float64Array(new SharedArrayBuffer(8));
+let xtBusy = false;
 
 /** Y = A·X for row-major n×n A and n×k X, Y, on the calling thread. */
 export function denseMultiplySerial(A: Float64Array, n: number, X: Float64Array, k: number, Y: Float64Array): void {
@@ -201,12 +202,21 @@ export async function denseMultiply(
   if (!pool || pool.size < 2 || !isShared(A) || n < 64) { denseMultiplySerial(A, n, X, k, Y); return; }
   const Xs = isShared(X) ? X : new Float64Array(new SharedArrayBuffer(8 * n * k));
   if (Xs !== X) Xs.set(X.subarray(0, n * k));
+  // The module scratch serves one product at a time; overlapping products get their own.
+  let Xt = xtShared;
+  const own = xtBusy;
   if (k !== 1) {
-    if (xtShared.length < n * k) xtShared = new Float64Array(new SharedArrayBuffer(8 * n * k));
-    packTransposed(xtShared, 0, X, 0, k, n, k);
+    if (own) Xt = new Float64Array(new SharedArrayBuffer(8 * n * k));
+    else if (xtShared.length < n * k) Xt = xtShared = new Float64Array(new SharedArrayBuffer(8 * n * k));
+    packTransposed(Xt, 0, X, 0, k, n, k);
   }
   const Ys = isShared(Y) ? Y : new Float64Array(new SharedArrayBuffer(8 * n * k));
   const s = rowSplits(0, n, pool.size, false);
-  await pool.map(tasksUrl, "multiplyRowRange", s.slice(0, -1).map((r, t) => [A, n, Xs, xtShared, k, Ys, r, s[t + 1]]));
+  if (!own) xtBusy = true;
+  try {
+    await pool.map(tasksUrl, "multiplyRowRange", s.slice(0, -1).map((r, t) => [A, n, Xs, Xt, k, Ys, r, s[t + 1]]));
+  } finally {
+    if (!own) xtBusy = false;
+  }
   if (Ys !== Y) Y.set(Ys.subarray(0, n * k));
 }

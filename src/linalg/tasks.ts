@@ -7,13 +7,19 @@
 import { gemmNT, multiplyRows, packRows, packTransposed } from "./dense.js";
 import { solveRowsLowerTransposedRight, solveUnitLowerLeft } from "./triangular.js";
 
+// Per-thread scratch (each worker is its own isolate), grown on demand.
+let l11 = new Float64Array(0);
+
 /**
  * Cholesky panel: rows r0..r1 of column block j0..j0+nb become L21 = A21·L11⁻ᵀ (L11 already
  * factored in place), and are copied into the packed panel P (row r at (r − j0 − nb)·nb).
  */
 export function choleskyPanel(A: Float64Array, n: number, j0: number, nb: number, P: Float64Array, r0: number, r1: number): void {
   if (r1 <= r0) return;
-  solveRowsLowerTransposedRight(A, j0 * n + j0, n, nb, A, r0 * n + j0, n, r1 - r0);
+  // L11 packed: in place its rows sit a page or more apart, and every panel row reads all of them.
+  if (l11.length < nb * nb) l11 = new Float64Array(nb * nb);
+  packRows(l11, 0, A, j0 * n + j0, n, nb, nb);
+  solveRowsLowerTransposedRight(l11, 0, nb, nb, A, r0 * n + j0, n, r1 - r0);
   packRows(P, (r0 - j0 - nb) * nb, A, r0 * n + j0, n, r1 - r0, nb);
 }
 

@@ -65,7 +65,22 @@ export function solveRowsLowerTransposedRight(
   L: Float64Array, lOff: number, ld: number, nb: number,
   A: Float64Array, aOff: number, lda: number, rows: number,
 ): void {
-  for (let r = 0; r < rows; r++) {
+  // Four panel rows at a time share every load of L.
+  let r = 0;
+  for (; r + 3 < rows; r += 4) {
+    const a0 = aOff + r * lda, a1 = a0 + lda, a2 = a1 + lda, a3 = a2 + lda;
+    for (let c = 0; c < nb; c++) {
+      const l = lOff + c * ld;
+      let s0 = A[a0 + c], s1 = A[a1 + c], s2 = A[a2 + c], s3 = A[a3 + c];
+      for (let q = 0; q < c; q++) {
+        const f = L[l + q];
+        s0 -= f * A[a0 + q]; s1 -= f * A[a1 + q]; s2 -= f * A[a2 + q]; s3 -= f * A[a3 + q];
+      }
+      const d = 1 / L[l + c];
+      A[a0 + c] = s0 * d; A[a1 + c] = s1 * d; A[a2 + c] = s2 * d; A[a3 + c] = s3 * d;
+    }
+  }
+  for (; r < rows; r++) {
     const a = aOff + r * lda;
     for (let c = 0; c < nb; c++) {
       const l = lOff + c * ld;

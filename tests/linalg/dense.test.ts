@@ -53,6 +53,16 @@ describe("dense kernels", () => {
     expect(Math.abs(work(100, s[1]) - work(s[1], 1100)) / work(100, 1100)).toBeLessThan(0.01);
   });
 
+  it("overlapping parallel products do not share scratch", async () => {
+    const n = 150, k = 5, A = sharedFloat64(n * n);
+    A.set(randomBlock(n, n, 1));
+    const Xs = [0, 1, 2].map((s) => randomBlock(n, k, 10 + s));
+    const want = Xs.map((X) => { const Y = new Float64Array(n * k); denseMultiplySerial(A, n, X, k, Y); return Y; });
+    const got = Xs.map(() => sharedFloat64(n * k));
+    await Promise.all(Xs.map((X, i) => denseMultiply(A, n, X, k, got[i], pool)));
+    for (let i = 0; i < 3; i++) expect(relDiff(got[i], want[i])).toBe(0);
+  });
+
   for (const k of [1, 3, 8]) {
     it(`denseMultiply equals ml-matrix mmul, k=${k}, serial and on two workers`, async () => {
       const n = 203, A = sharedFloat64(n * n);
