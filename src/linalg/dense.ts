@@ -172,6 +172,8 @@ export function isShared(a: Float64Array): boolean {
   return a.buffer instanceof SharedArrayBuffer;
 }
 
+import type { WorkerPool } from "./pool.js";
+
 const tasksUrl = new URL(import.meta.url.endsWith(".ts") ? "./tasks.ts" : "./tasks.js", import.meta.url).href;
 
 // Xᵀ scratch for the products, grown on demand so repeated products do not allocate.
@@ -196,7 +198,7 @@ export function denseMultiplySerial(A: Float64Array, n: number, X: Float64Array,
  */
 export async function denseMultiply(
   A: Float64Array, n: number, X: Float64Array, k: number, Y: Float64Array,
-  pool?: { size: number; map<T>(module: string, fn: string, argLists: unknown[][]): Promise<T[]> },
+  pool?: WorkerPool,
 ): Promise<void> {
   if (A.length < n * n || X.length < n * k || Y.length < n * k) throw new RangeError(`denseMultiply: arrays too short for n=${n}, k=${k}`);
   if (!pool || pool.size < 2 || !isShared(A) || n < 64) { denseMultiplySerial(A, n, X, k, Y); return; }
