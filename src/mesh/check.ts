@@ -129,7 +129,7 @@ export function checkMeshOriented(mesh: SurfaceMesh, opts: CheckOptions = {}): {
   const solid = conductors.map((c) => c.closed && (c.orientation === "outward" || c.orientation === "inward-flipped" || c.orientation === "repaired"));
   const groups = conductorTriangles(oriented.mesh);
   // Oriented copy: coincident faces facing the same way then mean overlapping solids.
-  const findings = conductorProximity(oriented.mesh, opts);
+  const findings = conductorProximity(oriented.mesh, { ...opts, solid });
   resolveOverlaps(oriented.mesh, findings, solid, groups);
   for (const f of findings) {
     pairs.push({
@@ -137,12 +137,15 @@ export function checkMeshOriented(mesh: SurfaceMesh, opts: CheckOptions = {}): {
       a: mesh.names[f.a], b: mesh.names[f.b], distance: f.distance, position: f.position, panelSize: f.panelSize,
     });
   }
-  // A conductor inside another's material meets no surface of it; only an enclosure test sees it.
-  const touching = new Set(pairs.filter((x) => x.severity === "error").map((x) => `${x.a}\u0000${x.b}`));
+  // A conductor inside another's material may meet no surface of it (or only touch it at its
+  // rim, like a plate across a box); only an enclosure test sees it. It replaces a touch or gap
+  // finding for the same pair, not an intersection.
   for (const e of enclosedConductors(oriented.mesh, solid, boxes, groups)) {
-    const a = Math.min(e.inner, e.outer), b = Math.max(e.inner, e.outer);
-    if (touching.has(`${mesh.names[a]}\u0000${mesh.names[b]}`)) continue;
-    pairs.push({ kind: "inside", severity: "error", a: mesh.names[e.inner], b: mesh.names[e.outer], distance: 0, position: e.position, panelSize: null });
+    const a = mesh.names[Math.min(e.inner, e.outer)], b = mesh.names[Math.max(e.inner, e.outer)];
+    const k = pairs.findIndex((x) => x.a === a && x.b === b);
+    if (k >= 0 && pairs[k].kind === "intersect") continue;
+    const entry: PairCheck = { kind: "inside", severity: "error", a: mesh.names[e.inner], b: mesh.names[e.outer], distance: 0, position: e.position, panelSize: null };
+    if (k >= 0) pairs[k] = entry; else pairs.push(entry);
   }
   const rank: Record<PairKind, number> = { intersect: 3, inside: 2, touch: 1, gap: 0 };
   pairs.sort((x, y) => rank[y.kind] - rank[x.kind]);

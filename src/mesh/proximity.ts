@@ -418,6 +418,12 @@ export interface ProximityOptions {
   touchTolerance?: number;
   /** Gaps narrower than this multiple of the local panel size are reported (default 1). */
   gapFactor?: number;
+  /**
+   * Per conductor: a closed surface oriented outward. Coincident faces of two such
+   * conductors facing the same way mean their solids overlap (an intersection); without
+   * it, or for open sheets, whose facing means nothing, coincident faces are a touch.
+   */
+  solid?: boolean[];
 }
 
 const KIND_RANK: Record<ProximityKind, number> = { gap: 0, touch: 1, intersect: 2 };
@@ -430,12 +436,13 @@ const KIND_RANK: Record<ProximityKind, number> = { gap: 0, touch: 1, intersect: 
  * O(N log N) plus the triangle pairs that are actually close.
  *
  * Surfaces that cross are an intersection; surfaces that meet are touching, unless
- * they share a face with the same facing, which on outward-oriented meshes (see
- * `orientSurfaces`) means the solids overlap, reported as an intersection too.
+ * two closed conductors (`opts.solid`, oriented outward by `orientSurfaces`) share a
+ * face with the same facing, which means their solids overlap: an intersection too.
  */
 export function conductorProximity(mesh: SurfaceMesh, opts: ProximityOptions = {}): ProximityFinding[] {
   const touchRel = opts.touchTolerance ?? 1e-6;
   const gapFactor = opts.gapFactor ?? 1;
+  const solid = opts.solid;
   const p = mesh.positions, tr = mesh.triangles, cond = mesh.conductor;
   const nt = triangleCount(mesh);
   if (nt === 0 || mesh.names.length < 2) return [];
@@ -456,7 +463,8 @@ export function conductorProximity(mesh: SurfaceMesh, opts: ProximityOptions = {
     let kind: ProximityKind = "gap";
     if (d <= tol) {
       loadPair(p, tr, i, j);
-      kind = (crossesProperly(tol) && trianglesIntersect(p, tr, i, j)) || coincidentSameFacing(tol) ? "intersect" : "touch";
+      const bothSolid = solid !== undefined && solid[cond[i]] === true && solid[cond[j]] === true;
+      kind = (crossesProperly(tol) && trianglesIntersect(p, tr, i, j)) || (bothSolid && coincidentSameFacing(tol)) ? "intersect" : "touch";
     }
     const a = cond[i] < cond[j] ? cond[i] : cond[j], b = cond[i] < cond[j] ? cond[j] : cond[i];
     const key = a * nc + b;
@@ -483,6 +491,12 @@ export function nearestTriangle(tree: BoxTree, positions: Float64Array, triangle
   }, maxDistance);
   return { triangle: r.item, distance: r.distance };
 }
+
+/**
+ * Winding numbers are whole off the surface (1 inside, 0 outside) and fractional on it
+ * (1/2 on a face, up to about 3/4 in a concave edge), so a point counts as inside above 3/4.
+ */
+export const INSIDE_WINDING = 0.75;
 
 /** Triangles grouped by conductor: conductor c owns list[offset[c] .. offset[c+1]). */
 export interface ConductorTriangles { offset: Uint32Array; list: Uint32Array }
@@ -515,6 +529,9 @@ export function windingNumber(mesh: SurfaceMesh, groups: ConductorTriangles, c: 
     const la = Math.sqrt(ax * ax + ay * ay + az * az), lb = Math.sqrt(bx * bx + by * by + bz * bz), lc = Math.sqrt(cx * cx + cy * cy + cz * cz);
     const num = ax * (by * cz - bz * cy) + ay * (bz * cx - bx * cz) + az * (bx * cy - by * cx);
     const den = la * lb * lc + (ax * bx + ay * by + az * bz) * lc + (ax * cx + ay * cy + az * cz) * lb + (bx * cx + by * cy + bz * cz) * la;
+    // A point in the plane of a triangle sees it under ±2π or 0 by the sign of a zero: take 0, so
+    // that a point on the surface gets a fractional winding number rather than a whole one.
+    if (Math.abs(num) <= 1e-12 * la * lb * lc) continue;
     w += 2 * Math.atan2(num, den);
   }
   return w / (4 * Math.PI);
@@ -543,7 +560,7 @@ export function resolveOverlaps(mesh: SurfaceMesh, findings: ProximityFinding[],
         const h = Math.sqrt(Math.max(ux * ux + uy * uy + uz * uz, vx * vx + vy * vy + vz * vz));
         const step = (1e-4 * h) / nl;
         const x = (p[i] + p[j] + p[k]) / 3 - step * nx, y = (p[i + 1] + p[j + 1] + p[k + 1]) / 3 - step * ny, z = (p[i + 2] + p[j + 2] + p[k + 2]) / 3 - step * nz;
-        if (windingNumber(mesh, groups, other, x, y, z) > 0.5) {
+        if (windingNumber(mesh, groups, other, x, y, z) > INSIDE_WINDING) {
           f.kind = "intersect";
           f.distance = 0;
           f.position = [x, y, z];
@@ -568,7 +585,7 @@ export interface EnclosedConductor {
  * (`orientSurfaces`), so that a cavity wall cancels its enclosing surface: a wire in
  * the bore of a tube is outside the tube's material. The test point is the centroid of
  * the inner conductor's first triangle, inside when the winding number of the outer
- * surface there exceeds one half. Only pairs whose boxes nest are tested.
+ * surface there exceeds INSIDE_WINDING. Only pairs whose boxes nest are tested.
  */
 export function enclosedConductors(mesh: SurfaceMesh, closed: boolean[], boxes: Float64Array[], groups: ConductorTriangles = conductorTriangles(mesh)): EnclosedConductor[] {
   const nc = mesh.names.length;
@@ -584,7 +601,7 @@ export function enclosedConductors(mesh: SurfaceMesh, closed: boolean[], boxes: 
       const t0 = groups.list[groups.offset[inner]];
       const a = 3 * tr[3 * t0], b = 3 * tr[3 * t0 + 1], c = 3 * tr[3 * t0 + 2];
       const x = (p[a] + p[b] + p[c]) / 3, y = (p[a + 1] + p[b + 1] + p[c + 1]) / 3, z = (p[a + 2] + p[b + 2] + p[c + 2]) / 3;
-      if (windingNumber(mesh, groups, o, x, y, z) > 0.5) out.push({ inner, outer: o, position: [x, y, z] });
+      if (windingNumber(mesh, groups, o, x, y, z) > INSIDE_WINDING) out.push({ inner, outer: o, position: [x, y, z] });
     }
   }
   return out;

@@ -191,6 +191,8 @@ function windingNumber(p: Float64Array, tr: Uint32Array, list: Uint32Array, from
     const la = Math.sqrt(ax * ax + ay * ay + az * az), lb = Math.sqrt(bx * bx + by * by + bz * bz), lc = Math.sqrt(cx * cx + cy * cy + cz * cz);
     const num = ax * (by * cz - bz * cy) + ay * (bz * cx - bx * cz) + az * (bx * cy - by * cx);
     const den = la * lb * lc + (ax * bx + ay * by + az * bz) * lc + (ax * cx + ay * cy + az * cz) * lb + (bx * cx + by * cy + bz * cz) * la;
+    // In the triangle's plane the angle is ±2π or 0 by the sign of a zero: take 0 (on-surface points stay fractional).
+    if (Math.abs(num) <= 1e-12 * la * lb * lc) continue;
     const omega = 2 * Math.atan2(num, den);
     w += flip[t] ? -omega : omega;
   }
@@ -296,7 +298,8 @@ export function orientSurfaces(mesh: SurfaceMesh, table: EdgeTable = buildEdgeTa
       if (ai === bi || components[ai].conductor !== inner.conductor) continue;
       const ab = compBox[ai];
       if (!(ab[0] <= bb[0] && ab[1] <= bb[1] && ab[2] <= bb[2] && ab[3] >= bb[3] && ab[4] >= bb[4] && ab[5] >= bb[5])) continue;
-      if (Math.abs(windingNumber(p, tr, queue, compStart[ai], compStart[ai + 1], flip, x, y, z)) > 0.5) inner.enclosedBy++;
+      // Whole off the surface, fractional only on it: 3/4 separates inside from a touching point.
+      if (Math.abs(windingNumber(p, tr, queue, compStart[ai], compStart[ai + 1], flip, x, y, z)) > 0.75) inner.enclosedBy++;
     }
   }
   for (const ci of closedIdx) {

@@ -91,6 +91,14 @@ describe("checkMesh", () => {
     expect(checkMesh(concatMeshes([a, gridCube(2, [1, 0, 0], [1, 1, 1], "b")])).failed).toBe(true);
   });
 
+  it("calls a plate spanning a box inside it, though it only touches the walls", () => {
+    const r = checkMesh(concatMeshes([plate(4, 0.3, "plate"), gridCube(2, [0, 0, 0], [1, 1, 1], "box")]));
+    expect(r.pairs.map((p) => `${p.a}/${p.b}:${p.kind}`)).toEqual(["plate/box:inside"]);
+    // Resting on the box's top face it only touches.
+    const s = checkMesh(concatMeshes([plate(4, 1, "plate"), gridCube(2, [0, 0, 0], [1, 1, 1], "box")]));
+    expect(s.pairs.map((p) => `${p.a}/${p.b}:${p.kind}`)).toEqual(["plate/box:touch"]);
+  });
+
   it("does not call a wire in the bore of a hollow conductor inside it", () => {
     const outer = gridCube(8, [0, 0, 0], [6, 6, 6], "tube");
     const bore = gridCube(8, [1, 1, 1], [4, 4, 4], "tube");

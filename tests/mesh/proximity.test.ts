@@ -2,7 +2,7 @@ import { describe, it, expect } from "vitest";
 import fc from "fast-check";
 import type { SurfaceMesh } from "../../src/mesh/model.js";
 import { concatMeshes } from "../../src/mesh/model.js";
-import { closestPointTriangle, closestPointsSegments, triangleTriangleDistance, trianglesIntersect, conductorProximity, nearestTriangle } from "../../src/mesh/proximity.js";
+import { closestPointTriangle, closestPointsSegments, triangleTriangleDistance, trianglesIntersect, conductorProximity, nearestTriangle, windingNumber, conductorTriangles } from "../../src/mesh/proximity.js";
 import { buildBoxTree, triangleBoxes } from "../../src/mesh/bvh.js";
 
 function gridCube(n: number, o: number[], s: number[], name: string): SurfaceMesh {
@@ -193,9 +193,12 @@ describe("conductorProximity", () => {
 
   it("keeps one finding per pair and ignores triangles of the same conductor", () => {
     const m = concatMeshes([gridCube(2, [0, 0, 0], [1, 1, 1], "a"), gridCube(2, [1.05, 0, 0], [1, 1, 1], "b"), gridCube(2, [0, 0, 0.5], [1, 1, 1], "c")]);
-    const f = conductorProximity(m);
+    const f = conductorProximity(m, { solid: [true, true, true] });
     const pairs = f.map((x) => `${x.a}-${x.b}:${x.kind}`).sort();
+    // a and c share parts of their side faces, facing the same way: the solids overlap.
     expect(pairs).toEqual(["0-1:gap", "0-2:intersect", "1-2:gap"]);
+    // Not told they are solids, coincident faces are only a contact.
+    expect(conductorProximity(m).map((x) => `${x.a}-${x.b}:${x.kind}`).sort()).toEqual(["0-1:gap", "0-2:touch", "1-2:gap"]);
   });
 });
 
@@ -214,5 +217,20 @@ describe("nearestTriangle", () => {
       }
       expect(r.distance).toBeCloseTo(Math.sqrt(best), 12);
     }), { numRuns: 100 });
+  });
+});
+
+describe("windingNumber", () => {
+  it("is 1 inside a closed outward box, 0 outside, 1/2 on a face", () => {
+    const m = gridCube(3, [0, 0, 0], [1, 2, 3], "c");
+    const g = conductorTriangles(m);
+    fc.assert(fc.property(coord, coord, coord, (x, y, z) => {
+      const inside = x > 0 && x < 1 && y > 0 && y < 2 && z > 0 && z < 3;
+      const onSurface = !inside && x >= 0 && x <= 1 && y >= 0 && y <= 2 && z >= 0 && z <= 3;
+      if (onSurface) return true;
+      return Math.abs(windingNumber(m, g, 0, x, y, z) - (inside ? 1 : 0)) < 1e-9;
+    }), { numRuns: 300 });
+    expect(windingNumber(m, g, 0, 0.3, 0.7, 3)).toBeCloseTo(0.5, 9);
+    expect(windingNumber(m, g, 0, 1 / 3, 2 / 3, 3)).toBeCloseTo(0.5, 9);
   });
 });
