@@ -67,3 +67,41 @@ export function decodeText(input: string | Uint8Array): string {
   const s = typeof input === "string" ? input : new TextDecoder("utf-8").decode(input);
   return s.charCodeAt(0) === 0xfeff ? s.slice(1) : s;
 }
+
+/**
+ * Text written straight into bytes (ASCII for numbers and keywords, UTF-8 for names), so
+ * writing a million facets makes no million intermediate strings.
+ */
+export class TextSink {
+  private buf: Uint8Array;
+  private n = 0;
+  constructor(capacity = 1 << 16) { this.buf = new Uint8Array(capacity); }
+  private room(extra: number): void {
+    if (this.n + extra <= this.buf.length) return;
+    let cap = this.buf.length * 2;
+    while (cap < this.n + extra) cap *= 2;
+    const b = new Uint8Array(cap);
+    b.set(this.buf.subarray(0, this.n));
+    this.buf = b;
+  }
+  /** Characters below U+0080 only (keywords, numbers). */
+  ascii(s: string): this {
+    const len = s.length;
+    this.room(len);
+    const b = this.buf;
+    let n = this.n;
+    for (let i = 0; i < len; i++) b[n++] = s.charCodeAt(i);
+    this.n = n;
+    return this;
+  }
+  /** Any text, UTF-8 encoded. */
+  text(s: string): this {
+    const e = new TextEncoder().encode(s);
+    this.room(e.length);
+    this.buf.set(e, this.n);
+    this.n += e.length;
+    return this;
+  }
+  bytes(): Uint8Array { return this.buf.slice(0, this.n); }
+  toString(): string { return new TextDecoder("utf-8").decode(this.buf.subarray(0, this.n)); }
+}

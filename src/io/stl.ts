@@ -15,7 +15,7 @@
 import type { SurfaceMesh } from "../mesh/model.js";
 import { InputError, atByte, atLine } from "./errors.js";
 import { METRES_PER_UNIT } from "./units.js";
-import { GrowF64, GrowU32, type RawMesh } from "./raw.js";
+import { GrowF64, GrowU32, TextSink, type RawMesh } from "./raw.js";
 import { readDecimal, decimalEnd, tokenText } from "./decimal.js";
 
 const HEADER = 80;
@@ -289,28 +289,34 @@ export function toFileUnits(metresPerUnit: number): (x: number) => number {
 
 /** ASCII STL, one `solid NAME` per conductor, coordinates divided by `metresPerUnit`. */
 export function writeStlAscii(mesh: SurfaceMesh, metresPerUnit: number): string {
+  return stlAsciiText(mesh, metresPerUnit).toString();
+}
+
+/** The same text as UTF-8 bytes (what `encodeMesh` writes). */
+export function writeStlAsciiBytes(mesh: SurfaceMesh, metresPerUnit: number): Uint8Array {
+  return stlAsciiText(mesh, metresPerUnit).bytes();
+}
+
+function stlAsciiText(mesh: SurfaceMesh, metresPerUnit: number): TextSink {
   const p = mesh.positions, tr = mesh.triangles, u = toFileUnits(metresPerUnit);
-  const f = (x: number): string => formatCoordinate(u(x));
-  const parts: string[] = [];
+  const out = new TextSink(Math.max(1 << 16, 200 * (tr.length / 3)));
   const order = trianglesByConductor(mesh.conductor, mesh.names.length);
   for (let c = 0; c < mesh.names.length; c++) {
     const name = mesh.names[c].replace(/[\r\n]+/g, " ");
-    parts.push(`solid ${name}\n`);
+    out.ascii("solid ").text(name).ascii("\n");
     for (let k = order.start[c]; k < order.start[c + 1]; k++) {
       const t = order.triangle[k];
-      const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], cc = 3 * tr[3 * t + 2];
-      facetNormal(p, a, b, cc);
-      parts.push(
-        `  facet normal ${formatCoordinate(NRM[0])} ${formatCoordinate(NRM[1])} ${formatCoordinate(NRM[2])}\n    outer loop\n` +
-        `      vertex ${f(p[a])} ${f(p[a + 1])} ${f(p[a + 2])}\n` +
-        `      vertex ${f(p[b])} ${f(p[b + 1])} ${f(p[b + 2])}\n` +
-        `      vertex ${f(p[cc])} ${f(p[cc + 1])} ${f(p[cc + 2])}\n` +
-        `    endloop\n  endfacet\n`,
-      );
+      facetNormal(p, 3 * tr[3 * t], 3 * tr[3 * t + 1], 3 * tr[3 * t + 2]);
+      out.ascii("  facet normal ").ascii(formatCoordinate(NRM[0])).ascii(" ").ascii(formatCoordinate(NRM[1])).ascii(" ").ascii(formatCoordinate(NRM[2])).ascii("\n    outer loop\n");
+      for (let j = 0; j < 3; j++) {
+        const v = 3 * tr[3 * t + j];
+        out.ascii("      vertex ").ascii(formatCoordinate(u(p[v]))).ascii(" ").ascii(formatCoordinate(u(p[v + 1]))).ascii(" ").ascii(formatCoordinate(u(p[v + 2]))).ascii("\n");
+      }
+      out.ascii("    endloop\n  endfacet\n");
     }
-    parts.push(`endsolid ${name}\n`);
+    out.ascii("endsolid ").text(name).ascii("\n");
   }
-  return parts.join("");
+  return out;
 }
 
 /** Triangles sorted by conductor (counting sort, stable): conductor c owns triangle[start[c] .. start[c+1]). */

@@ -3,7 +3,7 @@ import { extname } from "node:path";
 import type { SurfaceMesh } from "../mesh/model.js";
 import { InputError } from "./errors.js";
 import { metresPer, type LengthUnit } from "./units.js";
-import { writeStlBinary, writeStlAscii } from "./stl.js";
+import { writeStlBinary, writeStlAsciiBytes } from "./stl.js";
 import { writeObj } from "./obj.js";
 import { writeFileAtomic } from "./atomic.js";
 
@@ -21,8 +21,8 @@ export function outputFormatFromPath(path: string, ascii = false): OutputFormat 
 export function encodeMesh(mesh: SurfaceMesh, format: OutputFormat, unit: LengthUnit): Uint8Array {
   const m = metresPer(unit);
   if (format === "stl") return writeStlBinary(mesh, m);
-  const text = format === "stl-ascii" ? writeStlAscii(mesh, m) : writeObj(mesh, m);
-  return new TextEncoder().encode(text);
+  if (format === "stl-ascii") return writeStlAsciiBytes(mesh, m);
+  return new TextEncoder().encode(writeObj(mesh, m));
 }
 
 /** Write atomically: a failure leaves any earlier file at `path` untouched. */

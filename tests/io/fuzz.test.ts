@@ -59,3 +59,15 @@ describe("fuzzed corruptions of real files", () => {
     });
   }
 });
+
+describe("arbitrary bytes", () => {
+  it("every reader, via every extension, either loads or throws InputError", () => {
+    const names = ["r.stl", "r.obj", "r.msh", "r"];
+    const prefixes = ["", "solid x\n", "$MeshFormat\n4.1 0 8\n$EndMeshFormat\n", "$MeshFormat\n2.2 0 8\n$EndMeshFormat\n$Nodes\n", "v 0 0 0\nf "].map((s) => new TextEncoder().encode(s));
+    fc.assert(fc.property(fc.constantFrom(...names), fc.constantFrom(...prefixes), fc.uint8Array({ maxLength: 600 }), (file, pre, body) => {
+      const bytes = new Uint8Array(pre.length + body.length);
+      bytes.set(pre); bytes.set(body, pre.length);
+      try { parseMeshBytes(bytes, file, { unit: "mm" }); } catch (e) { if (!(e instanceof InputError)) throw e; }
+    }), { numRuns: 400, seed: 99 });
+  });
+});
