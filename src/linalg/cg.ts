@@ -23,6 +23,11 @@ export interface KrylovOptions {
   maxIter: number;
   /** Initial guess, n×k row-major (zero when absent). */
   x0?: Float64Array;
+  /**
+   * Called after every iteration with the count so far and each column's current relative
+   * residual estimate (the solver's own recurrence; the array is reused, copy to keep it).
+   */
+  monitor?: (iteration: number, residuals: Float64Array) => void;
 }
 
 export interface KrylovResult {
@@ -47,7 +52,7 @@ export async function pcg(apply: BlockOperator, precondition: BlockPreconditione
   const X = sharedFloat64(n * k), R = sharedFloat64(n * k), Z = sharedFloat64(n * k);
   const P = sharedFloat64(n * k), Q = sharedFloat64(n * k);
   const bnorm = new Float64Array(k), rz = new Float64Array(k), pq = new Float64Array(k), rr = new Float64Array(k);
-  const active = new Uint8Array(k);
+  const active = new Uint8Array(k), est = new Float64Array(k);
   if (opts.x0) X.set(opts.x0.subarray(0, n * k));
   columnNorms(B, n, k, bnorm);
 
@@ -95,6 +100,10 @@ export async function pcg(apply: BlockOperator, precondition: BlockPreconditione
     for (let c = 0; c < k; c++) {
       if (active[c] && rr[c] <= opts.tol * bnorm[c]) active[c] = 0;
       if (active[c]) any = true;
+    }
+    if (opts.monitor) {
+      for (let c = 0; c < k; c++) est[c] = bnorm[c] > 0 ? rr[c] / bnorm[c] : 0;
+      opts.monitor(iterations, est);
     }
     if (!any) { moving = await restart(); continue; }
     await precondition(R, Z, k);

@@ -28,7 +28,7 @@ export async function gmres(apply: BlockOperator, precondition: BlockPreconditio
   const H = new Float64Array(k * (m + 1) * m), cs = new Float64Array(k * m), sn = new Float64Array(k * m);
   const g = new Float64Array(k * (m + 1)), y = new Float64Array(m);
   const bnorm = new Float64Array(k), rn = new Float64Array(k);
-  const dim = new Int32Array(k), active = new Uint8Array(k);
+  const dim = new Int32Array(k), active = new Uint8Array(k), est = new Float64Array(k);
   if (opts.x0) X.set(opts.x0.subarray(0, nk));
   columnNorms(B, n, k, bnorm);
   for (let c = 0; c < k; c++) if (bnorm[c] === 0) for (let i = 0; i < n; i++) X[i * k + c] = 0;
@@ -40,6 +40,7 @@ export async function gmres(apply: BlockOperator, precondition: BlockPreconditio
     columnNorms(W, n, k, rn);
     let any = false;
     for (let c = 0; c < k; c++) {
+      est[c] = bnorm[c] > 0 ? rn[c] / bnorm[c] : 0;
       active[c] = bnorm[c] > 0 && rn[c] > opts.tol * bnorm[c] ? 1 : 0;
       dim[c] = 0;
       const inv = active[c] ? 1 / rn[c] : 0;
@@ -84,6 +85,7 @@ export async function gmres(apply: BlockOperator, precondition: BlockPreconditio
         g[gc + j + 1] = -sj * g[gc + j];
         g[gc + j] = cj * g[gc + j];
         dim[c] = j + 1;
+        est[c] = Math.abs(g[gc + j + 1]) / bnorm[c];
         // |g[j+1]| is the residual norm of the current iterate (Saad, Proposition 6.9).
         if (Math.abs(g[gc + j + 1]) <= opts.tol * bnorm[c] || hNext === 0) {
           active[c] = 0;
@@ -94,6 +96,7 @@ export async function gmres(apply: BlockOperator, precondition: BlockPreconditio
           still = true;
         }
       }
+      if (opts.monitor) opts.monitor(iterations, est);
       if (!still) break;
     }
 

@@ -38,7 +38,10 @@ describe("preconditioned conjugate gradients", () => {
 
   it("block-Jacobi over the cluster leaves cuts the iterations on a clustered kernel matrix", async () => {
     const B = randomBlock(n, 1, 4);
-    const plain = await pcg(apply, identityPreconditioner, B, 1, { tol: 1e-8, maxIter: 3000 });
+    let seen = 0, last = 1;
+    const plain = await pcg(apply, identityPreconditioner, B, 1, { tol: 1e-8, maxIter: 3000, monitor: (it, r) => { seen = it; last = r[0]; } });
+    expect(seen).toBe(plain.iterations);
+    expect(last).toBeLessThan(1e-8);
     const pre = await pcg(apply, blockJacobi(A, n, blocks), B, 1, { tol: 1e-8, maxIter: 3000 });
     expect(plain.converged && pre.converged).toBe(true);
     expect(pre.iterations).toBeLessThan(plain.iterations / 2);
