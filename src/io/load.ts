@@ -86,6 +86,9 @@ function readMeshBytes(path: string): Uint8Array {
 /** The same pipeline on bytes already in memory; `file` names them in messages and gives the stem. */
 export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOptions): LoadedMesh {
   if (opts.split && opts.merge) throw new InputError("split and merge cannot both be set for one file", file);
+  const scale = metresPer(opts.unit);
+  if (!(scale > 0)) throw new InputError(`unknown length unit "${String(opts.unit)}" (use m, cm, mm, um, in or mil)`, file);
+  if (opts.groups !== undefined && opts.groups.length === 0) throw new InputError("the list of groups to keep is empty", file);
   if (bytes.length === 0) throw new InputError("empty file", file);
   const format = detectFormat(file, bytes);
   const raw: RawMesh = format === "stl" ? readStl(bytes, file) : format === "obj" ? readObj(bytes, file) : readMsh(bytes, file);
@@ -138,7 +141,6 @@ export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOption
     if (tri !== raw.triangles) { tri[3 * k] = raw.triangles[3 * t]; tri[3 * k + 1] = raw.triangles[3 * t + 1]; tri[3 * k + 2] = raw.triangles[3 * t + 2]; }
     cond[k++] = c;
   }
-  const scale = metresPer(opts.unit);
   const metres = new Float64Array(raw.positions.length);
   for (let i = 0; i < metres.length; i++) metres[i] = raw.positions[i] * scale;
 

@@ -52,6 +52,12 @@ describe("loadMeshFile", () => {
     expect(two.mesh.names).toEqual(["pads_1", "pads_2"]);
     expect(Array.from(conductorAreas(two.mesh)).map((a) => a / 1e-6)).toEqual([expect.closeTo(UNIT_TET_AREA, 9), expect.closeTo(UNIT_TET_AREA, 9)]);
   });
+  it("option faults are bad input", () => {
+    const f = fixture("two_solids.stl");
+    expect(err(() => loadMeshFile(f, { unit: "furlong" as never })).fault).toMatch(/unknown length unit "furlong"/);
+    expect(err(() => loadMeshFile(f, { ...mm, groups: [] })).fault).toMatch(/groups to keep is empty/);
+    expect(err(() => loadMeshFile(f, { ...mm, weldTolerance: -1 })).fault).toMatch(/weld tolerance -1/);
+  });
   it("units: inches scale by 25.4 mm exactly", () => {
     const r = loadMeshFile(fixture("two_solids.stl"), { unit: "in" });
     expect(Math.max(...r.mesh.positions)).toBeCloseTo(7 * 0.0254, 15);
