@@ -6,7 +6,7 @@
  * Unknowns in no block are left unpreconditioned (Z = R there).
  */
 import { choleskyFactorSerial, NotPositiveDefiniteError } from "./cholesky.js";
-import { luFactorSerial } from "./lu.js";
+import { luFactorSerial, SingularMatrixError } from "./lu.js";
 import { solveLower, solveLowerTransposed, solveUpper } from "./triangular.js";
 
 export type Preconditioner = (R: Float64Array, Z: Float64Array, k: number) => void;
@@ -41,14 +41,19 @@ export function blockJacobi(A: Float64Array, n: number, blocks: Uint32Array[], o
       for (let c = 0; c < m; c++) D[a * m + c] = A[row + I[c]];
     }
     let piv: Int32Array | null = null;
-    if (!opts.lu) {
-      try { choleskyFactorSerial(D, m); }
-      catch (e) {
-        if (!(e instanceof NotPositiveDefiniteError)) throw e;
-        for (let a = 0; a < m; a++) for (let c = 0; c < m; c++) D[a * m + c] = A[I[a] * n + I[c]];
-        piv = luFactorSerial(D, m);
-      }
-    } else piv = luFactorSerial(D, m);
+    try {
+      if (!opts.lu) {
+        try { choleskyFactorSerial(D, m); }
+        catch (e) {
+          if (!(e instanceof NotPositiveDefiniteError)) throw e;
+          for (let a = 0; a < m; a++) for (let c = 0; c < m; c++) D[a * m + c] = A[I[a] * n + I[c]];
+          piv = luFactorSerial(D, m);
+        }
+      } else piv = luFactorSerial(D, m);
+    } catch (e) {
+      if (e instanceof SingularMatrixError) throw new SingularMatrixError(I[e.column], `diagonal block ${b} (${m} unknowns) is singular at unknown ${I[e.column]}`);
+      throw e;
+    }
     factors.push(D);
     pivots.push(piv);
     if (m > maxSize) maxSize = m;

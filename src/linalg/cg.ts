@@ -47,6 +47,7 @@ export interface KrylovResult {
  * when rounding has made them drift apart.
  */
 export async function pcg(apply: BlockOperator, precondition: BlockPreconditioner, B: Float64Array, k: number, opts: KrylovOptions): Promise<KrylovResult> {
+  if (!Number.isInteger(k) || k < 1) throw new RangeError(`number of right-hand sides ${k} is not a positive integer`);
   const n = B.length / k;
   if (!Number.isInteger(n)) throw new RangeError(`right-hand sides hold ${B.length} values, not a multiple of k=${k}`);
   const X = sharedFloat64(n * k), R = sharedFloat64(n * k), Z = sharedFloat64(n * k);

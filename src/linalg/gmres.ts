@@ -18,6 +18,7 @@ export interface GmresOptions extends KrylovOptions {
 
 /** Solve A·X = B (B n×k row-major) by restarted, right-preconditioned GMRES. */
 export async function gmres(apply: BlockOperator, precondition: BlockPreconditioner, B: Float64Array, k: number, opts: GmresOptions): Promise<KrylovResult> {
+  if (!Number.isInteger(k) || k < 1) throw new RangeError(`number of right-hand sides ${k} is not a positive integer`);
   const n = B.length / k;
   if (!Number.isInteger(n)) throw new RangeError(`right-hand sides hold ${B.length} values, not a multiple of k=${k}`);
   const m = Math.max(1, Math.floor(opts.restart ?? 30));

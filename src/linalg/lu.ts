@@ -14,11 +14,11 @@ import { luBlockRow, luUpdate } from "./tasks.js";
 import { solveLower, solveUnitLowerLeft, solveUpper } from "./triangular.js";
 import { type WorkerPool, sharedFloat64 } from "./pool.js";
 
-/** The matrix is singular to working precision: no non-zero pivot in column `column`. */
+/** No non-zero finite pivot in column `column` (0-based): singular, or holding NaN/∞. */
 export class SingularMatrixError extends Error {
   readonly column: number;
-  constructor(column: number) {
-    super(`matrix is singular: no non-zero pivot in column ${column}`);
+  constructor(column: number, message?: string) {
+    super(message ?? `matrix is singular to working precision: no non-zero finite pivot in column ${column}`);
     this.name = "SingularMatrixError";
     this.column = column;
   }

@@ -53,5 +53,9 @@ describe("block-Jacobi preconditioner", () => {
     }
     expect(() => blockJacobi(A, n, [Uint32Array.of(0, 1), Uint32Array.of(1, 2)])).toThrow(/disjoint/);
     expect(() => blockJacobi(A, n, [Uint32Array.of(0, 10)])).toThrow(/outside/);
+    // A block that is singular (rows 4 and 6 equal within it) is named with its unknown.
+    const S = randomSpd(n, 4);
+    for (const j of [4, 6]) { S[4 * n + j] = 1; S[6 * n + j] = 1; }
+    expect(() => blockJacobi(S, n, [Uint32Array.of(0, 1), Uint32Array.of(4, 6)])).toThrow(/block 1 .*unknown 6/);
   });
 });
