@@ -43,7 +43,7 @@ import { createRequire } from "node:module";
 import { loadMeshFiles } from "../src/io/load.js";
 import { parseUnit, DEFAULT_UNIT } from "../src/io/units.js";
 import { InputError } from "../src/io/errors.js";
-import { checkMesh } from "../src/mesh/check.js";
+import { checkMeshParallel } from "../src/mesh/check.js";
 import { formatCheckSummary, pairSentence } from "../src/report/check-summary.js";
 import { action, printWarnings, writeOutput, EXIT_BAD_INPUT } from "./common.js";
 
@@ -80,7 +80,7 @@ export function registerCheck(program: Command): void {
     .option("--weld-tolerance <relative>", "weld vertices closer than this fraction of the bounding-box diagonal (default 1e-6)")
     .option("--json <path>", "write the report as JSON to a file, or - for standard output")
     .option("--quiet", "print nothing but errors")
-    .action(action((files: string[], opts: CheckCliOptions, cmd: Command) => {
+    .action(action(async (files: string[], opts: CheckCliOptions, cmd: Command) => {
       const unit = parseUnit(opts.unit, "--unit");
       const unitAssumed = cmd.getOptionValueSource("unit") === "default";
       if (opts.split && opts.merge) throw new InputError("--split and --merge cannot be used together");
@@ -93,7 +93,7 @@ export function registerCheck(program: Command): void {
       }
       const loaded = loadMeshFiles(files, { unit, split: opts.split, merge: opts.merge, weldTolerance });
       printWarnings(loaded.warnings, opts.quiet);
-      const report = checkMesh(loaded.mesh);
+      const report = await checkMeshParallel(loaded.mesh);
       const summary = formatCheckSummary(report, { unit, unitAssumed, files: loaded.files });
       if (opts.json !== undefined) {
         writeOutput(opts.json, toJson({

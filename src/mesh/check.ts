@@ -4,9 +4,10 @@
  * proximity between conductors into one report, all lengths in metres.
  */
 import { type SurfaceMesh, triangleCount, vertexCount, conductorAreas } from "./model.js";
-import { buildEdgeTable, conductorTopology, orientSurfaces, conductorOrientation, type ConductorOrientation, type OrientationResult } from "./topology.js";
-import { conductorQuality } from "./quality.js";
-import { conductorProximity, enclosedConductors, resolveOverlaps, conductorTriangles, type ProximityOptions } from "./proximity.js";
+import { buildEdgeTable, conductorTopology, orientSurfaces, conductorOrientation, type ConductorOrientation, type OrientationResult, type EdgeTable } from "./topology.js";
+import { conductorQuality, type MeshQuality } from "./quality.js";
+import { conductorProximity, enclosedConductors, resolveOverlaps, conductorTriangles, type ProximityOptions, type ProximityFinding } from "./proximity.js";
+import { sharedPool, toShared } from "../linalg/pool.js";
 
 export interface ConductorCheck {
   name: string;
@@ -69,12 +70,20 @@ export const THIN_ASPECT = 10;
 
 /** Check a mesh (metres). Also returns the oriented copy the checks were made on. */
 export function checkMeshOriented(mesh: SurfaceMesh, opts: CheckOptions = {}): { report: CheckReport; oriented: OrientationResult } {
+  return assemble(mesh, opts, conductorProximity(mesh, opts));
+}
+
+/** The per-conductor checks, and the proximity findings (made on the mesh as given) resolved against the oriented mesh. */
+function assemble(
+  mesh: SurfaceMesh, opts: CheckOptions, findings: ProximityFinding[],
+  done: { table?: EdgeTable; oriented?: OrientationResult; quality?: MeshQuality[] } = {},
+): { report: CheckReport; oriented: OrientationResult } {
   const nc = mesh.names.length, nt = triangleCount(mesh);
-  const table = buildEdgeTable(mesh);
+  const table = done.table ?? buildEdgeTable(mesh);
   const topo = conductorTopology(mesh, table);
-  const oriented = orientSurfaces(mesh, table);
+  const oriented = done.oriented ?? orientSurfaces(mesh, table);
   const orientation = conductorOrientation(oriented, nc);
-  const quality = conductorQuality(mesh);
+  const quality = done.quality ?? conductorQuality(mesh);
   const areas = conductorAreas(mesh);
 
   const count = new Uint32Array(nc), comps = new Uint32Array(nc), flipped = new Uint32Array(nc);
@@ -128,9 +137,7 @@ export function checkMeshOriented(mesh: SurfaceMesh, opts: CheckOptions = {}): {
   const pairs: PairCheck[] = [];
   const solid = conductors.map((c) => c.closed && (c.orientation === "outward" || c.orientation === "inward-flipped" || c.orientation === "repaired"));
   const groups = conductorTriangles(oriented.mesh);
-  // Oriented copy: coincident faces facing the same way then mean overlapping solids.
-  const findings = conductorProximity(oriented.mesh, { ...opts, solid });
-  resolveOverlaps(oriented.mesh, findings, solid, groups);
+  resolveOverlaps(oriented.mesh, findings, solid, groups, opts);
   for (const f of findings) {
     pairs.push({
       kind: f.kind, severity: f.kind === "gap" ? "warning" : "error",
@@ -158,4 +165,33 @@ export function checkMeshOriented(mesh: SurfaceMesh, opts: CheckOptions = {}): {
 /** Check a mesh (metres): per-conductor topology and quality, and problems between conductors. */
 export function checkMesh(mesh: SurfaceMesh, opts: CheckOptions = {}): CheckReport {
   return checkMeshOriented(mesh, opts).report;
+}
+
+/** Below this many triangles a worker costs more than it saves. */
+export const PARALLEL_MIN_TRIANGLES = 100_000;
+
+/**
+ * `checkMesh` on two threads: the proximity search (the largest single stage) runs in a
+ * worker from the shared pool while this thread builds the edge table, orients and
+ * measures. Same report as `checkMesh`.
+ */
+export async function checkMeshParallel(mesh: SurfaceMesh, opts: CheckOptions = {}): Promise<CheckReport> {
+  const pool = sharedPool();
+  if (triangleCount(mesh) < PARALLEL_MIN_TRIANGLES || pool.size < 2 || mesh.names.length < 2) return checkMesh(mesh, opts);
+  const module = import.meta.url.replace(/check\.(ts|js)$/, "proximity.$1");
+  // The message is posted synchronously, so the worker starts while this thread computes.
+  const pending = pool.runOn<ProximityFinding[]>(1, module, "proximityTask", [toShared(mesh.positions), mesh.triangles, mesh.conductor, mesh.names.length, { ...opts }])
+    .then((f): ProximityFinding[] | undefined => f, () => undefined);
+  const finish = assembleLater(mesh, opts);
+  // A worker that cannot start (no compiled module, say) costs time, not the answer.
+  const findings = (await pending) ?? conductorProximity(mesh, opts);
+  return finish(findings).report;
+}
+
+/** Run the per-conductor stages now and return a function that finishes with the findings. */
+function assembleLater(mesh: SurfaceMesh, opts: CheckOptions): (findings: ProximityFinding[]) => { report: CheckReport; oriented: OrientationResult } {
+  const table = buildEdgeTable(mesh);
+  const oriented = orientSurfaces(mesh, table);
+  const quality = conductorQuality(mesh);
+  return (findings) => assemble(mesh, opts, findings, { table, oriented, quality });
 }

@@ -418,12 +418,6 @@ export interface ProximityOptions {
   touchTolerance?: number;
   /** Gaps narrower than this multiple of the local panel size are reported (default 1). */
   gapFactor?: number;
-  /**
-   * Per conductor: a closed surface oriented outward. Coincident faces of two such
-   * conductors facing the same way mean their solids overlap (an intersection); without
-   * it, or for open sheets, whose facing means nothing, coincident faces are a touch.
-   */
-  solid?: boolean[];
 }
 
 const KIND_RANK: Record<ProximityKind, number> = { gap: 0, touch: 1, intersect: 2 };
@@ -435,14 +429,14 @@ const KIND_RANK: Record<ProximityKind, number> = { gap: 0, touch: 1, intersect: 
  * traversed against itself with subtrees of a single conductor pruned, so the cost is
  * O(N log N) plus the triangle pairs that are actually close.
  *
- * Surfaces that cross are an intersection; surfaces that meet are touching, unless
- * two closed conductors (`opts.solid`, oriented outward by `orientSurfaces`) share a
- * face with the same facing, which means their solids overlap: an intersection too.
+ * Surfaces that cross are an intersection; surfaces that only meet are touching here.
+ * Orientation plays no part, so this runs on the mesh as loaded (and may run in a
+ * worker while the mesh is being oriented); `resolveOverlaps` then tells touching
+ * solids from overlapping ones.
  */
 export function conductorProximity(mesh: SurfaceMesh, opts: ProximityOptions = {}): ProximityFinding[] {
   const touchRel = opts.touchTolerance ?? 1e-6;
   const gapFactor = opts.gapFactor ?? 1;
-  const solid = opts.solid;
   const p = mesh.positions, tr = mesh.triangles, cond = mesh.conductor;
   const nt = triangleCount(mesh);
   if (nt === 0 || mesh.names.length < 2) return [];
@@ -463,8 +457,7 @@ export function conductorProximity(mesh: SurfaceMesh, opts: ProximityOptions = {
     let kind: ProximityKind = "gap";
     if (d <= tol) {
       loadPair(p, tr, i, j);
-      const bothSolid = solid !== undefined && solid[cond[i]] === true && solid[cond[j]] === true;
-      kind = (crossesProperly(tol) && trianglesIntersect(p, tr, i, j)) || (bothSolid && coincidentSameFacing(tol)) ? "intersect" : "touch";
+      kind = crossesProperly(tol) && trianglesIntersect(p, tr, i, j) ? "intersect" : "touch";
     }
     const a = cond[i] < cond[j] ? cond[i] : cond[j], b = cond[i] < cond[j] ? cond[j] : cond[i];
     const key = a * nc + b;
@@ -539,15 +532,28 @@ export function windingNumber(mesh: SurfaceMesh, groups: ConductorTriangles, c: 
 
 /**
  * Turn touches between two closed solids into intersections where their volumes overlap.
- * Meshes whose edges lie exactly on the curve where two surfaces cross (common after CAD
- * booleans) show no crossing triangle pair, only contacts; so each touching triangle's
- * centroid is stepped a little (1e-4 of its size) into its own solid and tested for
- * lying inside the other solid. Needs `mesh` oriented outward (`orientSurfaces`).
+ * Two tests on the touching triangle pairs kept with each finding: coincident faces
+ * facing the same way (both solids on one side of the shared face); and, since meshes
+ * whose edges lie exactly on the curve where two surfaces cross (common after CAD
+ * booleans) show no crossing triangle pair, each touching triangle's centroid stepped
+ * a little (1e-4 of its size) into its own solid and tested for lying inside the other.
+ * Needs `mesh` oriented outward (`orientSurfaces`); open sheets have no inside and
+ * their touches stay touches.
  */
-export function resolveOverlaps(mesh: SurfaceMesh, findings: ProximityFinding[], solid: boolean[], groups: ConductorTriangles = conductorTriangles(mesh)): void {
+export function resolveOverlaps(mesh: SurfaceMesh, findings: ProximityFinding[], solid: boolean[], groups: ConductorTriangles = conductorTriangles(mesh), opts: ProximityOptions = {}): void {
   const p = mesh.positions, tr = mesh.triangles;
+  const touchRel = opts.touchTolerance ?? 1e-6;
+  let floor = -1;
   for (const f of findings) {
     if (f.kind !== "touch" || !solid[f.a] || !solid[f.b]) continue;
+    if (floor < 0) floor = touchRel * boundingDiagonal(p);
+    const tol = Math.max(touchRel * f.panelSize, floor);
+    let coincident = false;
+    for (let s = 0; s < f.contacts.length && !coincident; s += 2) {
+      loadPair(p, tr, f.contacts[s], f.contacts[s + 1]);
+      coincident = coincidentSameFacing(tol);
+    }
+    if (coincident) { f.kind = "intersect"; f.distance = 0; continue; }
     search: for (let s = 0; s < f.contacts.length; s += 2) {
       for (let side = 0; side < 2; side++) {
         const t = f.contacts[s + side], other = side === 0 ? f.b : f.a;
@@ -605,4 +611,13 @@ export function enclosedConductors(mesh: SurfaceMesh, closed: boolean[], boxes: 
     }
   }
   return out;
+}
+
+/**
+ * Worker entry for `conductorProximity` (see src/linalg/pool.ts): the mesh arrives as its
+ * typed arrays; findings go back as plain objects.
+ */
+export function proximityTask(positions: Float64Array, triangles: Uint32Array, conductor: Uint32Array, conductors: number, opts: ProximityOptions): ProximityFinding[] {
+  const names = Array.from({ length: conductors }, (_, i) => String(i));
+  return conductorProximity({ positions, triangles, conductor, names }, opts);
 }

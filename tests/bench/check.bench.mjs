@@ -7,7 +7,8 @@ import { concatMeshes } from "../../dist/src/mesh/model.js";
 import { buildEdgeTable, conductorTopology, orientSurfaces } from "../../dist/src/mesh/topology.js";
 import { conductorQuality } from "../../dist/src/mesh/quality.js";
 import { conductorProximity } from "../../dist/src/mesh/proximity.js";
-import { checkMesh } from "../../dist/src/mesh/check.js";
+import { checkMesh, checkMeshParallel } from "../../dist/src/mesh/check.js";
+import { closeSharedPool } from "../../dist/src/linalg/pool.js";
 
 const r = 1e-3, pitch = 2 * r + 0.5e-3;
 const parts = [];
@@ -34,4 +35,12 @@ console.log(`  findings: ${found.map((f) => `${mesh.names[f.a]}/${mesh.names[f.b
 globalThis.gc?.();
 const rep = time("checkMesh total", () => checkMesh(mesh));
 console.log(`  failed: ${rep.failed}, pairs: ${rep.pairs.length}, closed: ${rep.conductors.every((c) => c.closed)}, orientation: ${[...new Set(rep.conductors.map((c) => c.orientation))].join(",")}`);
+globalThis.gc?.();
+{
+  const t0 = performance.now();
+  const par = await checkMeshParallel(mesh);
+  console.log(`${"checkMeshParallel (2 threads)".padEnd(28)} ${((performance.now() - t0) / 1000).toFixed(3)} s`);
+  console.log(`  same report as checkMesh: ${JSON.stringify(par) === JSON.stringify(rep)}`);
+  await closeSharedPool();
+}
 console.log(`peak RSS ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MiB`);

@@ -1,7 +1,8 @@
 import { describe, it, expect } from "vitest";
 import type { SurfaceMesh } from "../../src/mesh/model.js";
 import { concatMeshes } from "../../src/mesh/model.js";
-import { checkMesh } from "../../src/mesh/check.js";
+import { checkMesh, checkMeshParallel, PARALLEL_MIN_TRIANGLES } from "../../src/mesh/check.js";
+import { closeSharedPool } from "../../src/linalg/pool.js";
 import { formatCheckSummary } from "../../src/report/check-summary.js";
 
 function gridCube(n: number, o: number[], s: number[], name: string, inward = false): SurfaceMesh {
@@ -116,5 +117,17 @@ describe("checkMesh", () => {
     expect(text).toContain("unit: mm (assumed; set with --unit)");
     expect(text).toMatch(/FAILED: conductors a and b intersect at \([-0-9.e]+, [-0-9.e]+, [-0-9.e]+\) mm/);
     expect(text).toMatch(/^a +12 +6\.000 /m);
+  });
+});
+
+describe("checkMeshParallel", () => {
+  it("gives the same report as checkMesh above the parallel threshold", async () => {
+    const m = concatMeshes([gridCube(66, [0, 0, 0], [1, 1, 1], "a"), gridCube(66, [1.001, 0, 0], [1, 1, 1], "b")]);
+    expect(m.triangles.length / 3).toBeGreaterThanOrEqual(PARALLEL_MIN_TRIANGLES);
+    const par = await checkMeshParallel(m);
+    await closeSharedPool();
+    const seq = checkMesh(m);
+    expect(par).toEqual(seq);
+    expect(seq.pairs.map((p) => p.kind)).toEqual(["gap"]);
   });
 });

@@ -2,7 +2,7 @@ import { describe, it, expect } from "vitest";
 import fc from "fast-check";
 import type { SurfaceMesh } from "../../src/mesh/model.js";
 import { concatMeshes } from "../../src/mesh/model.js";
-import { closestPointTriangle, closestPointsSegments, triangleTriangleDistance, trianglesIntersect, conductorProximity, nearestTriangle, windingNumber, conductorTriangles } from "../../src/mesh/proximity.js";
+import { closestPointTriangle, closestPointsSegments, triangleTriangleDistance, trianglesIntersect, conductorProximity, nearestTriangle, windingNumber, conductorTriangles, resolveOverlaps } from "../../src/mesh/proximity.js";
 import { buildBoxTree, triangleBoxes } from "../../src/mesh/bvh.js";
 
 function gridCube(n: number, o: number[], s: number[], name: string): SurfaceMesh {
@@ -161,8 +161,9 @@ describe("conductorProximity", () => {
     expect(x >= 0.5 - 1e-12 && x <= 1 + 1e-12 && y >= 0.3 - 1e-12 && y <= 1 + 1e-12 && z >= 0.4 - 1e-12 && z <= 1 + 1e-12).toBe(true);
   });
 
-  it("reports cubes face to face as touching", () => {
+  it("reports cubes face to face as touching, also as solids", () => {
     const f = conductorProximity(two([1, 0.25, 0.25], 0.5));
+    resolveOverlaps(two([1, 0.25, 0.25], 0.5), f, [true, true]);
     expect(f).toHaveLength(1);
     expect(f[0].kind).toBe("touch");
     expect(f[0].distance).toBe(0);
@@ -193,12 +194,12 @@ describe("conductorProximity", () => {
 
   it("keeps one finding per pair and ignores triangles of the same conductor", () => {
     const m = concatMeshes([gridCube(2, [0, 0, 0], [1, 1, 1], "a"), gridCube(2, [1.05, 0, 0], [1, 1, 1], "b"), gridCube(2, [0, 0, 0.5], [1, 1, 1], "c")]);
-    const f = conductorProximity(m, { solid: [true, true, true] });
-    const pairs = f.map((x) => `${x.a}-${x.b}:${x.kind}`).sort();
-    // a and c share parts of their side faces, facing the same way: the solids overlap.
-    expect(pairs).toEqual(["0-1:gap", "0-2:intersect", "1-2:gap"]);
-    // Not told they are solids, coincident faces are only a contact.
-    expect(conductorProximity(m).map((x) => `${x.a}-${x.b}:${x.kind}`).sort()).toEqual(["0-1:gap", "0-2:touch", "1-2:gap"]);
+    // a and c share parts of their side faces and no triangle pair crosses: a contact, for the surfaces alone.
+    const f = conductorProximity(m);
+    expect(f.map((x) => `${x.a}-${x.b}:${x.kind}`).sort()).toEqual(["0-1:gap", "0-2:touch", "1-2:gap"]);
+    // As closed outward solids, their shared faces face the same way: the solids overlap.
+    resolveOverlaps(m, f, [true, true, true]);
+    expect(f.map((x) => `${x.a}-${x.b}:${x.kind}`).sort()).toEqual(["0-1:gap", "0-2:intersect", "1-2:gap"]);
   });
 });
 
