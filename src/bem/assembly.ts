@@ -14,7 +14,11 @@ import { sharedFloat64, sharedPool, type WorkerPool } from "../linalg/pool.js";
 
 export type Discretisation = "galerkin" | "collocation";
 
-/** Fill rows [rowStart, rowEnd) of the n×n row-major matrix `out`. Galerkin fills j ≥ i and mirrors. */
+/**
+ * Fill rows [rowStart, rowEnd) of the n×n row-major matrix `out`. Galerkin computes the
+ * entries j ≥ i of those rows and mirrors them into column positions (rows below), so the
+ * matrix is complete once every row range has been done; ranges never write the same entry.
+ */
 export function assembleRows(P: PanelSet, method: Discretisation, rowStart: number, rowEnd: number, out: Float64Array): void {
   const n = P.n;
   if (out.length < n * n) throw new Error(`assembleRows: output holds ${out.length} entries, need ${n * n}`);
@@ -23,40 +27,51 @@ export function assembleRows(P: PanelSet, method: Discretisation, rowStart: numb
     return;
   }
   if (method !== "galerkin") throw new Error(`assembleRows: unknown discretisation ${String(method)}`);
+  for (let i0 = rowStart; i0 < rowEnd; i0 += TILE) {
+    const i1 = Math.min(rowEnd, i0 + TILE);
+    for (let i = i0; i < i1; i++) galerkinUpperRow(P, i, out);
+    // Mirror the tile into the lower triangle column-block by column-block, so both the reads
+    // and the writes stay within a few cache lines per step.
+    for (let j = i0 + 1; j < n; j++) {
+      const iEnd = Math.min(i1, j), rowJ = j * n;
+      for (let i = i0; i < iEnd; i++) out[rowJ + i] = out[i * n + j];
+    }
+  }
+}
+
+/** Rows per mirroring tile. */
+const TILE = 32;
+
+/** out[i·n + j] for j ≥ i, the far rung inlined. */
+function galerkinUpperRow(P: PanelSet, i: number, out: Float64Array): void {
+  const n = P.n;
   const c = P.centroids, M = P.moments2, T = P.moments3, V = P.traces3, rad = P.radii;
   const far2 = RHO_FAR * RHO_FAR;
-  for (let i = rowStart; i < rowEnd; i++) {
-    out[i * n + i] = galerkinEntry(P, i, i);
-    const cx = c[3 * i], cy = c[3 * i + 1], cz = c[3 * i + 2], ri = rad[i];
-    const mxx = M[6 * i], myy = M[6 * i + 1], mzz = M[6 * i + 2], mxy = M[6 * i + 3], mxz = M[6 * i + 4], myz = M[6 * i + 5];
-    const ti = 10 * i;
-    const t0 = T[ti], t1 = T[ti + 1], t2 = T[ti + 2], t3 = T[ti + 3], t4 = T[ti + 4], t5 = T[ti + 5], t6 = T[ti + 6];
-    const t7 = T[ti + 7], t8 = T[ti + 8], t9 = T[ti + 9];
-    const vx = V[3 * i], vy = V[3 * i + 1], vz = V[3 * i + 2];
-    for (let j = i + 1; j < n; j++) {
-      const dx = cx - c[3 * j], dy = cy - c[3 * j + 1], dz = cz - c[3 * j + 2];
-      const r2 = dx * dx + dy * dy + dz * dz;
-      const rs = ri + rad[j];
-      let e: number;
-      if (r2 >= far2 * rs * rs) {
-        // Same expression, same operation order as galerkin.ts farTerm.
-        const oj = 6 * j, tj = 10 * j;
-        const sxx = mxx + M[oj], syy = myy + M[oj + 1], szz = mzz + M[oj + 2];
-        const sxy = mxy + M[oj + 3], sxz = mxz + M[oj + 4], syz = myz + M[oj + 5];
-        const uddd = (t0 - T[tj]) * dx * dx * dx + (t1 - T[tj + 1]) * dy * dy * dy + (t2 - T[tj + 2]) * dz * dz * dz
-          + 3 * ((t3 - T[tj + 3]) * dx * dx * dy + (t4 - T[tj + 4]) * dx * dx * dz + (t5 - T[tj + 5]) * dx * dy * dy
-            + (t6 - T[tj + 6]) * dy * dy * dz + (t7 - T[tj + 7]) * dx * dz * dz + (t8 - T[tj + 8]) * dy * dz * dz)
-          + 6 * (t9 - T[tj + 9]) * dx * dy * dz;
-        const vd = (vx - V[3 * j]) * dx + (vy - V[3 * j + 1]) * dy + (vz - V[3 * j + 2]) * dz;
-        const q = sxx * dx * dx + syy * dy * dy + szz * dz * dz + 2 * (sxy * dx * dy + sxz * dx * dz + syz * dy * dz);
-        const inv = 1 / Math.sqrt(r2), inv2 = inv * inv;
-        e = inv * (1 + inv2 * (0.5 * (3 * q * inv2 - (sxx + syy + szz)) + inv2 * (-2.5 * uddd * inv2 + 1.5 * vd)));
-      } else {
-        e = galerkinEntry(P, i, j);
-      }
-      out[i * n + j] = e;
-      out[j * n + i] = e;
-    }
+  const row = i * n;
+  out[row + i] = galerkinEntry(P, i, i);
+  const cx = c[3 * i], cy = c[3 * i + 1], cz = c[3 * i + 2], ri = rad[i];
+  const mxx = M[6 * i], myy = M[6 * i + 1], mzz = M[6 * i + 2], mxy = M[6 * i + 3], mxz = M[6 * i + 4], myz = M[6 * i + 5];
+  const ti = 10 * i;
+  const t0 = T[ti], t1 = T[ti + 1], t2 = T[ti + 2], t3 = T[ti + 3], t4 = T[ti + 4], t5 = T[ti + 5], t6 = T[ti + 6];
+  const t7 = T[ti + 7], t8 = T[ti + 8], t9 = T[ti + 9];
+  const vx = V[3 * i], vy = V[3 * i + 1], vz = V[3 * i + 2];
+  for (let j = i + 1; j < n; j++) {
+    const dx = cx - c[3 * j], dy = cy - c[3 * j + 1], dz = cz - c[3 * j + 2];
+    const r2 = dx * dx + dy * dy + dz * dz;
+    const rs = ri + rad[j];
+    if (r2 < far2 * rs * rs) { out[row + j] = galerkinEntry(P, i, j); continue; }
+    // Same expression, same operation order as galerkin.ts farTerm.
+    const oj = 6 * j, tj = 10 * j;
+    const sxx = mxx + M[oj], syy = myy + M[oj + 1], szz = mzz + M[oj + 2];
+    const sxy = mxy + M[oj + 3], sxz = mxz + M[oj + 4], syz = myz + M[oj + 5];
+    const uddd = (t0 - T[tj]) * dx * dx * dx + (t1 - T[tj + 1]) * dy * dy * dy + (t2 - T[tj + 2]) * dz * dz * dz
+      + 3 * ((t3 - T[tj + 3]) * dx * dx * dy + (t4 - T[tj + 4]) * dx * dx * dz + (t5 - T[tj + 5]) * dx * dy * dy
+        + (t6 - T[tj + 6]) * dy * dy * dz + (t7 - T[tj + 7]) * dx * dz * dz + (t8 - T[tj + 8]) * dy * dz * dz)
+      + 6 * (t9 - T[tj + 9]) * dx * dy * dz;
+    const vd = (vx - V[3 * j]) * dx + (vy - V[3 * j + 1]) * dy + (vz - V[3 * j + 2]) * dz;
+    const q = sxx * dx * dx + syy * dy * dy + szz * dz * dz + 2 * (sxy * dx * dy + sxz * dx * dz + syz * dy * dz);
+    const inv = 1 / Math.sqrt(r2), inv2 = inv * inv;
+    out[row + j] = inv * (1 + inv2 * (0.5 * (3 * q * inv2 - (sxx + syy + szz)) + inv2 * (-2.5 * uddd * inv2 + 1.5 * vd)));
   }
 }
 

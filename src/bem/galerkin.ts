@@ -5,33 +5,37 @@
  * lower index as the outer panel, so P_ij and P_ji are the same floating-point number.
  *
  * The ladder, by ρ = |c_i − c_j| / (r_i + r_j) (centroid distance over the sum of the
- * centroid-to-vertex radii); bounds measured in tests/bem/galerkin.test.ts against a
- * reference with the analytic inner integral and a 4^3-fold subdivided degree-10 outer rule:
- *   i = j            closed form (selfTerm), ~1e-15.
- *   shared vertex    homogeneity reduction to edge integrals (touchingTerm), ≤ 1e-10.
- *   ρ < RHO_NEAR     analytic inner, outer degree-10 rule on T_i split adaptively (outerRuleSplit).
- *   ρ < RHO_MID      analytic inner, outer degree-8 rule.
- *   ρ < RHO_FAR      degree-4 (6-point) rule on both panels.
- *   ρ ≥ RHO_FAR      Taylor expansion about the centroids to third order (farTerm).
- * Measured worst relative errors per rung are listed next to the constants.
+ * centroid-to-vertex radii). Worst relative errors measured against a reference with the
+ * analytic inner integral and a subdivided degree-10 outer rule (tests/bem/galerkin.test.ts on
+ * random pairs, and on icosphere pairs by the ladder section of tests/bench/assembly.bench.mjs):
+ *   i = j              closed form (selfTerm)                                   ~1e-15
+ *   shared vertex      homogeneity reduction to edge integrals (touchingTerm)   ≤ 1e-8 (5e-9)
+ *   ρ < RHO_NEAR       analytic inner, adaptively split degree-10 outer        ≤ 1e-9
+ *   ρ < RHO_MID        degree-6 (12-point) rule on both panels                  ≤ 6e-7
+ *   ρ < RHO_QQ3        degree-4 (6-point) rule on both panels                   ≤ 2e-6
+ *   ρ < RHO_FAR        degree-3 (4-point) rule on both panels                   ≤ 1e-5
+ *   ρ ≥ RHO_FAR        Taylor expansion about the centroids to third order     ≤ 1e-5
+ * So entries with ρ < RHO_MID ("near") are good to 1e-6 and the rest ("far") to 1e-5.
  */
 import type { PanelSet } from "./panels.js";
-import { trianglePotential } from "./triangle-potential.js";
+import { trianglePotential, segmentPotential } from "./triangle-potential.js";
 import { dunavantRule, type TriangleRule } from "./dunavant.js";
 import { gaussLegendre } from "./gauss-legendre.js";
 
 export const RHO_NEAR = 1.0;
 export const RHO_MID = 2.5;
+export const RHO_QQ3 = 3.5;
 export const RHO_FAR = 5.0;
 
 const RULE_NEAR = dunavantRule(10);
-const RULE_MID = dunavantRule(8);
+const RULE_MID = dunavantRule(6);
 const RULE_QQ = dunavantRule(4);
-const GL_SMOOTH = gaussLegendre(12);
+const RULE_QQ3 = dunavantRule(3);
+const GL_SMOOTH = gaussLegendre(10);
 const GL_GRADED = gaussLegendre(8);
 /** Geometric grading toward a shared vertex: interval ratio and number of levels. */
 const GRADE_RATIO = 0.15;
-const GRADE_LEVELS = 9;
+const GRADE_LEVELS = 4;
 
 /** P_ij (1/metre). */
 export function galerkinEntry(P: PanelSet, i: number, j: number): number {
@@ -42,10 +46,11 @@ export function galerkinEntry(P: PanelSet, i: number, j: number): number {
   const d2 = dx * dx + dy * dy + dz * dz;
   const rs = P.radii[i] + P.radii[j];
   if (d2 >= RHO_FAR * RHO_FAR * rs * rs) return farTerm(P, i, j);
+  if (d2 >= RHO_QQ3 * RHO_QQ3 * rs * rs) return doubleQuadrature(P, i, j, RULE_QQ3);
   if (d2 >= RHO_MID * RHO_MID * rs * rs) return doubleQuadrature(P, i, j, RULE_QQ);
   const shared = sharedCorner(P, i, j);
   if (shared >= 0) return touchingTerm(P, i, j, shared);
-  if (d2 >= RHO_NEAR * RHO_NEAR * rs * rs) return outerRule(P, i, j, RULE_MID);
+  if (d2 >= RHO_NEAR * RHO_NEAR * rs * rs) return doubleQuadrature(P, i, j, RULE_MID);
   return outerRuleSplit(P, i, j, RULE_NEAR);
 }
 
@@ -110,11 +115,37 @@ function oppositeEdgeTerm(P: PanelSet, a: number, k: number, b: number): number 
   const g1 = i2 === vb || i2 === vb1 || i2 === vb2;
   const ob = 9 * b;
   let s: number;
-  if (!g0 && !g1) s = lineIntegral(v, ob, x0, y0, z0, ex, ey, ez, 0, 1, GL_SMOOTH);
-  else if (g0 && !g1) s = gradedIntegral(v, ob, x0, y0, z0, ex, ey, ez, 0, 1);
-  else if (!g0 && g1) s = gradedIntegral(v, ob, x0, y0, z0, ex, ey, ez, 1, 0);
-  else s = gradedIntegral(v, ob, x0, y0, z0, ex, ey, ez, 0, 0.5) + gradedIntegral(v, ob, x0, y0, z0, ex, ey, ez, 1, 0.5);
-  return h * L * s;
+  if (!g0 && !g1) return h * L * lineIntegral(v, ob, x0, y0, z0, ex, ey, ez, 0, 1, GL_SMOOTH);
+  if (g0 !== g1) {
+    const w = g0 ? i1 : i2;
+    const kw = w === vb ? 0 : w === vb1 ? 1 : 2;
+    return h * edgeTriangleFromCorner(P, b, kw, g0 ? x0 : x0 + ex, g0 ? y0 : y0 + ey, g0 ? z0 : z0 + ez,
+      g0 ? x0 + ex : x0, g0 ? y0 + ey : y0, g0 ? z0 + ez : z0, L);
+  }
+  // Both ends on T_b: only for duplicated panels; grade toward both ends.
+  return h * L * (gradedIntegral(v, ob, x0, y0, z0, ex, ey, ez, 0, 0.5) + gradedIntegral(v, ob, x0, y0, z0, ex, ey, ez, 1, 0.5));
+}
+
+/**
+ * K = ∫_e I_b dl for the segment e = W→Q that starts at corner kw (= W) of T_b. K is
+ * homogeneous of degree 2; scaling e and T_b about W (the same reduction as touchingTerm) gives
+ *   2K = L·I_b(Q) + h_W ∫_e ∫_{e'} dl' dl / |x − y|,
+ * e' the edge of T_b opposite W and h_W the distance from W to its line. e and e' do not
+ * meet, so the outer line integral of the analytic segment potential is smooth: Gauss–Legendre.
+ */
+function edgeTriangleFromCorner(P: PanelSet, b: number, kw: number, wx: number, wy: number, wz: number,
+  qx: number, qy: number, qz: number, L: number): number {
+  const v = P.vertices, ob = 9 * b;
+  const oa = ob + 3 * ((kw + 1) % 3), oc = ob + 3 * ((kw + 2) % 3);
+  const ax = v[oa], ay = v[oa + 1], az = v[oa + 2], cx = v[oc], cy = v[oc + 1], cz = v[oc + 2];
+  const hW = 2 * P.areas[b] / Math.hypot(cx - ax, cy - ay, cz - az);
+  const R = GL_SMOOTH;
+  let s = 0;
+  for (let k = 0; k < R.n; k++) {
+    const t = R.t[k];
+    s += R.w[k] * segmentPotential(ax, ay, az, cx, cy, cz, wx + t * (qx - wx), wy + t * (qy - wy), wz + t * (qz - wz));
+  }
+  return 0.5 * (L * trianglePotential(v, ob, qx, qy, qz) + hW * L * s);
 }
 
 /** ∫_{ta}^{tb} I_b(p0 + t e) dt with a Gauss–Legendre rule. */

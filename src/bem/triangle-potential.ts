@@ -12,7 +12,9 @@
  *   f  = ln((R⁺ + s⁺)/(R⁻ + s⁻)),
  *   β  = atan(t⁰ s⁺ / (R⁰² + |h| R⁺)) − atan(t⁰ s⁻ / (R⁰² + |h| R⁻)),
  *   I  = Σ_k t⁰ f − |h| Σ_k β,      ∇I = −Σ_k û f − sgn(h) n̂ Σ_k β.
- * Σβ is the solid angle Ω the triangle subtends at x, so the normal derivative is −Ω on the
+ * sgn(h)·Σβ is the signed solid angle Ω the triangle subtends at x, evaluated here in one
+ * atan2 (Van Oosterom & Strackee 1983), so I = Σ t⁰ f − hΩ and ∇I = −Σ û f − n̂Ω. The normal
+ * derivative is −Ω on the
  * +n̂ side and +Ω on the −n̂ side, tending to ∓2π at the panel itself (a jump of 4π in ∂I/∂n,
  * which is the σ/ε jump of the normal field). On the plane (|h| ≤ PLANE_TOLERANCE radii) the normal part is returned as its principal value 0,
  * the mean of the two one-sided limits; callers add ±2π·n̂ for a one-sided value.
@@ -67,27 +69,56 @@ export function trianglePotential(v: ArrayLike<number>, o: number, px: number, p
   }
   nx /= n2; ny /= n2; nz /= n2;
   const h = (px - ax) * nx + (py - ay) * ny + (pz - az) * nz;
-  const ah = Math.abs(h);
-  let sumTf = 0, sumB = 0;
+  return edgeSum(ax, ay, az, bx, by, bz, cx, cy, cz, nx, ny, nz, px, py, pz, null, 0) - h * solidAngle(ax - px, ay - py, az - pz, bx - px, by - py, bz - pz, cx - px, cy - py, cz - pz);
+}
+
+/**
+ * Σ_k t⁰_k f_k (metres), and −Σ_k û_k f_k added into g[go..go+2] when g is given. R∓ of edge k
+ * are the distances from x to its end vertices, shared between edges.
+ */
+function edgeSum(ax: number, ay: number, az: number, bx: number, by: number, bz: number, cx: number, cy: number, cz: number,
+  nx: number, ny: number, nz: number, px: number, py: number, pz: number, g: Float64Array | null, go: number): number {
+  const ra = Math.sqrt((ax - px) ** 2 + (ay - py) ** 2 + (az - pz) ** 2);
+  const rb = Math.sqrt((bx - px) ** 2 + (by - py) ** 2 + (bz - pz) ** 2);
+  const rc = Math.sqrt((cx - px) ** 2 + (cy - py) ** 2 + (cz - pz) ** 2);
+  const h = (px - ax) * nx + (py - ay) * ny + (pz - az) * nz;
+  const h2 = h * h;
+  let sum = 0;
   for (let k = 0; k < 3; k++) {
-    let x0, y0, z0, x1, y1, z1;
-    if (k === 0) { x0 = ax; y0 = ay; z0 = az; x1 = bx; y1 = by; z1 = bz; }
-    else if (k === 1) { x0 = bx; y0 = by; z0 = bz; x1 = cx; y1 = cy; z1 = cz; }
-    else { x0 = cx; y0 = cy; z0 = cz; x1 = ax; y1 = ay; z1 = az; }
+    let x0, y0, z0, x1, y1, z1, Rm, Rp;
+    if (k === 0) { x0 = ax; y0 = ay; z0 = az; x1 = bx; y1 = by; z1 = bz; Rm = ra; Rp = rb; }
+    else if (k === 1) { x0 = bx; y0 = by; z0 = bz; x1 = cx; y1 = cy; z1 = cz; Rm = rb; Rp = rc; }
+    else { x0 = cx; y0 = cy; z0 = cz; x1 = ax; y1 = ay; z1 = az; Rm = rc; Rp = ra; }
     let lx = x1 - x0, ly = y1 - y0, lz = z1 - z0;
     const L = Math.sqrt(lx * lx + ly * ly + lz * lz);
     lx /= L; ly /= L; lz /= L;
     const ux = ly * nz - lz * ny, uy = lz * nx - lx * nz, uz = lx * ny - ly * nx;
     const wx = x0 - px, wy = y0 - py, wz = z0 - pz;
     const t0 = wx * ux + wy * uy + wz * uz;
-    if (t0 === 0) continue;
+    // x on this edge's line at an end vertex: t⁰f → 0, and the in-plane gradient is singular.
+    if ((t0 === 0 && g === null) || Rm === 0 || Rp === 0) continue;
     const sm = wx * lx + wy * ly + wz * lz, sp = sm + L;
-    const R02 = t0 * t0 + h * h;
-    const Rm = Math.sqrt(sm * sm + R02), Rp = Math.sqrt(sp * sp + R02);
-    sumTf += t0 * edgeLog(L, sm, sp, Rm, Rp, R02);
-    sumB += Math.atan(t0 * sp / (R02 + ah * Rp)) - Math.atan(t0 * sm / (R02 + ah * Rm));
+    const f = edgeLog(L, sm, sp, Rm, Rp, t0 * t0 + h2);
+    if (g !== null) { g[go] -= ux * f; g[go + 1] -= uy * f; g[go + 2] -= uz * f; }
+    if (t0 !== 0) sum += t0 * f;
   }
-  return sumTf - ah * sumB;
+  return sum;
+}
+
+/**
+ * Signed solid angle of the triangle (corners relative to x), positive seen from the +n̂ side:
+ * Van Oosterom & Strackee, IEEE Trans. Biomed. Eng. 30(2):125–126, 1983. Equals sgn(h)·Σβ of
+ * Wilton et al., in one atan2 instead of six atans.
+ */
+function solidAngle(ax: number, ay: number, az: number, bx: number, by: number, bz: number, cx: number, cy: number, cz: number): number {
+  const la = Math.sqrt(ax * ax + ay * ay + az * az);
+  const lb = Math.sqrt(bx * bx + by * by + bz * bz);
+  const lc = Math.sqrt(cx * cx + cy * cy + cz * cz);
+  const trip = ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
+  const den = la * lb * lc + (ax * bx + ay * by + az * bz) * lc + (ax * cx + ay * cy + az * cz) * lb
+    + (bx * cx + by * cy + bz * cz) * la;
+  // Seen from the +n̂ side the corners run counter-clockwise, making the triple product negative.
+  return -2 * Math.atan2(trip, den);
 }
 
 /** f = ln((R⁺+s⁺)/(R⁻+s⁻)) = ∫_edge dl / distance, formed without cancellation. */
@@ -102,9 +133,27 @@ function edgeLog(L: number, sm: number, sp: number, Rm: number, Rp: number, R02:
 }
 
 /**
+ * ∫_segment dl / |x − y| over the straight segment a→b (dimensionless): the f of the module
+ * comment, ln((R⁺ + s⁺)/(R⁻ + s⁻)), with the same cancellation-free evaluation. Infinite on the
+ * segment itself.
+ */
+export function segmentPotential(ax: number, ay: number, az: number, bx: number, by: number, bz: number,
+  px: number, py: number, pz: number): number {
+  let lx = bx - ax, ly = by - ay, lz = bz - az;
+  const L = Math.sqrt(lx * lx + ly * ly + lz * lz);
+  lx /= L; ly /= L; lz /= L;
+  const wx = ax - px, wy = ay - py, wz = az - pz;
+  const sm = wx * lx + wy * ly + wz * lz, sp = sm + L;
+  const cx = wy * lz - wz * ly, cy = wz * lx - wx * lz, cz = wx * ly - wy * lx;
+  const R02 = cx * cx + cy * cy + cz * cz;
+  return edgeLog(L, sm, sp, Math.sqrt(sm * sm + R02), Math.sqrt(sp * sp + R02), R02);
+}
+
+/**
  * ∇I(x) into out[oo..oo+2] (dimensionless) and I(x) as the return value (metres). The field of
  * a panel of density σ is −σ/(4πε)·∇I. Normal component at h = 0 is the principal value
- * (see the module comment); the in-plane part is infinite exactly on an edge.
+ * (see the module comment). The in-plane part is log-singular on the edges: exactly on an edge
+ * it is infinite, exactly at a vertex the singular terms are left out (no meaningful value).
  */
 export function trianglePotentialGradient(out: Float64Array, oo: number, v: ArrayLike<number>, o: number,
   px: number, py: number, pz: number): number {
@@ -144,35 +193,12 @@ export function trianglePotentialGradient(out: Float64Array, oo: number, v: Arra
   }
   nx /= n2; ny /= n2; nz /= n2;
   const h = (px - ax) * nx + (py - ay) * ny + (pz - az) * nz;
-  const ah = Math.abs(h);
-  let sumTf = 0, sumB = 0, gxs = 0, gys = 0, gzs = 0;
-  for (let k = 0; k < 3; k++) {
-    let x0, y0, z0, x1, y1, z1;
-    if (k === 0) { x0 = ax; y0 = ay; z0 = az; x1 = bx; y1 = by; z1 = bz; }
-    else if (k === 1) { x0 = bx; y0 = by; z0 = bz; x1 = cx; y1 = cy; z1 = cz; }
-    else { x0 = cx; y0 = cy; z0 = cz; x1 = ax; y1 = ay; z1 = az; }
-    let lx = x1 - x0, ly = y1 - y0, lz = z1 - z0;
-    const L = Math.sqrt(lx * lx + ly * ly + lz * lz);
-    lx /= L; ly /= L; lz /= L;
-    const ux = ly * nz - lz * ny, uy = lz * nx - lx * nz, uz = lx * ny - ly * nx;
-    const wx = x0 - px, wy = y0 - py, wz = z0 - pz;
-    const t0 = wx * ux + wy * uy + wz * uz;
-    const sm = wx * lx + wy * ly + wz * lz, sp = sm + L;
-    const R02 = t0 * t0 + h * h;
-    const Rm = Math.sqrt(sm * sm + R02), Rp = Math.sqrt(sp * sp + R02);
-    const f = edgeLog(L, sm, sp, Rm, Rp, R02);
-    gxs -= ux * f; gys -= uy * f; gzs -= uz * f;
-    if (t0 === 0) continue;
-    sumTf += t0 * f;
-    sumB += Math.atan(t0 * sp / (R02 + ah * Rp)) - Math.atan(t0 * sm / (R02 + ah * Rm));
-  }
+  const tf = edgeSum(ax, ay, az, bx, by, bz, cx, cy, cz, nx, ny, nz, px, py, pz, out, oo);
   // A point computed to lie on the panel carries a rounding-level h; it gets the principal value.
-  const onPlane = ah <= PLANE_TOLERANCE * Math.sqrt(r2);
-  const sg = onPlane ? 0 : h > 0 ? 1 : -1;
-  out[oo] = gxs - sg * nx * sumB;
-  out[oo + 1] = gys - sg * ny * sumB;
-  out[oo + 2] = gzs - sg * nz * sumB;
-  return sumTf - ah * sumB;
+  if (Math.abs(h) <= PLANE_TOLERANCE * Math.sqrt(r2)) return tf;
+  const om = solidAngle(ax - px, ay - py, az - pz, bx - px, by - py, bz - pz, cx - px, cy - py, cz - pz);
+  out[oo] -= nx * om; out[oo + 1] -= ny * om; out[oo + 2] -= nz * om;
+  return tf - h * om;
 }
 
 /**
@@ -180,16 +206,6 @@ export function trianglePotentialGradient(out: Float64Array, oo: number, v: Arra
  * at x, i.e. sgn(h)·Σβ of the formula above, so that ∂I/∂n = −Ω on both sides.
  */
 export function triangleSolidAngle(v: ArrayLike<number>, o: number, px: number, py: number, pz: number): number {
-  // Van Oosterom & Strackee, IEEE Trans. Biomed. Eng. 30(2):125–126, 1983: tan(Ω/2) formula.
-  const ax = v[o] - px, ay = v[o + 1] - py, az = v[o + 2] - pz;
-  const bx = v[o + 3] - px, by = v[o + 4] - py, bz = v[o + 5] - pz;
-  const cx = v[o + 6] - px, cy = v[o + 7] - py, cz = v[o + 8] - pz;
-  const la = Math.sqrt(ax * ax + ay * ay + az * az);
-  const lb = Math.sqrt(bx * bx + by * by + bz * bz);
-  const lc = Math.sqrt(cx * cx + cy * cy + cz * cz);
-  const trip = ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
-  const den = la * lb * lc + (ax * bx + ay * by + az * bz) * lc + (ax * cx + ay * cy + az * cz) * lb
-    + (bx * cx + by * cy + bz * cz) * la;
-  // Seen from the +n̂ side the corners run counter-clockwise, making the triple product negative.
-  return -2 * Math.atan2(trip, den);
+  return solidAngle(v[o] - px, v[o + 1] - py, v[o + 2] - pz, v[o + 3] - px, v[o + 4] - py, v[o + 5] - pz,
+    v[o + 6] - px, v[o + 7] - py, v[o + 8] - pz);
 }
