@@ -1,6 +1,6 @@
 /**
- * The loading pipeline: bytes → reader (file units) → metres → groups chosen and named →
- * weld → degenerate triangles dropped → conductors (optionally split into connected
+ * The loading pipeline: bytes → reader (file units) → groups chosen and named → weld →
+ * metres → degenerate triangles dropped → conductors (optionally split into connected
  * components or merged into one).
  *
  * Naming: a file holding one body gives one conductor named after the file stem (or
@@ -130,7 +130,7 @@ export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOption
     names = [base];
   }
 
-  // Keep the chosen triangles, in metres.
+  // Keep the chosen triangles.
   let kept = 0;
   for (let t = 0; t < nt; t++) if (conductorOf[raw.group[t]] >= 0) kept++;
   const tri = kept === nt ? raw.triangles : new Uint32Array(3 * kept);
@@ -141,12 +141,13 @@ export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOption
     if (tri !== raw.triangles) { tri[3 * k] = raw.triangles[3 * t]; tri[3 * k + 1] = raw.triangles[3 * t + 1]; tri[3 * k + 2] = raw.triangles[3 * t + 2]; }
     cond[k++] = c;
   }
-  const metres = new Float64Array(raw.positions.length);
-  for (let i = 0; i < metres.length; i++) metres[i] = raw.positions[i] * scale;
-
   const tol = opts.weldTolerance ?? DEFAULT_WELD_TOLERANCE;
   if (!(tol >= 0) || !Number.isFinite(tol)) throw new InputError(`weld tolerance ${tol} must be a finite number >= 0`, file);
-  const welded = weldVertices(metres, tri, tol);
+  // The tolerance is relative, so welding in file units is the same weld; scaling afterwards
+  // touches the welded vertices only (a sixth of an STL soup).
+  const welded = weldVertices(raw.positions, tri, tol);
+  const wp = welded.positions;
+  for (let i = 0; i < wp.length; i++) wp[i] *= scale;
   const clean = dropDegenerate(welded.positions, welded.triangles, cond);
   if (clean.dropped > 0) {
     warnings.push({ file, message: `${clean.dropped} degenerate triangle(s) dropped (repeated vertex or zero area after welding)` });
