@@ -5,7 +5,9 @@
  * Conductors: `o` names objects, `g` names groups. When a file has any `o` statement the
  * objects are the conductors and the groups inside them are parts of the same body (CAD and
  * Blender exports use `g` for material or face sets within one object). A file without `o`
- * takes its conductors from `g`. Faces before any name form an unnamed group.
+ * takes its conductors from `g`. Faces before any name form an unnamed group. A statement
+ * naming several groups (`g a b`) is taken as one group named by the whole list ("a b");
+ * `g default` is the unnamed group.
  *
  * Polygons: convex ones are fanned from their first vertex; non-convex planar ones are cut
  * by ear clipping (the two-ears theorem, G. H. Meisters, "Polygons have ears", Amer. Math.
