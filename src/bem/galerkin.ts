@@ -24,7 +24,7 @@ import { gaussLegendre } from "./gauss-legendre.js";
 
 export const RHO_NEAR = 1.0;
 export const RHO_MID = 2.5;
-export const RHO_QQ3 = 3.5;
+export const RHO_QQ3 = 4.0;
 export const RHO_FAR = 5.0;
 
 const RULE_NEAR = dunavantRule(10);
