@@ -11,7 +11,7 @@
  * Kernels work on scalars and module-level scratch: no allocation per triangle pair.
  */
 import { type SurfaceMesh, triangleCount, boundingDiagonal } from "./model.js";
-import { buildBoxTree, triangleBoxes, forEachOverlappingPair, nodeLabels, nearestItem, type BoxTree } from "./bvh.js";
+import { buildBoxTree, triangleBoxes, forEachOverlappingPair, forEachItemInBox, nodeLabels, nearestItem, type BoxTree } from "./bvh.js";
 import { panelSizes } from "./quality.js";
 
 const cp = new Float64Array(3);
@@ -449,11 +449,28 @@ export function conductorProximity(mesh: SurfaceMesh, opts: ProximityOptions = {
   const found = new Map<number, ProximityFinding>();
   const nc = mesh.names.length;
   const closest = new Float64Array(6);
+  const ib = tree.itemBounds;
   forEachOverlappingPair(tree, (i, j) => {
     const local = Math.max(h[i], h[j]);
+    const tol = Math.max(touchRel * local, floor);
+    // Distance between the unpadded boxes bounds the triangles' distance from below: skip
+    // pairs that cannot be near enough, or cannot improve on what this conductor pair has.
+    let lb2 = 0;
+    for (let k = 0; k < 3; k++) {
+      const g = Math.max(ib[6 * j + k] + pad[j] - (ib[6 * i + 3 + k] - pad[i]), ib[6 * i + k] + pad[i] - (ib[6 * j + 3 + k] - pad[j]), 0);
+      lb2 += g * g;
+    }
+    const lb = Math.sqrt(lb2);
+    if (lb >= gapFactor * local) return;
+    const key0 = cond[i] < cond[j] ? cond[i] * nc + cond[j] : cond[j] * nc + cond[i];
+    const seen = found.get(key0);
+    if (seen !== undefined) {
+      if (seen.kind === "intersect") return;
+      if (seen.kind === "touch" && lb > tol) return;
+      if (seen.kind === "gap" && lb >= seen.distance) return;
+    }
     const d = triangleTriangleDistance(p, tr, i, j, closest);
     if (!(d < gapFactor * local)) return;
-    const tol = Math.max(touchRel * local, floor);
     let kind: ProximityKind = "gap";
     if (d <= tol) {
       loadPair(p, tr, i, j);
@@ -597,10 +614,17 @@ export function enclosedConductors(mesh: SurfaceMesh, closed: boolean[], boxes: 
   const nc = mesh.names.length;
   const out: EnclosedConductor[] = [];
   const p = mesh.positions, tr = mesh.triangles;
+  // Conductor boxes in a tree of their own, so that many small conductors cost N log N, not N².
+  const flat = new Float64Array(6 * nc);
+  for (let c = 0; c < nc; c++) flat.set(groups.offset[c + 1] > groups.offset[c] ? boxes[c] : [NaN, NaN, NaN, NaN, NaN, NaN], 6 * c);
+  const tree = buildBoxTree(flat);
+  const nested: number[] = [];
   for (let o = 0; o < nc; o++) {
     if (!closed[o] || groups.offset[o + 1] === groups.offset[o]) continue;
     const ob = boxes[o];
-    for (let inner = 0; inner < nc; inner++) {
+    nested.length = 0;
+    forEachItemInBox(tree, flat, (i) => { nested.push(i); }, 6 * o);
+    for (const inner of nested) {
       if (inner === o || groups.offset[inner + 1] === groups.offset[inner]) continue;
       const ib = boxes[inner];
       if (!(ob[0] <= ib[0] && ob[1] <= ib[1] && ob[2] <= ib[2] && ob[3] >= ib[3] && ob[4] >= ib[4] && ob[5] >= ib[5])) continue;

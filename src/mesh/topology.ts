@@ -9,6 +9,7 @@
  * mesh costs a few flat arrays and no per-edge objects.
  */
 import { type SurfaceMesh, triangleCount } from "./model.js";
+import { buildBoxTree, forEachItemInBox } from "./bvh.js";
 
 export interface EdgeTable {
   edgeCount: number;
@@ -289,12 +290,20 @@ export function orientSurfaces(mesh: SurfaceMesh, table: EdgeTable = buildEdgeTa
     const ox = 0.5 * (b[0] + b[3]), oy = 0.5 * (b[1] + b[4]), oz = 0.5 * (b[2] + b[5]);
     c.signedVolume = signedVolume(p, tr, queue, compStart[ci], compStart[ci + 1], flip, ox, oy, oz);
   }
-  for (const bi of closedIdx) {
+  // Component boxes in a tree, so that many closed components cost N log N to test for nesting, not N².
+  const flat = new Float64Array(6 * closedIdx.length);
+  closedIdx.forEach((ci, k) => flat.set(compBox[ci], 6 * k));
+  const boxTree = buildBoxTree(flat);
+  const around: number[] = [];
+  for (let kb = 0; kb < closedIdx.length; kb++) {
+    const bi = closedIdx[kb];
     const inner = components[bi], bb = compBox[bi];
     const t0 = queue[compStart[bi]];
     const a = 3 * tr[3 * t0], b = 3 * tr[3 * t0 + 1], c = 3 * tr[3 * t0 + 2];
     const x = (p[a] + p[b] + p[c]) / 3, y = (p[a + 1] + p[b + 1] + p[c + 1]) / 3, z = (p[a + 2] + p[b + 2] + p[c + 2]) / 3;
-    for (const ai of closedIdx) {
+    around.length = 0;
+    forEachItemInBox(boxTree, flat, (k) => { around.push(closedIdx[k]); }, 6 * kb);
+    for (const ai of around) {
       if (ai === bi || components[ai].conductor !== inner.conductor) continue;
       const ab = compBox[ai];
       if (!(ab[0] <= bb[0] && ab[1] <= bb[1] && ab[2] <= bb[2] && ab[3] >= bb[3] && ab[4] >= bb[4] && ab[5] >= bb[5])) continue;

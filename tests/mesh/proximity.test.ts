@@ -203,6 +203,38 @@ describe("conductorProximity", () => {
   });
 });
 
+describe("conductorProximity against all pairs", () => {
+  it("finds the same conductor pairs and minimum gaps as a brute-force scan (property)", () => {
+    const out = new Float64Array(6);
+    const tri = fc.tuple(coord, coord, coord, fc.array(fc.integer({ min: -60, max: 60 }).map((k) => k / 100), { minLength: 9, maxLength: 9 }), fc.nat(3));
+    fc.assert(fc.property(fc.array(tri, { minLength: 2, maxLength: 60 }), (items) => {
+      const n = items.length;
+      const p = new Float64Array(9 * n), t = new Uint32Array(3 * n), c = new Uint32Array(n);
+      items.forEach(([x, y, z, d, k], i) => {
+        for (let v = 0; v < 3; v++) { p[9 * i + 3 * v] = x + d[3 * v]; p[9 * i + 3 * v + 1] = y + d[3 * v + 1]; p[9 * i + 3 * v + 2] = z + d[3 * v + 2]; t[3 * i + v] = 3 * i + v; }
+        c[i] = k;
+      });
+      const mesh: SurfaceMesh = { positions: p, triangles: t, conductor: c, names: ["a", "b", "c", "d"] };
+      const h = (i: number) => Math.max(...[0, 1, 2].map((v) => { const a = 3 * t[3 * i + v], b = 3 * t[3 * i + ((v + 1) % 3)]; return Math.hypot(p[b] - p[a], p[b + 1] - p[a + 1], p[b + 2] - p[a + 2]); }));
+      const best = new Map<string, number>();
+      for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) {
+        if (c[i] === c[j]) continue;
+        const d = triangleTriangleDistance(p, t, i, j, out);
+        if (!(d < Math.max(h(i), h(j)))) continue;
+        const key = `${Math.min(c[i], c[j])}-${Math.max(c[i], c[j])}`;
+        best.set(key, Math.min(best.get(key) ?? Infinity, d));
+      }
+      const got = conductorProximity(mesh);
+      expect(got.map((f) => `${f.a}-${f.b}`).sort()).toEqual([...best.keys()].sort());
+      for (const f of got) {
+        const want = best.get(`${f.a}-${f.b}`)!;
+        if (f.kind === "gap") expect(f.distance).toBeCloseTo(want, 12);
+        else expect(want).toBeLessThanOrEqual(1e-5);
+      }
+    }), { numRuns: 150 });
+  });
+});
+
 describe("nearestTriangle", () => {
   it("matches brute force on a cube", () => {
     const m = gridCube(3, [0, 0, 0], [1, 2, 3], "c");
