@@ -142,6 +142,19 @@ describe("triangle–triangle intersection (Möller 1997)", () => {
       return true;
     }), { numRuns: 2000 });
     expect(hits).toBeGreaterThan(10);
+    // Pairs built near each other, so that about half of them intersect.
+    let near = 0, misses = 0;
+    fc.assert(fc.property(tri9, fc.array(fc.integer({ min: -100, max: 100 }).map((k) => k / 100), { minLength: 9, maxLength: 9 }), (a, dv) => {
+      const b = a.map((x, i) => x + dv[i]);
+      const { p, t } = pairMesh(a, b);
+      const d = triangleTriangleDistance(p, t, 0, 1, out);
+      const x = trianglesIntersect(p, t, 0, 1);
+      if (d === 0) { near++; return x; }
+      if (d > 1e-6) { misses++; return !x; }
+      return true;
+    }), { numRuns: 2000 });
+    expect(near).toBeGreaterThan(50);
+    expect(misses).toBeGreaterThan(300);
   });
 });
 
