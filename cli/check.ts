@@ -3,7 +3,7 @@
  * a solve. A thin shell over `loadMeshFiles`, `checkMesh` and `formatCheckSummary`.
  *
  * Exit codes: 0 clean (warnings allowed); 2 bad input, and also when conductors
- * intersect, touch or lie inside one another (the check failed; the report is still
+ * intersect or touch (the check failed; the report is still
  * printed and written); 1 internal error.
  *
  * JSON report (`--json <path|->`, written atomically; every quantity in SI units:
@@ -32,7 +32,7 @@
  *     worstAspectAt centroid of that triangle (m)
  *     degenerateTriangles
  *   pairs           findings between conductors, worst first:
- *     kind          "intersect" | "inside" | "touch" (errors) | "gap" (warning: narrower than the local panel size)
+ *     kind          "intersect" | "touch" (errors) | "inside" (warning: inside the closed surface of b, taken as a shell) | "gap" (warning: narrower than the local panel size)
  *     severity      "error" | "warning"
  *     a, b          conductor names (for inside: a lies inside b)
  *     distance      smallest distance found (m); position: where (m)

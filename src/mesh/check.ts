@@ -42,7 +42,7 @@ export type PairKind = "intersect" | "touch" | "inside" | "gap";
 
 export interface PairCheck {
   kind: PairKind;
-  /** intersect, touch and inside fail the check; gap is a warning. */
+  /** intersect and touch fail the check; inside and gap are warnings. */
   severity: "error" | "warning";
   a: string;
   b: string;
@@ -145,13 +145,16 @@ function assemble(
     });
   }
   // A conductor inside another's material may meet no surface of it (or only touch it at its
-  // rim, like a plate across a box); only an enclosure test sees it. It replaces a touch or gap
-  // finding for the same pair, not an intersection.
+  // rim, like a plate across a box); only an enclosure test sees it. It replaces a gap finding
+  // for the same pair, not an intersection or a contact (those stay errors).
   for (const e of enclosedConductors(oriented.mesh, solid, boxes, groups)) {
     const a = mesh.names[Math.min(e.inner, e.outer)], b = mesh.names[Math.max(e.inner, e.outer)];
     const k = pairs.findIndex((x) => x.a === a && x.b === b);
-    if (k >= 0 && pairs[k].kind === "intersect") continue;
-    const entry: PairCheck = { kind: "inside", severity: "error", a: mesh.names[e.inner], b: mesh.names[e.outer], distance: 0, position: e.position, panelSize: null };
+    if (k >= 0 && (pairs[k].kind === "intersect" || pairs[k].kind === "touch")) continue;
+    // A single closed surface may be a solid body or a zero-thickness shell around a cavity:
+    // the boundary-element model is the same for both from outside, and a conductor in a
+    // shell's cavity is a legal, common model (a shielded electrode). So this warns.
+    const entry: PairCheck = { kind: "inside", severity: "warning", a: mesh.names[e.inner], b: mesh.names[e.outer], distance: 0, position: e.position, panelSize: null };
     if (k >= 0) pairs[k] = entry; else pairs.push(entry);
   }
   const rank: Record<PairKind, number> = { intersect: 3, inside: 2, touch: 1, gap: 0 };

@@ -55,7 +55,7 @@ export function pairSentence(p: PairCheck, unit: LengthUnit): string {
   switch (p.kind) {
     case "intersect": return `conductors ${p.a} and ${p.b} intersect at ${at}`;
     case "touch": return `conductors ${p.a} and ${p.b} touch at ${at}${p.distance > 0 ? ` (gap ${formatLength(p.distance, unit)}, within the contact tolerance)` : ""}; touching conductors are one net: merge them or separate them`;
-    case "inside": return `conductor ${p.a} lies inside conductor ${p.b} (at ${at})`;
+    case "inside": return `conductor ${p.a} lies inside the closed surface of conductor ${p.b} (at ${at}): ${p.b} is taken as a zero-thickness shell around a cavity; if ${p.b} is solid there, the model is wrong`;
     case "gap": return `conductors ${p.a} and ${p.b} are only ${formatLength(p.distance, unit)} apart at ${at}, less than the local panel size ${formatLength(p.panelSize ?? NaN, unit)}; the boundary-element answer loses accuracy there: refine the mesh near the gap`;
   }
 }
