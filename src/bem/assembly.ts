@@ -8,7 +8,7 @@
  * galerkinEntry. Both paths give identical numbers, so the dense matrix equals the entries.
  */
 import type { PanelSet } from "./panels.js";
-import { galerkinEntry, RHO_FAR } from "./galerkin.js";
+import { galerkinEntry, RHO_FAR, RHO_QUADRUPOLE } from "./galerkin.js";
 import { collocationEntry } from "./collocation.js";
 import { sharedFloat64, sharedPool, type WorkerPool } from "../linalg/pool.js";
 
@@ -34,7 +34,7 @@ export function assembleRows(P: PanelSet, method: Discretisation, rowStart: numb
     // and the writes stay within a few cache lines per step.
     for (let j = i0 + 1; j < n; j++) {
       const iEnd = Math.min(i1, j), rowJ = j * n;
-      for (let i = i0; i < iEnd; i++) out[rowJ + i] = out[i * n + j];
+      for (let i = i0, src = i0 * n + j; i < iEnd; i++, src += n) out[rowJ + i] = out[src];
     }
   }
 }
@@ -46,7 +46,7 @@ const TILE = 32;
 function galerkinUpperRow(P: PanelSet, i: number, out: Float64Array): void {
   const n = P.n;
   const c = P.centroids, M = P.moments2, T = P.moments3, V = P.traces3, rad = P.radii;
-  const far2 = RHO_FAR * RHO_FAR;
+  const far2 = RHO_FAR * RHO_FAR, quad2 = RHO_QUADRUPOLE * RHO_QUADRUPOLE;
   const row = i * n;
   out[row + i] = galerkinEntry(P, i, i);
   const cx = c[3 * i], cy = c[3 * i + 1], cz = c[3 * i + 2], ri = rad[i];
@@ -59,18 +59,21 @@ function galerkinUpperRow(P: PanelSet, i: number, out: Float64Array): void {
     const dx = cx - c[3 * j], dy = cy - c[3 * j + 1], dz = cz - c[3 * j + 2];
     const r2 = dx * dx + dy * dy + dz * dz;
     const rs = ri + rad[j];
-    if (r2 < far2 * rs * rs) { out[row + j] = galerkinEntry(P, i, j); continue; }
-    // Same expression, same operation order as galerkin.ts farTerm.
-    const oj = 6 * j, tj = 10 * j;
+    const rs2 = rs * rs;
+    if (r2 < far2 * rs2) { out[row + j] = galerkinEntry(P, i, j); continue; }
+    // Same expressions, same operation order as galerkin.ts quadrupoleTerm and farTerm.
+    const oj = 6 * j;
     const sxx = mxx + M[oj], syy = myy + M[oj + 1], szz = mzz + M[oj + 2];
     const sxy = mxy + M[oj + 3], sxz = mxz + M[oj + 4], syz = myz + M[oj + 5];
+    const q = sxx * dx * dx + syy * dy * dy + szz * dz * dz + 2 * (sxy * dx * dy + sxz * dx * dz + syz * dy * dz);
+    const inv = 1 / Math.sqrt(r2), inv2 = inv * inv;
+    if (r2 >= quad2 * rs2) { out[row + j] = inv * (1 + 0.5 * inv2 * (3 * q * inv2 - (sxx + syy + szz))); continue; }
+    const tj = 10 * j;
     const uddd = (t0 - T[tj]) * dx * dx * dx + (t1 - T[tj + 1]) * dy * dy * dy + (t2 - T[tj + 2]) * dz * dz * dz
       + 3 * ((t3 - T[tj + 3]) * dx * dx * dy + (t4 - T[tj + 4]) * dx * dx * dz + (t5 - T[tj + 5]) * dx * dy * dy
         + (t6 - T[tj + 6]) * dy * dy * dz + (t7 - T[tj + 7]) * dx * dz * dz + (t8 - T[tj + 8]) * dy * dz * dz)
       + 6 * (t9 - T[tj + 9]) * dx * dy * dz;
     const vd = (vx - V[3 * j]) * dx + (vy - V[3 * j + 1]) * dy + (vz - V[3 * j + 2]) * dz;
-    const q = sxx * dx * dx + syy * dy * dy + szz * dz * dz + 2 * (sxy * dx * dy + sxz * dx * dz + syz * dy * dz);
-    const inv = 1 / Math.sqrt(r2), inv2 = inv * inv;
     out[row + j] = inv * (1 + inv2 * (0.5 * (3 * q * inv2 - (sxx + syy + szz)) + inv2 * (-2.5 * uddd * inv2 + 1.5 * vd)));
   }
 }
@@ -112,11 +115,16 @@ export function sharedPanels(P: PanelSet): PanelSet {
 
 /**
  * The full n×n matrix (row-major, in shared memory), assembled on every worker of `pool`
- * (default: the process-wide pool) in equal-work row blocks.
+ * (default: the process-wide pool) in equal-work row blocks. `out` may pass in a shared
+ * n×n buffer to reuse (its first touch costs page faults: about 0.1 s at n = 5120).
  */
-export async function assembleDense(P: PanelSet, method: Discretisation, pool: WorkerPool = sharedPool()): Promise<Float64Array> {
+export async function assembleDense(P: PanelSet, method: Discretisation, pool: WorkerPool = sharedPool(),
+  out?: Float64Array): Promise<Float64Array> {
   const n = P.n;
-  const out = sharedFloat64(n * n);
+  if (out === undefined) out = sharedFloat64(n * n);
+  else if (!(out.buffer instanceof SharedArrayBuffer) || out.length < n * n) {
+    throw new Error(`assembleDense: out must be a shared buffer of at least ${n * n} entries`);
+  }
   const S = sharedPanels(P);
   const parts = Math.max(1, Math.min(pool.size, n));
   const b = rowSplit(n, parts, method);

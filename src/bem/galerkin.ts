@@ -14,7 +14,8 @@
  *   ρ < RHO_MID        degree-6 (12-point) rule on both panels                  ≤ 6e-7
  *   ρ < RHO_QQ3        degree-4 (6-point) rule on both panels                   ≤ 2e-6
  *   ρ < RHO_FAR        degree-3 (4-point) rule on both panels                   ≤ 1e-5
- *   ρ ≥ RHO_FAR        Taylor expansion about the centroids to third order     ≤ 1e-5
+ *   ρ < RHO_QUADRUPOLE Taylor expansion about the centroids to third order     ≤ 1e-5
+ *   ρ ≥ RHO_QUADRUPOLE the same to second order (quadrupoleTerm)               ≤ 5e-6 (icosphere)
  * So entries with ρ < RHO_MID ("near") are good to 1e-6 and the rest ("far") to 1e-5.
  */
 import type { PanelSet } from "./panels.js";
@@ -26,6 +27,7 @@ export const RHO_NEAR = 1.0;
 export const RHO_MID = 2.5;
 export const RHO_QQ3 = 4.0;
 export const RHO_FAR = 5.0;
+export const RHO_QUADRUPOLE = 12.0;
 
 const RULE_NEAR = dunavantRule(10);
 const RULE_MID = dunavantRule(6);
@@ -45,6 +47,7 @@ export function galerkinEntry(P: PanelSet, i: number, j: number): number {
   const dx = c[3 * i] - c[3 * j], dy = c[3 * i + 1] - c[3 * j + 1], dz = c[3 * i + 2] - c[3 * j + 2];
   const d2 = dx * dx + dy * dy + dz * dz;
   const rs = P.radii[i] + P.radii[j];
+  if (d2 >= RHO_QUADRUPOLE * RHO_QUADRUPOLE * rs * rs) return quadrupoleTerm(P, i, j);
   if (d2 >= RHO_FAR * RHO_FAR * rs * rs) return farTerm(P, i, j);
   if (d2 >= RHO_QQ3 * RHO_QQ3 * rs * rs) return doubleQuadrature(P, i, j, RULE_QQ3);
   if (d2 >= RHO_MID * RHO_MID * rs * rs) return doubleQuadrature(P, i, j, RULE_QQ);
@@ -224,25 +227,43 @@ function outerOn(v: Float64Array, oj: number, ax: number, ay: number, az: number
   return s;
 }
 
+/** Quadrature points of the second panel, laid out once per entry (module scratch, no allocation). */
+const YS = new Float64Array(3 * 64);
+
 /** The same rule on both panels: Σ_k Σ_l w_k w_l / |x_k − y_l|. */
 export function doubleQuadrature(P: PanelSet, i: number, j: number, R: TriangleRule): number {
   const v = P.vertices, o = 9 * i, p = 9 * j;
   const ax = v[o], ay = v[o + 1], az = v[o + 2], bx = v[o + 3], by = v[o + 4], bz = v[o + 5], cx = v[o + 6], cy = v[o + 7], cz = v[o + 8];
   const dx = v[p], dy = v[p + 1], dz = v[p + 2], ex = v[p + 3], ey = v[p + 4], ez = v[p + 5], fx = v[p + 6], fy = v[p + 7], fz = v[p + 8];
-  const n = R.n, L1 = R.l1, L2 = R.l2, L3 = R.l3, W = R.w;
+  const n = R.n, L1 = R.l1, L2 = R.l2, L3 = R.l3, W = R.w, Y = YS;
+  for (let m = 0; m < n; m++) {
+    const m1 = L1[m], m2 = L2[m], m3 = L3[m];
+    Y[3 * m] = m1 * dx + m2 * ex + m3 * fx; Y[3 * m + 1] = m1 * dy + m2 * ey + m3 * fy; Y[3 * m + 2] = m1 * dz + m2 * ez + m3 * fz;
+  }
   let s = 0;
   for (let k = 0; k < n; k++) {
     const l1 = L1[k], l2 = L2[k], l3 = L3[k];
     const xx = l1 * ax + l2 * bx + l3 * cx, xy = l1 * ay + l2 * by + l3 * cy, xz = l1 * az + l2 * bz + l3 * cz;
     let t = 0;
     for (let m = 0; m < n; m++) {
-      const m1 = L1[m], m2 = L2[m], m3 = L3[m];
-      const rx = xx - (m1 * dx + m2 * ex + m3 * fx), ry = xy - (m1 * dy + m2 * ey + m3 * fy), rz = xz - (m1 * dz + m2 * ez + m3 * fz);
+      const rx = xx - Y[3 * m], ry = xy - Y[3 * m + 1], rz = xz - Y[3 * m + 2];
       t += W[m] / Math.sqrt(rx * rx + ry * ry + rz * rz);
     }
     s += W[k] * t;
   }
   return s;
+}
+
+/** farTerm without the third-order term: 1/d + (3 DᵀSD/d⁵ − tr S/d³)/2. */
+export function quadrupoleTerm(P: PanelSet, i: number, j: number): number {
+  const c = P.centroids, M = P.moments2;
+  const dx = c[3 * i] - c[3 * j], dy = c[3 * i + 1] - c[3 * j + 1], dz = c[3 * i + 2] - c[3 * j + 2];
+  const oi = 6 * i, oj = 6 * j;
+  const sxx = M[oi] + M[oj], syy = M[oi + 1] + M[oj + 1], szz = M[oi + 2] + M[oj + 2];
+  const sxy = M[oi + 3] + M[oj + 3], sxz = M[oi + 4] + M[oj + 4], syz = M[oi + 5] + M[oj + 5];
+  const q = sxx * dx * dx + syy * dy * dy + szz * dz * dz + 2 * (sxy * dx * dy + sxz * dx * dz + syz * dy * dz);
+  const inv = 1 / Math.sqrt(dx * dx + dy * dy + dz * dz), inv2 = inv * inv;
+  return inv * (1 + 0.5 * inv2 * (3 * q * inv2 - (sxx + syy + szz)));
 }
 
 /**

@@ -1,6 +1,6 @@
 import { describe, it, expect } from "vitest";
 import { panelSet, type PanelSet } from "../../src/bem/panels.js";
-import { galerkinEntry, selfTerm, farTerm, doubleQuadrature, RHO_FAR, RHO_MID, RHO_NEAR, RHO_QQ3 } from "../../src/bem/galerkin.js";
+import { galerkinEntry, selfTerm, farTerm, doubleQuadrature, RHO_FAR, RHO_MID, RHO_NEAR, RHO_QQ3, RHO_QUADRUPOLE } from "../../src/bem/galerkin.js";
 import { trianglePotential } from "../../src/bem/triangle-potential.js";
 import { dunavantRule } from "../../src/bem/dunavant.js";
 import { icosphere } from "./icosphere.js";
@@ -96,7 +96,7 @@ describe("Galerkin ladder errors on random pairs vs the subdivided reference", (
   // Bounds per rung as documented in galerkin.ts: ≤ 1e-6 below RHO_MID, ≤ 2e-6 up to RHO_QQ3, ≤ 1e-5 beyond.
   const bins: [number, number, number, number][] = [
     [0.35, RHO_NEAR, 1e-6, 5], [RHO_NEAR, RHO_MID, 1e-6, 3], [RHO_MID, RHO_QQ3, 2e-6, 3], [RHO_QQ3, RHO_FAR, 1e-5, 3],
-    [RHO_FAR, 8, 1e-5, 2], [8, 40, 1e-5, 2],
+    [RHO_FAR, 8, 1e-5, 2], [8, RHO_QUADRUPOLE, 1e-5, 2], [RHO_QUADRUPOLE, 60, 1e-5, 1],
   ];
   for (const [lo, hi, tol, levels] of bins) {
     it(`ρ in [${lo}, ${hi}): relative error < ${tol}`, () => {

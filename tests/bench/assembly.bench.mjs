@@ -1,9 +1,10 @@
 // Galerkin assembly of an icosphere (20·4^L panels): serial and on 2 workers, seconds and entries/s.
 // Usage: node tests/bench/assembly.bench.mjs [levels=4]   (needs `npx tsc -p tsconfig.json` first)
 import { panelSet, panelSetShared } from "../../dist/src/bem/panels.js";
-import { assembleRows, assembleDense, rowSplit } from "../../dist/src/bem/assembly.js";
+import { assembleRows, assembleDense } from "../../dist/src/bem/assembly.js";
 import { WorkerPool } from "../../dist/src/linalg/pool.js";
-import { RHO_FAR, RHO_MID } from "../../dist/src/bem/galerkin.js";
+import { RHO_FAR, RHO_MID, galerkinEntry, outerRuleSplit, doubleQuadrature, sharedCorner } from "../../dist/src/bem/galerkin.js";
+import { dunavantRule } from "../../dist/src/bem/dunavant.js";
 
 function icosphere(levels) {
   const t = (1 + Math.sqrt(5)) / 2;
@@ -34,19 +35,52 @@ for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) {
 }
 console.log(`icosphere ${n} panels, ${unique} unique Galerkin entries: ${(100 * far / unique).toFixed(1)} % far-expansion, ${(100 * mid / unique).toFixed(1)} % double-quadrature, ${(100 * (unique - far - mid) / unique).toFixed(2)} % near/touching/self`);
 
+// Accuracy ladder on this mesh: worst relative error of galerkinEntry per ρ band against a
+// reference with the analytic inner integral (ρ < 2.5: adaptively split degree-10 outer rule;
+// beyond: degree-10 rule on both panels, itself ≤ 1e-10 there). Touching pairs: see the tests.
+{
+  const bands = [[1, 1.5], [1.5, 2.5], [2.5, 4], [4, 5], [5, 8], [8, 12], [12, 20], [20, 1e9]];
+  const worst = bands.map(() => 0), count = bands.map(() => 0);
+  const R10 = dunavantRule(10);
+  for (let i = 0; i < n; i += 53) for (let j = 0; j < n; j += 3) {
+    if (i === j || sharedCorner(P, i, j) >= 0) continue;
+    const rho = Math.hypot(P.centroids[3 * i] - P.centroids[3 * j], P.centroids[3 * i + 1] - P.centroids[3 * j + 1], P.centroids[3 * i + 2] - P.centroids[3 * j + 2]) / (P.radii[i] + P.radii[j]);
+    const b = bands.findIndex(([lo, hi]) => rho >= lo && rho < hi);
+    if (b < 0) continue;
+    const lo = Math.min(i, j), hi = Math.max(i, j);
+    const ref = rho < 2.5 ? outerRuleSplit(P, lo, hi, R10) : doubleQuadrature(P, lo, hi, R10);
+    worst[b] = Math.max(worst[b], Math.abs(galerkinEntry(P, i, j) - ref) / ref);
+    count[b]++;
+  }
+  console.log("accuracy ladder (worst relative error vs reference, pairs sampled):");
+  bands.forEach(([lo, hi], b) => console.log(`  rho ${lo}-${hi === 1e9 ? "inf" : hi}: ${worst[b].toExponential(1)} (${count[b]} pairs)`));
+}
+
 const out = new Float64Array(new SharedArrayBuffer(8 * n * n));
 // CPU seconds as well as wall seconds: the machine is shared, and wall time alone misleads.
-let c0 = process.cpuUsage(), t0 = performance.now();
-assembleRows(P, "galerkin", 0, n, out);
-let t = (performance.now() - t0) / 1000, cpu = (process.cpuUsage(c0).user + process.cpuUsage(c0).system) / 2e6;
-console.log(`serial   : ${t.toFixed(3)} s wall, ${cpu.toFixed(3)} s CPU, ${(unique / t / 1e6).toFixed(1)} M unique entries/s (wall)`);
+let t0, t;
+for (let rep = 0; rep < 3; rep++) {
+  const c0 = process.cpuUsage();
+  t0 = performance.now();
+  assembleRows(P, "galerkin", 0, n, out);
+  const cu = process.cpuUsage(c0);
+  t = (performance.now() - t0) / 1000;
+  const cpu = (cu.user + cu.system) / 1e6;
+  console.log(`serial   : ${t.toFixed(3)} s wall, ${cpu.toFixed(3)} s CPU, ${(unique / cpu / 1e6).toFixed(1)} M unique entries per CPU second`);
+}
 
 const pool = new WorkerPool(2);
 await assembleDense(P, "galerkin", pool); // warm-up: workers load and JIT the module
-for (let rep = 0; rep < 2; rep++) {
+for (let rep = 0; rep < 3; rep++) {
   t0 = performance.now();
   await assembleDense(P, "galerkin", pool);
   t = (performance.now() - t0) / 1000;
   console.log(`2 workers: ${t.toFixed(3)} s, ${(unique / t / 1e6).toFixed(1)} M unique entries/s (incl. ${(8 * n * n / 2 ** 20).toFixed(0)} MiB shared matrix allocation)`);
+}
+for (let rep = 0; rep < 2; rep++) {
+  t0 = performance.now();
+  await assembleDense(P, "galerkin", pool, out);
+  t = (performance.now() - t0) / 1000;
+  console.log(`2 workers: ${t.toFixed(3)} s, ${(unique / t / 1e6).toFixed(1)} M unique entries/s (into a reused matrix)`);
 }
 await pool.close();
