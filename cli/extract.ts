@@ -17,7 +17,7 @@ import { closeSharedPool } from "../src/linalg/pool.js";
 import { action, printWarnings, writeOutput, collect } from "./common.js";
 import { progressBar } from "./progress.js";
 
-interface ExtractCliOptions {
+export interface ExtractCliOptions {
   unit?: string;
   json?: string;
   potential: string[];
@@ -76,51 +76,54 @@ export function registerExtract(program: Command): void {
     .option("--merge", "mesh files: all groups of a file are one conductor")
     .option("--json <path>", "write the JSON report to a file, or - for standard output")
     .option("--quiet", "print only errors and warnings")
-    .action(action(async (inputs: string[], opts: ExtractCliOptions) => {
-      const method = opts.method;
-      if (method !== "galerkin" && method !== "collocation") throw new InputError(`--method "${method}": use galerkin or collocation`);
-      const solver = opts.solver;
-      if (solver !== "auto" && solver !== "direct" && solver !== "iterative") throw new InputError(`--solver "${solver}": use auto, direct or iterative`);
-      const refine = number(opts.refine, "--refine", (x) => Number.isInteger(x) && x >= 0 && x <= 4, "a whole number from 0 to 4");
-      const tolerance = number(opts.tol, "--tol", (x) => x > 0 && x < 1, "a number between 0 and 1, e.g. 1e-4");
-      const permittivity = opts.permittivity === undefined ? undefined : number(opts.permittivity, "--permittivity", (x) => x >= 1, "a relative permittivity of at least 1");
-      const breakdown = opts.breakdownField === undefined ? undefined : number(opts.breakdownField, "--breakdown-field", (x) => x > 0, "a positive field in V/m, e.g. 3e6");
-      if (opts.split && opts.merge) throw new InputError("--split and --merge cannot be used together");
+    .action(action((inputs: string[], opts: ExtractCliOptions) => runExtract(inputs, opts)));
+}
 
-      const scene = loadScene(inputs, {
-        unit: opts.unit === undefined ? undefined : parseUnit(opts.unit, "--unit"),
-        split: opts.split, merge: opts.merge, potentials: parsePotentials(opts.potential),
-      });
-      printWarnings(scene.warnings, false);
-      const check = checkMesh(scene.mesh);
-      const errors = check.pairs.filter((p) => p.severity === "error");
-      if (errors.length > 0) throw new InputError(`${pairSentence(errors[0], scene.unit)}${errors.length > 1 ? ` (and ${errors.length - 1} more; run sigmesh check)` : ""}`, scene.scene ?? scene.files.join(", "));
-      const inputWarnings = check.pairs.filter((p) => p.severity === "warning").map((p) => pairSentence(p, scene.unit));
-      printWarnings(inputWarnings.map((message) => ({ message })), false);
+/** The whole extract command for these inputs and options (also used by `sigmesh demo`). */
+export async function runExtract(inputs: string[], opts: ExtractCliOptions): Promise<void> {
+  const method = opts.method;
+  if (method !== "galerkin" && method !== "collocation") throw new InputError(`--method "${method}": use galerkin or collocation`);
+  const solver = opts.solver;
+  if (solver !== "auto" && solver !== "direct" && solver !== "iterative") throw new InputError(`--solver "${solver}": use auto, direct or iterative`);
+  const refine = number(opts.refine, "--refine", (x) => Number.isInteger(x) && x >= 0 && x <= 4, "a whole number from 0 to 4");
+  const tolerance = number(opts.tol, "--tol", (x) => x > 0 && x < 1, "a number between 0 and 1, e.g. 1e-4");
+  const permittivity = opts.permittivity === undefined ? undefined : number(opts.permittivity, "--permittivity", (x) => x >= 1, "a relative permittivity of at least 1");
+  const breakdown = opts.breakdownField === undefined ? undefined : number(opts.breakdownField, "--breakdown-field", (x) => x > 0, "a positive field in V/m, e.g. 3e6");
+  if (opts.split && opts.merge) throw new InputError("--split and --merge cannot be used together");
 
-      const bar = progressBar(!opts.quiet);
-      let result;
-      try {
-        result = await extract(scene.mesh, {
-          permittivity: permittivity ?? scene.permittivity,
-          method, solver, refine, tolerance, potentials: scene.potentials,
-          breakdownField: breakdown ?? scene.breakdownField,
-          progress: (phase, f, level, levels) => bar.update(phase, f, level, levels),
-        });
-      } finally {
-        bar.stop();
-        await closeSharedPool();
-      }
-      const report = extractionReport(result, {
-        version: version(), files: scene.files, scene: scene.scene, unit: scene.unit,
-        inputWarnings: [...scene.warnings.map((w) => (w.file ? `${w.file}: ` : "") + w.message), ...inputWarnings],
-      });
-      if (opts.json !== undefined) writeOutput(opts.json, toJson(report));
-      if (!opts.quiet) {
-        const text = extractionSummary(result, { unit: scene.unit, unitAssumed: scene.unitAssumed, source: scene.scene ?? scene.files.join(", ") });
-        (opts.json === "-" ? process.stderr : process.stdout).write(text);
-      } else {
-        printWarnings(result.warnings.map((message) => ({ message })), false);
-      }
-    }));
+  const scene = loadScene(inputs, {
+    unit: opts.unit === undefined ? undefined : parseUnit(opts.unit, "--unit"),
+    split: opts.split, merge: opts.merge, potentials: parsePotentials(opts.potential),
+  });
+  printWarnings(scene.warnings, false);
+  const check = checkMesh(scene.mesh);
+  const errors = check.pairs.filter((p) => p.severity === "error");
+  if (errors.length > 0) throw new InputError(`${pairSentence(errors[0], scene.unit)}${errors.length > 1 ? ` (and ${errors.length - 1} more; run sigmesh check)` : ""}`, scene.scene ?? scene.files.join(", "));
+  const inputWarnings = check.pairs.filter((p) => p.severity === "warning").map((p) => pairSentence(p, scene.unit));
+  printWarnings(inputWarnings.map((message) => ({ message })), false);
+
+  const bar = progressBar(!opts.quiet);
+  let result;
+  try {
+    result = await extract(scene.mesh, {
+      permittivity: permittivity ?? scene.permittivity,
+      method, solver, refine, tolerance, potentials: scene.potentials,
+      breakdownField: breakdown ?? scene.breakdownField,
+      progress: (phase, f, level, levels) => bar.update(phase, f, level, levels),
+    });
+  } finally {
+    bar.stop();
+    await closeSharedPool();
+  }
+  const report = extractionReport(result, {
+    version: version(), files: scene.files, scene: scene.scene, unit: scene.unit,
+    inputWarnings: [...scene.warnings.map((w) => (w.file ? `${w.file}: ` : "") + w.message), ...inputWarnings],
+  });
+  if (opts.json !== undefined) writeOutput(opts.json, toJson(report));
+  if (!opts.quiet) {
+    const text = extractionSummary(result, { unit: scene.unit, unitAssumed: scene.unitAssumed, source: scene.scene ?? scene.files.join(", ") });
+    (opts.json === "-" ? process.stderr : process.stdout).write(text);
+  } else {
+    printWarnings(result.warnings.map((message) => ({ message })), false);
+  }
 }

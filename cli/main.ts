@@ -6,6 +6,7 @@ import { setDebug, reportFailure } from "./common.js";
 import { registerCheck } from "./check.js";
 import { registerMesh } from "./mesh.js";
 import { registerExtract } from "./extract.js";
+import { registerDemo } from "./demo.js";
 
 const require = createRequire(import.meta.url);
 const pkg = require("../../package.json") as { version: string };
@@ -27,6 +28,7 @@ export function buildProgram(): Command {
   registerCheck(program);
   registerMesh(program);
   registerExtract(program);
+  registerDemo(program);
   return program;
 }
 
