@@ -104,8 +104,10 @@ function build(positions: Float64Array, triangles: Uint32Array, alloc: Alloc, al
       xxx += w * x * x * x; yyy += w * y * y * y; zzz += w * z * z * z; xxy += w * x * x * y; xxz += w * x * x * z;
       xyy += w * x * y * y; yyz += w * y * y * z; xzz += w * x * z * z; yzz += w * y * z * z; xyz += w * x * y * z;
     }
-    moments2.set([xx, yy, zz, xy, xz, yz], 6 * t);
-    moments3.set([xxx, yyy, zzz, xxy, xxz, xyy, yyz, xzz, yzz, xyz], 10 * t);
+    const m = 6 * t, u = 10 * t;
+    moments2[m] = xx; moments2[m + 1] = yy; moments2[m + 2] = zz; moments2[m + 3] = xy; moments2[m + 4] = xz; moments2[m + 5] = yz;
+    moments3[u] = xxx; moments3[u + 1] = yyy; moments3[u + 2] = zzz; moments3[u + 3] = xxy; moments3[u + 4] = xxz;
+    moments3[u + 5] = xyy; moments3[u + 6] = yyz; moments3[u + 7] = xzz; moments3[u + 8] = yzz; moments3[u + 9] = xyz;
     traces3[3 * t] = xxx + xyy + xzz;
     traces3[3 * t + 1] = xxy + yyy + yzz;
     traces3[3 * t + 2] = xxz + yyz + zzz;
