@@ -17,6 +17,7 @@ export { checkMesh, type CheckReport } from "./mesh/check.js";
 export { refineUniform } from "./mesh/refine.js";
 export { surfaceArea, signedVolume } from "./mesh/measure.js";
 export * from "./mesh/primitives/index.js";
+export { probeField, probeExtraction, type ProbeResult } from "./extract/probe.js";
 export { extract, type ExtractOptions, type ExtractionResult, type ConductorResult } from "./extract/extract.js";
 export { EPSILON_0, AIR_BREAKDOWN_FIELD } from "./extract/constants.js";
 export { extractionReport } from "./report/json.js";

@@ -14,6 +14,8 @@ import { conductorCharges, capacitanceMatrices, chargesAt, storedEnergy, mutualF
 import { richardson, type RichardsonResult } from "./accuracy.js";
 import { panelExcitation, peakFields, conductorForces, type PanelExcitation, type PeakField } from "./excitation.js";
 import { peakResidentBytes } from "./memory.js";
+import { centroidFields } from "./probe.js";
+import type { PanelSet } from "../bem/panels.js";
 import { InputError } from "../io/errors.js";
 
 export interface ExtractOptions {
@@ -88,6 +90,8 @@ export interface ExtractionResult {
   mesh: SurfaceMesh;
   panelConductor: Uint32Array;
   excitation: PanelExcitation;
+  /** Panels of the finest mesh (for probes). */
+  panels: PanelSet;
   /** Unit-potential solutions on the finest mesh, n×k: Q = 4πε x (the columns of the Maxwell matrix per panel). */
   unitCharges: Float64Array;
   peaks: PeakField[];
@@ -180,10 +184,29 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   const P = last.panels;
   const openPanel = new Uint8Array(P.n);
   for (let p = 0; p < P.n; p++) openPanel[p] = topo[mesh.conductor[p]].closed ? 0 : 1;
-  const excitation = panelExcitation(last.x, k, P, potentials, eps, openPanel);
+  // Open sheets need the two-sided (principal-value) field of all the charge at their panels,
+  // for their stronger face's field and their force.
+  let excitation = panelExcitation(last.x, k, P, potentials, eps, openPanel);
+  let nOpen = 0;
+  for (let p = 0; p < P.n; p++) nOpen += openPanel[p];
+  let fieldPv: Float64Array | undefined;
+  if (nOpen > 0) {
+    opts.progress?.("fields", 0, refine, nLevels);
+    const list = new Uint32Array(nOpen);
+    for (let p = 0, a = 0; p < P.n; p++) if (openPanel[p]) list[a++] = p;
+    const e = centroidFields(P, excitation.charge, eps, list);
+    fieldPv = new Float64Array(3 * P.n);
+    const normalPv = new Float64Array(P.n);
+    for (let a = 0; a < nOpen; a++) {
+      const p = list[a];
+      fieldPv[3 * p] = e[3 * a]; fieldPv[3 * p + 1] = e[3 * a + 1]; fieldPv[3 * p + 2] = e[3 * a + 2];
+      normalPv[p] = e[3 * a] * P.normals[3 * p] + e[3 * a + 1] * P.normals[3 * p + 1] + e[3 * a + 2] * P.normals[3 * p + 2];
+    }
+    excitation = panelExcitation(last.x, k, P, potentials, eps, openPanel, normalPv);
+    opts.progress?.("fields", 1, refine, nLevels);
+  }
   const peaks = peakFields(excitation.field, mesh.conductor, k, P);
-  const { force, complete } = conductorForces(excitation.sigma, P, mesh.conductor, k, eps, openPanel);
-  if (!complete) warnings.push("forces on open sheets need the two-sided field and are left out of the force figures");
+  const { force, complete } = conductorForces(excitation.sigma, P, mesh.conductor, k, eps, openPanel, fieldPv);
   const q = chargesAt(maxwell, k, potentials);
   const energy = storedEnergy(maxwell, k, potentials);
   const areas = conductorAreas(mesh);
@@ -205,7 +228,7 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   return {
     names: input.names.slice(), conductors, k, permittivity: eps, relativePermittivity: er, breakdownField,
     maxwell, mutual, asymmetry: finest.asymmetry, energy, potentials, mesh, panelConductor: mesh.conductor,
-    excitation, unitCharges: scaleCopy(last.x, 4 * Math.PI * eps), peaks, forcesComplete: complete, accuracy,
+    excitation, panels: P, unitCharges: scaleCopy(last.x, 4 * Math.PI * eps), peaks, forcesComplete: complete, accuracy,
     solver: { ...lastInfo, seconds, peakMemory: peakResidentBytes(), levels },
     orientation: { flippedComponents, unorientable },
     warnings,
