@@ -18,7 +18,13 @@ export function buildProgram(): Command {
     .description("Boundary-element capacitance, charge and surface-field extraction for 3D conductors given as triangle meshes.")
     .version(pkg.version)
     .option("--debug", "show stack traces and internal detail on failure")
-    .showHelpAfterError("(run sigmesh --help for usage)")
+    // Usage errors are one line, like every other failure.
+    .configureOutput({
+      outputError: (text, write) => {
+        const first = text.trim().split("\n")[0].replace(/^error: /, "");
+        write(`sigmesh: error: ${first} (see sigmesh --help)\n`);
+      },
+    })
     .hook("preAction", (cmd) => setDebug(Boolean(cmd.opts().debug)))
     // Usage errors are bad input (exit 2); help and version are success.
     .exitOverride((err) => {

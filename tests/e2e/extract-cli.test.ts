@@ -1,0 +1,109 @@
+// End to end: `node dist/cli/main.js extract ...` on meshes written in the test,
+// the JSON report's fields and units, and bad input refused with one line, exit 2, no report.
+import { describe, it, expect, beforeAll, afterAll } from "vitest";
+import { spawnSync } from "node:child_process";
+import { mkdtempSync, rmSync, existsSync, readdirSync, writeFileSync, readFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join } from "node:path";
+import { fileURLToPath } from "node:url";
+import { sphereMesh, plateMesh } from "../../src/mesh/primitives/index.js";
+import { writeMeshFile } from "../../src/io/write.js";
+import { EPSILON_0 } from "../../src/extract/constants.js";
+
+const cli = fileURLToPath(new URL("../../dist/cli/main.js", import.meta.url));
+let dir = "";
+
+function run(args: string[], cwd?: string) {
+  const r = spawnSync(process.execPath, [cli, ...args], { encoding: "utf8", cwd });
+  return { code: r.status, out: r.stdout, err: r.stderr };
+}
+
+beforeAll(() => {
+  if (!existsSync(cli)) throw new Error("dist/cli/main.js missing: run `npx tsc -p tsconfig.json` first");
+  dir = mkdtempSync(join(tmpdir(), "sigmesh-extract-"));
+  // Two spheres of 5 mm radius, centres 15 mm apart, written in millimetres.
+  const a = sphereMesh({ radius: 5e-3, level: 2, center: [-7.5e-3, 0, 0], name: "anode" });
+  const b = sphereMesh({ radius: 5e-3, level: 2, center: [7.5e-3, 0, 0], name: "cathode" });
+  writeMeshFile(join(dir, "anode.stl"), a, "stl", "mm");
+  writeMeshFile(join(dir, "cathode.stl"), b, "stl", "mm");
+  writeMeshFile(join(dir, "overlap.stl"), sphereMesh({ radius: 5e-3, level: 2, center: [-4e-3, 0, 0], name: "overlap" }), "stl", "mm");
+  writeMeshFile(join(dir, "sheet.obj"), plateMesh({ size: [0.01, 0.01], divisions: 6, name: "sheet" }), "obj", "mm");
+});
+afterAll(() => { if (dir) rmSync(dir, { recursive: true, force: true }); });
+
+describe("sigmesh extract", () => {
+  it("extracts two mesh files, prints the summary with the assumed unit, writes the JSON report in SI units", () => {
+    const json = join(dir, "pair.json");
+    const r = run(["extract", join(dir, "anode.stl"), join(dir, "cathode.stl"), "--potential", "anode=100", "--potential", "cathode=-100", "--json", json]);
+    expect(r.code).toBe(0);
+    expect(r.out).toMatch(/length unit mm \(assumed; set with --unit\)/);
+    expect(r.out).toMatch(/Maxwell capacitance matrix/);
+    expect(r.out).toMatch(/fF/);
+    expect(r.out).toMatch(/Cautions/);
+    const rep = JSON.parse(readFileSync(json, "utf8"));
+    expect(rep.format).toBe("sigmesh-extraction/1");
+    expect(rep.conductors.map((c: { name: string }) => c.name)).toEqual(["anode", "cathode"]);
+    const c11 = rep.capacitance.maxwell[0][0];
+    // A 5 mm sphere alone is 4π ε0 R = 0.556 pF; its neighbour raises the self term a little.
+    expect(c11).toBeGreaterThan(4 * Math.PI * EPSILON_0 * 5e-3 * 0.98);
+    expect(c11).toBeLessThan(4 * Math.PI * EPSILON_0 * 5e-3 * 1.2);
+    expect(rep.capacitance.maxwell[0][1]).toBeLessThan(0);
+    expect(rep.capacitance.mutual[0][1]).toBeCloseTo(-rep.capacitance.maxwell[0][1], 20);
+    expect(rep.conductors[0].potential).toBe(100);
+    expect(rep.conductors[0].charge).toBeCloseTo(100 * rep.capacitance.maxwell[0][0] - 100 * rep.capacitance.maxwell[0][1], 20);
+    expect(rep.conductors[0].peakFieldAt).toHaveLength(3);
+    expect(rep.energy).toBeGreaterThan(0);
+    expect(rep.solver.panels).toBe(640);
+    expect(rep.solver.method).toBe("galerkin");
+    expect(rep.fieldCheck.cautions.length).toBeGreaterThan(2);
+    expect(rep.fieldCheck.cautions[0]).toMatch(/Hazardous voltages/);
+  });
+
+  it("reads a scene file with mesh paths relative to it, and --refine gives an error estimate", () => {
+    writeFileSync(join(dir, "scene.json"), JSON.stringify({ unit: "mm", conductors: [{ name: "ball", mesh: "anode.stl", potential: 2 }] }));
+    const r = run(["extract", "scene.json", "--refine", "1", "--json", "-", "--quiet"], dir);
+    if (r.code !== 0) console.log(r.err);
+    expect(r.code).toBe(0);
+    const rep = JSON.parse(r.out);
+    expect(rep.accuracy.levels.map((l: { panels: number }) => l.panels)).toEqual([320, 1280]);
+    expect(rep.accuracy.relativeError).toBeGreaterThan(0);
+    const exact = 4 * Math.PI * EPSILON_0 * 5e-3;
+    expect(Math.abs(rep.capacitance.maxwell[0][0] - exact) / exact).toBeLessThan(rep.accuracy.relativeError);
+    expect(rep.conductors[0].charge).toBeCloseTo(2 * rep.capacitance.maxwell[0][0], 20);
+  });
+
+  it("an open sheet is reported as such and gets its two-sided field", () => {
+    const r = run(["extract", join(dir, "sheet.obj"), "--json", "-", "--quiet"]);
+    expect(r.code).toBe(0);
+    const rep = JSON.parse(r.out);
+    expect(rep.conductors[0].closed).toBe(false);
+    expect(rep.forcesComplete).toBe(true);
+    expect(rep.conductors[0].peakField).toBeGreaterThan(0);
+  });
+
+  const bad: Array<[string, string[], RegExp]> = [
+    ["a missing file", ["missing.stl"], /missing\.stl: no such file/],
+    ["an unknown conductor in --potential", ["anode.stl", "--potential", "nosuch=1"], /--potential names "nosuch"/],
+    ["a malformed --potential", ["anode.stl", "--potential", "anode"], /NAME=VOLTS/],
+    ["an unknown method", ["anode.stl", "--method", "fem"], /--method "fem"/],
+    ["a bad --refine", ["anode.stl", "--refine", "1.5"], /--refine "1\.5"/],
+    ["intersecting conductors", ["anode.stl", "overlap.stl"], /anode and overlap intersect/],
+    ["a scene with a bad key", ["badscene.json"], /badscene\.json: conductors\[0\]\.potential: expected a number/],
+    ["a scene that is not JSON", ["broken.json"], /broken\.json: line 2, column \d+: not valid JSON/],
+  ];
+  for (const [what, args, message] of bad) {
+    it(`refuses ${what} with one line, exit code 2, and writes no report`, () => {
+      writeFileSync(join(dir, "badscene.json"), JSON.stringify({ conductors: [{ mesh: "anode.stl", potential: "high" }] }));
+      writeFileSync(join(dir, "broken.json"), '{ "conductors": [\n  { "mesh": "anode.stl" ]\n}');
+      const out = join(dir, "never.json");
+      const r = run(["extract", ...args, "--json", out], dir);
+      expect(r.code).toBe(2);
+      const lines = r.err.trim().split("\n");
+      expect(lines.filter((l) => l.startsWith("sigmesh: error:"))).toHaveLength(1);
+      expect(r.err).toMatch(message);
+      expect(r.err).not.toMatch(/\bat .*\.js:\d+/); // no stack trace
+      expect(existsSync(out)).toBe(false);
+      expect(readdirSync(dir).filter((f) => f.endsWith(".tmp"))).toEqual([]);
+    });
+  }
+});
