@@ -11,7 +11,7 @@
  * Only the lower triangle of A is read; on return it holds L. The strictly upper triangle
  * is left as it was.
  */
-import { rowSplits, isShared } from "./dense.js";
+import { type DenseKernel, rowSplits, isShared } from "./dense.js";
 import { choleskyPanel, choleskyUpdate } from "./tasks.js";
 import { solveLower, solveLowerTransposed } from "./triangular.js";
 import { type WorkerPool, sharedFloat64 } from "./pool.js";
@@ -33,6 +33,8 @@ export interface CholeskyOptions {
   pool?: WorkerPool;
   /** Columns per block step (default 96). */
   blockSize?: number;
+  /** Trailing-update kernel (default "auto": WebAssembly SIMD where available). */
+  kernel?: DenseKernel;
 }
 
 export const DEFAULT_BLOCK = 96;
@@ -60,7 +62,7 @@ export function factorDiagonalBlock(A: Float64Array, off: number, ld: number, nb
 }
 
 /** Serial blocked Cholesky of the n×n row-major A, in place (lower factor). */
-export function choleskyFactorSerial(A: Float64Array, n: number, blockSize: number = DEFAULT_BLOCK): void {
+export function choleskyFactorSerial(A: Float64Array, n: number, blockSize: number = DEFAULT_BLOCK, kernel: DenseKernel = "auto"): void {
   checkSize(A, n);
   const nb = Math.max(1, Math.floor(blockSize));
   if (n <= nb) { factorDiagonalBlock(A, 0, n, n, 0); return; }
@@ -69,8 +71,8 @@ export function choleskyFactorSerial(A: Float64Array, n: number, blockSize: numb
     const w = Math.min(nb, n - j0);
     factorDiagonalBlock(A, j0 * n + j0, n, w, j0);
     if (j0 + w < n) {
-      choleskyPanel(A, n, j0, w, P, j0 + w, n);
-      choleskyUpdate(A, n, j0, w, P, j0 + w, n);
+      choleskyPanel(A, n, j0, w, P, j0 + w, n, kernel);
+      choleskyUpdate(A, n, j0, w, P, j0 + w, n, kernel);
     }
   }
 }
@@ -83,8 +85,8 @@ export function choleskyFactorSerial(A: Float64Array, n: number, blockSize: numb
 export async function choleskyFactor(A: Float64Array, n: number, opts: CholeskyOptions = {}): Promise<void> {
   checkSize(A, n);
   const nb = Math.max(4, Math.floor(opts.blockSize ?? DEFAULT_BLOCK));
-  const pool = opts.pool;
-  if (!pool || pool.size < 2 || n <= 2 * nb) { choleskyFactorSerial(A, n, nb); return; }
+  const pool = opts.pool, kernel = opts.kernel ?? "auto";
+  if (!pool || pool.size < 2 || n <= 2 * nb) { choleskyFactorSerial(A, n, nb, kernel); return; }
   const S = isShared(A) ? A : sharedFloat64(n * n);
   if (S !== A) S.set(A.subarray(0, n * n));
   const P = sharedFloat64(n * nb);
@@ -96,14 +98,14 @@ export async function choleskyFactor(A: Float64Array, n: number, opts: CholeskyO
     if (i0 >= n) break;
     // Small trailing blocks are not worth a round trip to the workers.
     if ((n - i0) < 2 * nb) {
-      choleskyPanel(S, n, j0, w, P, i0, n);
-      choleskyUpdate(S, n, j0, w, P, i0, n);
+      choleskyPanel(S, n, j0, w, P, i0, n, kernel);
+      choleskyUpdate(S, n, j0, w, P, i0, n, kernel);
       continue;
     }
     const even = rowSplits(i0, n, parts, false);
-    await pool.map(tasksUrl, "choleskyPanel", even.slice(0, -1).map((r, t) => [S, n, j0, w, P, r, even[t + 1]]));
+    await pool.map(tasksUrl, "choleskyPanel", even.slice(0, -1).map((r, t) => [S, n, j0, w, P, r, even[t + 1], kernel]));
     const tri = rowSplits(i0, n, parts, true);
-    await pool.map(tasksUrl, "choleskyUpdate", tri.slice(0, -1).map((r, t) => [S, n, j0, w, P, r, tri[t + 1]]));
+    await pool.map(tasksUrl, "choleskyUpdate", tri.slice(0, -1).map((r, t) => [S, n, j0, w, P, r, tri[t + 1], kernel]));
   }
   if (S !== A) A.set(S);
 }

@@ -8,9 +8,47 @@
  *
  * The kernel follows the GotoBLAS idea (Goto & van de Geijn, "Anatomy of high-performance
  * matrix multiplication", ACM TOMS 34(3), 2008): pack the panels into contiguous storage,
- * then keep a small tile of C in registers (here 4×4 scalars, V8 has no SIMD in plain
- * loops) while the inner loop walks k over contiguous memory.
+ * then keep a small tile of C in registers while the inner loop walks k over contiguous
+ * memory. Two implementations: the WebAssembly SIMD one of wasm-kernel.ts (f64x2 tiles,
+ * about 3–4× faster where V8 supports it) and the plain JavaScript one below (4×4 scalars,
+ * V8 has no SIMD in plain loops), which is the fallback and stays tested. `gemmNT` picks.
  */
+import { gemmNTSimd, simdAvailable } from "./wasm-kernel.js";
+
+/**
+ * Which implementation of the trailing-update kernel to use: "wasm" (WebAssembly SIMD,
+ * an error where unavailable), "js" (plain JavaScript), or "auto" (WebAssembly when this
+ * thread supports it and the block is large enough to repay the packing copies).
+ */
+export type DenseKernel = "auto" | "js" | "wasm";
+
+/** The implementation `gemmNT` runs for `kernel` on a large block in this thread. */
+export function denseKernelInUse(kernel: DenseKernel = "auto"): "js" | "wasm" {
+  if (kernel === "js") return "js";
+  if (kernel === "wasm" || simdAvailable()) return "wasm";
+  return "js";
+}
+
+/**
+ * C ← C + α·A·Bᵀ on an m×p block of C, touching only entries with j ≤ i + diag (see
+ * gemmNTScalar for the arguments), through the implementation chosen by `kernel`.
+ */
+export function gemmNT(
+  C: Float64Array, cOff: number, ldc: number,
+  A: Float64Array, aOff: number, lda: number,
+  B: Float64Array, bOff: number, ldb: number,
+  m: number, p: number, kc: number, diag: number, alpha: number,
+  kernel: DenseKernel = "auto",
+): void {
+  if (kernel === "wasm" || (kernel === "auto" && kc >= SIMD_MIN_DEPTH && m * p >= SIMD_MIN_ENTRIES && simdAvailable()))
+    gemmNTSimd(C, cOff, ldc, A, aOff, lda, B, bOff, ldb, m, p, kc, diag, alpha);
+  else gemmNTScalar(C, cOff, ldc, A, aOff, lda, B, bOff, ldb, m, p, kc, diag, alpha);
+}
+
+/** Shortest sum worth packing for the SIMD kernel (measured: tests/bench/linalg.bench.mjs). */
+const SIMD_MIN_DEPTH = 8;
+/** Fewest entries of C worth packing for the SIMD kernel (measured likewise). */
+const SIMD_MIN_ENTRIES = 64;
 
 /**
  * C ← C + α·A·Bᵀ on an m×p block of C, where A is m×kc (rows `lda` apart) and B is p×kc
@@ -20,7 +58,7 @@
  * `diag = r0 − c0` (global row and column of the block's corner) updates the lower triangle
  * of a symmetric trailing matrix (the SYRK case of Cholesky), leaving the upper part alone.
  */
-export function gemmNT(
+export function gemmNTScalar(
   C: Float64Array, cOff: number, ldc: number,
   A: Float64Array, aOff: number, lda: number,
   B: Float64Array, bOff: number, ldb: number,
@@ -128,7 +166,8 @@ export function packTransposed(out: Float64Array, outOff: number, A: Float64Arra
 export function multiplyRows(A: Float64Array, n: number, X: Float64Array, Xt: Float64Array, k: number, Y: Float64Array, r0: number, r1: number): void {
   if (k !== 1) {
     for (let i = r0 * k; i < r1 * k; i++) Y[i] = 0;
-    gemmNT(Y, r0 * k, k, A, r0 * n, n, Xt, 0, n, r1 - r0, k, n, k, 1);
+    // Memory-bound: packing A for the SIMD kernel would cost as much as reading it.
+    gemmNTScalar(Y, r0 * k, k, A, r0 * n, n, Xt, 0, n, r1 - r0, k, n, k, 1);
     return;
   }
   let i = r0;

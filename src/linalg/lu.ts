@@ -9,7 +9,7 @@
  * among the workers. The panel itself stays on the caller.
  * Pivots follow LAPACK's ipiv convention, 0-based: at step c rows c and piv[c] were swapped.
  */
-import { gemmNT, isShared, packTransposed, rowSplits } from "./dense.js";
+import { type DenseKernel, gemmNT, isShared, packTransposed, rowSplits } from "./dense.js";
 import { luBlockRow, luUpdate } from "./tasks.js";
 import { solveLower, solveUnitLowerLeft, solveUpper } from "./triangular.js";
 import { type WorkerPool, sharedFloat64 } from "./pool.js";
@@ -29,6 +29,8 @@ export interface LuOptions {
   pool?: WorkerPool;
   /** Columns per block step (default 96). */
   blockSize?: number;
+  /** Trailing-update kernel (default "auto": WebAssembly SIMD where available). */
+  kernel?: DenseKernel;
 }
 
 const tasksUrl = new URL(import.meta.url.endsWith(".ts") ? "./tasks.ts" : "./tasks.js", import.meta.url).href;
@@ -64,28 +66,28 @@ function factorColumns(A: Float64Array, n: number, j0: number, w: number, piv: I
  * Appl. 18(4), 1997): the right half is updated through the packed kernel, so the tall
  * panel is swept a few times, not once per column. `S` is scratch for U12ᵀ.
  */
-function factorPanel(A: Float64Array, n: number, j0: number, w: number, piv: Int32Array, S: Float64Array): void {
+function factorPanel(A: Float64Array, n: number, j0: number, w: number, piv: Int32Array, S: Float64Array, kernel: DenseKernel): void {
   if (w <= 8) { factorColumns(A, n, j0, w, piv); return; }
   const h = w >> 1, j1 = j0 + h, w2 = w - h;
-  factorPanel(A, n, j0, h, piv, S);
+  factorPanel(A, n, j0, h, piv, S, kernel);
   solveUnitLowerLeft(A, j0 * n + j0, n, h, A, j0 * n + j1, n, w2);
   packTransposed(S, 0, A, j0 * n + j1, n, h, w2);
-  gemmNT(A, j1 * n + j1, n, A, j1 * n + j0, n, S, 0, h, n - j1, w2, h, w2, -1);
-  factorPanel(A, n, j1, w2, piv, S);
+  gemmNT(A, j1 * n + j1, n, A, j1 * n + j0, n, S, 0, h, n - j1, w2, h, w2, -1, kernel);
+  factorPanel(A, n, j1, w2, piv, S, kernel);
 }
 
 /** Serial blocked LU in place; returns the pivots. Throws SingularMatrixError. */
-export function luFactorSerial(A: Float64Array, n: number, blockSize: number = 96): Int32Array {
+export function luFactorSerial(A: Float64Array, n: number, blockSize: number = 96, kernel: DenseKernel = "auto"): Int32Array {
   checkSize(A, n);
   const nb = Math.max(1, Math.floor(blockSize));
   const piv = new Int32Array(n);
   const Q = new Float64Array(Math.max(n * Math.min(nb, n), 64));
   for (let j0 = 0; j0 < n; j0 += nb) {
     const w = Math.min(nb, n - j0);
-    factorPanel(A, n, j0, w, piv, Q);
+    factorPanel(A, n, j0, w, piv, Q, kernel);
     if (j0 + w >= n) break;
     luBlockRow(A, n, j0, w, Q, j0 + w, n);
-    luUpdate(A, n, j0, w, Q, j0 + w, n);
+    luUpdate(A, n, j0, w, Q, j0 + w, n, kernel);
   }
   return piv;
 }
@@ -97,21 +99,21 @@ export function luFactorSerial(A: Float64Array, n: number, blockSize: number = 9
 export async function luFactor(A: Float64Array, n: number, opts: LuOptions = {}): Promise<Int32Array> {
   checkSize(A, n);
   const nb = Math.max(4, Math.floor(opts.blockSize ?? 96));
-  const pool = opts.pool;
-  if (!pool || pool.size < 2 || n <= 2 * nb) return luFactorSerial(A, n, nb);
+  const pool = opts.pool, kernel = opts.kernel ?? "auto";
+  if (!pool || pool.size < 2 || n <= 2 * nb) return luFactorSerial(A, n, nb, kernel);
   const S = isShared(A) ? A : sharedFloat64(n * n);
   if (S !== A) S.set(A.subarray(0, n * n));
   const piv = new Int32Array(n);
   const Q = sharedFloat64(n * nb);
   for (let j0 = 0; j0 < n; j0 += nb) {
     const w = Math.min(nb, n - j0), i0 = j0 + w;
-    factorPanel(S, n, j0, w, piv, Q);
+    factorPanel(S, n, j0, w, piv, Q, kernel);
     if (i0 >= n) break;
     // Small trailing blocks are not worth a round trip to the workers.
-    if (n - i0 < 2 * nb) { luBlockRow(S, n, j0, w, Q, i0, n); luUpdate(S, n, j0, w, Q, i0, n); continue; }
+    if (n - i0 < 2 * nb) { luBlockRow(S, n, j0, w, Q, i0, n); luUpdate(S, n, j0, w, Q, i0, n, kernel); continue; }
     const s = rowSplits(i0, n, pool.size, false);
     await pool.map(tasksUrl, "luBlockRow", s.slice(0, -1).map((c, t) => [S, n, j0, w, Q, c, s[t + 1]]));
-    await pool.map(tasksUrl, "luUpdate", s.slice(0, -1).map((r, t) => [S, n, j0, w, Q, r, s[t + 1]]));
+    await pool.map(tasksUrl, "luUpdate", s.slice(0, -1).map((r, t) => [S, n, j0, w, Q, r, s[t + 1], kernel]));
   }
   if (S !== A) A.set(S);
   return piv;

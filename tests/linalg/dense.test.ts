@@ -9,13 +9,13 @@ describe("dense kernels", () => {
   const pool = new WorkerPool(2);
   afterAll(() => pool.close());
 
-  it("gemmNT equals C + α·A·Bᵀ by the definition, full and lower-triangle forms", () => {
+  for (const kernel of ["auto", "js", "wasm"] as const) it(`gemmNT (${kernel}) equals C + α·A·Bᵀ by the definition, full and lower-triangle forms`, () => {
     fc.assert(fc.property(fc.integer({ min: 1, max: 23 }), fc.integer({ min: 1, max: 23 }), fc.integer({ min: 1, max: 19 }), fc.integer({ min: -25, max: 25 }), fc.integer(), fc.constantFrom(-1, 1, 0.5),
       (m, p, kc, diag, seed, alpha) => {
         const lda = kc + 3, ldb = kc + 1, ldc = p + 2;
         const A = randomBlock(m, lda, seed), B = randomBlock(p, ldb, seed + 1), C = randomBlock(m, ldc, seed + 2);
         const out = C.slice();
-        gemmNT(out, 0, ldc, A, 0, lda, B, 0, ldb, m, p, kc, diag, alpha);
+        gemmNT(out, 0, ldc, A, 0, lda, B, 0, ldb, m, p, kc, diag, alpha, kernel);
         for (let i = 0; i < m; i++)
           for (let j = 0; j < ldc; j++) {
             let want = C[i * ldc + j];
@@ -26,12 +26,12 @@ describe("dense kernels", () => {
       }), { numRuns: 200 });
   });
 
-  it("gemmNT is right across its cache column blocks (long k makes the blocks narrow)", () => {
+  for (const kernel of ["js", "wasm"] as const) it(`gemmNT (${kernel}) is right across its cache blocks (long k makes the column blocks narrow)`, () => {
     const m = 37, p = 70, kc = 3000, lda = kc, ldb = kc + 2, ldc = p;
     const A = randomBlock(m, lda, 1), B = randomBlock(p, ldb, 2), C = randomBlock(m, ldc, 3);
     for (const diag of [-40, -3, 0, 5, 30, 70]) {
       const out = C.slice();
-      gemmNT(out, 0, ldc, A, 0, lda, B, 0, ldb, m, p, kc, diag, -1);
+      gemmNT(out, 0, ldc, A, 0, lda, B, 0, ldb, m, p, kc, diag, -1, kernel);
       let err = 0;
       for (let i = 0; i < m; i++)
         for (let j = 0; j < p; j++) {
