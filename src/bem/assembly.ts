@@ -3,13 +3,14 @@
  * or on the worker pool, and entries for arbitrary index sets (the entry generator that
  * low-rank compression calls). Units 1/metre, without the 1/(4πε) factor.
  *
- * The Galerkin row loop inlines the far-field Taylor term (galerkin.ts farTerm) so the bulk
- * of the entries costs one square root and a few dozen flops; every other rung calls
- * galerkinEntry. Both paths give identical numbers, so the dense matrix equals the entries.
+ * The row loops inline the far-field Taylor terms (galerkin.ts farTerm and quadrupoleTerm,
+ * collocation.ts collocationFar) so the bulk of the entries costs one square root and a few
+ * dozen flops; every other rung calls galerkinEntry / collocationEntry. Both paths give
+ * identical numbers, so the dense matrix equals the entries.
  */
 import type { PanelSet } from "./panels.js";
 import { galerkinEntry, RHO_FAR, RHO_QUADRUPOLE } from "./galerkin.js";
-import { collocationEntry } from "./collocation.js";
+import { collocationEntry, COLLOCATION_FAR } from "./collocation.js";
 import { sharedFloat64, sharedPool, type WorkerPool } from "../linalg/pool.js";
 
 export type Discretisation = "galerkin" | "collocation";
@@ -23,7 +24,7 @@ export function assembleRows(P: PanelSet, method: Discretisation, rowStart: numb
   const n = P.n;
   if (out.length < n * n) throw new Error(`assembleRows: output holds ${out.length} entries, need ${n * n}`);
   if (method === "collocation") {
-    for (let i = rowStart; i < rowEnd; i++) for (let j = 0; j < n; j++) out[i * n + j] = collocationEntry(P, i, j);
+    for (let i = rowStart; i < rowEnd; i++) collocationRow(P, i, out);
     return;
   }
   if (method !== "galerkin") throw new Error(`assembleRows: unknown discretisation ${String(method)}`);
@@ -74,6 +75,34 @@ function galerkinUpperRow(P: PanelSet, i: number, out: Float64Array): void {
         + (t6 - T[tj + 6]) * dy * dy * dz + (t7 - T[tj + 7]) * dx * dz * dz + (t8 - T[tj + 8]) * dy * dz * dz)
       + 6 * (t9 - T[tj + 9]) * dx * dy * dz;
     const vd = (vx - V[3 * j]) * dx + (vy - V[3 * j + 1]) * dy + (vz - V[3 * j + 2]) * dz;
+    out[row + j] = inv * (1 + inv2 * (0.5 * (3 * q * inv2 - (sxx + syy + szz)) + inv2 * (-2.5 * uddd * inv2 + 1.5 * vd)));
+  }
+}
+
+/**
+ * out[i·n + j] for all j, the far rung of collocation.ts (collocationFar) inlined with the
+ * same expressions in the same order, so the row equals collocationEntry bit for bit.
+ */
+function collocationRow(P: PanelSet, i: number, out: Float64Array): void {
+  const n = P.n;
+  const c = P.centroids, M = P.moments2, T = P.moments3, V = P.traces3, rad = P.radii;
+  const far2 = COLLOCATION_FAR * COLLOCATION_FAR;
+  const row = i * n;
+  const x = c[3 * i], y = c[3 * i + 1], z = c[3 * i + 2];
+  for (let j = 0; j < n; j++) {
+    const dx = x - c[3 * j], dy = y - c[3 * j + 1], dz = z - c[3 * j + 2];
+    const rj = rad[j];
+    const r2 = dx * dx + dy * dy + dz * dz;
+    if (r2 < far2 * rj * rj) { out[row + j] = collocationEntry(P, i, j); continue; }
+    const oj = 6 * j, tj = 10 * j;
+    const sxx = M[oj], syy = M[oj + 1], szz = M[oj + 2], sxy = M[oj + 3], sxz = M[oj + 4], syz = M[oj + 5];
+    const uddd = -(T[tj] * dx * dx * dx + T[tj + 1] * dy * dy * dy + T[tj + 2] * dz * dz * dz
+      + 3 * (T[tj + 3] * dx * dx * dy + T[tj + 4] * dx * dx * dz + T[tj + 5] * dx * dy * dy
+        + T[tj + 6] * dy * dy * dz + T[tj + 7] * dx * dz * dz + T[tj + 8] * dy * dz * dz)
+      + 6 * T[tj + 9] * dx * dy * dz);
+    const vd = -(V[3 * j] * dx + V[3 * j + 1] * dy + V[3 * j + 2] * dz);
+    const q = sxx * dx * dx + syy * dy * dy + szz * dz * dz + 2 * (sxy * dx * dy + sxz * dx * dz + syz * dy * dz);
+    const inv = 1 / Math.sqrt(r2), inv2 = inv * inv;
     out[row + j] = inv * (1 + inv2 * (0.5 * (3 * q * inv2 - (sxx + syy + szz)) + inv2 * (-2.5 * uddd * inv2 + 1.5 * vd)));
   }
 }

@@ -73,6 +73,119 @@ export function trianglePotential(v: ArrayLike<number>, o: number, px: number, p
 }
 
 /**
+ * A source triangle laid out once for many observation points (the inner integral of the
+ * Galerkin near rungs): vertices, unit normal, centroid, squared radius, area, and per edge k
+ * (a→b, b→c, c→a) the unit tangent l̂, the outward in-plane normal û = l̂ × n̂ and the length.
+ * framePotential then costs three square roots, three logarithms and one atan2 per point.
+ */
+export const FRAME_SIZE = 38;
+const F_N = 9, F_G = 12, F_R2 = 15, F_AREA = 16, F_EDGE = 17;
+
+/** Fill F[0..FRAME_SIZE) from the triangle v[o..o+8] (metres, counter-clockwise about its normal). */
+export function sourceFrame(F: Float64Array, v: ArrayLike<number>, o: number): Float64Array {
+  for (let k = 0; k < 9; k++) F[k] = v[o + k];
+  const ax = F[0], ay = F[1], az = F[2], bx = F[3], by = F[4], bz = F[5], cx = F[6], cy = F[7], cz = F[8];
+  const gx = (ax + bx + cx) / 3, gy = (ay + by + cy) / 3, gz = (az + bz + cz) / 3;
+  F[F_G] = gx; F[F_G + 1] = gy; F[F_G + 2] = gz;
+  F[F_R2] = Math.max(
+    (ax - gx) ** 2 + (ay - gy) ** 2 + (az - gz) ** 2,
+    (bx - gx) ** 2 + (by - gy) ** 2 + (bz - gz) ** 2,
+    (cx - gx) ** 2 + (cy - gy) ** 2 + (cz - gz) ** 2);
+  let nx = (by - ay) * (cz - az) - (bz - az) * (cy - ay);
+  let ny = (bz - az) * (cx - ax) - (bx - ax) * (cz - az);
+  let nz = (bx - ax) * (cy - ay) - (by - ay) * (cx - ax);
+  const n2 = Math.sqrt(nx * nx + ny * ny + nz * nz);
+  F[F_AREA] = 0.5 * n2;
+  if (n2 > 0) { nx /= n2; ny /= n2; nz /= n2; }
+  F[F_N] = nx; F[F_N + 1] = ny; F[F_N + 2] = nz;
+  for (let k = 0; k < 3; k++) {
+    const o0 = 3 * k, o1 = 3 * ((k + 1) % 3), e = F_EDGE + 7 * k;
+    let lx = F[o1] - F[o0], ly = F[o1 + 1] - F[o0 + 1], lz = F[o1 + 2] - F[o0 + 2];
+    const L = Math.sqrt(lx * lx + ly * ly + lz * lz);
+    if (L > 0) { lx /= L; ly /= L; lz /= L; }
+    F[e] = lx; F[e + 1] = ly; F[e + 2] = lz;
+    F[e + 3] = ly * nz - lz * ny; F[e + 4] = lz * nx - lx * nz; F[e + 5] = lx * ny - ly * nx;
+    F[e + 6] = L;
+  }
+  return F;
+}
+
+/**
+ * I(x) (metres) of the triangle laid out in F by sourceFrame: the same formula, limits and
+ * far-point quadrature as trianglePotential (agreement to rounding checked in
+ * tests/bem/triangle-potential.test.ts).
+ */
+export function framePotential(F: Float64Array, px: number, py: number, pz: number): number {
+  const area = F[F_AREA];
+  if (area === 0) return 0;
+  const ax = F[0], ay = F[1], az = F[2], bx = F[3], by = F[4], bz = F[5], cx = F[6], cy = F[7], cz = F[8];
+  const dgx = px - F[F_G], dgy = py - F[F_G + 1], dgz = pz - F[F_G + 2];
+  if (dgx * dgx + dgy * dgy + dgz * dgz > FAR_RATIO * FAR_RATIO * F[F_R2]) {
+    const R = FAR_RULE;
+    let s = 0;
+    for (let k = 0; k < R.n; k++) {
+      const l1 = R.l1[k], l2 = R.l2[k], l3 = R.l3[k];
+      const dx = px - (l1 * ax + l2 * bx + l3 * cx);
+      const dy = py - (l1 * ay + l2 * by + l3 * cy);
+      const dz = pz - (l1 * az + l2 * bz + l3 * cz);
+      s += R.w[k] / Math.sqrt(dx * dx + dy * dy + dz * dz);
+    }
+    return s * area;
+  }
+  const nx = F[F_N], ny = F[F_N + 1], nz = F[F_N + 2];
+  const wax = ax - px, way = ay - py, waz = az - pz;
+  const wbx = bx - px, wby = by - py, wbz = bz - pz;
+  const wcx = cx - px, wcy = cy - py, wcz = cz - pz;
+  const ra = Math.sqrt(wax * wax + way * way + waz * waz);
+  const rb = Math.sqrt(wbx * wbx + wby * wby + wbz * wbz);
+  const rc = Math.sqrt(wcx * wcx + wcy * wcy + wcz * wcz);
+  const h = -(wax * nx + way * ny + waz * nz);
+  const h2 = h * h;
+  let sum = 0;
+  for (let k = 0; k < 3; k++) {
+    let wx, wy, wz, Rm, Rp;
+    if (k === 0) { wx = wax; wy = way; wz = waz; Rm = ra; Rp = rb; }
+    else if (k === 1) { wx = wbx; wy = wby; wz = wbz; Rm = rb; Rp = rc; }
+    else { wx = wcx; wy = wcy; wz = wcz; Rm = rc; Rp = ra; }
+    const e = F_EDGE + 7 * k;
+    const t0 = wx * F[e + 3] + wy * F[e + 4] + wz * F[e + 5];
+    if (t0 === 0 || Rm === 0 || Rp === 0) continue;
+    const L = F[e + 6];
+    const sm = wx * F[e] + wy * F[e + 1] + wz * F[e + 2];
+    sum += t0 * edgeLog(L, sm, sm + L, Rm, Rp, t0 * t0 + h2);
+  }
+  const trip = wax * (wby * wcz - wbz * wcy) - way * (wbx * wcz - wbz * wcx) + waz * (wbx * wcy - wby * wcx);
+  const den = ra * rb * rc + (wax * wbx + way * wby + waz * wbz) * rc + (wax * wcx + way * wcy + waz * wcz) * rb
+    + (wbx * wcx + wby * wcy + wbz * wcz) * ra;
+  // Van Oosterom & Strackee solid angle, as solidAngle below.
+  return sum + h * 2 * Math.atan2(trip, den);
+}
+
+/**
+ * Distance (metres) from x to the closest point of the triangle in F: the normal offset when x
+ * projects inside, otherwise the nearest edge segment — the Voronoi-region case split of
+ * C. Ericson, Real-Time Collision Detection (2005) §5.1.5, read off the frame's edge normals.
+ */
+export function frameDistance(F: Float64Array, px: number, py: number, pz: number): number {
+  const h = (px - F[0]) * F[F_N] + (py - F[1]) * F[F_N + 1] + (pz - F[2]) * F[F_N + 2];
+  let best = Infinity, inside = true;
+  for (let k = 0; k < 3; k++) {
+    const o0 = 3 * k, e = F_EDGE + 7 * k;
+    const wx = F[o0] - px, wy = F[o0 + 1] - py, wz = F[o0 + 2] - pz;
+    const t0 = wx * F[e + 3] + wy * F[e + 4] + wz * F[e + 5];
+    if (t0 >= 0) continue;
+    inside = false;
+    // Along-edge offset of x from the edge start, clamped to the segment.
+    let s = -(wx * F[e] + wy * F[e + 1] + wz * F[e + 2]);
+    s = s < 0 ? 0 : s > F[e + 6] ? F[e + 6] : s;
+    const dx = wx + s * F[e], dy = wy + s * F[e + 1], dz = wz + s * F[e + 2];
+    const d2 = dx * dx + dy * dy + dz * dz;
+    if (d2 < best) best = d2;
+  }
+  return inside ? Math.abs(h) : Math.sqrt(best);
+}
+
+/**
  * Σ_k t⁰_k f_k (metres), and −Σ_k û_k f_k added into g[go..go+2] when g is given. R∓ of edge k
  * are the distances from x to its end vertices, shared between edges.
  */

@@ -1,7 +1,8 @@
 import { describe, it, expect } from "vitest";
 import { panelSet, type PanelSet } from "../../src/bem/panels.js";
-import { galerkinEntry, selfTerm, farTerm, doubleQuadrature, RHO_FAR, RHO_MID, RHO_NEAR, RHO_QQ3, RHO_QUADRUPOLE } from "../../src/bem/galerkin.js";
-import { trianglePotential } from "../../src/bem/triangle-potential.js";
+import { galerkinEntry, selfTerm, farTerm, doubleQuadrature, sharedCorner, RHO_FAR, RHO_MID, RHO_NEAR, RHO_QQ3, RHO_QUADRUPOLE } from "../../src/bem/galerkin.js";
+import { trianglePotential, sourceFrame, frameDistance, FRAME_SIZE } from "../../src/bem/triangle-potential.js";
+import { plateMesh } from "../../src/mesh/primitives/index.js";
 import { dunavantRule } from "../../src/bem/dunavant.js";
 import { icosphere } from "./icosphere.js";
 
@@ -126,5 +127,90 @@ describe("Galerkin symmetry", () => {
     const s = icosphere(2);
     const P = panelSet(s.positions, s.triangles);
     for (let i = 0; i < P.n; i += 7) for (let j = 0; j < P.n; j += 3) expect(galerkinEntry(P, i, j)).toBe(galerkinEntry(P, j, i));
+  });
+});
+
+describe("Galerkin near rung on graded, coplanar and sliver pairs (distance-split outer rule)", () => {
+  // Reference: the subdivided degree-10 outer rule above at 4^5 pieces, its own convergence
+  // checked against 4^4 pieces (the pairs do not touch, so it converges geometrically).
+  const checkPairs = (P: PanelSet, pairs: [number, number][], tol: number) => {
+    let worst = 0;
+    for (const [i, j] of pairs) {
+      const lo = Math.min(i, j), hi = Math.max(i, j);
+      const r4 = subdivided(P, lo, hi, 4), r5 = subdivided(P, lo, hi, 5);
+      expect(rel(r4, r5)).toBeLessThan(1e-9);
+      worst = Math.max(worst, rel(galerkinEntry(P, i, j), r5));
+    }
+    expect(worst).toBeLessThan(tol);
+    return worst;
+  };
+  const rhoOf = (P: PanelSet, i: number, j: number) => {
+    const c = P.centroids;
+    return Math.hypot(c[3 * i] - c[3 * j], c[3 * i + 1] - c[3 * j + 1], c[3 * i + 2] - c[3 * j + 2]) / (P.radii[i] + P.radii[j]);
+  };
+  const nonTouching = (P: PanelSet, lo: number, hi: number, stride: number) => {
+    const out: [number, number][] = [];
+    let k = 0;
+    for (let i = 0; i < P.n; i++) for (let j = i + 1; j < P.n; j++) {
+      const r = rhoOf(P, i, j);
+      if (r >= lo && r < hi && sharedCorner(P, i, j) < 0 && k++ % stride === 0) out.push([i, j]);
+    }
+    return out;
+  };
+
+  it("graded plate (10 m, 12 divisions, grading 3): ρ < 1 pairs within 2e-7", () => {
+    const m = plateMesh({ size: [10, 10], divisions: 12, grading: 3 });
+    const P = panelSet(m.positions, m.triangles);
+    const pairs = nonTouching(P, 0, RHO_NEAR, 37);
+    expect(pairs.length).toBeGreaterThan(15);
+    checkPairs(P, pairs, 2e-7);
+  });
+  it("graded plate: ρ in [1, 2.5) (degree-6 double quadrature) within the 1e-6 near bound", () => {
+    const m = plateMesh({ size: [1, 1], divisions: 12, grading: 3 });
+    const P = panelSet(m.positions, m.triangles);
+    const pairs = nonTouching(P, RHO_NEAR, RHO_MID, 401);
+    expect(pairs.length).toBeGreaterThan(15);
+    checkPairs(P, pairs, 1e-6);
+  });
+  it("coplanar neighbours of neighbours on a uniform grid, both orientations of the diagonal", () => {
+    const m = plateMesh({ size: [1, 1], divisions: 6 });
+    const P = panelSet(m.positions, m.triangles);
+    // Pairs with no common vertex but a common neighbour (one panel between them).
+    const pairs: [number, number][] = [];
+    for (let i = 0; i < P.n; i += 3) for (let j = i + 1; j < P.n; j++) {
+      if (sharedCorner(P, i, j) >= 0 || rhoOf(P, i, j) >= RHO_MID) continue;
+      for (let k = 0; k < P.n; k++) if (sharedCorner(P, i, k) >= 0 && sharedCorner(P, k, j) >= 0) { pairs.push([i, j]); break; }
+    }
+    expect(pairs.some(([i, j]) => rhoOf(P, i, j) < RHO_NEAR)).toBe(true);
+    checkPairs(P, pairs, 2e-7);
+  });
+  it("slivers of aspect 10–50 at ρ < 1, coplanar and in space", () => {
+    const P0 = (pos: number[]) => panelSet(Float64Array.from(pos), new Uint32Array([0, 1, 2, 3, 4, 5]));
+    let made = 0, tries = 0;
+    while (made < 16 && tries++ < 2000) {
+      const asp = 10 + 40 * rnd(), coplanar = made % 2 === 0;
+      // T_i: a sliver of length 1 along x; T_j: a sliver or a plain triangle, turned at random.
+      const a = [0, 0, 0, 1, 0, 0, rnd(), 1 / asp, 0];
+      const th = Math.PI * rnd(), len = 0.3 + rnd(), w = made % 4 < 2 ? len / (10 + 40 * rnd()) : 0.5 * len;
+      const u = [Math.cos(th), Math.sin(th), coplanar ? 0 : rnd() - 0.5];
+      const b = [0, 0, 0, len * u[0], len * u[1], len * u[2], len * rnd() * u[0] - w * u[1], len * rnd() * u[1] + w * u[0], coplanar ? 0 : w * (rnd() - 0.5)];
+      const Q = P0([...a, ...b]);
+      const rho = 0.3 + 0.7 * rnd(), dir = [rnd() - 0.5, rnd() - 0.5, coplanar ? 0 : rnd() - 0.5], dl = Math.hypot(...dir);
+      const s = rho * (Q.radii[0] + Q.radii[1]);
+      for (let k = 3; k < 6; k++) for (let q = 0; q < 3; q++) b[3 * (k - 3) + q] += Q.centroids[q] - Q.centroids[3 + q] + (s * dir[q]) / dl;
+      const P = P0([...a, ...b]);
+      // Keep pairs that stay clear of each other by 5 % of the sliver length (touching pairs
+      // have their own rung; the reference needs the gap to converge).
+      const F = sourceFrame(new Float64Array(FRAME_SIZE), P.vertices, 9);
+      let gap = Infinity;
+      for (let p = 0; p <= 40; p++) for (let q = 0; p + q <= 40; q++) {
+        const l2 = p / 40, l3 = q / 40, l1 = 1 - l2 - l3, v = P.vertices;
+        gap = Math.min(gap, frameDistance(F, l1 * v[0] + l2 * v[3] + l3 * v[6], l1 * v[1] + l2 * v[4] + l3 * v[7], l1 * v[2] + l2 * v[5] + l3 * v[8]));
+      }
+      if (gap < 0.05 || rhoOf(P, 0, 1) >= RHO_NEAR) continue;
+      made++;
+      checkPairs(P, [[0, 1]], 2e-7);
+    }
+    expect(made).toBe(16);
   });
 });

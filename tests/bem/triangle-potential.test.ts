@@ -1,6 +1,6 @@
 import { describe, it, expect } from "vitest";
 import fc from "fast-check";
-import { trianglePotential, trianglePotentialGradient, triangleSolidAngle, FAR_RATIO } from "../../src/bem/triangle-potential.js";
+import { trianglePotential, trianglePotentialGradient, triangleSolidAngle, FAR_RATIO, sourceFrame, framePotential, frameDistance, FRAME_SIZE } from "../../src/bem/triangle-potential.js";
 import { gaussLegendre } from "../../src/bem/gauss-legendre.js";
 import { dunavantRule } from "../../src/bem/dunavant.js";
 
@@ -227,5 +227,52 @@ describe("gradient of the triangle potential", () => {
     const r = Math.hypot(300, 200, 100);
     expect(Math.abs(g[0] + (A * 300) / r ** 3) / (A / r ** 2)).toBeLessThan(1e-4);
     expect(Math.abs(g[1] - (A * 200) / r ** 3) / (A / r ** 2)).toBeLessThan(1e-4);
+  });
+});
+
+describe("source frame (the inner integral laid out once per panel)", () => {
+  let seed = 2024;
+  const rnd = () => { seed = (seed * 16807) % 2147483647; return seed / 2147483647; };
+  const F = new Float64Array(FRAME_SIZE);
+  it("framePotential equals trianglePotential to rounding, off and on the plane, near and beyond FAR_RATIO", () => {
+    let worst = 0;
+    for (let t = 0; t < 200; t++) {
+      const v = Array.from({ length: 9 }, () => rnd() - 0.5);
+      sourceFrame(F, v, 0);
+      const scale = [0.3, 3, 80][t % 3];
+      const p = [scale * (rnd() - 0.5), scale * (rnd() - 0.5), t % 4 === 0 ? 0 : scale * (rnd() - 0.5)];
+      if (t % 4 === 0) { // a point on the panel's plane: the triangle's own affine span
+        const a = rnd() * 2 - 0.5, b = rnd() * 2 - 0.5;
+        for (let q = 0; q < 3; q++) p[q] = v[q] + a * (v[3 + q] - v[q]) + b * (v[6 + q] - v[q]);
+      }
+      const ref = trianglePotential(v, 0, p[0], p[1], p[2]);
+      worst = Math.max(worst, Math.abs(framePotential(F, p[0], p[1], p[2]) - ref) / ref);
+    }
+    expect(worst).toBeLessThan(1e-13);
+  });
+  it("frameDistance is the distance to the closest point of the triangle (Ericson 2005 §5.1.5 cases; dense sampling bound)", () => {
+    const v = [0, 0, 0, 2, 0, 0, 0.5, 1, 0];
+    sourceFrame(F, v, 0);
+    expect(frameDistance(F, 0.6, 0.3, 0.7)).toBeCloseTo(0.7, 14);          // above the face
+    expect(frameDistance(F, -0.3, -0.4, 0)).toBeCloseTo(0.5, 14);          // vertex region of a
+    expect(frameDistance(F, 1, -0.25, 1)).toBeCloseTo(Math.hypot(0.25, 1), 14); // edge region of ab
+    expect(frameDistance(F, 0.5, 1, 0)).toBe(0);                           // on vertex c
+    // Random points: never more than the distance to any sampled point of T, and within the
+    // sampling resolution of the nearest sample.
+    const N = 120;
+    for (let t = 0; t < 60; t++) {
+      const w = Array.from({ length: 9 }, () => rnd() - 0.5);
+      sourceFrame(F, w, 0);
+      const p = [2 * rnd() - 1, 2 * rnd() - 1, 2 * rnd() - 1];
+      const d = frameDistance(F, p[0], p[1], p[2]);
+      let best = Infinity;
+      for (let a = 0; a <= N; a++) for (let b = 0; a + b <= N; b++) {
+        const l2 = a / N, l3 = b / N, l1 = 1 - l2 - l3;
+        best = Math.min(best, Math.hypot(l1 * w[0] + l2 * w[3] + l3 * w[6] - p[0], l1 * w[1] + l2 * w[4] + l3 * w[7] - p[1], l1 * w[2] + l2 * w[5] + l3 * w[8] - p[2]));
+      }
+      const edge = Math.max(Math.hypot(w[3] - w[0], w[4] - w[1], w[5] - w[2]), Math.hypot(w[6] - w[0], w[7] - w[1], w[8] - w[2]));
+      expect(d).toBeLessThanOrEqual(best + 1e-14);
+      expect(best - d).toBeLessThan(edge / N);
+    }
   });
 });
