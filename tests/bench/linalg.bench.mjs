@@ -1,10 +1,12 @@
-// Dense linear algebra figures: Cholesky and LU GFLOP/s on the calling thread and on a pool
-// of two workers, dense multiply GB/s. Run: npm run bench -- linalg  (or, after a build,
+// Dense linear algebra figures: the trailing-update kernel alone, Cholesky and LU GFLOP/s
+// on the calling thread and on a pool of two workers, each with the JavaScript and the
+// WebAssembly SIMD kernel (ratios matter more than absolutes on a shared machine), and
+// dense multiply GB/s. Run: npm run bench -- linalg  (or, after a build,
 // node tests/bench/linalg.bench.mjs [quick]).
 import { cpus, loadavg } from "node:os";
 import { choleskyFactor, choleskyFactorSerial, choleskySolve } from "../../dist/src/linalg/cholesky.js";
 import { luFactor, luFactorSerial, luSolve } from "../../dist/src/linalg/lu.js";
-import { denseMultiply, denseMultiplySerial } from "../../dist/src/linalg/dense.js";
+import { denseMultiply, denseMultiplySerial, gemmNT, denseKernelInUse } from "../../dist/src/linalg/dense.js";
 import { WorkerPool, sharedFloat64 } from "../../dist/src/linalg/pool.js";
 
 const quick = process.argv.includes("quick");
@@ -54,27 +56,57 @@ async function best(reps, fn) {
 }
 
 const pool = new WorkerPool(2);
+const kernels = denseKernelInUse("auto") === "wasm" ? ["js", "wasm"] : ["js"];
+if (kernels.length === 1) console.log("WebAssembly SIMD is not available here: JavaScript kernel only");
+const rate = {};
+const ratio = (key) => (rate[`${key} wasm`] && rate[`${key} js`] ? ` (wasm/js ${(rate[`${key} wasm`] / rate[`${key} js`]).toFixed(2)}x)` : "");
 
-for (const n of quick ? [1000] : [1000, 2000, 4000]) {
+// The kernel alone: C ← C − A·Bᵀ, m = p = 2000, kc = 96 (one Cholesky block step's shape).
+{
+  const m = quick ? 1000 : 2000, p = m, kc = 96;
+  const G = general(m), A = G.slice(0, m * kc), B = G.slice(m * kc, (m + p) * kc), C = new Float64Array(m * p);
+  for (const k of kernels) {
+    for (let r = 0; r < 2; r++) gemmNT(C, 0, p, A, 0, kc, B, 0, kc, m, p, kc, p, -1, k);
+    const { w, cpu } = await best(4, () => time(() => gemmNT(C, 0, p, A, 0, kc, B, 0, kc, m, p, kc, p, -1, k)));
+    rate[`kernel ${k}`] = (2 * m * p * kc) / w / 1e9;
+    console.log(`kernel   ${m}x${p}x${kc} ${k.padEnd(4)} 1 thread : ${rate[`kernel ${k}`].toFixed(2)} GFLOP/s (${(w * 1e3).toFixed(0)} ms wall, ${(cpu * 1e3).toFixed(0)} ms cpu)${ratio("kernel")}`);
+  }
+}
+
+const sizes = quick ? [1000] : [1000, 2000, 4000];
+for (const n of sizes) {
   const A0 = kms(n, 0.9);
   const reps = n >= 4000 ? 1 : 2;
-  for (const [label, run] of [["1 thread ", (A) => choleskyFactorSerial(A, n)], ["2 workers", (A) => choleskyFactor(A, n, { pool })]]) {
-    let L;
-    const { w, cpu } = await best(reps, () => { L = sharedFloat64(n * n); L.set(A0); return time(() => run(L)); });
-    const res = residual(A0, n, (x) => choleskySolve(L, n, x, 1));
-    console.log(`cholesky n=${n} ${label}: ${(n ** 3 / 3 / w / 1e9).toFixed(2)} GFLOP/s (${w.toFixed(2)} s wall, ${cpu.toFixed(2)} s cpu, residual ${res.toExponential(1)})`);
-  }
+  for (const k of kernels)
+    for (const [label, run] of [["1 thread ", (A) => choleskyFactorSerial(A, n, undefined, k)], ["2 workers", (A) => choleskyFactor(A, n, { pool, kernel: k })]]) {
+      let L;
+      const { w, cpu } = await best(reps, () => { L = sharedFloat64(n * n); L.set(A0); return time(() => run(L)); });
+      const res = residual(A0, n, (x) => choleskySolve(L, n, x, 1));
+      const key = `cholesky ${n} ${label}`;
+      rate[`${key} ${k}`] = n ** 3 / 3 / w / 1e9;
+      console.log(`cholesky n=${n} ${k.padEnd(4)} ${label}: ${rate[`${key} ${k}`].toFixed(2)} GFLOP/s (${w.toFixed(2)} s wall, ${cpu.toFixed(2)} s cpu, residual ${res.toExponential(1)})${ratio(key)}`);
+    }
 }
 
-for (const n of quick ? [1000] : [2000]) {
+for (const n of sizes) {
   const A0 = general(n);
-  for (const [label, run] of [["1 thread ", (A) => luFactorSerial(A, n)], ["2 workers", (A) => luFactor(A, n, { pool })]]) {
-    let LU, piv;
-    const { w, cpu } = await best(2, () => { LU = sharedFloat64(n * n); LU.set(A0); return time(async () => { piv = await run(LU); }); });
-    const res = residual(A0, n, (x) => luSolve(LU, piv, n, x, 1));
-    console.log(`lu       n=${n} ${label}: ${((2 * n ** 3) / 3 / w / 1e9).toFixed(2)} GFLOP/s (${w.toFixed(2)} s wall, ${cpu.toFixed(2)} s cpu, residual ${res.toExponential(1)})`);
-  }
+  const reps = n >= 4000 ? 1 : 2;
+  for (const k of kernels)
+    for (const [label, run] of [["1 thread ", (A) => luFactorSerial(A, n, undefined, k)], ["2 workers", (A) => luFactor(A, n, { pool, kernel: k })]]) {
+      let LU, piv;
+      const { w, cpu } = await best(reps, () => { LU = sharedFloat64(n * n); LU.set(A0); return time(async () => { piv = await run(LU); }); });
+      const res = residual(A0, n, (x) => luSolve(LU, piv, n, x, 1));
+      const key = `lu ${n} ${label}`;
+      rate[`${key} ${k}`] = (2 * n ** 3) / 3 / w / 1e9;
+      console.log(`lu       n=${n} ${k.padEnd(4)} ${label}: ${rate[`${key} ${k}`].toFixed(2)} GFLOP/s (${w.toFixed(2)} s wall, ${cpu.toFixed(2)} s cpu, residual ${res.toExponential(1)})${ratio(key)}`);
+    }
 }
+for (const f of ["cholesky", "lu"])
+  for (const k of kernels)
+    for (const n of sizes) {
+      const one = rate[`${f} ${n} 1 thread  ${k}`], two = rate[`${f} ${n} 2 workers ${k}`];
+      if (one && two) console.log(`speed-up on 2 workers, ${f} n=${n} ${k}: ${(two / one).toFixed(2)}x`);
+    }
 
 {
   const n = quick ? 2000 : 5000, A = general(n);
