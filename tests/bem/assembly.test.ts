@@ -48,6 +48,14 @@ describe("dense assembly", () => {
     expect(oc[1]).toBe(collocationEntry(P, rows[0], cols[1]));
   });
 
+  it("collocation rows (far rung inlined) equal collocationEntry bit for bit", () => {
+    const full = new Float64Array(n * n);
+    assembleRows(P, "collocation", 0, n, full);
+    let diff = 0;
+    for (let i = 0; i < n; i += 7) for (let j = 0; j < n; j++) if (full[i * n + j] !== collocationEntry(P, i, j)) diff++;
+    expect(diff).toBe(0);
+  });
+
   it("unit sphere capacitance: Galerkin C = 4πε0 Σq within 1 % of 4πε0 R, from below (closed form C = 4πε0R)", () => {
     const Pm = new Float64Array(n * n);
     assembleRows(P, "galerkin", 0, n, Pm);

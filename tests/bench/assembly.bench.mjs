@@ -1,9 +1,11 @@
-// Galerkin assembly of an icosphere (20·4^L panels): serial and on 2 workers, seconds and entries/s.
+// Galerkin assembly of an icosphere (20·4^L panels): serial and on 2 workers, seconds and entries/s;
+// then the graded and box meshes whose near pairs used to dominate (CPU time per rung, 2-worker speed).
 // Usage: node tests/bench/assembly.bench.mjs [levels=4]   (needs `npx tsc -p tsconfig.json` first)
 import { panelSet, panelSetShared } from "../../dist/src/bem/panels.js";
 import { assembleRows, assembleDense } from "../../dist/src/bem/assembly.js";
 import { WorkerPool } from "../../dist/src/linalg/pool.js";
-import { RHO_FAR, RHO_MID, galerkinEntry, outerRuleSplit, doubleQuadrature, sharedCorner } from "../../dist/src/bem/galerkin.js";
+import { RHO_FAR, RHO_MID, RHO_NEAR, RHO_QQ3, RHO_QUADRUPOLE, galerkinEntry, outerRuleSplit, doubleQuadrature, sharedCorner } from "../../dist/src/bem/galerkin.js";
+import { plateMesh, boxMesh } from "../../dist/src/mesh/primitives/index.js";
 import { dunavantRule } from "../../dist/src/bem/dunavant.js";
 
 function icosphere(levels) {
@@ -82,5 +84,51 @@ for (let rep = 0; rep < 2; rep++) {
   await assembleDense(P, "galerkin", pool, out);
   t = (performance.now() - t0) / 1000;
   console.log(`2 workers: ${t.toFixed(3)} s, ${(unique / t / 1e6).toFixed(1)} M unique entries/s (into a reused matrix)`);
+}
+
+// Meshes with graded and elongated panels: entries per rung, CPU seconds per rung (serial,
+// best of 3), and the 2-worker figure. "mid" includes the pairs the clearance test sends on
+// to the near rung.
+const meshes = [
+  ["box 1 m, 16 divisions", boxMesh({ size: [1, 1, 1], divisions: 16 })],
+  ["plate 1 m, 24 divisions", plateMesh({ size: [1, 1], divisions: 24 })],
+  ["plate 1 m, 24 divisions, grading 3", plateMesh({ size: [1, 1], divisions: 24, grading: 3 })],
+  ["plate 10 m, 12 divisions, grading 3", plateMesh({ size: [10, 10], divisions: 12, grading: 3 })],
+];
+const rungs = ["self", "touching", "near", "mid", "qq", "qq3", "far", "quadrupole"];
+for (const [label, m] of meshes) {
+  const Q = panelSetShared(m.positions, m.triangles), nq = Q.n, uq = (nq * (nq + 1)) / 2;
+  const lists = rungs.map(() => []);
+  for (let i = 0; i < nq; i++) for (let j = i; j < nq; j++) {
+    if (i === j) { lists[0].push(i, j); continue; }
+    const c = Q.centroids;
+    const rho = Math.hypot(c[3 * i] - c[3 * j], c[3 * i + 1] - c[3 * j + 1], c[3 * i + 2] - c[3 * j + 2]) / (Q.radii[i] + Q.radii[j]);
+    const k = rho >= RHO_QUADRUPOLE ? 7 : rho >= RHO_FAR ? 6 : rho >= RHO_QQ3 ? 5 : rho >= RHO_MID ? 4
+      : sharedCorner(Q, i, j) >= 0 ? 1 : rho >= RHO_NEAR ? 3 : 2;
+    lists[k].push(i, j);
+  }
+  const parts = [];
+  for (let k = 0; k < rungs.length; k++) {
+    const L = lists[k];
+    let best = Infinity, sink = 0;
+    for (let rep = 0; rep < 3; rep++) {
+      const c0 = process.cpuUsage();
+      for (let r = 0; r < L.length; r += 2) sink += galerkinEntry(Q, L[r], L[r + 1]);
+      const cu = process.cpuUsage(c0);
+      best = Math.min(best, (cu.user + cu.system) / 1e6);
+    }
+    if (!(sink > 0)) throw new Error("non-positive entries");
+    parts.push(`${rungs[k]} ${L.length / 2} ${(best * 1e3).toFixed(1)} ms (${L.length ? (best / (L.length / 2) * 1e6).toFixed(2) : "-"} µs)`);
+  }
+  const mq = new Float64Array(new SharedArrayBuffer(8 * nq * nq));
+  await assembleDense(Q, "galerkin", pool, mq);
+  let bestWall = Infinity;
+  for (let rep = 0; rep < 5; rep++) {
+    t0 = performance.now();
+    await assembleDense(Q, "galerkin", pool, mq);
+    bestWall = Math.min(bestWall, (performance.now() - t0) / 1000);
+  }
+  console.log(`${label}: ${nq} panels, 2 workers best of 5 ${bestWall.toFixed(4)} s, ${(uq / bestWall / 1e6).toFixed(2)} M unique entries/s`);
+  console.log(`  per rung (entries, serial CPU, per entry): ${parts.join("; ")}`);
 }
 await pool.close();
