@@ -61,8 +61,10 @@ export interface UnitSolution {
  * dense Cholesky at FACTOR_RATE flop/s, an iteration of the dense product streaming the
  * n×n matrix at PRODUCT_RATE entries/s, and iterations that grow slowly with n.
  */
-const FACTOR_RATE = 5.5e9;
-const PRODUCT_RATE = 1.0e9;
+// Measured by tests/bench/extract.bench.mjs (2 workers, shared machine): Cholesky 2.6–2.9 GFLOP/s;
+// a PCG iteration over a 5120² matrix ≈ 50 ms including the preconditioner (≈ 0.5 G entries/s).
+const FACTOR_RATE = 3.0e9;
+const PRODUCT_RATE = 0.6e9;
 function expectedIterations(n: number): number {
   return 12 + 3 * Math.log2(Math.max(2, n / 64));
 }

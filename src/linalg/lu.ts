@@ -6,7 +6,7 @@
  * as in LAPACK dgetrf): factor a column panel (recursively) with row exchanges across whole
  * rows, solve U12 = L11⁻¹·A12, then update A22 ← A22 − L21·U12 with the packed kernel of
  * dense.ts; with a pool the columns of U12 and then the trailing rows are split evenly
- * among the workers. The panel itself stays on the caller.
+ * among the workers. The panel itself stays on the caller, factored in a packed copy.
  * Pivots follow LAPACK's ipiv convention, 0-based: at step c rows c and piv[c] were swapped.
  */
 import { type DenseKernel, gemmNT, isShared, packTransposed, rowSplits } from "./dense.js";
@@ -35,45 +35,80 @@ export interface LuOptions {
 
 const tasksUrl = new URL(import.meta.url.endsWith(".ts") ? "./tasks.ts" : "./tasks.js", import.meta.url).href;
 
-/** Unblocked LU of columns j0..j0+w over rows j0..n, swapping whole rows. */
-function factorColumns(A: Float64Array, n: number, j0: number, w: number, piv: Int32Array): void {
-  const jEnd = j0 + w;
-  for (let c = j0; c < jEnd; c++) {
-    let p = c, best = Math.abs(A[c * n + c]);
-    for (let r = c + 1; r < n; r++) {
-      const v = Math.abs(A[r * n + c]);
+/**
+ * Unblocked LU of columns c0..c0+w of the packed panel T (`rows` rows, stride ld), rows c0
+ * and below, swapping whole panel rows; pivots are recorded and reported as `base` + local.
+ */
+function factorColumns(T: Float64Array, ld: number, rows: number, c0: number, w: number, piv: Int32Array, base: number): void {
+  const cEnd = c0 + w;
+  for (let c = c0; c < cEnd; c++) {
+    let p = c, best = Math.abs(T[c * ld + c]);
+    for (let r = c + 1; r < rows; r++) {
+      const v = Math.abs(T[r * ld + c]);
       if (v > best) { best = v; p = r; }
     }
-    if (!(best > 0) || !Number.isFinite(best)) throw new SingularMatrixError(c);
-    piv[c] = p;
+    if (!(best > 0) || !Number.isFinite(best)) throw new SingularMatrixError(base + c);
+    piv[base + c] = base + p;
     if (p !== c) {
-      const a = c * n, b = p * n;
-      for (let j = 0; j < n; j++) { const t = A[a + j]; A[a + j] = A[b + j]; A[b + j] = t; }
+      const a = c * ld, b = p * ld;
+      for (let j = 0; j < ld; j++) { const t = T[a + j]; T[a + j] = T[b + j]; T[b + j] = t; }
     }
-    const rc = c * n, inv = 1 / A[rc + c];
-    for (let r = c + 1; r < n; r++) {
-      const rr = r * n;
-      const l = (A[rr + c] *= inv);
+    const rc = c * ld, inv = 1 / T[rc + c];
+    for (let r = c + 1; r < rows; r++) {
+      const rr = r * ld;
+      const l = (T[rr + c] *= inv);
       if (l === 0) continue;
-      for (let q = c + 1; q < jEnd; q++) A[rr + q] -= l * A[rc + q];
+      for (let q = c + 1; q < cEnd; q++) T[rr + q] -= l * T[rc + q];
     }
   }
 }
 
 /**
- * LU of the panel of columns j0..j0+w over rows j0..n by recursive halving (Toledo,
- * "Locality of reference in LU decomposition with partial pivoting", SIAM J. Matrix Anal.
- * Appl. 18(4), 1997): the right half is updated through the packed kernel, so the tall
- * panel is swept a few times, not once per column. `S` is scratch for U12ᵀ.
+ * LU of columns c0..c0+w of the packed panel T by recursive halving (Toledo, "Locality of
+ * reference in LU decomposition with partial pivoting", SIAM J. Matrix Anal. Appl. 18(4),
+ * 1997): the right half is updated through the packed kernel, so the tall panel is swept
+ * a few times, not once per column. `S` is scratch for U12ᵀ.
  */
-function factorPanel(A: Float64Array, n: number, j0: number, w: number, piv: Int32Array, S: Float64Array, kernel: DenseKernel): void {
-  if (w <= 8) { factorColumns(A, n, j0, w, piv); return; }
-  const h = w >> 1, j1 = j0 + h, w2 = w - h;
-  factorPanel(A, n, j0, h, piv, S, kernel);
-  solveUnitLowerLeft(A, j0 * n + j0, n, h, A, j0 * n + j1, n, w2);
-  packTransposed(S, 0, A, j0 * n + j1, n, h, w2);
-  gemmNT(A, j1 * n + j1, n, A, j1 * n + j0, n, S, 0, h, n - j1, w2, h, w2, -1, kernel);
-  factorPanel(A, n, j1, w2, piv, S, kernel);
+function factorPanel(T: Float64Array, ld: number, rows: number, c0: number, w: number, piv: Int32Array, base: number, S: Float64Array, kernel: DenseKernel): void {
+  if (w <= 8) { factorColumns(T, ld, rows, c0, w, piv, base); return; }
+  const h = w >> 1, c1 = c0 + h, w2 = w - h;
+  factorPanel(T, ld, rows, c0, h, piv, base, S, kernel);
+  solveUnitLowerLeft(T, c0 * ld + c0, ld, h, T, c0 * ld + c1, ld, w2);
+  packTransposed(S, 0, T, c0 * ld + c1, ld, h, w2);
+  gemmNT(T, c1 * ld + c1, ld, T, c1 * ld + c0, ld, S, 0, h, rows - c1, w2, h, w2, -1, kernel);
+  factorPanel(T, ld, rows, c1, w2, piv, base, S, kernel);
+}
+
+/**
+ * LU of the panel of columns j0..j0+w over rows j0..n. The panel is factored in a packed
+ * copy T (rows w doubles apart, so the tall panel sits in L2 and each pivot search walks
+ * contiguous memory, not one page per row), copied back, and its row exchanges are then
+ * applied to the columns outside it in order, as LAPACK's dlaswp does — the same result
+ * as exchanging whole rows at every pivot, since the panel's arithmetic never reads them.
+ */
+function luPanel(A: Float64Array, n: number, j0: number, w: number, piv: Int32Array, T: Float64Array, S: Float64Array, kernel: DenseKernel): void {
+  const rows = n - j0;
+  for (let r = 0; r < rows; r++) {
+    const a = (j0 + r) * n + j0, t = r * w;
+    for (let q = 0; q < w; q++) T[t + q] = A[a + q];
+  }
+  try {
+    factorPanel(T, w, rows, 0, w, piv, j0, S, kernel);
+  } finally {
+    // Copied back even on failure, so a singular matrix is left as the in-place elimination left it.
+    for (let r = 0; r < rows; r++) {
+      const a = (j0 + r) * n + j0, t = r * w;
+      for (let q = 0; q < w; q++) A[a + q] = T[t + q];
+    }
+  }
+  const jEnd = j0 + w;
+  for (let c = j0; c < jEnd; c++) {
+    const p = piv[c];
+    if (p === c) continue;
+    const a = c * n, b = p * n;
+    for (let j = 0; j < j0; j++) { const t = A[a + j]; A[a + j] = A[b + j]; A[b + j] = t; }
+    for (let j = jEnd; j < n; j++) { const t = A[a + j]; A[a + j] = A[b + j]; A[b + j] = t; }
+  }
 }
 
 /** Serial blocked LU in place; returns the pivots. Throws SingularMatrixError. */
@@ -82,11 +117,12 @@ export function luFactorSerial(A: Float64Array, n: number, blockSize: number = 9
   const nb = Math.max(1, Math.floor(blockSize));
   const piv = new Int32Array(n);
   const Q = new Float64Array(Math.max(n * Math.min(nb, n), 64));
+  const T = new Float64Array(n * Math.min(nb, n));
   for (let j0 = 0; j0 < n; j0 += nb) {
     const w = Math.min(nb, n - j0);
-    factorPanel(A, n, j0, w, piv, Q, kernel);
+    luPanel(A, n, j0, w, piv, T, Q, kernel);
     if (j0 + w >= n) break;
-    luBlockRow(A, n, j0, w, Q, j0 + w, n);
+    luBlockRow(A, n, j0, w, Q, j0 + w, n, kernel);
     luUpdate(A, n, j0, w, Q, j0 + w, n, kernel);
   }
   return piv;
@@ -105,14 +141,15 @@ export async function luFactor(A: Float64Array, n: number, opts: LuOptions = {})
   if (S !== A) S.set(A.subarray(0, n * n));
   const piv = new Int32Array(n);
   const Q = sharedFloat64(n * nb);
+  const T = new Float64Array(n * nb);
   for (let j0 = 0; j0 < n; j0 += nb) {
     const w = Math.min(nb, n - j0), i0 = j0 + w;
-    factorPanel(S, n, j0, w, piv, Q, kernel);
+    luPanel(S, n, j0, w, piv, T, Q, kernel);
     if (i0 >= n) break;
     // Small trailing blocks are not worth a round trip to the workers.
-    if (n - i0 < 2 * nb) { luBlockRow(S, n, j0, w, Q, i0, n); luUpdate(S, n, j0, w, Q, i0, n, kernel); continue; }
+    if (n - i0 < 2 * nb) { luBlockRow(S, n, j0, w, Q, i0, n, kernel); luUpdate(S, n, j0, w, Q, i0, n, kernel); continue; }
     const s = rowSplits(i0, n, pool.size, false);
-    await pool.map(tasksUrl, "luBlockRow", s.slice(0, -1).map((c, t) => [S, n, j0, w, Q, c, s[t + 1]]));
+    await pool.map(tasksUrl, "luBlockRow", s.slice(0, -1).map((c, t) => [S, n, j0, w, Q, c, s[t + 1], kernel]));
     await pool.map(tasksUrl, "luUpdate", s.slice(0, -1).map((r, t) => [S, n, j0, w, Q, r, s[t + 1], kernel]));
   }
   if (S !== A) A.set(S);

@@ -46,10 +46,26 @@ export function choleskyUpdate(A: Float64Array, n: number, j0: number, nb: numbe
  * LU block row: columns c0..c1 of U12 = L11⁻¹·A12 for the column block j0..j0+nb (L11 in
  * place), packed transposed into Q (column j as row j − j0 − nb).
  */
-export function luBlockRow(A: Float64Array, n: number, j0: number, nb: number, Q: Float64Array, c0: number, c1: number): void {
+export function luBlockRow(A: Float64Array, n: number, j0: number, nb: number, Q: Float64Array, c0: number, c1: number, kernel: DenseKernel = "auto"): void {
   if (c1 <= c0) return;
-  solveUnitLowerLeft(A, j0 * n + j0, n, nb, A, j0 * n + c0, n, c1 - c0);
-  packTransposed(Q, (c0 - j0 - nb) * nb, A, j0 * n + c0, n, nb, c1 - c0);
+  const p = c1 - c0, q0 = (c0 - j0 - nb) * nb;
+  if (denseKernelInUse(kernel) !== "wasm") {
+    solveUnitLowerLeft(A, j0 * n + j0, n, nb, A, j0 * n + c0, n, p);
+    packTransposed(Q, q0, A, j0 * n + c0, n, nb, p);
+    return;
+  }
+  // Row blocks of L11·U12 = A12, top down (Golub & Van Loan, 4th ed., §3.1.4): rows r0..
+  // first lose L11[r0.., 0..r0)·U12[0..r0, :] through the packed kernel, reading the rows
+  // already solved from their transposed copy in Q; then a bs-row unit triangular solve.
+  for (let r0 = 0; r0 < nb; r0 += PANEL_BLOCK) {
+    const w = Math.min(PANEL_BLOCK, nb - r0), row = (j0 + r0) * n;
+    if (r0 > 0) gemmNT(A, row + c0, n, A, row + j0, n, Q, q0, nb, w, p, r0, p, -1, kernel);
+    solveUnitLowerLeft(A, row + j0 + r0, n, w, A, row + c0, n, p);
+    for (let r = 0; r < w; r++) {
+      const a = row + r * n + c0, d = q0 + r0 + r;
+      for (let c = 0; c < p; c++) Q[d + c * nb] = A[a + c];
+    }
+  }
 }
 
 /**
