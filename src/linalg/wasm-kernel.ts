@@ -198,10 +198,16 @@ export const MR = 4;
 export const NR = 4;
 /** Rows of A per packed block (kept in L2 while the panels of B pass over it); whole tiles. */
 const MC = 16 * MR;
-/** Columns per W buffer (W = MC×NC doubles, 128 KiB, stays in L2 for the copy back); whole tiles. */
-const NC = 64 * NR;
+/**
+ * Columns per W buffer (W = MC×NC doubles, 512 KiB, in L2 for the copy back); whole tiles.
+ * Long rows matter more than a small W: the copy back streams C, and 1024-column row
+ * segments ran the kernel-alone bench at 11–12 GFLOP/s against 8–9 with 256 (this machine).
+ */
+const NC = 256 * NR;
 /** Depth per packed chunk: longer sums are split, each chunk added to C. */
 const KC = 256;
+/** The packing blocks (rows of A, columns of W, depth), for tests that must cross them. */
+export const PACKING = { rows: MC, columns: NC, depth: KC } as const;
 
 type TilesFn = (ap: number, bp: number, w: number, mt: number, nt: number, kc: number, ldw: number, diag: number) => void;
 

@@ -1,7 +1,7 @@
 import { describe, it, expect } from "vitest";
 import fc from "fast-check";
 import { Matrix } from "ml-matrix";
-import { gemmNTSimd, kernelModuleBytes, simdAvailable, sleb, uleb, MR, NR } from "../../src/linalg/wasm-kernel.js";
+import { gemmNTSimd, kernelModuleBytes, simdAvailable, sleb, uleb, MR, NR, PACKING } from "../../src/linalg/wasm-kernel.js";
 import { gemmNT, gemmNTScalar, denseKernelInUse } from "../../src/linalg/dense.js";
 import { randomBlock, relDiff, rows } from "./random.js";
 
@@ -64,10 +64,10 @@ describe("WebAssembly SIMD kernel", () => {
   });
 
   it("crosses its packing blocks: rows, column buffers and depth chunks", () => {
-    // m, p and kc beyond one packed block of each (64 rows, 256 columns, depth 256 for 4×4).
-    const m = 150, p = 601, kc = 517, lda = kc + 1, ldb = kc, ldc = p + 3;
+    // m, p and kc beyond one packed block of each, with ragged ends.
+    const m = 2 * PACKING.rows + 22, p = PACKING.columns + 77, kc = 2 * PACKING.depth + 5, lda = kc + 1, ldb = kc, ldc = p + 3;
     const A = randomBlock(m, lda, 11), B = randomBlock(p, ldb, 12), C = randomBlock(m, ldc, 13);
-    for (const [diag, alpha] of [[p, -1], [0, 1], [-70, -1], [300, 1]]) {
+    for (const [diag, alpha] of [[p, -1], [0, 1], [-70, -1], [PACKING.columns - 100, 1]]) {
       const ref = definition(C, ldc, A, lda, B, ldb, m, p, kc, diag, alpha);
       const out = C.slice();
       gemmNT(out, 0, ldc, A, 0, lda, B, 0, ldb, m, p, kc, diag, alpha, "wasm");
