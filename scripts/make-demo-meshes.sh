@@ -12,7 +12,7 @@ $s plate --size 10,10 --divisions 12 --grading 3 --center 0,0,0 --name key2 -o $
 $s plate --size 10,10 --divisions 12 --grading 3 --center 14,0,0 --name key3 -o $out/key3.stl
 $s plate --size 60,30 --divisions 30,16 --grading 3 --center 0,0,-1.6 --name ground -o $out/ground.stl
 # Fingertip: an 8 mm radius sphere, 3 mm above key 2.
-$s sphere --radius 8 --level 3 --center 0,0,11 --name finger -o $out/finger.stl
+$s sphere --radius 8 --level 2 --center 0,0,11 --name finger -o $out/finger.stl
 # HV electrode: a 10 mm radius ball on a 4 mm radius stem, 15 mm above a 120 mm square plate.
-$s sphere --radius 10 --level 4 --center 0,0,25 --name ball -o $out/ball.stl
+$s sphere --radius 10 --level 3 --center 0,0,25 --name ball -o $out/ball.stl
 $s plate --size 120,120 --divisions 24 --grading 4 --center 0,0,0 --name plate -o $out/plate.stl
