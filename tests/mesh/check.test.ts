@@ -4,27 +4,8 @@ import { concatMeshes } from "../../src/mesh/model.js";
 import { checkMesh, checkMeshParallel, PARALLEL_MIN_TRIANGLES } from "../../src/mesh/check.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
 import { formatCheckSummary } from "../../src/report/check-summary.js";
+import { gridCube } from "./grid-cube.js";
 
-function gridCube(n: number, o: number[], s: number[], name: string, inward = false): SurfaceMesh {
-  const index = new Map<string, number>();
-  const pos: number[] = [];
-  const vert = (c: number[]) => {
-    const key = c.join(",");
-    let v = index.get(key);
-    if (v === undefined) { v = pos.length / 3; index.set(key, v); for (let k = 0; k < 3; k++) pos.push(o[k] + (c[k] / n) * s[k]); }
-    return v;
-  };
-  const tri: number[] = [];
-  for (let k = 0; k < 3; k++) {
-    const a = (k + 1) % 3, b = (k + 2) % 3;
-    for (const side of [0, 1]) for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) {
-      const at = (di: number, dj: number) => { const c = [0, 0, 0]; c[k] = side * n; c[a] = i + di; c[b] = j + dj; return vert(c); };
-      const q = [at(0, 0), at(1, 0), at(1, 1), at(0, 1)];
-      if ((side === 1) !== inward) tri.push(q[0], q[1], q[2], q[0], q[2], q[3]); else tri.push(q[0], q[2], q[1], q[0], q[3], q[2]);
-    }
-  }
-  return { positions: new Float64Array(pos), triangles: new Uint32Array(tri), conductor: new Uint32Array(tri.length / 3), names: [name] };
-}
 
 function plate(n: number, z: number, name: string): SurfaceMesh {
   const pos: number[] = [], tri: number[] = [];
