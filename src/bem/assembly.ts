@@ -7,11 +7,16 @@
  * collocation.ts collocationFar) so the bulk of the entries costs one square root and a few
  * dozen flops; every other rung calls galerkinEntry / collocationEntry. Both paths give
  * identical numbers, so the dense matrix equals the entries.
+ *
+ * With an image kernel (images.ts) each entry gains Σ_e s_e P(T_i, g_e(T_j)): the image rows
+ * run after the free-space rows with the same ladder (entries of the combined PanelSet), so the
+ * free-space path is the same code whether images are present or not.
  */
 import type { PanelSet } from "./panels.js";
 import { galerkinEntry, RHO_FAR, RHO_QUADRUPOLE } from "./galerkin.js";
 import { collocationEntry, COLLOCATION_FAR } from "./collocation.js";
 import { sharedFloat64, sharedPool, type WorkerPool } from "../linalg/pool.js";
+import { hasImages, imageSet, type ImageSet, type KernelSpec } from "./images.js";
 
 export type Discretisation = "galerkin" | "collocation";
 
@@ -20,17 +25,25 @@ export type Discretisation = "galerkin" | "collocation";
  * entries j ≥ i of those rows and mirrors them into column positions (rows below), so the
  * matrix is complete once every row range has been done; ranges never write the same entry.
  */
-export function assembleRows(P: PanelSet, method: Discretisation, rowStart: number, rowEnd: number, out: Float64Array): void {
+export function assembleRows(P: PanelSet, method: Discretisation, rowStart: number, rowEnd: number, out: Float64Array,
+  images?: ImageSet): void {
   const n = P.n;
   if (out.length < n * n) throw new Error(`assembleRows: output holds ${out.length} entries, need ${n * n}`);
+  if (images !== undefined && images.n !== n) throw new Error(`assembleRows: image set is for ${images.n} panels, the matrix has ${n}`);
   if (method === "collocation") {
-    for (let i = rowStart; i < rowEnd; i++) collocationRow(P, i, out);
+    for (let i = rowStart; i < rowEnd; i++) {
+      collocationRow(P, i, out);
+      if (images !== undefined) for (let e = 0; e < images.count; e++) collocationImageRow(images, e, i, out);
+    }
     return;
   }
   if (method !== "galerkin") throw new Error(`assembleRows: unknown discretisation ${String(method)}`);
   for (let i0 = rowStart; i0 < rowEnd; i0 += TILE) {
     const i1 = Math.min(rowEnd, i0 + TILE);
-    for (let i = i0; i < i1; i++) galerkinUpperRow(P, i, out);
+    for (let i = i0; i < i1; i++) {
+      galerkinUpperRow(P, i, out);
+      if (images !== undefined) for (let e = 0; e < images.count; e++) galerkinImageUpperRow(images, e, i, out);
+    }
     // Mirror the tile into the lower triangle column-block by column-block, so both the reads
     // and the writes stay within a few cache lines per step.
     for (let j = i0 + 1; j < n; j++) {
@@ -80,6 +93,60 @@ function galerkinUpperRow(P: PanelSet, i: number, out: Float64Array): void {
 }
 
 /**
+ * out[i·n + j] += s_e P(T_i, g_e(T_j)) for j ≥ i: galerkinUpperRow with the source panels taken
+ * from image block e of the combined set Q (the same ladder and far-rung expressions). The
+ * image entry is symmetric in i, j (g_e is an isometric involution), so the mirroring of the
+ * upper triangle in assembleRows stays valid.
+ */
+function galerkinImageUpperRow(S: ImageSet, e: number, i: number, out: Float64Array): void {
+  const n = S.n, Q = S.panels, off = n * (e + 1), sign = S.signs[e];
+  const c = Q.centroids, M = Q.moments2, T = Q.moments3, V = Q.traces3, rad = Q.radii;
+  const far2 = RHO_FAR * RHO_FAR, quad2 = RHO_QUADRUPOLE * RHO_QUADRUPOLE;
+  const row = i * n;
+  const cx = c[3 * i], cy = c[3 * i + 1], cz = c[3 * i + 2], ri = rad[i];
+  const mxx = M[6 * i], myy = M[6 * i + 1], mzz = M[6 * i + 2], mxy = M[6 * i + 3], mxz = M[6 * i + 4], myz = M[6 * i + 5];
+  const ti = 10 * i;
+  const t0 = T[ti], t1 = T[ti + 1], t2 = T[ti + 2], t3 = T[ti + 3], t4 = T[ti + 4], t5 = T[ti + 5], t6 = T[ti + 6];
+  const t7 = T[ti + 7], t8 = T[ti + 8], t9 = T[ti + 9];
+  const vx = V[3 * i], vy = V[3 * i + 1], vz = V[3 * i + 2];
+  for (let jj = i; jj < n; jj++) {
+    const j = off + jj;
+    const dx = cx - c[3 * j], dy = cy - c[3 * j + 1], dz = cz - c[3 * j + 2];
+    const r2 = dx * dx + dy * dy + dz * dz;
+    const rs = ri + rad[j];
+    const rs2 = rs * rs;
+    if (r2 < far2 * rs2) { out[row + jj] += sign * galerkinEntry(Q, i, j); continue; }
+    const oj = 6 * j;
+    const sxx = mxx + M[oj], syy = myy + M[oj + 1], szz = mzz + M[oj + 2];
+    const sxy = mxy + M[oj + 3], sxz = mxz + M[oj + 4], syz = myz + M[oj + 5];
+    const q = sxx * dx * dx + syy * dy * dy + szz * dz * dz + 2 * (sxy * dx * dy + sxz * dx * dz + syz * dy * dz);
+    const inv = 1 / Math.sqrt(r2), inv2 = inv * inv;
+    if (r2 >= quad2 * rs2) { out[row + jj] += sign * (inv * (1 + 0.5 * inv2 * (3 * q * inv2 - (sxx + syy + szz)))); continue; }
+    const tj = 10 * j;
+    const uddd = (t0 - T[tj]) * dx * dx * dx + (t1 - T[tj + 1]) * dy * dy * dy + (t2 - T[tj + 2]) * dz * dz * dz
+      + 3 * ((t3 - T[tj + 3]) * dx * dx * dy + (t4 - T[tj + 4]) * dx * dx * dz + (t5 - T[tj + 5]) * dx * dy * dy
+        + (t6 - T[tj + 6]) * dy * dy * dz + (t7 - T[tj + 7]) * dx * dz * dz + (t8 - T[tj + 8]) * dy * dz * dz)
+      + 6 * (t9 - T[tj + 9]) * dx * dy * dz;
+    const vd = (vx - V[3 * j]) * dx + (vy - V[3 * j + 1]) * dy + (vz - V[3 * j + 2]) * dz;
+    out[row + jj] += sign * (inv * (1 + inv2 * (0.5 * (3 * q * inv2 - (sxx + syy + szz)) + inv2 * (-2.5 * uddd * inv2 + 1.5 * vd))));
+  }
+}
+
+/** out[i·n + j] += s_e C(x_i, g_e(T_j)) for all j (collocation has no symmetry to exploit). */
+function collocationImageRow(S: ImageSet, e: number, i: number, out: Float64Array): void {
+  const n = S.n, Q = S.panels, off = n * (e + 1), sign = S.signs[e], row = i * n;
+  for (let j = 0; j < n; j++) out[row + j] += sign * collocationEntry(Q, i, off + j);
+}
+
+/** The image part of entry (i, j): Σ_e s_e times the entry between panel i and image e of panel j. */
+export function imageEntry(S: ImageSet, i: number, j: number, method: Discretisation = "galerkin"): number {
+  const entry = method === "galerkin" ? galerkinEntry : collocationEntry;
+  let s = 0;
+  for (let e = 0; e < S.count; e++) s += S.signs[e] * entry(S.panels, i, S.n * (e + 1) + j);
+  return s;
+}
+
+/**
  * out[i·n + j] for all j, the far rung of collocation.ts (collocationFar) inlined with the
  * same expressions in the same order, so the row equals collocationEntry bit for bit.
  */
@@ -125,8 +192,9 @@ export function rowSplit(n: number, parts: number, method: Discretisation): Uint
 }
 
 /** Worker task: rows [rowStart, rowEnd) into the shared matrix; returns the row count. */
-export function assembleRowsTask(P: PanelSet, method: Discretisation, rowStart: number, rowEnd: number, out: Float64Array): number {
-  assembleRows(P, method, rowStart, rowEnd, out);
+export function assembleRowsTask(P: PanelSet, method: Discretisation, rowStart: number, rowEnd: number, out: Float64Array,
+  images?: ImageSet): number {
+  assembleRows(P, method, rowStart, rowEnd, out, images);
   return rowEnd - rowStart;
 }
 
@@ -146,19 +214,22 @@ export function sharedPanels(P: PanelSet): PanelSet {
  * The full n×n matrix (row-major, in shared memory), assembled on every worker of `pool`
  * (default: the process-wide pool) in equal-work row blocks. `out` may pass in a shared
  * n×n buffer to reuse (its first touch costs page faults: about 0.1 s at n = 5120).
+ * `kernel` adds mirror images (ground plane, symmetry planes; images.ts); each image roughly
+ * doubles the assembly work.
  */
 export async function assembleDense(P: PanelSet, method: Discretisation, pool: WorkerPool = sharedPool(),
-  out?: Float64Array): Promise<Float64Array> {
+  out?: Float64Array, kernel?: KernelSpec | ImageSet): Promise<Float64Array> {
   const n = P.n;
   if (out === undefined) out = sharedFloat64(n * n);
   else if (!(out.buffer instanceof SharedArrayBuffer) || out.length < n * n) {
     throw new Error(`assembleDense: out must be a shared buffer of at least ${n * n} entries`);
   }
   const S = sharedPanels(P);
+  const images = preparedImages(S, kernel, true);
   const parts = Math.max(1, Math.min(pool.size, n));
   const b = rowSplit(n, parts, method);
   const args: unknown[][] = [];
-  for (let k = 0; k < parts; k++) args.push([S, method, b[k], b[k + 1], out]);
+  for (let k = 0; k < parts; k++) args.push(images ? [S, method, b[k], b[k + 1], out, images] : [S, method, b[k], b[k + 1], out]);
   await pool.map(import.meta.url, "assembleRowsTask", args);
   return out;
 }
@@ -168,7 +239,7 @@ export async function assembleDense(P: PanelSet, method: Discretisation, pool: W
  * block), identical to the dense matrix's entries.
  */
 export function assembleBlock(P: PanelSet, rows: Uint32Array, cols: Uint32Array, out: Float64Array,
-  method: Discretisation = "galerkin"): void {
+  method: Discretisation = "galerkin", images?: ImageSet): void {
   const nc = cols.length;
   if (out.length < rows.length * nc) throw new Error(`assembleBlock: output holds ${out.length} entries, need ${rows.length * nc}`);
   const entry = method === "galerkin" ? galerkinEntry : collocationEntry;
@@ -176,4 +247,29 @@ export function assembleBlock(P: PanelSet, rows: Uint32Array, cols: Uint32Array,
     const i = rows[a];
     for (let b = 0; b < nc; b++) out[a * nc + b] = entry(P, i, cols[b]);
   }
+  if (images === undefined) return;
+  if (images.n !== P.n) throw new Error(`assembleBlock: image set is for ${images.n} panels, the panel set has ${P.n}`);
+  // Galerkin image entries are evaluated with the lower index outer, as the dense rows do.
+  const Q = images.panels, n = images.n;
+  for (let a = 0; a < rows.length; a++) {
+    for (let b = 0; b < nc; b++) {
+      let i = rows[a], j = cols[b];
+      if (method === "galerkin" && i > j) { const t = i; i = j; j = t; }
+      // Added image by image, in the order of the dense rows, so block and matrix agree.
+      for (let e = 0; e < images.count; e++) out[a * nc + b] += images.signs[e] * entry(Q, i, n * (e + 1) + j);
+    }
+  }
+}
+
+/** An ImageSet for P from a spec (built; shared for workers if asked) or as given; undefined for none. */
+export function preparedImages(P: PanelSet, kernel: KernelSpec | ImageSet | undefined, shared: boolean): ImageSet | undefined {
+  if (kernel === undefined) return undefined;
+  if ("panels" in kernel) {
+    if (kernel.n !== P.n) throw new Error(`image set is for ${kernel.n} panels, the panel set has ${P.n}`);
+    if (shared && !(kernel.panels.vertices.buffer instanceof SharedArrayBuffer)) {
+      return { ...kernel, panels: sharedPanels(kernel.panels), signs: kernel.signs };
+    }
+    return kernel;
+  }
+  return hasImages(kernel) ? imageSet(P, kernel, { shared }) : undefined;
 }
