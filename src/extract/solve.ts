@@ -7,6 +7,7 @@
  */
 import { panelSetShared, type PanelSet } from "../bem/panels.js";
 import { assembleDense, type Discretisation } from "../bem/assembly.js";
+import type { KernelSpec } from "../bem/images.js";
 import { choleskyFactor, choleskySolve, NotPositiveDefiniteError } from "../linalg/cholesky.js";
 import { luFactor, luSolve } from "../linalg/lu.js";
 import { pcg } from "../linalg/cg.js";
@@ -28,6 +29,8 @@ export interface SolveOptions {
   progress?: (phase: string, fraction: number) => void;
   /** Bytes available for the dense matrix (default: most of the free memory). */
   memoryLimit?: number;
+  /** Mirror images (ground plane, symmetry planes; bem/images.ts); free space when absent. */
+  kernel?: KernelSpec;
 }
 
 export interface SolveInfo {
@@ -102,7 +105,7 @@ export async function solveUnitPotentials(
 
   progress("assembly", 0);
   const t0 = performance.now();
-  const A = await assembleDense(panels, opts.method, opts.pool);
+  const A = await assembleDense(panels, opts.method, opts.pool, undefined, opts.kernel);
   const t1 = performance.now();
   progress("assembly", 1);
   const entries = opts.method === "galerkin" ? (n * (n + 1)) / 2 : n * n;
