@@ -206,6 +206,8 @@ const MC = 16 * MR;
 const NC = 256 * NR;
 /** Depth per packed chunk: longer sums are split, each chunk added to C. */
 const KC = 256;
+/** Bytes of packed B per column block (kept in a 2 MiB L2 beside the A block and W). */
+const B_BLOCK_BYTES = 1 << 20;
 /** The packing blocks (rows of A, columns of W, depth), for tests that must cross them. */
 export const PACKING = { rows: MC, columns: NC, depth: KC } as const;
 
@@ -261,29 +263,30 @@ export function gemmNTSimd(
   if (pEff > p) pEff = p;
   if (pEff <= 0) return;
   const run = tiles!;
-  const pPad = Math.ceil(pEff / NR) * NR;
   const kStep = Math.min(kc, KC);
-  // Layout in doubles: packed B (whole column range), packed A (one MC strip block), W.
-  const bBase = 0, aBase = pPad * kStep, wBase = aBase + MC * kStep;
-  const ldw = NC;
+  // Goto & van de Geijn's loop order (§6): a block of NC columns of B packed once and kept
+  // in L2 while every row block of A that reaches it is packed and passed over it.
+  const ncMax = Math.min(NC, NR * Math.max(1, Math.floor(B_BLOCK_BYTES / (8 * NR * kStep))));
+  // Layout in doubles: packed B block, packed A block, W.
+  const bBase = 0, aBase = ncMax * kStep, wBase = aBase + MC * kStep;
+  const ldw = ncMax;
   reserve(wBase + MC * ldw);
   const H = heap;
   for (let k0 = 0; k0 < kc; k0 += kStep) {
     const kw = Math.min(kStep, kc - k0);
-    packPanels(H, bBase, B, bOff + k0, ldb, pEff, pPad, kw, NR);
-    // First row that reaches column 0 of the block: i + diag ≥ 0.
-    for (let ic = Math.max(0, -diag); ic < m; ic += MC) {
-      const mc = Math.min(MC, m - ic);
-      const mPad = Math.ceil(mc / MR) * MR;
-      packPanels(H, aBase, A, aOff + ic * lda + k0, lda, mc, mPad, kw, MR);
-      // Columns this row block reaches: j ≤ ic + mc − 1 + diag.
-      let jEnd = ic + mc + diag;
-      if (jEnd > pEff) jEnd = pEff;
-      for (let jc = 0; jc < jEnd; jc += NC) {
-        const nc = Math.min(NC, jEnd - jc);
-        const ntile = Math.ceil(nc / NR);
-        run(8 * aBase, 8 * (bBase + jc * kw), 8 * wBase, mPad / MR, ntile, kw, 8 * ldw, diag + ic - jc);
-        addTile(C, cOff + ic * ldc + jc, ldc, H, wBase, ldw, mc, nc, diag + ic - jc, alpha);
+    for (let jc = 0; jc < pEff; jc += ncMax) {
+      const nc = Math.min(ncMax, pEff - jc);
+      packPanels(H, bBase, B, bOff + jc * ldb + k0, ldb, nc, Math.ceil(nc / NR) * NR, kw, NR);
+      // First row that reaches column jc: i + diag ≥ jc.
+      for (let ic = Math.max(0, jc - diag); ic < m; ic += MC) {
+        const mc = Math.min(MC, m - ic);
+        const mPad = Math.ceil(mc / MR) * MR;
+        // Columns of this block the rows reach: j ≤ ic + mc − 1 + diag.
+        let ncEff = ic + mc + diag - jc;
+        if (ncEff > nc) ncEff = nc;
+        packPanels(H, aBase, A, aOff + ic * lda + k0, lda, mc, mPad, kw, MR);
+        run(8 * aBase, 8 * bBase, 8 * wBase, mPad / MR, Math.ceil(ncEff / NR), kw, 8 * ldw, diag + ic - jc);
+        addTile(C, cOff + ic * ldc + jc, ldc, H, wBase, ldw, mc, ncEff, diag + ic - jc, alpha);
       }
     }
   }
