@@ -1,6 +1,15 @@
 /**
  * Extraction: conductor surfaces in, capacitance matrices, charges, fields, energy,
  * forces and an accuracy estimate out. This is the library entry the CLI is built on.
+ *
+ * Surroundings: a grounded plane and mirror symmetry planes enter through the image kernel
+ * (bem/images.ts). With symmetry planes the mesh is the meshed part of a model 2^m times as
+ * large: each conductor stands for itself together with its mirror images (one body when it
+ * meets the plane, copies tied to the same potential when it does not), and its charge, area,
+ * capacitances and energy are reported for the full model (the meshed part's times 2^m; net
+ * forces are the sum over the copies, so components normal to a symmetry plane cancel).
+ * Panel-level results (charges, densities, fields) stay those of the meshed panels.
+ * Floating conductors are eliminated from the Maxwell matrix (floating.ts).
  */
 import type { SurfaceMesh } from "../mesh/model.js";
 import { triangleCount, conductorAreas } from "../mesh/model.js";
@@ -17,6 +26,11 @@ import { peakResidentBytes } from "./memory.js";
 import { centroidFields } from "./probe.js";
 import type { PanelSet } from "../bem/panels.js";
 import { InputError } from "../io/errors.js";
+import {
+  hasImages, kernelPlanes, imageSet, symmetryCopies, conductorRanges, checkSides, trianglesInSymmetryPlanes,
+  edgeInSymmetryPlane, foldVectors, type AxisPlane, type KernelSpec, type ImageSet,
+} from "../bem/images.js";
+import { eliminateFloating, withFloatingPotentials } from "./floating.js";
 
 export interface ExtractOptions {
   /** Relative permittivity of the uniform medium (default 1). */
@@ -36,6 +50,12 @@ export interface ExtractOptions {
   pool?: WorkerPool;
   progress?: (phase: string, fraction: number, level: number, levels: number) => void;
   memoryLimit?: number;
+  /** Grounded conducting plane (method of images); metres. Becomes the reference of the mutual matrix. */
+  groundPlane?: AxisPlane;
+  /** Mirror symmetry planes (even images); metres. At most one plane per axis, none on the ground plane's axis. */
+  symmetry?: AxisPlane[];
+  /** Per conductor: zero net charge at a potential solved for (its entry in `potentials` is ignored). */
+  floating?: ArrayLike<boolean>;
 }
 
 export interface ConductorResult {
@@ -56,6 +76,8 @@ export interface ConductorResult {
   fieldRatio: number;
   /** Net electrostatic force; newtons. */
   force: [number, number, number];
+  /** Zero net charge at a solved potential. */
+  floating: boolean;
 }
 
 export interface LevelResult {
@@ -100,6 +122,23 @@ export interface ExtractionResult {
   solver: SolveInfo & { seconds: number; peakMemory: number; levels: LevelResult[] };
   /** Orientation fixes made to the input. */
   orientation: { flippedComponents: number; unorientable: number };
+  /** What the mutual matrix's diagonal (capacitance to the reference) refers to. */
+  reference: "ground plane" | "infinity";
+  groundPlane?: AxisPlane;
+  symmetry: AxisPlane[];
+  /** Copies of the meshed part in the full model (2^symmetry planes); charges, areas, C are the full model's. */
+  symmetryCopies: number;
+  /** Mirror images of the finest panels (for probes: probeExtraction includes them). */
+  images?: ImageSet;
+  /** Triangles dropped because they lay in a symmetry plane (the cut face of a half model). */
+  removedInSymmetryPlane: number;
+  /** Names of the floating conductors and their solved potentials (V), in conductor order. */
+  floatingNames: string[];
+  floatingPotentials: Float64Array;
+  /** Maxwell matrix with the floating conductors eliminated (Schur complement), over `reducedNames`; F. Equals `maxwell` when none floats. */
+  reducedMaxwell: Float64Array;
+  reducedMutual: Float64Array;
+  reducedNames: string[];
   warnings: string[];
 }
 
@@ -117,6 +156,14 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   const t0 = performance.now();
   const k = input.names.length;
   if (k === 0 || triangleCount(input) === 0) throw new InputError("nothing to extract: no conductor with triangles");
+  const spec: KernelSpec = { groundPlane: opts.groundPlane, symmetry: opts.symmetry ?? [] };
+  const kernel = hasImages(spec) ? spec : undefined;
+  const floating = new Array<boolean>(k).fill(false);
+  if (opts.floating) {
+    if (opts.floating.length !== k) throw new InputError(`${opts.floating.length} floating flags given for ${k} conductors`);
+    for (let i = 0; i < k; i++) floating[i] = Boolean(opts.floating[i]);
+    if (floating.every((f) => f)) throw new InputError("every conductor is floating: at least one must be held at a potential");
+  }
   const er = opts.permittivity ?? 1;
   if (!(er >= 1) || !Number.isFinite(er)) throw new InputError(`relative permittivity must be a number of at least 1, got ${er}`);
   const eps = EPSILON_0 * er;
@@ -129,9 +176,23 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   if (opts.potentials) {
     if (opts.potentials.length !== k) throw new InputError(`${opts.potentials.length} potentials given for ${k} conductors`);
     for (let i = 0; i < k; i++) potentials[i] = opts.potentials[i];
-  } else potentials[0] = 1;
+  } else potentials[floating.indexOf(false)] = 1;
   const pool = opts.pool ?? sharedPool();
   const warnings: string[] = [];
+
+  let removedInSymmetryPlane = 0;
+  if (kernel) {
+    try { kernelPlanes(kernel); } catch (e) { throw new InputError((e as Error).message); }
+    const cut = trianglesInSymmetryPlanes(kernel, input.positions, input.triangles);
+    if (cut.count > 0) {
+      input = withoutTriangles(input, cut.flags);
+      removedInSymmetryPlane = cut.count;
+      warnings.push(`${cut.count} triangle(s) lying in a symmetry plane were removed (the cut face of a half model is not a conductor surface)`);
+    }
+    const ranges = conductorRanges(input.positions, input.triangles, input.conductor, k);
+    const sides = checkSides(kernel, ranges, input.names);
+    if (sides.fault) throw new InputError(sides.fault);
+  }
 
   // Every conductor needs triangles of its own.
   const counts = new Uint32Array(k);
@@ -145,20 +206,31 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
     if (c.status === "non-orientable" || c.status === "non-manifold") unorientable++;
   }
   if (flippedComponents > 0) warnings.push(`${flippedComponents} surface component(s) were wound inward or inconsistently and have been reoriented`);
-  const topo = conductorTopology(oriented.mesh, buildEdgeTable(oriented.mesh));
+  let orientedMesh = oriented.mesh;
+  const table = buildEdgeTable(orientedMesh);
+  const topo = conductorTopology(orientedMesh, table);
+  // A part cut open only along symmetry planes is closed in the full model.
+  const closed = topo.map((t) => t.closed);
+  if (kernel && (kernel.symmetry?.length ?? 0) > 0) {
+    const half = closeBySymmetry(kernel, orientedMesh, table, oriented.componentOf, oriented.components.length);
+    orientedMesh = half.mesh;
+    for (let c = 0; c < k; c++) if (!closed[c] && topo[c].nonManifoldEdges === 0 && half.conductorClosed[c]) closed[c] = true;
+    if (half.flipped > 0) flippedComponents += half.flipped;
+  }
 
+  const copies = symmetryCopies(kernel);
   const levels: LevelResult[] = [];
-  let mesh = oriented.mesh;
+  let mesh = orientedMesh;
   let last: UnitSolution | undefined;
   const nLevels = refine + 1;
   for (let level = 0; level <= refine; level++) {
     if (level > 0) mesh = refineUniform(mesh);
     const sol = await solveUnitPotentials(mesh.positions, mesh.triangles, mesh.conductor, k, {
-      method, solver: opts.solver ?? "auto", tolerance, pool, memoryLimit: opts.memoryLimit,
+      method, solver: opts.solver ?? "auto", tolerance, pool, memoryLimit: opts.memoryLimit, kernel,
       progress: (phase, f) => opts.progress?.(phase, f, level, nLevels),
     });
     const q = conductorCharges(sol.x, mesh.conductor, k);
-    const scale = 4 * Math.PI * eps;
+    const scale = 4 * Math.PI * eps * copies;
     for (let i = 0; i < q.length; i++) q[i] *= scale;
     levels.push({ panels: sol.panels.n, maxwell: q, info: sol.info });
     last = sol;
@@ -169,7 +241,7 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   let maxwell = finest.maxwell;
   let accuracy: Accuracy | undefined;
   if (refine > 0) {
-    const sharp = topo.some((t) => !t.closed) || hasSharpEdges(oriented.mesh);
+    const sharp = closed.some((c) => !c) || hasSharpEdges(orientedMesh);
     const sym = levels.map((l) => capacitanceMatrices(l.maxwell, k, input.names).maxwell);
     const r = richardson(sym, k, { assumedOrder: opts.assumedOrder ?? assumedOrder(sharp), fromBelow: method === "galerkin" });
     accuracy = { levels: levels.map((l, i) => ({ panels: l.panels, maxwell: sym[i] })), richardson: r, extrapolated: true };
@@ -180,13 +252,29 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   warnings.push(...checked.warnings);
   const mutual = mutualFromMaxwell(maxwell, k);
 
+  // Floating conductors: eliminated from the reported matrix, potentials solved at the working point.
+  let reducedMaxwell = maxwell, reducedNames = input.names.slice();
+  let working: Float64Array = potentials;
+  const floatingNames: string[] = [];
+  let floatingPotentials = new Float64Array(0);
+  if (floating.some((f) => f)) {
+    const red = eliminateFloating(maxwell, k, floating);
+    reducedMaxwell = red.reducedMaxwell;
+    reducedNames = Array.from(red.driven, (i) => input.names[i]);
+    working = withFloatingPotentials(red, k, potentials);
+    floatingPotentials = Float64Array.from(red.floating, (i) => working[i]);
+    for (const i of red.floating) floatingNames.push(input.names[i]);
+  }
+  const reducedMutual = mutualFromMaxwell(reducedMaxwell, reducedNames.length);
+
   // Excitation on the finest mesh.
   const P = last.panels;
+  const images = kernel ? imageSet(P, kernel) : undefined;
   const openPanel = new Uint8Array(P.n);
-  for (let p = 0; p < P.n; p++) openPanel[p] = topo[mesh.conductor[p]].closed ? 0 : 1;
+  for (let p = 0; p < P.n; p++) openPanel[p] = closed[mesh.conductor[p]] ? 0 : 1;
   // Open sheets need the two-sided (principal-value) field of all the charge at their panels,
   // for their stronger face's field and their force.
-  let excitation = panelExcitation(last.x, k, P, potentials, eps, openPanel);
+  let excitation = panelExcitation(last.x, k, P, working, eps, openPanel);
   let nOpen = 0;
   for (let p = 0; p < P.n; p++) nOpen += openPanel[p];
   let fieldPv: Float64Array | undefined;
@@ -194,7 +282,7 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
     opts.progress?.("fields", 0, refine, nLevels);
     const list = new Uint32Array(nOpen);
     for (let p = 0, a = 0; p < P.n; p++) if (openPanel[p]) list[a++] = p;
-    const e = centroidFields(P, excitation.charge, eps, list);
+    const e = centroidFields(P, excitation.charge, eps, list, images);
     fieldPv = new Float64Array(3 * P.n);
     const normalPv = new Float64Array(P.n);
     for (let a = 0; a < nOpen; a++) {
@@ -202,37 +290,113 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
       fieldPv[3 * p] = e[3 * a]; fieldPv[3 * p + 1] = e[3 * a + 1]; fieldPv[3 * p + 2] = e[3 * a + 2];
       normalPv[p] = e[3 * a] * P.normals[3 * p] + e[3 * a + 1] * P.normals[3 * p + 1] + e[3 * a + 2] * P.normals[3 * p + 2];
     }
-    excitation = panelExcitation(last.x, k, P, potentials, eps, openPanel, normalPv);
+    excitation = panelExcitation(last.x, k, P, working, eps, openPanel, normalPv);
     opts.progress?.("fields", 1, refine, nLevels);
   }
   const peaks = peakFields(excitation.field, mesh.conductor, k, P);
-  const { force, complete } = conductorForces(excitation.sigma, P, mesh.conductor, k, eps, openPanel, fieldPv);
-  const q = chargesAt(maxwell, k, potentials);
-  const energy = storedEnergy(maxwell, k, potentials);
+  const forces = conductorForces(excitation.sigma, P, mesh.conductor, k, eps, openPanel, fieldPv);
+  const complete = forces.complete;
+  const force = kernel ? foldVectors(kernel, forces.force) : forces.force;
+  const q = chargesAt(maxwell, k, working);
+  const energy = storedEnergy(maxwell, k, working);
   const areas = conductorAreas(mesh);
+  for (let i = 0; i < k; i++) areas[i] *= copies;
 
   const conductors: ConductorResult[] = input.names.map((name, i) => ({
     name,
     triangles: counts[i],
     area: areas[i],
-    closed: topo[i].closed,
-    potential: potentials[i],
+    closed: closed[i],
+    potential: working[i],
     charge: q[i],
     peakField: peaks[i].value,
     peakFieldAt: peaks[i].at,
     fieldRatio: peaks[i].value / breakdownField,
     force: [force[3 * i], force[3 * i + 1], force[3 * i + 2]],
+    floating: floating[i],
   }));
   const seconds = (performance.now() - t0) / 1e3;
   const lastInfo = levels[levels.length - 1].info;
   return {
     names: input.names.slice(), conductors, k, permittivity: eps, relativePermittivity: er, breakdownField,
-    maxwell, mutual, asymmetry: finest.asymmetry, energy, potentials, mesh, panelConductor: mesh.conductor,
+    maxwell, mutual, asymmetry: finest.asymmetry, energy, potentials: working, mesh, panelConductor: mesh.conductor,
     excitation, panels: P, unitCharges: scaleCopy(last.x, 4 * Math.PI * eps), peaks, forcesComplete: complete, accuracy,
     solver: { ...lastInfo, seconds, peakMemory: peakResidentBytes(), levels },
     orientation: { flippedComponents, unorientable },
+    reference: kernel?.groundPlane ? "ground plane" : "infinity",
+    groundPlane: opts.groundPlane, symmetry: (opts.symmetry ?? []).slice(), symmetryCopies: copies, images, removedInSymmetryPlane,
+    floatingNames, floatingPotentials, reducedMaxwell, reducedMutual, reducedNames,
     warnings,
   };
+}
+
+/** The mesh without the flagged triangles (vertices kept: unused ones are harmless). */
+function withoutTriangles(mesh: SurfaceMesh, drop: Uint8Array): SurfaceMesh {
+  const nt = mesh.conductor.length;
+  let keep = 0;
+  for (let t = 0; t < nt; t++) if (!drop[t]) keep++;
+  const triangles = new Uint32Array(3 * keep), conductor = new Uint32Array(keep);
+  for (let t = 0, a = 0; t < nt; t++) {
+    if (drop[t]) continue;
+    triangles[3 * a] = mesh.triangles[3 * t]; triangles[3 * a + 1] = mesh.triangles[3 * t + 1]; triangles[3 * a + 2] = mesh.triangles[3 * t + 2];
+    conductor[a++] = mesh.conductor[t];
+  }
+  return { ...mesh, triangles, conductor };
+}
+
+/**
+ * Components open only along symmetry planes are closed bodies in the full model: orient each
+ * outward by its signed volume taken about a point on those planes (the missing cut faces lie
+ * in planes through that point, so they add nothing to the volume), and report which
+ * conductors are closed that way.
+ */
+function closeBySymmetry(spec: KernelSpec, mesh: SurfaceMesh, table: ReturnType<typeof buildEdgeTable>,
+  componentOf: Uint32Array, components: number): { mesh: SurfaceMesh; conductorClosed: boolean[]; flipped: number } {
+  const p = mesh.positions, tr = mesh.triangles, nt = mesh.conductor.length;
+  let extent = 0;
+  for (let i = 0; i < p.length; i++) extent = Math.max(extent, Math.abs(p[i]));
+  const tol = 1e-9 * Math.max(extent, 1e-30);
+  const open = new Uint8Array(components), strayEdge = new Uint8Array(components);
+  for (let e = 0; e < table.edgeCount; e++) {
+    if (table.edgeUses[e] !== 1) continue;
+    const comp = componentOf[(table.edgeHalf[2 * e] / 3) | 0];
+    open[comp] = 1;
+    if (!edgeInSymmetryPlane(spec, p, table.edgeVertices[2 * e], table.edgeVertices[2 * e + 1], tol)) strayEdge[comp] = 1;
+  }
+  const { offsets } = kernelPlanes(spec);
+  const sym = new Uint8Array(3);
+  for (const s of spec.symmetry ?? []) sym[s.axis === "x" ? 0 : s.axis === "y" ? 1 : 2] = 1;
+  // Reference point per component: its vertex mean, moved onto every symmetry plane.
+  const ref = new Float64Array(4 * components);
+  for (let t = 0; t < nt; t++) {
+    const c = componentOf[t];
+    for (let k3 = 0; k3 < 3; k3++) for (let a = 0; a < 3; a++) ref[4 * c + a] += p[3 * tr[3 * t + k3] + a];
+    ref[4 * c + 3] += 3;
+  }
+  for (let c = 0; c < components; c++) for (let a = 0; a < 3; a++) ref[4 * c + a] = sym[a] ? offsets[a] : ref[4 * c + a] / Math.max(1, ref[4 * c + 3]);
+  const volume = new Float64Array(components);
+  for (let t = 0; t < nt; t++) {
+    const c = componentOf[t];
+    if (!open[c] || strayEdge[c]) continue;
+    const ox = ref[4 * c], oy = ref[4 * c + 1], oz = ref[4 * c + 2];
+    const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], d = 3 * tr[3 * t + 2];
+    const ax = p[a] - ox, ay = p[a + 1] - oy, az = p[a + 2] - oz;
+    const bx = p[b] - ox, by = p[b + 1] - oy, bz = p[b + 2] - oz;
+    const cx = p[d] - ox, cy = p[d + 1] - oy, cz = p[d + 2] - oz;
+    volume[c] += ax * (by * cz - bz * cy) + ay * (bz * cx - bx * cz) + az * (bx * cy - by * cx);
+  }
+  let flipped = 0;
+  const flip = new Uint8Array(components);
+  for (let c = 0; c < components; c++) if (open[c] && !strayEdge[c] && volume[c] < 0) { flip[c] = 1; flipped++; }
+  let triangles = tr;
+  if (flipped > 0) {
+    triangles = tr.slice();
+    for (let t = 0; t < nt; t++) if (flip[componentOf[t]]) { const x = triangles[3 * t + 1]; triangles[3 * t + 1] = triangles[3 * t + 2]; triangles[3 * t + 2] = x; }
+  }
+  const k = mesh.names.length;
+  const conductorClosed = new Array<boolean>(k).fill(true);
+  for (let t = 0; t < nt; t++) if (strayEdge[componentOf[t]]) conductorClosed[mesh.conductor[t]] = false;
+  return { mesh: flipped > 0 ? { ...mesh, triangles } : mesh, conductorClosed, flipped };
 }
 
 function scaleCopy(a: Float64Array, s: number): Float64Array {

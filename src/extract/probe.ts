@@ -6,6 +6,7 @@
  */
 import { potentialAt, fieldAt } from "../bem/field.js";
 import type { PanelSet } from "../bem/panels.js";
+import type { ImageSet } from "../bem/images.js";
 
 export interface ProbeResult {
   /** Potential at each point; volts. */
@@ -16,14 +17,16 @@ export interface ProbeResult {
 
 /**
  * Probe the field of panel charges `charge` (coulombs per panel) on `panels` in a medium of
- * absolute permittivity `permittivity` (F/m), at `points` (3 per point, metres).
+ * absolute permittivity `permittivity` (F/m), at `points` (3 per point, metres). `images`: the
+ * mirror charges of a ground plane or symmetry planes (bem/images.ts), included when given.
  */
-export function probeField(panels: PanelSet, charge: Float64Array, permittivity: number, points: Float64Array): ProbeResult {
+export function probeField(panels: PanelSet, charge: Float64Array, permittivity: number, points: Float64Array,
+  images?: ImageSet): ProbeResult {
   if (points.length % 3 !== 0) throw new RangeError(`probe points hold ${points.length} numbers, not a multiple of 3`);
   const m = points.length / 3;
   const potential = new Float64Array(m), field = new Float64Array(3 * m);
-  potentialAt(panels, charge, points, potential);
-  fieldAt(panels, charge, points, field);
+  potentialAt(panels, charge, points, potential, images);
+  fieldAt(panels, charge, points, field, images);
   const k = 1 / (4 * Math.PI * permittivity);
   for (let i = 0; i < m; i++) potential[i] *= k;
   for (let i = 0; i < 3 * m; i++) field[i] *= k;
@@ -31,16 +34,18 @@ export function probeField(panels: PanelSet, charge: Float64Array, permittivity:
 }
 
 /** E_pv at the centroids of the listed panels (3 per listed panel); V/m. */
-export function centroidFields(panels: PanelSet, charge: Float64Array, permittivity: number, list: Uint32Array): Float64Array {
+export function centroidFields(panels: PanelSet, charge: Float64Array, permittivity: number, list: Uint32Array,
+  images?: ImageSet): Float64Array {
   const pts = new Float64Array(3 * list.length);
   for (let a = 0; a < list.length; a++) {
     const p = list[a];
     pts[3 * a] = panels.centroids[3 * p]; pts[3 * a + 1] = panels.centroids[3 * p + 1]; pts[3 * a + 2] = panels.centroids[3 * p + 2];
   }
-  return probeField(panels, charge, permittivity, pts).field;
+  return probeField(panels, charge, permittivity, pts, images).field;
 }
 
 /** Probe an extraction's field at the working potentials (finest mesh). */
-export function probeExtraction(r: { panels: PanelSet; excitation: { charge: Float64Array }; permittivity: number }, points: Float64Array): ProbeResult {
-  return probeField(r.panels, r.excitation.charge, r.permittivity, points);
+export function probeExtraction(r: { panels: PanelSet; excitation: { charge: Float64Array }; permittivity: number; images?: ImageSet },
+  points: Float64Array): ProbeResult {
+  return probeField(r.panels, r.excitation.charge, r.permittivity, points, r.images);
 }
