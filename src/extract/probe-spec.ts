@@ -160,15 +160,15 @@ export function parseSceneProbes(value: unknown, ctx: SpecContext = {}, key = "p
       if (!Array.isArray(o.points) || o.points.length === 0) failAt(`${path}.points`)("expected a non-empty array of [x, y, z]");
       spec = { kind: "points", name, points: (o.points as unknown[]).map((p, j) => vec(p, `${path}.points[${j}]`)) };
     } else if (kind === "line") {
-      const l = o.line;
       const lp = `${path}.line`;
-      if (!isObject(l)) failAt(lp)("expected { \"from\": [x, y, z], \"to\": [x, y, z], \"points\": n }");
+      if (!isObject(o.line)) failAt(lp)("expected { \"from\": [x, y, z], \"to\": [x, y, z], \"points\": n }");
+      const l = o.line as Record<string, unknown>;
       for (const k of Object.keys(l)) if (!["from", "to", "points"].includes(k)) failAt(`${lp}.${k}`)("unknown key (expected from, to, points)");
       spec = { kind: "line", name, from: vec(l.from, `${lp}.from`), to: vec(l.to, `${lp}.to`), count: count(l.points, `${lp}.points`) };
     } else {
-      const g = o.grid;
       const gp = `${path}.grid`;
-      if (!isObject(g)) failAt(gp)("expected { \"origin\": [x, y, z], \"u\": [..], \"v\": [..], \"points\": [nu, nv] }");
+      if (!isObject(o.grid)) failAt(gp)("expected { \"origin\": [x, y, z], \"u\": [..], \"v\": [..], \"points\": [nu, nv] }");
+      const g = o.grid as Record<string, unknown>;
       for (const k of Object.keys(g)) if (!["origin", "u", "v", "points"].includes(k)) failAt(`${gp}.${k}`)("unknown key (expected origin, u, v, points)");
       if (!Array.isArray(g.points) || g.points.length !== 2) failAt(`${gp}.points`)("expected [nu, nv], two whole numbers of at least 2");
       const pts = g.points as unknown[];
