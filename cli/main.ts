@@ -7,6 +7,7 @@ import { registerCheck } from "./check.js";
 import { registerMesh } from "./mesh.js";
 import { registerExtract } from "./extract.js";
 import { registerDemo } from "./demo.js";
+import { registerView } from "./view.js";
 
 const require = createRequire(import.meta.url);
 const pkg = require("../../package.json") as { version: string };
@@ -35,6 +36,7 @@ export function buildProgram(): Command {
   registerMesh(program);
   registerExtract(program);
   registerDemo(program);
+  registerView(program);
   return program;
 }
 
