@@ -6,7 +6,8 @@ import { extname } from "node:path";
 import { InputError } from "./errors.js";
 import { loadMeshFiles } from "./load.js";
 import { loadSceneFile, loadSceneMesh, type Scene } from "./scene.js";
-import { DEFAULT_UNIT, type LengthUnit } from "./units.js";
+import { DEFAULT_UNIT, metresPer, type LengthUnit } from "./units.js";
+import type { AxisPlane, Axis } from "../bem/images.js";
 import type { SurfaceMesh } from "../mesh/model.js";
 import type { Warning } from "./errors.js";
 
@@ -19,6 +20,12 @@ export interface LoadedScene {
   unitAssumed: boolean;
   permittivity: number;
   breakdownField?: number;
+  /** Grounded plane (offset in metres), from the scene or `groundPlane`. */
+  groundPlane?: AxisPlane;
+  /** Mirror symmetry planes (offsets in metres). */
+  symmetry: AxisPlane[];
+  /** Per conductor: floating (zero net charge, potential solved for). */
+  floating: boolean[];
   files: string[];
   scene?: string;
   warnings: Warning[];
@@ -33,6 +40,19 @@ export interface InputOptions {
   weldTolerance?: number;
   /** NAME=VOLTS overrides, by conductor name. */
   potentials?: Record<string, number>;
+  /** Ground plane as `AXIS=POSITION` in the input unit (`z=0`); replaces the scene's. */
+  groundPlane?: string;
+  /** Symmetry planes as `AXIS=POSITION` (`x=0`); replace the scene's. */
+  symmetry?: string[];
+  /** Names of conductors to leave floating (added to the scene's). */
+  floating?: string[];
+}
+
+/** `AXIS=POSITION` (`z=0`, `x=-2.5`) in `unit`, as a plane in metres; `what` names the option in errors. */
+export function parsePlane(text: string, unit: LengthUnit, what: string): AxisPlane {
+  const m = /^\s*([xyzXYZ])\s*=\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*$/.exec(text);
+  if (!m) throw new InputError(`${what} "${text}": expected AXIS=POSITION such as z=0 (axis x, y or z, position in ${unit})`);
+  return { axis: m[1].toLowerCase() as Axis, offset: Number(m[2]) * metresPer(unit) };
 }
 
 /** Load a scene (one .json file) or mesh files. */
@@ -44,35 +64,70 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
   if (scenes.length > 0) {
     if (list.length > 1) throw new InputError("give either one scene file or mesh files, not both", scenes[0]);
     let scene: Scene = loadSceneFile(list[0]);
-    if (opts.unit) scene = { ...scene, unit: opts.unit };
+    if (opts.unit && opts.unit !== scene.unit) {
+      // Plane positions were read in the scene's unit: rescale with it.
+      const f = metresPer(opts.unit) / metresPer(scene.unit);
+      const move = (p: AxisPlane): AxisPlane => ({ axis: p.axis, offset: p.offset * f });
+      scene = { ...scene, unit: opts.unit, groundPlane: scene.groundPlane && move(scene.groundPlane), symmetry: scene.symmetry.map(move) };
+    }
     if (opts.split || opts.merge) throw new InputError("--split and --merge apply to mesh files; in a scene, each entry is one conductor", list[0]);
     const sm = loadSceneMesh(scene, { weldTolerance: opts.weldTolerance });
+    const floating = floatingFlags(sm.mesh.names, sm.floating, opts.floating);
     out = {
-      mesh: sm.mesh, potentials: resolvePotentials(sm.mesh.names, sm.potentials, opts.potentials), unit: scene.unit, unitAssumed: false, permittivity: scene.permittivity,
-      breakdownField: scene.breakdownField, files: sm.files, scene: list[0], warnings: sm.warnings, dropped: sm.dropped,
+      mesh: sm.mesh, potentials: resolvePotentials(sm.mesh.names, sm.potentials, opts.potentials, floating), unit: scene.unit, unitAssumed: false, permittivity: scene.permittivity,
+      breakdownField: scene.breakdownField, groundPlane: scene.groundPlane, symmetry: scene.symmetry, floating,
+      files: sm.files, scene: list[0], warnings: sm.warnings, dropped: sm.dropped,
     };
   } else {
     const unit = opts.unit ?? DEFAULT_UNIT;
     const lm = loadMeshFiles(list, { unit, split: opts.split, merge: opts.merge, weldTolerance: opts.weldTolerance });
     const given = lm.mesh.names.map(() => undefined);
-    out = { mesh: lm.mesh, potentials: resolvePotentials(lm.mesh.names, given, opts.potentials), unit, unitAssumed: opts.unit === undefined, permittivity: 1, files: lm.files, warnings: lm.warnings, dropped: lm.dropped };
+    const floating = floatingFlags(lm.mesh.names, lm.mesh.names.map(() => false), opts.floating);
+    out = {
+      mesh: lm.mesh, potentials: resolvePotentials(lm.mesh.names, given, opts.potentials, floating), unit, unitAssumed: opts.unit === undefined, permittivity: 1,
+      symmetry: [], floating, files: lm.files, warnings: lm.warnings, dropped: lm.dropped,
+    };
+  }
+  if (opts.groundPlane !== undefined) out.groundPlane = parsePlane(opts.groundPlane, out.unit, "ground plane");
+  if (opts.symmetry !== undefined) out.symmetry = opts.symmetry.map((t) => parsePlane(t, out.unit, "symmetry plane"));
+  const axes = new Set<string>();
+  for (const p of out.symmetry) {
+    if (axes.has(p.axis)) throw new InputError(`two symmetry planes normal to ${p.axis}: at most one per axis`);
+    if (out.groundPlane && out.groundPlane.axis === p.axis) throw new InputError(`symmetry plane ${p.axis}: parallel to the ground plane, the images would never end; use planes on other axes`);
+    axes.add(p.axis);
   }
   return out;
 }
 
+/** Floating flags from the scene and the names given as floating. */
+function floatingFlags(names: string[], scene: boolean[], extra?: string[]): boolean[] {
+  const f = scene.slice();
+  for (const name of extra ?? []) {
+    const i = names.indexOf(name);
+    if (i < 0) throw new InputError(`--floating names "${name}", which is not a conductor; the conductors are: ${names.join(", ")}`);
+    f[i] = true;
+  }
+  if (f.length > 0 && f.every((x) => x)) throw new InputError("every conductor is floating: at least one must be held at a potential");
+  return f;
+}
+
 /**
  * Potentials from the scene's values and NAME=VOLTS overrides. When nothing sets any,
- * the first conductor is at 1 V and the rest at 0 V; otherwise what is unset is at 0 V.
+ * the first driven (not floating) conductor is at 1 V and the rest at 0 V; otherwise what is
+ * unset is at 0 V. Floating conductors get 0 here; extract solves for theirs.
  */
-function resolvePotentials(names: string[], scene: Array<number | undefined>, overrides?: Record<string, number>): Float64Array {
+function resolvePotentials(names: string[], scene: Array<number | undefined>, overrides: Record<string, number> | undefined,
+  floating: boolean[]): Float64Array {
   const v = scene.slice();
   for (const [name, volts] of Object.entries(overrides ?? {})) {
     const i = names.indexOf(name);
     if (i < 0) throw new InputError(`--potential names "${name}", which is not a conductor; the conductors are: ${names.join(", ")}`);
+    if (floating[i]) throw new InputError(`--potential names "${name}", which is floating (its potential is solved for)`);
     v[i] = volts;
   }
+  for (let i = 0; i < v.length; i++) if (floating[i]) v[i] = undefined;
   const out = new Float64Array(names.length);
-  if (v.every((x) => x === undefined)) out[0] = 1;
+  if (v.every((x) => x === undefined)) out[Math.max(0, floating.indexOf(false))] = 1;
   else v.forEach((x, i) => { out[i] = x ?? 0; });
   return out;
 }

@@ -3,7 +3,13 @@
  * the medium and the breakdown strength used by the field check.
  *
  *   { "unit": "mm", "permittivity": 1.0,
- *     "conductors": [ { "name": "pad", "mesh": "pad.stl", "potential": 1.0 } ] }
+ *     "groundPlane": { "z": 0 }, "symmetry": [ { "x": 0 } ],
+ *     "conductors": [ { "name": "pad", "mesh": "pad.stl", "potential": 1.0 },
+ *                     { "name": "shield", "mesh": "shield.stl", "floating": true } ] }
+ *
+ * `groundPlane` is a grounded conducting plane normal to one axis, `symmetry` lists mirror
+ * symmetry planes of a model meshed by half (positions in the scene's unit); a floating
+ * conductor carries zero net charge at a potential the solver finds, so it takes no potential.
  *
  * The schema is kept in `schema/scene.schema.json`; this module is its validator and
  * names the key path of every fault (`conductors[1].potential: expected a number`).
@@ -12,7 +18,8 @@
 import { readFileSync, statSync } from "node:fs";
 import { dirname, resolve, basename, extname } from "node:path";
 import { InputError } from "./errors.js";
-import { parseUnit, DEFAULT_UNIT, type LengthUnit } from "./units.js";
+import { parseUnit, metresPer, DEFAULT_UNIT, type LengthUnit } from "./units.js";
+import type { AxisPlane, Axis } from "../bem/images.js";
 import { loadMeshFile, type LoadedMesh } from "./load.js";
 import { concatMeshes } from "../mesh/model.js";
 
@@ -25,6 +32,8 @@ export interface SceneConductor {
   groups?: string[];
   /** Working potential; volts. Undefined when the scene does not set it. */
   potential?: number;
+  /** Zero net charge at a solved potential. */
+  floating: boolean;
 }
 
 export interface Scene {
@@ -34,11 +43,30 @@ export interface Scene {
   permittivity: number;
   /** Breakdown strength of the medium used by the field check; V/m. */
   breakdownField?: number;
+  /** Grounded plane; offset in metres. */
+  groundPlane?: AxisPlane;
+  /** Mirror symmetry planes; offsets in metres. */
+  symmetry: AxisPlane[];
   conductors: SceneConductor[];
 }
 
-const TOP_KEYS = new Set(["$schema", "unit", "permittivity", "breakdownField", "conductors", "title", "description"]);
-const CONDUCTOR_KEYS = new Set(["name", "mesh", "group", "groups", "potential", "description"]);
+const TOP_KEYS = new Set(["$schema", "unit", "permittivity", "breakdownField", "groundPlane", "symmetry", "conductors", "title", "description"]);
+const CONDUCTOR_KEYS = new Set(["name", "mesh", "group", "groups", "potential", "floating", "description"]);
+
+/**
+ * An axis-aligned plane written `{ "z": 0 }` (one of x, y, z, its position in `unit`), or the
+ * fault as a phrase. Exported for the command line's plane options (`z=0`).
+ */
+export function planeFromObject(v: unknown, unit: LengthUnit): AxisPlane | string {
+  if (!isObject(v)) return "expected an object naming one axis and its position, such as { \"z\": 0 }";
+  const keys = Object.keys(v);
+  if (keys.length !== 1 || !["x", "y", "z"].includes(keys[0])) {
+    return `expected exactly one of the keys x, y, z (the plane's normal axis), got ${keys.length === 0 ? "none" : keys.join(", ")}`;
+  }
+  const at = v[keys[0]];
+  if (typeof at !== "number" || !Number.isFinite(at)) return `${keys[0]}: expected a number (position in ${unit})`;
+  return { axis: keys[0] as Axis, offset: at * metresPer(unit) };
+}
 
 /** Turn a JSON.parse failure into a line and column. */
 function jsonPlace(text: string, err: unknown): string | undefined {
@@ -86,6 +114,25 @@ export function parseScene(text: string, file: string): Scene {
     if (typeof top.breakdownField !== "number" || !Number.isFinite(top.breakdownField) || top.breakdownField <= 0) fail("breakdownField", "expected a positive number in V/m");
     breakdownField = top.breakdownField as number;
   }
+  let groundPlane: AxisPlane | undefined;
+  if (top.groundPlane !== undefined) {
+    const g = planeFromObject(top.groundPlane, unit);
+    if (typeof g === "string") fail("groundPlane", g);
+    groundPlane = g as AxisPlane;
+  }
+  const symmetry: AxisPlane[] = [];
+  if (top.symmetry !== undefined) {
+    if (!Array.isArray(top.symmetry)) fail("symmetry", "expected a list of planes, such as [ { \"x\": 0 } ]");
+    (top.symmetry as unknown[]).forEach((entry, i) => {
+      const g = planeFromObject(entry, unit);
+      if (typeof g === "string") fail(`symmetry[${i}]`, g);
+      const plane = g as AxisPlane;
+      const j = symmetry.findIndex((q) => q.axis === plane.axis);
+      if (j >= 0) fail(`symmetry[${i}]`, `symmetry[${j}] is already normal to ${plane.axis} (at most one symmetry plane per axis)`);
+      if (groundPlane && groundPlane.axis === plane.axis) fail(`symmetry[${i}]`, `parallel to the ground plane (normal to ${plane.axis}): the images would never end; use planes on other axes`);
+      symmetry.push(plane);
+    });
+  }
   if (!Array.isArray(top.conductors)) fail("conductors", top.conductors === undefined ? "missing (a list of conductors is required)" : "expected a list");
   const list = top.conductors as unknown[];
   if (list.length === 0) fail("conductors", "the list is empty");
@@ -120,7 +167,13 @@ export function parseScene(text: string, file: string): Scene {
       if (typeof e.potential !== "number" || !Number.isFinite(e.potential)) fail(`${at}.potential`, "expected a number (volts)");
       potential = e.potential as number;
     }
-    return { name, mesh, groups, potential };
+    let floating = false;
+    if (e.floating !== undefined) {
+      if (typeof e.floating !== "boolean") fail(`${at}.floating`, "expected true or false");
+      floating = e.floating as boolean;
+      if (floating && potential !== undefined) fail(`${at}.potential`, "a floating conductor takes no potential (its potential is solved for); remove one of the two");
+    }
+    return { name, mesh, groups, potential, floating };
   });
   const seen = new Map<string, number>();
   conductors.forEach((c, i) => {
@@ -128,7 +181,8 @@ export function parseScene(text: string, file: string): Scene {
     if (j !== undefined) fail(`conductors[${i}].name`, `"${c.name}" is already the name of conductors[${j}]`);
     seen.set(c.name, i);
   });
-  return { file, unit, permittivity, breakdownField, conductors };
+  if (conductors.every((c) => c.floating)) fail("conductors", "every conductor is floating: at least one must be held at a potential");
+  return { file, unit, permittivity, breakdownField, groundPlane, symmetry, conductors };
 }
 
 /** Read and validate a scene file. */
@@ -150,6 +204,8 @@ export function loadSceneFile(path: string): Scene {
 export interface SceneMesh extends LoadedMesh {
   /** Potential of each conductor as the scene gives it; volts (undefined where it is silent). */
   potentials: Array<number | undefined>;
+  /** Floating flag of each conductor. */
+  floating: boolean[];
 }
 
 /** Load every conductor of a scene: one conductor per entry, its file's groups joined. */
@@ -165,5 +221,6 @@ export function loadSceneMesh(scene: Scene, opts: { weldTolerance?: number } = {
     dropped: parts.reduce((s, p) => s + p.dropped, 0),
     welded: parts.reduce((s, p) => s + p.welded, 0),
     potentials: scene.conductors.map((c) => c.potential),
+    floating: scene.conductors.map((c) => c.floating),
   };
 }
