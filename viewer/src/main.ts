@@ -110,7 +110,8 @@ interface ConductorView {
   index: number;
   panels: Uint32Array;
   mesh: any;
-  colours: Uint8Array;
+  /** Linear-light RGB per vertex (three.js shades in linear light; the tables are sRGB). */
+  colours: Float32Array;
   edges: any | null;
   material: any;
   visible: boolean;
@@ -238,7 +239,9 @@ function start(root: HTMLElement, data: PageData): void {
   glNote.id = "sm-glnote";
   stage.appendChild(glNote);
 
+  const linearTable = (t: Uint8Array): Float32Array => Float32Array.from(t, (b) => { const c = b / 255; return c <= 0.04045 ? c / 12.92 : Math.pow((c + 0.055) / 1.055, 2.4); });
   const coolWarm = coolWarmTable(), viridis = viridisTable();
+  const coolWarmLinear = linearTable(coolWarm), viridisLinear = linearTable(viridis);
 
   // ---- Conductor list (visibility, opacity) ----
   const views: ConductorView[] = [];
@@ -361,8 +364,9 @@ function start(root: HTMLElement, data: PageData): void {
   const clipPlane = new THREE.Plane(new THREE.Vector3(1, 0, 0), 0);
   const markers = new THREE.Group();
   scene.add(markers);
-  scene.add(new THREE.AmbientLight(0xffffff, 1.6));
-  const headlight = new THREE.DirectionalLight(0xffffff, 1.4);
+  // Lambert in three.js divides by π: these give the map's own colour face-on and 60 % of it edge-on.
+  scene.add(new THREE.AmbientLight(0xffffff, 0.6 * Math.PI));
+  const headlight = new THREE.DirectionalLight(0xffffff, 0.4 * Math.PI);
   camera.add(headlight);
   headlight.position.set(0.3, 0.5, 1);
   scene.add(camera);
@@ -398,8 +402,8 @@ function start(root: HTMLElement, data: PageData): void {
     }
     const geometry = new THREE.BufferGeometry();
     geometry.setAttribute("position", new THREE.BufferAttribute(pos, 3));
-    const colours = new Uint8Array(9 * list.length);
-    geometry.setAttribute("color", new THREE.BufferAttribute(colours, 3, true));
+    const colours = new Float32Array(9 * list.length);
+    geometry.setAttribute("color", new THREE.BufferAttribute(colours, 3));
     geometry.computeVertexNormals();
     geometry.computeBoundingSphere();
     const material = new THREE.MeshLambertMaterial({ vertexColors: true, side: THREE.DoubleSide, clippingPlanes: [], polygonOffset: true, polygonOffsetFactor: 1, polygonOffsetUnits: 1 });
@@ -413,7 +417,7 @@ function start(root: HTMLElement, data: PageData): void {
     const e = v.excitations[state.excitation];
     scaleNow = colourScale(e, state.quantity, state.scale);
     const values = state.quantity === "field" ? e.field : e.sigma;
-    const lut = state.quantity === "field" ? viridis : coolWarm;
+    const lut = state.quantity === "field" ? viridisLinear : coolWarmLinear;
     for (const cv of views) {
       const col = cv.colours, list = cv.panels;
       for (let i = 0; i < list.length; i++) {

@@ -1,0 +1,47 @@
+// Shared by the browser tests: a small generated extraction written as an HTML report, and
+// Debian's Chromium driven by playwright-core with software WebGL.
+import { existsSync, mkdirSync, writeFileSync } from "node:fs";
+import { join } from "node:path";
+import { fileURLToPath } from "node:url";
+import { sphereMesh, boxMesh, plateMesh } from "../../src/mesh/primitives/index.js";
+import { concatMeshes } from "../../src/mesh/model.js";
+import { extract, type ExtractionResult } from "../../src/extract/extract.js";
+import { extractionReport } from "../../src/report/json.js";
+import { htmlReport } from "../../src/report/html.js";
+import { viewerData } from "../../src/report/viewer-data.js";
+
+export const CHROMIUM = process.env.SIGMESH_CHROMIUM ?? "/usr/bin/chromium";
+export const ARTIFACTS = fileURLToPath(new URL("../artifacts/", import.meta.url));
+
+/** A conductor name made of markup: it must show as these characters, never as an element. */
+export const MARKUP_NAME = "<img src=x onerror=alert(1)>";
+
+export function chromiumMissing(): string | undefined {
+  return existsSync(CHROMIUM) ? undefined : `no Chromium at ${CHROMIUM} (install Debian's chromium package, or set SIGMESH_CHROMIUM)`;
+}
+
+export async function launchChromium() {
+  const { chromium } = await import("playwright-core");
+  return chromium.launch({
+    executablePath: CHROMIUM,
+    headless: true,
+    args: ["--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update", "--no-first-run", "--use-angle=swiftshader", "--enable-unsafe-swiftshader"],
+  });
+}
+
+/** Sphere (HV electrode, 2 kV), a grounded box with sharp corners, and a floating-at-0 V sheet with a markup name. */
+export async function sampleExtraction(): Promise<{ result: ExtractionResult; report: Record<string, unknown> }> {
+  const mesh = concatMeshes([
+    sphereMesh({ radius: 4e-3, level: 2, center: [-8e-3, 0, 0], name: "electrode" }),
+    boxMesh({ size: [6e-3, 6e-3, 6e-3], divisions: 3, center: [6e-3, 0, 0], name: "ground box" }),
+    plateMesh({ size: [10e-3, 10e-3], divisions: 6, center: [0, 0, -9e-3], name: MARKUP_NAME }),
+  ]);
+  const result = await extract(mesh, { potentials: [2000, 0, 0] });
+  const report = extractionReport(result, { version: "test", files: ["generated <scene>.json"], unit: "mm", inputWarnings: [] });
+  return { result, report };
+}
+
+export function writeSampleHtml(path: string, report: Record<string, unknown>, result: ExtractionResult): void {
+  mkdirSync(join(path, ".."), { recursive: true });
+  writeFileSync(path, htmlReport(report, viewerData(result)));
+}
