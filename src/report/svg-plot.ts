@@ -42,6 +42,8 @@ export interface PlotOptions {
    * `inRange: false` does not stretch the axis; it is drawn only when it falls inside.
    */
   references?: Array<{ value: number; label: string; inRange?: boolean }>;
+  /** Corner of the legend inside the plot; default "top-right". */
+  legend?: "top-right" | "bottom-right" | "top-left" | "bottom-left";
 }
 
 const PALETTE = ["#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#000000"];
@@ -224,9 +226,12 @@ export function linePlotSvg(series: PlotSeries[], opts: PlotOptions): string {
     ...refs.map((r) => ({ label: okY(r.value) && r.value >= ay.lo && r.value <= ay.hi ? r.label : `${r.label} (off scale)`, colour: "#555555", dashed: true }))];
   if (entries.length > 0) {
     const lw = Math.min(x1 - x0 - 16, 36 + 7 * Math.max(...entries.map((e) => [...e.label].length)));
-    const lx = x1 - lw - 8, ly = y1 + 8;
+    const lh = 8 + 18 * entries.length;
+    const corner = opts.legend ?? "top-right";
+    const lx = corner.endsWith("right") ? x1 - lw - 8 : x0 + 8;
+    const ly = corner.startsWith("top") ? y1 + 8 : y0 - lh - 8;
     o.push(`<g class="legend">`);
-    o.push(`<rect x="${f2(lx)}" y="${f2(ly)}" width="${f2(lw)}" height="${f2(8 + 18 * entries.length)}" fill="#ffffff" fill-opacity="0.9" stroke="#bbbbbb"/>`);
+    o.push(`<rect x="${f2(lx)}" y="${f2(ly)}" width="${f2(lw)}" height="${f2(lh)}" fill="#ffffff" fill-opacity="0.9" stroke="#bbbbbb"/>`);
     entries.forEach((e, i) => {
       const yy = ly + 16 + 18 * i;
       o.push(`<line x1="${f2(lx + 6)}" y1="${f2(yy - 4)}" x2="${f2(lx + 28)}" y2="${f2(yy - 4)}" stroke="${e.colour}" stroke-width="2"${e.dashed ? ` stroke-dasharray="7 5"` : ""}/>`);
@@ -249,6 +254,9 @@ export function convergencePlotSvg(levels: Array<{ panels: number; value: number
     x: { label: "panels", log: true, prefix: true },
     y: { label, unit: opts.unit ?? "F" },
     references: extrapolated !== undefined && Number.isFinite(extrapolated) ? [{ value: extrapolated, label: "extrapolated" }] : [],
+    // Values approach the limit from one side as the panels grow, leaving one lower corner
+    // empty: from below (Galerkin) the bottom right, from above the top right.
+    legend: sorted.length > 1 && sorted[sorted.length - 1].value < sorted[0].value ? "top-right" : "bottom-right",
   });
 }
 

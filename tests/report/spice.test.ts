@@ -72,6 +72,16 @@ describe("spiceNodeNames", () => {
     expect(nodes[2]).toBe("N3v3_rail");
     expect(nodes[3]).toBe("Duse");
   });
+  it("any list of names gives legal, unique node names (property)", () => {
+    fc.assert(fc.property(fc.array(fc.string({ unit: "grapheme", maxLength: 12 }), { maxLength: 30 }), (names) => {
+      const nodes = spiceNodeNames(names, ["REF"]);
+      expect(nodes.length).toBe(names.length);
+      for (const n of nodes) expect(n).toMatch(LEGAL);
+      const lower = nodes.map((n) => n.toLowerCase());
+      expect(new Set([...lower, "ref", "gnd", "0"]).size).toBe(nodes.length + 3);
+      return true;
+    }), { seed: 3, numRuns: 300 });
+  });
 });
 
 describe("spiceSubcircuit", () => {
