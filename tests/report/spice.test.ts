@@ -4,10 +4,16 @@
  * scale factors with M = milli, MEG = mega) are those of the Berkeley SPICE3 / ngspice
  * user's manuals.
  */
-import { describe, it, expect } from "vitest";
+import { describe, it, expect, afterAll } from "vitest";
 import fc from "fast-check";
 import { spiceSubcircuit, parseSpiceCapacitors, mutualFromSpice, spiceNodeNames, spiceNumber, parseSpiceNumber } from "../../src/report/spice.js";
 import { mutualFromMaxwell } from "../../src/extract/capacitance.js";
+import { extract } from "../../src/extract/extract.js";
+import { sphereMesh } from "../../src/mesh/primitives/index.js";
+import { concatMeshes } from "../../src/mesh/model.js";
+import { closeSharedPool } from "../../src/linalg/pool.js";
+
+afterAll(() => closeSharedPool());
 
 const LEGAL = /^[A-Za-z_][A-Za-z0-9_]*$/;
 
@@ -150,5 +156,22 @@ describe("spiceSubcircuit", () => {
     expect(Array.from(m).map((x) => x * 1e12)).toEqual([expect.closeTo(1, 12), expect.closeTo(1, 12), expect.closeTo(1, 12), expect.closeTo(2, 12)]);
     expect(() => mutualFromSpice(".subckt x a ref\nC1 a q 1p\n.ends\n", ["a"])).toThrow(/node q/);
     expect(() => parseSpiceCapacitors("C1 a b pico")).toThrow(/line 1/);
+  });
+
+  it("round-trips the mutual matrix of a real extraction; the charges from the rebuilt network match Q = C·V", async () => {
+    const ball = (x: number, r: number, name: string) => { const m = sphereMesh({ radius: r, level: 1, center: [x, 0, 0] }); return { ...m, names: [name] }; };
+    const res = await extract(concatMeshes([ball(-0.02, 0.01, "HV electrode"), ball(0.02, 0.01, "plate 1"), ball(0.5, 0.002, "far probe")]), { potentials: [1, 0, 0] });
+    const names = res.names;
+    const back = mutualFromSpice(spiceSubcircuit(names, res.mutual), names);
+    let largest = 0;
+    for (const v of res.mutual) largest = Math.max(largest, Math.abs(v));
+    for (let i = 0; i < 9; i++) expect(Math.abs(back[i] - res.mutual[i])).toBeLessThanOrEqual(Math.max(5e-6 * Math.abs(res.mutual[i]), 1e-4 * largest));
+    // Charges of the network at V = (1, 0, 0): Q_i = C_ii^m V_i + Σ_j C_ij^m (V_i − V_j).
+    const V = [1, 0, 0];
+    for (let i = 0; i < 3; i++) {
+      let q = back[i * 3 + i] * V[i];
+      for (let j = 0; j < 3; j++) if (j !== i) q += back[i * 3 + j] * (V[i] - V[j]);
+      expect(Math.abs(q - res.conductors[i].charge)).toBeLessThanOrEqual(2e-4 * largest);
+    }
   });
 });
