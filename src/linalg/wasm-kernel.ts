@@ -218,9 +218,13 @@ let memory: WebAssembly.Memory | null = null;
 let heap = new Float64Array(0);
 let available: boolean | undefined;
 
-/** Whether this thread can run the WebAssembly SIMD kernel (compiled once, on first call). */
+/**
+ * Whether this thread can run the WebAssembly SIMD kernel (compiled once, on first call).
+ * SIGMESH_NO_WASM_SIMD=1 in the environment answers no, to run (or test) the fallback.
+ */
 export function simdAvailable(): boolean {
   if (available === undefined) {
+    if (typeof process === "object" && process.env?.SIGMESH_NO_WASM_SIMD === "1") return (available = false);
     try {
       const bytes = kernelModuleBytes();
       if (typeof WebAssembly !== "object" || !WebAssembly.validate(bytes)) available = false;

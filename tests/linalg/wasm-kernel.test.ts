@@ -1,4 +1,5 @@
 import { describe, it, expect } from "vitest";
+import { execFileSync } from "node:child_process";
 import fc from "fast-check";
 import { Matrix } from "ml-matrix";
 import { gemmNTSimd, kernelModuleBytes, simdAvailable, sleb, uleb, MR, NR, PACKING } from "../../src/linalg/wasm-kernel.js";
@@ -99,5 +100,33 @@ describe("WebAssembly SIMD kernel", () => {
     const sref = definition(small, 5, A, kc, B, kc, 4, 5, kc, 5, 1);
     gemmNTSimd(small, 0, 5, A, 0, kc, B, 0, kc, 4, 5, kc, 5, 1);
     expect(maxAbsDiff(small, sref)).toBeLessThan(1e-13);
+  });
+
+  it("without WebAssembly SIMD, auto falls back to the JavaScript kernel and the factors stay right", () => {
+    // A fresh process (the availability is decided once per thread), on the compiled modules.
+    const dist = new URL("../../dist/src/linalg/", import.meta.url).href;
+    // CommonJS eval with an async body: "--input-type=module" would be inherited by the pool's workers.
+    const script = `(async () => {
+      const { denseKernelInUse } = await import("${dist}dense.js");
+      const { simdAvailable } = await import("${dist}wasm-kernel.js");
+      const { choleskyFactor, choleskySolve } = await import("${dist}cholesky.js");
+      const { WorkerPool } = await import("${dist}pool.js");
+      const n = 300, A = new Float64Array(n * n);
+      for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) A[i * n + j] = 0.5 ** Math.abs(i - j) + (i === j ? 1 : 0);
+      const x = new Float64Array(n).fill(1), b = new Float64Array(n);
+      for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) b[i] += A[i * n + j];
+      const pool = new WorkerPool(2);
+      await choleskyFactor(A, n, { pool, blockSize: 32 });
+      await pool.close();
+      choleskySolve(A, n, b, 1);
+      let e = 0; for (let i = 0; i < n; i++) e = Math.max(e, Math.abs(b[i] - x[i]));
+      console.log(JSON.stringify({ simd: simdAvailable(), used: denseKernelInUse("auto"), err: e }));
+    })();`;
+    const out = execFileSync(process.execPath, ["-e", script], { env: { ...process.env, SIGMESH_NO_WASM_SIMD: "1" }, encoding: "utf8" });
+    const r = JSON.parse(out.trim().split("\n").pop()!);
+    expect(r.simd).toBe(false);
+    expect(r.used).toBe("js");
+    // A·1 = b solved back to 1 (the matrix is diagonally dominant, condition number below 10).
+    expect(r.err).toBeLessThan(1e-12);
   });
 });
