@@ -144,7 +144,8 @@ export function viewerData(result: ExtractionResult, opts: ViewerDataOptions = {
   const box = boundingBox(mesh.positions);
   const origin: [number, number, number] = [(box[0] + box[3]) / 2, (box[1] + box[4]) / 2, (box[2] + box[5]) / 2];
   const diag = Math.hypot(box[3] - box[0], box[4] - box[1], box[5] - box[2]);
-  const separation = 0.05 * diag;
+  // A tenth of the model apart: one corner or one electrode face does not fill the list.
+  const separation = 0.1 * diag;
   const positions = new Float32Array(mesh.positions.length);
   for (let i = 0; i < positions.length; i += 3) {
     positions[i] = mesh.positions[i] - origin[0];

@@ -11,7 +11,7 @@ import * as THREE from "three";
 import { OrbitControls } from "three/examples/jsm/controls/OrbitControls.js";
 import { readPageData, type PageData, type Excitation, type HotSpot } from "./data.js";
 import { coolWarmTable, viridisTable, LUT_SIZE } from "./colormap.js";
-import { formatSI, formatPoint, formatNumber } from "../../src/report/si.js";
+import { formatSI, formatPoint, formatNumber, formatArea } from "../../src/report/si.js";
 import type { LengthUnit } from "../../src/io/units.js";
 import "./style.css";
 
@@ -210,7 +210,7 @@ function start(root: HTMLElement, data: PageData): void {
   if (mutual) tables.appendChild(matrixTable("Mutual capacitances (two-terminal, to circuit nodes; diagonal: to infinity)", mutual, names, "sm-mutual"));
   if (report.accuracy?.relativeError !== undefined) tables.appendChild(el("p", "sm-note", `Estimated relative error of the matrix (Richardson): ${formatNumber(report.accuracy.relativeError, 2)}`));
   const summarySec = section(side, "Conductor summary");
-  summarySec.appendChild(summaryTable(report, names));
+  summarySec.appendChild(summaryTable(report, names, unit));
   const warnings = (report.warnings as string[] | undefined) ?? [];
   if (warnings.length > 0) {
     const w = section(side, "Warnings");
@@ -540,7 +540,8 @@ function start(root: HTMLElement, data: PageData): void {
     if (!controls) return;
     const target = new THREE.Vector3(h.at[0] - v.origin[0], h.at[1] - v.origin[1], h.at[2] - v.origin[2]);
     const n = panelNormal(h.panel);
-    const dist = 0.35 * radius;
+    // Close enough to see the panel, far enough to see what surrounds it.
+    const dist = 0.9 * radius;
     const endPos = target.clone().addScaledVector(n, dist);
     const startPos = camera.position.clone(), startTarget = controls.target.clone();
     const t0 = performance.now(), id = ++flight;
@@ -585,7 +586,7 @@ function start(root: HTMLElement, data: PageData): void {
       `σ = ${formatSI(e.sigma[p], "C/m²")}`,
       `|E| = ${formatSI(e.field[p], "V/m")} (${formatNumber((100 * e.field[p]) / v.breakdownField, 3)} % of breakdown)`,
       `centroid ${formatPoint(at, unit)}`,
-      `area ${formatSI(v.areas[p], "m²")}`,
+      `area ${formatArea(v.areas[p], unit)}`,
     ];
     for (const t of lines) readout.appendChild(el("div", undefined, t));
     readout.dataset.panel = String(p);
@@ -710,7 +711,7 @@ function matrixTable(caption: string, m: number[][], names: string[], id: string
   return t;
 }
 
-function summaryTable(report: Record<string, any>, names: string[]): HTMLTableElement {
+function summaryTable(report: Record<string, any>, names: string[], unit: LengthUnit): HTMLTableElement {
   const t = el("table", "sm-summary");
   t.id = "sm-summary";
   const head = el("tr");
@@ -725,7 +726,7 @@ function summaryTable(report: Record<string, any>, names: string[]): HTMLTableEl
       formatSI(c.charge, "C"),
       c.peakField === null ? "—" : formatSI(c.peakField, "V/m"),
       c.fieldRatio === null ? "—" : `${formatNumber(100 * c.fieldRatio, 3)} %`,
-      formatSI(c.area, "m²"),
+      formatArea(c.area, unit),
       String(c.triangles),
     ];
     for (const x of cells) tr.appendChild(el("td", undefined, x));

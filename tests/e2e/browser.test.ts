@@ -1,0 +1,284 @@
+// The HTML report in a real browser (Debian's Chromium, headless, software WebGL) and
+// `sigmesh view` over HTTP. Screenshots go to tests/artifacts/ (git-ignored).
+import { describe, it, expect, beforeAll, afterAll } from "vitest";
+import { spawn, type ChildProcess } from "node:child_process";
+import { mkdirSync, writeFileSync, existsSync } from "node:fs";
+import { request } from "node:http";
+import { networkInterfaces } from "node:os";
+import { join } from "node:path";
+import { fileURLToPath, pathToFileURL } from "node:url";
+import type { Browser, Page } from "playwright-core";
+import { chromiumMissing, launchChromium, sampleExtraction, writeSampleHtml, ARTIFACTS, MARKUP_NAME } from "./browser-helper.js";
+import type { ExtractionResult } from "../../src/extract/extract.js";
+import { viewerData, viewerDataJson, type ViewerData } from "../../src/report/viewer-data.js";
+import { formatSI } from "../../src/report/si.js";
+
+const missing = chromiumMissing();
+if (missing) console.warn(`browser tests skipped: ${missing}`);
+const cli = fileURLToPath(new URL("../../dist/cli/main.js", import.meta.url));
+
+let result: ExtractionResult;
+let report: Record<string, any>;
+let data: ViewerData;
+let htmlPath = "";
+let browser: Browser | undefined;
+
+beforeAll(async () => {
+  mkdirSync(ARTIFACTS, { recursive: true });
+  ({ result, report } = await sampleExtraction());
+  data = viewerData(result);
+  htmlPath = join(ARTIFACTS, "report.html");
+  writeSampleHtml(htmlPath, report, result);
+  if (!missing) browser = await launchChromium();
+});
+afterAll(async () => { await browser?.close(); });
+
+/** Pixel statistics of the WebGL canvas: variance of luma and count of pixels unlike the background. */
+async function canvasStats(page: Page): Promise<{ variance: number; foreground: number; pixels: number }> {
+  return page.evaluate(() => {
+    const c = document.getElementById("sm-canvas") as HTMLCanvasElement;
+    const off = document.createElement("canvas");
+    off.width = c.width; off.height = c.height;
+    const g = off.getContext("2d")!;
+    g.drawImage(c, 0, 0);
+    const d = g.getImageData(0, 0, off.width, off.height).data;
+    const bg = [d[0], d[1], d[2]];
+    let s = 0, s2 = 0, fg = 0;
+    const n = d.length / 4;
+    for (let i = 0; i < d.length; i += 4) {
+      const y = 0.2126 * d[i] + 0.7152 * d[i + 1] + 0.0722 * d[i + 2];
+      s += y; s2 += y * y;
+      if (Math.abs(d[i] - bg[0]) + Math.abs(d[i + 1] - bg[1]) + Math.abs(d[i + 2] - bg[2]) > 12) fg++;
+    }
+    return { variance: s2 / n - (s / n) ** 2, foreground: fg, pixels: n };
+  });
+}
+
+async function frames(page: Page): Promise<number> {
+  return Number(await page.locator(".sm-app").getAttribute("data-frames"));
+}
+
+async function afterRedraw(page: Page, before: number): Promise<void> {
+  await page.waitForFunction((b) => Number(document.querySelector(".sm-app")?.getAttribute("data-frames")) > b, before, { timeout: 10_000 });
+}
+
+async function openReport(url: string, requests: string[], dialogs: string[]): Promise<Page> {
+  const page = await browser!.newPage({ viewport: { width: 1280, height: 800 }, acceptDownloads: true });
+  page.on("request", (r) => requests.push(r.url()));
+  page.on("dialog", (d) => { dialogs.push(d.message()); void d.dismiss(); });
+  const errors: string[] = [];
+  page.on("pageerror", (e) => errors.push(e.message));
+  await page.goto(url);
+  await page.waitForSelector(".sm-app[data-ready='1']", { timeout: 30_000 });
+  await page.waitForFunction(() => Number(document.querySelector(".sm-app")?.getAttribute("data-frames")) > 0);
+  expect(errors).toEqual([]);
+  return page;
+}
+
+describe.skipIf(missing !== undefined)("HTML report in Chromium", () => {
+  it("draws the conductors, shows the report's numbers, hides a conductor, keeps markup as text, flies to a hot spot", async () => {
+    const requests: string[] = [], dialogs: string[] = [];
+    const url = pathToFileURL(htmlPath).href;
+    const page = await openReport(url, requests, dialogs);
+    await page.screenshot({ path: join(ARTIFACTS, "browser-report.png") });
+
+    // Drawn: a varied picture, not a blank canvas.
+    const drawn = await canvasStats(page);
+    expect(drawn.variance).toBeGreaterThan(50);
+    expect(drawn.foreground).toBeGreaterThan(0.05 * drawn.pixels);
+
+    // Colour bar: |E| linear from 0 to the report's peak field.
+    const bar = page.locator("#sm-colourbar");
+    expect(await bar.getAttribute("data-quantity")).toBe("field");
+    expect(Number(await bar.getAttribute("data-max"))).toBe(report.fieldCheck.peakField);
+    expect(Number(await bar.getAttribute("data-min"))).toBe(0);
+    expect(await bar.locator("[data-role=max]").textContent()).toBe(formatSI(report.fieldCheck.peakField, "V/m"));
+    expect(await bar.locator("[data-role=min]").textContent()).toBe(formatSI(0, "V/m"));
+
+    // Hot spots: the strongest is the report's peak; every conductor's peak is listed with its name.
+    const spots = page.locator("#sm-hotspots button");
+    const fields = (await spots.evaluateAll((bs) => bs.map((b) => Number((b as HTMLElement).dataset.field))));
+    expect(fields[0]).toBe(report.fieldCheck.peakField);
+    for (let i = 1; i < fields.length; i++) expect(fields[i]).toBeLessThanOrEqual(fields[i - 1]);
+    const texts = await spots.allTextContents();
+    for (const c of report.conductors) {
+      const at = fields.indexOf(c.peakField);
+      expect(at).toBeGreaterThanOrEqual(0);
+      expect(texts[at]).toContain(c.name);
+      expect(texts[at]).toContain(formatSI(c.peakField, "V/m"));
+    }
+    expect(texts[0]).toContain(report.fieldCheck.worstConductor);
+
+    // Cautions from the report are on the page.
+    const cautions = await page.locator("#sm-cautions").textContent();
+    for (const c of report.fieldCheck.cautions) expect(cautions).toContain(c);
+
+    // Markup in a name is text: no element made from it, no script run, the characters shown.
+    expect(await page.locator("img").count()).toBe(0);
+    expect(dialogs).toEqual([]);
+    const names = await page.locator("#sm-conductor-list .sm-name").allTextContents();
+    expect(names).toEqual(report.conductors.map((c: { name: string }) => c.name));
+    expect(names).toContain(MARKUP_NAME);
+    expect(await page.locator("#sm-maxwell th", { hasText: MARKUP_NAME }).count()).toBe(2);
+
+    // Maxwell table cells carry the report's values.
+    const cells = await page.locator("#sm-maxwell td").evaluateAll((tds) => tds.map((t) => Number((t as HTMLElement).dataset.value)));
+    expect(cells).toEqual(report.capacitance.maxwell.flat());
+
+    // Hiding the sphere removes its pixels.
+    let f = await frames(page);
+    await page.locator(".sm-conductor[data-conductor='0'] .sm-visible").uncheck();
+    await afterRedraw(page, f);
+    const hidden = await canvasStats(page);
+    expect(hidden.foreground).toBeLessThan(0.85 * drawn.foreground);
+    await page.screenshot({ path: join(ARTIFACTS, "browser-hidden.png") });
+    f = await frames(page);
+    await page.locator(".sm-conductor[data-conductor='0'] .sm-visible").check();
+    await afterRedraw(page, f);
+    expect(Math.abs((await canvasStats(page)).foreground - drawn.foreground)).toBeLessThan(0.01 * drawn.pixels);
+
+    // Another excitation: the box at 1 V, its own range and hot spots.
+    f = await frames(page);
+    await page.locator("#sm-excitation").selectOption("2");
+    await afterRedraw(page, f);
+    expect(Number(await bar.getAttribute("data-max"))).toBe(data.excitations[2].fieldRange[1]);
+    expect(Number(await spots.first().getAttribute("data-field"))).toBe(data.excitations[2].hotSpots[0].field);
+    await page.locator("#sm-excitation").selectOption("0");
+
+    // σ: diverging and symmetric about zero.
+    await page.locator("select").first().selectOption("sigma");
+    const top = Math.max(Math.abs(data.excitations[0].sigmaRange[0]), Math.abs(data.excitations[0].sigmaRange[1]));
+    expect(Number(await bar.getAttribute("data-max"))).toBe(top);
+    expect(Number(await bar.getAttribute("data-min"))).toBe(-top);
+    await page.screenshot({ path: join(ARTIFACTS, "browser-sigma.png") });
+    await page.locator("select").first().selectOption("field");
+
+    // Clicking a hot spot flies there and pins its panel in the read-out.
+    const before = await canvasStats(page);
+    await spots.nth(0).click();
+    await page.waitForSelector(".sm-app[data-flown='0']", { timeout: 10_000 });
+    expect(await page.locator("#sm-readout").getAttribute("data-panel")).toBe(String(data.excitations[0].hotSpots[0].panel));
+    expect(await page.locator("#sm-readout").textContent()).toContain(formatSI(data.excitations[0].field[data.excitations[0].hotSpots[0].panel], "V/m"));
+    expect((await canvasStats(page)).foreground).not.toBe(before.foreground);
+    await page.screenshot({ path: join(ARTIFACTS, "browser-hotspot.png") });
+
+    // Snapshot downloads a PNG.
+    const [download] = await Promise.all([page.waitForEvent("download"), page.locator("#sm-snapshot").click()]);
+    expect(download.suggestedFilename()).toBe("sigmesh-view.png");
+
+    // Nothing was fetched but the file itself (and in-page data: URLs).
+    expect(requests.filter((r) => r !== url && !r.startsWith("data:") && !r.startsWith("blob:"))).toEqual([]);
+    await page.close();
+  });
+
+  it("says plainly when WebGL is missing and still shows the tables", async () => {
+    const page = await browser!.newPage({ viewport: { width: 1000, height: 700 } });
+    await page.addInitScript(() => {
+      const orig = HTMLCanvasElement.prototype.getContext;
+      (HTMLCanvasElement.prototype as any).getContext = function (this: HTMLCanvasElement, kind: string, ...rest: unknown[]) {
+        return /webgl/.test(kind) ? null : (orig as any).call(this, kind, ...rest);
+      };
+    });
+    await page.goto(pathToFileURL(htmlPath).href);
+    await page.waitForSelector(".sm-app[data-ready='1']", { timeout: 30_000 });
+    expect(await page.locator("#sm-glnote").getAttribute("data-kind")).toBe("missing");
+    expect(await page.locator("#sm-glnote").textContent()).toMatch(/WebGL is not available/);
+    expect(await page.locator("#sm-maxwell td").count()).toBe(9);
+    expect(await page.locator("#sm-hotspots button").count()).toBeGreaterThan(0);
+    await page.screenshot({ path: join(ARTIFACTS, "browser-no-webgl.png") });
+    await page.close();
+  });
+});
+
+// ---- sigmesh view ----
+
+function get(port: number, path: string, method = "GET", host = "127.0.0.1"): Promise<{ status: number; body: string; type: string }> {
+  return new Promise((resolve, reject) => {
+    const req = request({ host, port, path, method }, (res) => {
+      let body = "";
+      res.setEncoding("utf8");
+      res.on("data", (c) => { body += c; });
+      res.on("end", () => resolve({ status: res.statusCode ?? 0, body, type: String(res.headers["content-type"] ?? "") }));
+    });
+    req.on("error", reject);
+    req.end();
+  });
+}
+
+function startView(args: string[]): Promise<{ child: ChildProcess; url: string }> {
+  return new Promise((resolve, reject) => {
+    const child = spawn(process.execPath, [cli, "view", ...args], { stdio: ["ignore", "pipe", "pipe"] });
+    let out = "", err = "";
+    child.stdout!.on("data", (c) => {
+      out += c;
+      const m = /(http:\/\/127\.0\.0\.1:\d+\/)/.exec(out);
+      if (m) resolve({ child, url: m[1] });
+    });
+    child.stderr!.on("data", (c) => { err += c; });
+    child.on("exit", (code) => reject(new Error(`sigmesh view exited ${code}: ${err}`)));
+  });
+}
+
+function stop(child: ChildProcess): Promise<number | null> {
+  return new Promise((resolve) => { child.once("exit", (code) => resolve(code)); child.kill("SIGINT"); });
+}
+
+describe("sigmesh view", () => {
+  it("serves the page and the report on 127.0.0.1 only, and nothing else", async () => {
+    expect(existsSync(cli), "dist/cli/main.js missing: run `npm run build` first").toBe(true);
+    const { child, url } = await startView([htmlPath]);
+    try {
+      const port = Number(new URL(url).port);
+      const page = await get(port, "/");
+      expect(page.status).toBe(200);
+      expect(page.type).toMatch(/^text\/html/);
+      expect(page.body).toContain('id="sigmesh-data"');
+      const json = await get(port, "/report.json");
+      expect(json.status).toBe(200);
+      expect(JSON.parse(json.body).fieldCheck.peakField).toBe(report.fieldCheck.peakField);
+      for (const p of ["/../etc/passwd", "/..%2f..%2fetc%2fpasswd", "/%2e%2e/etc/passwd", "//etc/passwd", "/dist/", "/viewer.js", "/report.html", "/favicon.ico", "/index.html/.."]) {
+        const r = await get(port, p);
+        expect(r.status, p).toBe(404);
+        expect(r.body).not.toContain("root:");
+      }
+      expect((await get(port, "/", "POST")).status).toBe(405);
+      // Bound to the loopback address: another interface of this machine refuses.
+      const other = Object.values(networkInterfaces()).flat().find((a) => a && a.family === "IPv4" && !a.internal);
+      if (other) await expect(get(port, "/", "GET", other.address)).rejects.toThrow();
+    } finally {
+      expect(await stop(child)).toBe(0);
+    }
+  });
+
+  it("serves a JSON report carrying panel data, and the page works in the browser", async () => {
+    const jsonPath = join(ARTIFACTS, "report-panels.json");
+    writeFileSync(jsonPath, JSON.stringify({ ...report, viewer: viewerDataJson(result) }));
+    const { child, url } = await startView([jsonPath, "--port", "0"]);
+    try {
+      expect((await get(Number(new URL(url).port), "/report.json")).body).not.toContain('"viewer"');
+      if (browser) {
+        const requests: string[] = [], dialogs: string[] = [];
+        const page = await openReport(url, requests, dialogs);
+        expect(Number(await page.locator("#sm-colourbar").getAttribute("data-max"))).toBe(report.fieldCheck.peakField);
+        expect(requests.filter((r) => r !== url && !r.startsWith("data:") && !r.startsWith("blob:"))).toEqual([]);
+        await page.close();
+      }
+    } finally {
+      await stop(child);
+    }
+  });
+
+  it("refuses a report without panel data with one line and exit 2", async () => {
+    const bare = join(ARTIFACTS, "report-bare.json");
+    writeFileSync(bare, JSON.stringify(report));
+    const r = await new Promise<{ code: number | null; err: string }>((resolve) => {
+      const child = spawn(process.execPath, [cli, "view", bare], { stdio: ["ignore", "pipe", "pipe"] });
+      let err = "";
+      child.stderr!.on("data", (c) => { err += c; });
+      child.on("exit", (code) => resolve({ code, err }));
+    });
+    expect(r.code).toBe(2);
+    expect(r.err.trim().split("\n")).toHaveLength(1);
+    expect(r.err).toMatch(/report-bare\.json: .*--json-panels/);
+  });
+});
