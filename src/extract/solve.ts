@@ -6,7 +6,7 @@
  * (entries in 1/m), P·x = v gives physical panel charges Q = 4π ε0 εr x.
  */
 import { panelSetShared, type PanelSet } from "../bem/panels.js";
-import { assembleDense, type Discretisation } from "../bem/assembly.js";
+import { assembleDense, preparedImages, type Discretisation } from "../bem/assembly.js";
 import type { KernelSpec } from "../bem/images.js";
 import { choleskyFactor, choleskySolve, NotPositiveDefiniteError } from "../linalg/cholesky.js";
 import { luFactor, luSolve } from "../linalg/lu.js";
@@ -16,9 +16,12 @@ import { blockJacobi } from "../linalg/block-jacobi.js";
 import { clusterPoints, leafIndexSets } from "../linalg/cluster.js";
 import { denseMultiply } from "../linalg/dense.js";
 import { sharedFloat64, type WorkerPool } from "../linalg/pool.js";
-import { assertDenseFits } from "./memory.js";
+import { buildHMatrix, type HMatrix } from "../linalg/hmatrix.js";
+import { blockJacobiFromBlocks } from "../linalg/cluster-jacobi.js";
+import type { ClusterTree } from "../linalg/cluster.js";
+import { assertDenseFits, assertCompressedFits, compressedBytes, peakResidentBytes } from "./memory.js";
 
-export type SolverChoice = "auto" | "direct" | "iterative";
+export type SolverChoice = "auto" | "direct" | "iterative" | "compressed";
 
 export interface SolveOptions {
   method: Discretisation;
@@ -29,13 +32,18 @@ export interface SolveOptions {
   progress?: (phase: string, fraction: number) => void;
   /** Bytes available for the dense matrix (default: most of the free memory). */
   memoryLimit?: number;
+  /** Compressed solver: largest cluster of the block-Jacobi preconditioner (default PRECONDITIONER_CLUSTER). */
+  preconditionerCluster?: number;
+  /** Compressed solver: admissibility η (default 2) and leaf size (default 32). */
+  eta?: number;
+  leafSize?: number;
   /** Mirror images (ground plane, symmetry planes; bem/images.ts); free space when absent. */
   kernel?: KernelSpec;
 }
 
 export interface SolveInfo {
   method: Discretisation;
-  solver: "direct" | "iterative";
+  solver: "direct" | "iterative" | "compressed";
   /** Why `auto` chose what it chose. */
   choice: string;
   panels: number;
@@ -50,6 +58,24 @@ export interface SolveInfo {
   /** Largest final relative residual over the right-hand sides (iterative solver). */
   residual?: number;
   krylovTolerance?: number;
+  /** Compressed solver: relative accuracy asked of every admissible block. */
+  compressionTolerance?: number;
+  /** Stored numbers over n² (compressed solver; symmetric halves counted both ways). */
+  compressionRatio?: number;
+  /** Largest and mean rank of the low-rank blocks. */
+  maxRank?: number;
+  meanRank?: number;
+  /** Dense near-field and low-rank far-field block counts; admissible blocks stored dense. */
+  nearBlocks?: number;
+  farBlocks?: number;
+  farBlocksDense?: number;
+  /** Bytes held by the compressed operator, estimated before and measured after. */
+  operatorBytes?: number;
+  estimatedBytes?: number;
+  /** Largest cluster of the block-Jacobi preconditioner. */
+  preconditionerCluster?: number;
+  /** Peak resident memory of the process after the solve; bytes. */
+  peakResidentBytes?: number;
 }
 
 export interface UnitSolution {
@@ -72,6 +98,21 @@ function expectedIterations(n: number): number {
   return 12 + 3 * Math.log2(Math.max(2, n / 64));
 }
 
+/**
+ * Panels from which `auto` takes the compressed solver: measured by
+ * tests/bench/compressed.bench.mjs (spheres, one conductor, 2 workers), where the compressed
+ * extraction first beats the faster of the dense ones.
+ */
+export const COMPRESSED_CROSSOVER = 6000;
+
+/** Largest cluster of the compressed solver's block-Jacobi preconditioner (measured: compressed bench). */
+export const PRECONDITIONER_CLUSTER = 256;
+
+/** Block accuracy of the compression for a requested accuracy of C (measured: compressed bench). */
+export function compressionTolerance(tolerance: number): number {
+  return Math.min(1e-3, Math.max(1e-10, 0.1 * tolerance));
+}
+
 export function chooseSolver(n: number, k: number): { solver: "direct" | "iterative"; reason: string } {
   const direct = (n * n * n) / 3 / FACTOR_RATE + (2 * n * n * k) / FACTOR_RATE;
   // One pass over the matrix serves all k columns; the arithmetic then grows with k.
@@ -92,16 +133,23 @@ export async function solveUnitPotentials(
   positions: Float64Array, triangles: Uint32Array, conductorOf: Uint32Array, k: number, opts: SolveOptions,
 ): Promise<UnitSolution> {
   const n = conductorOf.length;
+  let solver: "direct" | "iterative" | "compressed";
+  let choice: string;
+  if (opts.solver === "auto") {
+    if (n >= COMPRESSED_CROSSOVER) {
+      solver = "compressed";
+      choice = `auto: ${n} panels ≥ ${COMPRESSED_CROSSOVER}, where the compressed solver overtakes the dense ones (tests/bench/compressed.bench.mjs)`;
+    } else {
+      const c = chooseSolver(n, k);
+      solver = c.solver; choice = `auto: ${c.reason}`;
+    }
+  } else if (opts.solver === "direct" || opts.solver === "iterative" || opts.solver === "compressed") {
+    solver = opts.solver; choice = "requested";
+  } else throw new RangeError(`unknown solver ${String(opts.solver)}`);
+  if (solver === "compressed") return solveCompressed(positions, triangles, conductorOf, k, opts, choice);
   assertDenseFits(n, k, opts.memoryLimit);
   const progress = opts.progress ?? (() => {});
   const panels = panelSetShared(positions, triangles);
-
-  let solver: "direct" | "iterative";
-  let choice: string;
-  if (opts.solver === "auto") {
-    const c = chooseSolver(n, k);
-    solver = c.solver; choice = `auto: ${c.reason}`;
-  } else { solver = opts.solver; choice = "requested"; }
 
   progress("assembly", 0);
   const t0 = performance.now();
@@ -162,3 +210,84 @@ export async function solveUnitPotentials(
   progress("solve", 1);
   return { x, panels, info };
 }
+
+/**
+ * The compressed path: the operator as a hierarchical matrix whose entries come from
+ * src/bem/assembly.ts assembleBlock (run in the workers; with the image kernel when one is
+ * given: a reflection never brings two clusters on the same side closer, so the
+ * admissibility of the direct term covers the image terms), solved by PCG (Galerkin, SPD) or
+ * GMRES (collocation) with block-Jacobi over clusters of up to `preconditionerCluster`
+ * panels, the diagonal blocks taken from the hierarchical matrix itself.
+ */
+async function solveCompressed(positions: Float64Array, triangles: Uint32Array, conductorOf: Uint32Array, k: number,
+  opts: SolveOptions, choice: string): Promise<UnitSolution> {
+  const n = conductorOf.length;
+  const leafSize = opts.leafSize ?? 32, eta = opts.eta ?? 2;
+  const estimate = compressedBytes(n, k, leafSize);
+  assertCompressedFits(n, k, leafSize, opts.memoryLimit);
+  const progress = opts.progress ?? (() => {});
+  const panels = panelSetShared(positions, triangles);
+  const hTol = compressionTolerance(opts.tolerance);
+  const url = new URL(import.meta.url.endsWith(".ts") ? "../bem/assembly.ts" : "../bem/assembly.js", import.meta.url).href;
+
+  progress("compression", 0);
+  const t0 = performance.now();
+  const H = await buildHMatrix(panels.centroids, { source: { module: url, name: "assembleBlock", before: [panels], after: [opts.method, preparedImages(panels, opts.kernel, true)] } }, {
+    tolerance: hTol, leafSize, eta, symmetric: opts.method === "galerkin", pad: panels.radii, pool: opts.pool,
+    progress: (_phase, f) => progress("compression", f),
+  });
+  const t1 = performance.now();
+  progress("compression", 1);
+
+  const B = sharedFloat64(n * k);
+  for (let p = 0; p < n; p++) B[p * k + conductorOf[p]] = 1;
+  const st = H.stats;
+  const info: SolveInfo = {
+    method: opts.method, solver: "compressed", choice, panels: n, rightHandSides: k,
+    assemblySeconds: (t1 - t0) / 1e3, solveSeconds: 0, entriesPerSecond: st.storedEntries / Math.max(1e-9, (t1 - t0) / 1e3),
+    compressionTolerance: hTol, compressionRatio: st.compressionRatio, maxRank: st.maxRank, meanRank: st.meanRank,
+    nearBlocks: st.nearBlocks, farBlocks: st.farBlocks, farBlocksDense: st.farDense, operatorBytes: st.bytes, estimatedBytes: estimate,
+  };
+  progress("solve", 0);
+  const t2 = performance.now();
+  try {
+    const cluster = opts.preconditionerCluster ?? PRECONDITIONER_CLUSTER;
+    const nodes = clusterCover(H.tree, Math.max(leafSize, cluster));
+    const sets = nodes.map((v) => H.tree.order.slice(H.tree.start[v], H.tree.end[v]));
+    const precondition = blockJacobiFromBlocks(H.diagonalBlocks(nodes), sets, n, { lu: opts.method !== "galerkin" });
+    info.preconditionerCluster = cluster;
+    const tol = krylovTolerance(opts.tolerance);
+    const apply = (X: Float64Array, Y: Float64Array, kk: number) => H.apply(X, Y, kk);
+    const maxIter = Math.max(300, Math.ceil(4 * Math.sqrt(n)));
+    const res = opts.method === "galerkin"
+      ? await pcg(apply, precondition, B, k, { tol, maxIter, monitor: (it) => progress("solve", Math.min(0.99, it / 60)) })
+      : await gmres(apply, precondition, B, k, { tol, maxIter, monitor: (it) => progress("solve", Math.min(0.99, it / 60)) });
+    if (!res.converged) {
+      throw new Error(`the compressed solver did not converge in ${res.iterations} iterations (residual ${Math.max(...res.residuals).toExponential(2)}); try a tighter --tol or --solver direct on a coarser mesh`);
+    }
+    info.iterations = res.iterations;
+    info.residual = Math.max(...res.residuals);
+    info.krylovTolerance = tol;
+    info.solveSeconds = (performance.now() - t2) / 1e3;
+    info.peakResidentBytes = peakResidentBytes();
+    progress("solve", 1);
+    return { x: res.X, panels, info };
+  } finally {
+    await H.release();
+  }
+}
+
+/** Disjoint tree nodes covering every point, each the largest node on its path of at most `size` points. */
+export function clusterCover(tree: ClusterTree, size: number): number[] {
+  const out: number[] = [];
+  if (tree.start.length === 0) return out;
+  const stack = [0];
+  while (stack.length > 0) {
+    const v = stack.pop()!;
+    if (tree.end[v] - tree.start[v] <= size || tree.left[v] < 0) { if (tree.end[v] > tree.start[v]) out.push(v); continue; }
+    stack.push(tree.right[v], tree.left[v]);
+  }
+  return out;
+}
+
+export type { HMatrix };

@@ -59,23 +59,24 @@ export function buildChunk(gen: EntryGenerator, order: Uint32Array, jobs: Float6
     const m = re - rs, n = ce - cs;
     const rows = order.subarray(rs, re), cols = order.subarray(cs, ce);
     offset[q] = used;
-    // Room for the dense block, which is also more than any low-rank block that pays.
-    need(m * n);
     if (kind === JOB_FAR) {
-      // Low rank pays while r·(m + n) < m·n.
-      const maxRank = Math.max(1, Math.floor((m * n) / (m + n)) - 1);
-      if (u.length < maxRank * m) u = new Float64Array(maxRank * m * 2);
-      if (v.length < maxRank * n) v = new Float64Array(maxRank * n * 2);
+      // ACA may run past the rank where low rank stops paying (r·(m + n) ≥ m·n): its
+      // tolerance is finer than the block's, and recompression takes most of that back.
+      const acaRank = Math.min(m, n);
+      if (u.length < acaRank * m) u = new Float64Array(acaRank * m);
+      if (v.length < acaRank * n) v = new Float64Array(acaRank * n);
+      need(acaRank * (m + n));
       const r = compressBlock(m, n,
         (i, out) => { one[0] = order[rs + i]; gen(one, cols, out); },
         (j, out) => { one[0] = order[cs + j]; gen(rows, one, out); },
-        tol, maxRank, u, v, store, used);
-      if (r >= 0) {
+        tol, acaRank, u, v, store, used);
+      if (r >= 0 && r * (m + n) < m * n) {
         rank[q] = r;
         used += r * (m + n);
         continue;
       }
     }
+    need(m * n);
     gen(rows, cols, store.subarray(used, used + m * n));
     rank[q] = -1;
     used += m * n;
