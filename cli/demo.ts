@@ -12,8 +12,8 @@ import { runExtract } from "./extract.js";
 const DEMO_DIR = fileURLToPath(new URL("../../meshes/demo/", import.meta.url));
 
 export const DEMO_SCENES = [
-  { scene: "keypad.json", what: "three-key touch pad, fingertip over the middle key, ground pour under the board" },
-  { scene: "hv-electrode.json", what: "30 kV ball electrode over a grounded plate" },
+  { scene: "keypad.json", what: "three-key touch pad, fingertip over the middle key, ground pour under the board", probes: ["above-key2=line:0,0,0.1:0,0,2.9:30"] },
+  { scene: "hv-electrode.json", what: "30 kV ball electrode over a grounded plate", probes: ["gap=line:0,0,14.9:0,0,0.1:40"] },
 ];
 
 export function registerDemo(program: Command): void {
@@ -27,11 +27,14 @@ export function registerDemo(program: Command): void {
         const scene = join(DEMO_DIR, d.scene);
         if (!existsSync(scene)) throw new Error(`demo scene ${scene} is missing from the installation`);
         process.stdout.write(`\n=== demo: ${d.what}\n`);
-        const json = join(opts.out, d.scene.replace(/\.json$/, ".report.json"));
+        const stem = join(opts.out, d.scene.replace(/\.json$/, ""));
         await runExtract([scene], {
-          potential: [], method: "galerkin", solver: "auto", refine: opts.refine, tol: "1e-4", json,
+          potential: [], method: "galerkin", solver: "auto", refine: opts.refine, tol: "1e-4",
+          json: `${stem}.report.json`, spice: `${stem}.cir`, markdown: `${stem}.md`, csv: `${stem}.csv`,
+          probe: d.probes, probeCsv: `${stem}.probes.csv`,
+          convergenceSvg: Number(opts.refine) > 0 ? `${stem}.convergence.svg` : undefined,
         });
-        process.stdout.write(`report: ${json}\n`);
+        process.stdout.write(`written: ${stem}.report.json, .cir (SPICE), .md, .csv, .probes.csv and plots\n`);
       }
     }));
 }

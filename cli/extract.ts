@@ -16,6 +16,9 @@ import { extractionSummary } from "../src/report/extract-summary.js";
 import { closeSharedPool } from "../src/linalg/pool.js";
 import { action, printWarnings, writeOutput, collect } from "./common.js";
 import { progressBar } from "./progress.js";
+import { extractionOutputs } from "../src/report/outputs.js";
+import { parseProbeOption } from "../src/extract/probe-spec.js";
+import { writeFilesAtomic } from "../src/io/atomic.js";
 
 export interface ExtractCliOptions {
   unit?: string;
@@ -30,6 +33,13 @@ export interface ExtractCliOptions {
   split?: boolean;
   merge?: boolean;
   quiet?: boolean;
+  spice?: string;
+  spiceThreshold?: string;
+  csv?: string;
+  markdown?: string;
+  probe?: string[];
+  probeCsv?: string;
+  convergenceSvg?: string;
 }
 
 function version(): string {
@@ -75,6 +85,13 @@ export function registerExtract(program: Command): void {
     .option("--split", "mesh files: each connected component is a conductor")
     .option("--merge", "mesh files: all groups of a file are one conductor")
     .option("--json <path>", "write the JSON report to a file, or - for standard output")
+    .option("--spice <file>", "write a SPICE subcircuit of the two-terminal capacitances")
+    .option("--spice-threshold <relative>", "drop capacitors below this fraction of the largest (default 1e-4)")
+    .option("--csv <file>", "write the matrices and conductor results as CSV")
+    .option("--markdown <file>", "write Markdown tables for a design review")
+    .option("--probe <spec>", "potential and field at points: point:x,y,z | line:x0,y0,z0:x1,y1,z1:n | grid:ox,oy,oz:ux,uy,uz:vx,vy,vz:nu,nv (user unit; NAME= prefix optional; repeatable)", collect, [])
+    .option("--probe-csv <file>", "where the probe results go (default probes.csv); line probes also get an SVG field plot beside it")
+    .option("--convergence-svg <file>", "with --refine: plot the first conductor's capacitance against panel count")
     .option("--quiet", "print only errors and warnings")
     .action(action((inputs: string[], opts: ExtractCliOptions) => runExtract(inputs, opts)));
 }
@@ -90,6 +107,9 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
   const permittivity = opts.permittivity === undefined ? undefined : number(opts.permittivity, "--permittivity", (x) => x >= 1, "a relative permittivity of at least 1");
   const breakdown = opts.breakdownField === undefined ? undefined : number(opts.breakdownField, "--breakdown-field", (x) => x > 0, "a positive field in V/m, e.g. 3e6");
   if (opts.split && opts.merge) throw new InputError("--split and --merge cannot be used together");
+  const probes = (opts.probe ?? []).map((text, i) => parseProbeOption(text, "--probe", i + 1));
+  const spiceThreshold = opts.spiceThreshold === undefined ? undefined : number(opts.spiceThreshold, "--spice-threshold", (x) => x >= 0 && x < 1, "a fraction between 0 and 1");
+  if (opts.convergenceSvg && refine === 0) throw new InputError("--convergence-svg needs --refine 1 or more");
 
   const scene = loadScene(inputs, {
     unit: opts.unit === undefined ? undefined : parseUnit(opts.unit, "--unit"),
@@ -119,7 +139,13 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
     version: version(), files: scene.files, scene: scene.scene, unit: scene.unit,
     inputWarnings: [...scene.warnings.map((w) => (w.file ? `${w.file}: ` : "") + w.message), ...inputWarnings],
   });
-  if (opts.json !== undefined) writeOutput(opts.json, toJson(report));
+  const files = extractionOutputs(result, report, scene.unit, {
+    spice: opts.spice, spiceThreshold, csv: opts.csv, markdown: opts.markdown,
+    probes, probeCsv: probes.length > 0 ? (opts.probeCsv ?? "probes.csv") : undefined, convergenceSvg: opts.convergenceSvg,
+  }, scene.scene ?? scene.files.join(", "));
+  if (opts.json !== undefined && opts.json !== "-") files.push({ path: opts.json, data: toJson(report) + "\n" });
+  writeFilesAtomic(files);
+  if (opts.json === "-") writeOutput("-", toJson(report));
   if (!opts.quiet) {
     const text = extractionSummary(result, { unit: scene.unit, unitAssumed: scene.unitAssumed, source: scene.scene ?? scene.files.join(", ") });
     (opts.json === "-" ? process.stderr : process.stdout).write(text);

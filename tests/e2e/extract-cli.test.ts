@@ -2,13 +2,15 @@
 // the JSON report's fields and units, and bad input refused with one line, exit 2, no report.
 import { describe, it, expect, beforeAll, afterAll } from "vitest";
 import { spawnSync } from "node:child_process";
-import { mkdtempSync, rmSync, existsSync, readdirSync, writeFileSync, readFileSync } from "node:fs";
+import { mkdtempSync, rmSync, existsSync, readdirSync, writeFileSync, readFileSync, mkdirSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { sphereMesh, plateMesh } from "../../src/mesh/primitives/index.js";
 import { writeMeshFile } from "../../src/io/write.js";
 import { EPSILON_0 } from "../../src/extract/constants.js";
+import { mutualFromSpice } from "../../src/report/spice.js";
+import { parseCsv } from "../../src/report/csv.js";
 
 const cli = fileURLToPath(new URL("../../dist/cli/main.js", import.meta.url));
 let dir = "";
@@ -81,12 +83,49 @@ describe("sigmesh extract", () => {
     expect(rep.conductors[0].peakField).toBeGreaterThan(0);
   });
 
+  it("writes SPICE, CSV, Markdown, probe CSV and plots that agree with the JSON report", () => {
+    const out = join(dir, "outs");
+    const r = run(["extract", join(dir, "anode.stl"), join(dir, "cathode.stl"), "--potential", "anode=10", "--json", join(out, "r.json"),
+      "--spice", join(out, "pair.cir"), "--csv", join(out, "pair.csv"), "--markdown", join(out, "pair.md"),
+      "--probe", "gap=line:-2.5,0,0:2.5,0,0:11", "--probe-csv", join(out, "probes.csv"), "--quiet"]);
+    expect(r.code).toBe(0);
+    const rep = JSON.parse(readFileSync(join(out, "r.json"), "utf8"));
+    const names = rep.conductors.map((c: { name: string }) => c.name);
+    const rebuilt = mutualFromSpice(readFileSync(join(out, "pair.cir"), "utf8"), names);
+    for (let i = 0; i < 2; i++) for (let j = 0; j < 2; j++) {
+      expect(Math.abs(rebuilt[2 * i + j] - rep.capacitance.mutual[i][j]) / rep.capacitance.mutual[0][0]).toBeLessThan(1e-5);
+    }
+    const csv = parseCsv(readFileSync(join(out, "pair.csv"), "utf8"));
+    expect(csv.some((row) => row.includes("anode"))).toBe(true);
+    expect(readFileSync(join(out, "pair.md"), "utf8")).toMatch(/\| anode \|/);
+    const probes = parseCsv(readFileSync(join(out, "probes.csv"), "utf8"));
+    expect(probes[0]).toContain("potential (V)");
+    expect(probes).toHaveLength(12);
+    // On the anode's surface the potential is its own 10 V (Dirichlet condition), within the mesh error.
+    const vcol = probes[0].indexOf("potential (V)");
+    expect(Number(probes[1][vcol])).toBeGreaterThan(9.8);
+    expect(Number(probes[1][vcol])).toBeLessThan(10.2);
+    expect(readFileSync(join(out, "probes-gap.svg"), "utf8")).toMatch(/^<svg|<\?xml/);
+  });
+
+  it("writes all outputs or none: a failing output leaves no other file behind", () => {
+    const out = join(dir, "allornone");
+    // An existing directory where the SPICE file should go makes that rename fail.
+    mkdirSync(join(out, "pair.cir"), { recursive: true });
+    const r = run(["extract", join(dir, "anode.stl"), "--json", join(out, "r.json"), "--spice", join(out, "pair.cir"), "--quiet"]);
+    expect(r.code).not.toBe(0);
+    expect(r.err.trim().split("\n")).toHaveLength(1);
+    expect(existsSync(join(out, "r.json"))).toBe(false);
+    expect(readdirSync(out).filter((f) => f.endsWith(".tmp"))).toEqual([]);
+  });
+
   const bad: Array<[string, string[], RegExp]> = [
     ["a missing file", ["missing.stl"], /missing\.stl: no such file/],
     ["an unknown conductor in --potential", ["anode.stl", "--potential", "nosuch=1"], /--potential names "nosuch"/],
     ["a malformed --potential", ["anode.stl", "--potential", "anode"], /NAME=VOLTS/],
     ["an unknown method", ["anode.stl", "--method", "fem"], /--method "fem"/],
     ["a bad --refine", ["anode.stl", "--refine", "1.5"], /--refine "1\.5"/],
+    ["a bad --probe", ["anode.stl", "--probe", "line:0,0,0:1,1"], /--probe/],
     ["intersecting conductors", ["anode.stl", "overlap.stl"], /anode and overlap intersect/],
     ["a scene with a bad key", ["badscene.json"], /badscene\.json: conductors\[0\]\.potential: expected a number/],
     ["a scene that is not JSON", ["broken.json"], /broken\.json: line 2, column \d+: not valid JSON/],

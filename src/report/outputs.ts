@@ -1,0 +1,78 @@
+/**
+ * The files an extraction writes besides the terminal summary, built in memory first so that
+ * the CLI can write them all or none (src/io/atomic.ts `writeFilesAtomic`).
+ */
+import { basename, dirname, extname, join } from "node:path";
+import type { ExtractionResult } from "../extract/extract.js";
+import { probeExtraction, type ProbeResult } from "../extract/probe.js";
+import { probePoints, probeCsv, distanceAlong, fieldMagnitude, type ProbeSpec } from "../extract/probe-spec.js";
+import { metresPer, type LengthUnit } from "../io/units.js";
+import { spiceSubcircuit } from "./spice.js";
+import { csvReport, markdownReport, reportData } from "./csv.js";
+import { fieldAlongLineSvg, convergencePlotSvg } from "./svg-plot.js";
+import { unitLabel } from "./si.js";
+
+export interface OutputFile { path: string; data: string | Uint8Array }
+
+export interface OutputRequest {
+  spice?: string;
+  spiceThreshold?: number;
+  csv?: string;
+  markdown?: string;
+  /** CSV of all probes; a field plot per line probe is written beside it (`<stem>-<name>.svg`). */
+  probeCsv?: string;
+  probes?: ProbeSpec[];
+  /** Convergence plot of the first Maxwell diagonal entry (needs --refine). */
+  convergenceSvg?: string;
+}
+
+export interface ProbeRun { spec: ProbeSpec; points: Float64Array; result: ProbeResult }
+
+/** Evaluate probe requests on an extraction (points in the user's unit). */
+export function runProbes(result: ExtractionResult, specs: ProbeSpec[], unit: LengthUnit): ProbeRun[] {
+  return specs.map((spec) => {
+    const points = probePoints(spec, metresPer(unit));
+    return { spec, points, result: probeExtraction(result, points) };
+  });
+}
+
+function safeStem(name: string): string {
+  return name.replace(/[^A-Za-z0-9._-]+/g, "_").replace(/^_+|_+$/g, "") || "probe";
+}
+
+export function extractionOutputs(result: ExtractionResult, report: Record<string, unknown>, unit: LengthUnit, req: OutputRequest, title?: string): OutputFile[] {
+  const files: OutputFile[] = [];
+  if (req.spice) {
+    files.push({ path: req.spice, data: spiceSubcircuit(result.names, result.mutual, { reference: "infinity", relativeThreshold: req.spiceThreshold, title }) });
+  }
+  if (req.csv || req.markdown) {
+    const data = reportData(JSON.parse(JSON.stringify(report, (_k, v) => (typeof v === "number" && !Number.isFinite(v) ? null : v))));
+    if (req.csv) files.push({ path: req.csv, data: csvReport(data) });
+    if (req.markdown) files.push({ path: req.markdown, data: markdownReport(data, { title }) });
+  }
+  if (req.probes && req.probes.length > 0 && req.probeCsv) {
+    const runs = runProbes(result, req.probes, unit);
+    const parts = runs.map((r, i) => {
+      const text = probeCsv(r.spec, r.points, r.result, unit);
+      return i === 0 ? text : text.slice(text.indexOf("\n") + 1);
+    });
+    files.push({ path: req.probeCsv, data: parts.join("") });
+    const stem = join(dirname(req.probeCsv), basename(req.probeCsv, extname(req.probeCsv)));
+    for (const r of runs) {
+      if (r.spec.kind !== "line") continue;
+      const d = distanceAlong(r.points), s = metresPer(unit);
+      const dist = Float64Array.from(d, (x) => x / s);
+      files.push({
+        path: `${stem}-${safeStem(r.spec.name)}.svg`,
+        data: fieldAlongLineSvg(dist, fieldMagnitude(r.result), { lengthUnit: unitLabel(unit), breakdownField: result.breakdownField, title: `Field along ${r.spec.name}` }),
+      });
+    }
+  }
+  if (req.convergenceSvg && result.accuracy) {
+    files.push({
+      path: req.convergenceSvg,
+      data: convergencePlotSvg(result.accuracy.levels.map((l) => ({ panels: l.panels, value: l.maxwell[0] })), result.maxwell[0], `C(${result.names[0]})`, { unit: "F" }),
+    });
+  }
+  return files;
+}
