@@ -262,6 +262,8 @@ export function gemmNTSimd(
 ): void {
   if (!simdAvailable()) throw new Error("WebAssembly SIMD is not available in this runtime");
   if (m <= 0 || p <= 0 || kc <= 0) return;
+  // Any diag ≥ p means the whole block; clamped so it fits the module's i32 arguments.
+  if (diag > p) diag = p;
   // Columns past the last row's reach are never touched.
   let pEff = m - 1 + diag + 1;
   if (pEff > p) pEff = p;

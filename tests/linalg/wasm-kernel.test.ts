@@ -68,7 +68,7 @@ describe("WebAssembly SIMD kernel", () => {
     // m, p and kc beyond one packed block of each, with ragged ends.
     const m = 2 * PACKING.rows + 22, p = PACKING.columns + 77, kc = 2 * PACKING.depth + 5, lda = kc + 1, ldb = kc, ldc = p + 3;
     const A = randomBlock(m, lda, 11), B = randomBlock(p, ldb, 12), C = randomBlock(m, ldc, 13);
-    for (const [diag, alpha] of [[p, -1], [0, 1], [-70, -1], [PACKING.columns - 100, 1]]) {
+    for (const [diag, alpha] of [[p, -1], [0, 1], [-70, -1], [PACKING.columns - 100, 1], [Number.MAX_SAFE_INTEGER, 1]]) {
       const ref = definition(C, ldc, A, lda, B, ldb, m, p, kc, diag, alpha);
       const out = C.slice();
       gemmNT(out, 0, ldc, A, 0, lda, B, 0, ldb, m, p, kc, diag, alpha, "wasm");
