@@ -540,8 +540,12 @@ function start(root: HTMLElement, data: PageData): void {
     if (!controls) return;
     const target = new THREE.Vector3(h.at[0] - v.origin[0], h.at[1] - v.origin[1], h.at[2] - v.origin[2]);
     const n = panelNormal(h.panel);
-    // Close enough to see the panel, far enough to see what surrounds it.
-    const dist = 0.9 * radius;
+    // Close enough to see the panel, far enough to see what surrounds it, and in front of
+    // any surface between (a hot spot often faces a neighbour across a narrow gap).
+    let dist = 0.9 * radius;
+    raycaster.set(target.clone().addScaledVector(n, 1e-4 * radius), n);
+    const blocking = raycaster.intersectObjects(views.filter((cv) => cv.visible).map((cv) => cv.mesh), false);
+    if (blocking.length > 0) dist = Math.max(0.02 * radius, Math.min(dist, 0.7 * blocking[0].distance));
     const endPos = target.clone().addScaledVector(n, dist);
     const startPos = camera.position.clone(), startTarget = controls.target.clone();
     const t0 = performance.now(), id = ++flight;
