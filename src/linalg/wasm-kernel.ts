@@ -18,7 +18,7 @@
  * which JavaScript adds, times α, into C under the lower-triangle mask of gemmNTScalar. Each
  * entry of C is read and written once per 2·kc flops, as in any right-looking update; that
  * copy back is the main cost outside the micro-kernel (measured with the CPU profiler: about
- * a sixth of the time at kc = 96 with 1024-column rows, a third with 256-column rows).
+ * a quarter of the time at kc = 96 with 1024-column rows, over a third with 256-column rows).
  *
  * Every thread (the main one and each pool worker, each its own V8 isolate) builds its own
  * instance and private memory on first use, so no locking is needed.
