@@ -30,11 +30,11 @@ export function registerDemo(program: Command): void {
         const stem = join(opts.out, d.scene.replace(/\.json$/, ""));
         await runExtract([scene], {
           potential: [], method: "galerkin", solver: "auto", refine: opts.refine, tol: "1e-4",
-          json: `${stem}.report.json`, spice: `${stem}.cir`, markdown: `${stem}.md`, csv: `${stem}.csv`,
+          json: `${stem}.report.json`, html: `${stem}.html`, spice: `${stem}.cir`, markdown: `${stem}.md`, csv: `${stem}.csv`,
           probe: d.probes, probeCsv: `${stem}.probes.csv`,
           convergenceSvg: Number(opts.refine) > 0 ? `${stem}.convergence.svg` : undefined,
         });
-        process.stdout.write(`written: ${stem}.report.json, .cir (SPICE), .md, .csv, .probes.csv and plots\n`);
+        process.stdout.write(`written: ${stem}.html (open it in a browser), ${stem}.report.json, .cir (SPICE), .md, .csv, .probes.csv and plots\n`);
       }
     }));
 }

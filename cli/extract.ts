@@ -17,6 +17,7 @@ import { closeSharedPool } from "../src/linalg/pool.js";
 import { action, printWarnings, writeOutput, collect } from "./common.js";
 import { progressBar } from "./progress.js";
 import { extractionOutputs } from "../src/report/outputs.js";
+import { viewerDataJson } from "../src/report/viewer-data.js";
 import { parseProbeOption } from "../src/extract/probe-spec.js";
 import { writeFilesAtomic } from "../src/io/atomic.js";
 
@@ -40,6 +41,11 @@ export interface ExtractCliOptions {
   probe?: string[];
   probeCsv?: string;
   convergenceSvg?: string;
+  html?: string;
+  jsonPanels?: boolean;
+  groundPlane?: string;
+  symmetry?: string[];
+  floating?: string[];
 }
 
 function version(): string {
@@ -82,9 +88,14 @@ export function registerExtract(program: Command): void {
     .option("--tol <relative>", "requested relative accuracy of the capacitances (solver tolerance)", "1e-4")
     .option("--permittivity <er>", "relative permittivity of the medium (overrides the scene)")
     .option("--breakdown-field <V/m>", "breakdown strength of the medium for the field check (default 3e6, air)")
+    .option("--ground-plane <axis=pos>", "an infinite grounded plane, e.g. z=0 (user unit); it becomes the reference")
+    .option("--symmetry <axis=pos>", "a mirror symmetry plane of the model, e.g. x=0 (repeatable): mesh only one side", collect, [])
+    .option("--floating <name>", "leave this conductor floating: no net charge, potential solved for (repeatable)", collect, [])
     .option("--split", "mesh files: each connected component is a conductor")
     .option("--merge", "mesh files: all groups of a file are one conductor")
     .option("--json <path>", "write the JSON report to a file, or - for standard output")
+    .option("--json-panels", "include the panel geometry and charges in the JSON report (needed by sigmesh view)")
+    .option("--html <file>", "write a self-contained HTML report with the 3D view of the charge and field")
     .option("--spice <file>", "write a SPICE subcircuit of the two-terminal capacitances")
     .option("--spice-threshold <relative>", "drop capacitors below this fraction of the largest (default 1e-4)")
     .option("--csv <file>", "write the matrices and conductor results as CSV")
@@ -114,6 +125,8 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
   const scene = loadScene(inputs, {
     unit: opts.unit === undefined ? undefined : parseUnit(opts.unit, "--unit"),
     split: opts.split, merge: opts.merge, potentials: parsePotentials(opts.potential),
+    groundPlane: opts.groundPlane, symmetry: opts.symmetry && opts.symmetry.length ? opts.symmetry : undefined,
+    floating: opts.floating && opts.floating.length ? opts.floating : undefined,
   });
   printWarnings(scene.warnings, false);
   const check = checkMesh(scene.mesh);
@@ -129,6 +142,7 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
       permittivity: permittivity ?? scene.permittivity,
       method, solver, refine, tolerance, potentials: scene.potentials,
       breakdownField: breakdown ?? scene.breakdownField,
+      groundPlane: scene.groundPlane, symmetry: scene.symmetry, floating: scene.floating,
       progress: (phase, f, level, levels) => bar.update(phase, f, level, levels),
     });
   } finally {
@@ -139,8 +153,9 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
     version: version(), files: scene.files, scene: scene.scene, unit: scene.unit,
     inputWarnings: [...scene.warnings.map((w) => (w.file ? `${w.file}: ` : "") + w.message), ...inputWarnings],
   });
+  if (opts.jsonPanels) report.viewer = viewerDataJson(result);
   const files = extractionOutputs(result, report, scene.unit, {
-    spice: opts.spice, spiceThreshold, csv: opts.csv, markdown: opts.markdown,
+    html: opts.html, spice: opts.spice, spiceThreshold, csv: opts.csv, markdown: opts.markdown,
     probes, probeCsv: probes.length > 0 ? (opts.probeCsv ?? "probes.csv") : undefined, convergenceSvg: opts.convergenceSvg,
   }, scene.scene ?? scene.files.join(", "));
   if (opts.json !== undefined && opts.json !== "-") files.push({ path: opts.json, data: toJson(report) + "\n" });

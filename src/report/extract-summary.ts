@@ -4,7 +4,7 @@
  */
 import type { ExtractionResult } from "../extract/extract.js";
 import type { LengthUnit } from "../io/units.js";
-import { formatSI, formatNumber, formatArea, formatPoint, formatFieldStrength, unitLabel } from "./si.js";
+import { formatSI, formatNumber, formatArea, formatPoint, formatFieldStrength, formatLength, unitLabel } from "./si.js";
 import { cautionsFor } from "./cautions.js";
 
 /** Lay out rows as columns; `right` marks right-aligned columns. */
@@ -29,13 +29,19 @@ export function extractionSummary(r: ExtractionResult, ctx: SummaryContext): str
   const unitNote = ctx.unitAssumed ? `${unitLabel(ctx.unit)} (assumed; set with --unit)` : unitLabel(ctx.unit);
   out.push(`sigmesh extract: ${ctx.source}`);
   out.push(`  ${k} conductor${k === 1 ? "" : "s"}, ${r.solver.panels} panels, length unit ${unitNote}, εr = ${formatNumber(r.relativePermittivity)}`);
+  const ref = r.reference === "ground plane" && r.groundPlane
+    ? `grounded plane ${r.groundPlane.axis} = ${formatLength(r.groundPlane.offset, ctx.unit)} (the reference of the two-terminal values)`
+    : "infinity (no ground plane)";
+  out.push(`  reference: ${ref}`);
+  if (r.symmetryCopies > 1) out.push(`  symmetry: ${r.symmetry.map((p) => `${p.axis} = ${formatLength(p.offset, ctx.unit)}`).join(", ")}; results are for the full model (${r.symmetryCopies} copies of the meshed part)`);
+  for (let i = 0; i < r.floatingNames.length; i++) out.push(`  floating: ${r.floatingNames[i]} settles at ${formatSI(r.floatingPotentials[i], "V")}`);
   out.push("");
 
   out.push("Conductors");
   const rows = [["name", "triangles", "area", "closed", "potential", "charge", "peak |E|", "at", "E/Eb"]];
   for (const c of r.conductors) {
     rows.push([c.name, String(c.triangles), formatArea(c.area, ctx.unit), c.closed ? "yes" : "sheet", formatSI(c.potential, "V"),
-      formatSI(c.charge, "C"), formatFieldStrength(c.peakField), formatPoint(c.peakFieldAt, ctx.unit, 3), formatNumber(c.fieldRatio, 3)]);
+      c.floating ? "0 (floating)" : formatSI(c.charge, "C"), formatFieldStrength(c.peakField), formatPoint(c.peakFieldAt, ctx.unit, 3), formatNumber(c.fieldRatio, 3)]);
   }
   out.push(...table(rows, [false, true, true, false, true, true, true, false, true]).map((l) => "  " + l));
   out.push("");
@@ -47,10 +53,19 @@ export function extractionSummary(r: ExtractionResult, ctx: SummaryContext): str
   out.push("");
   out.push("Two-terminal capacitances (circuit values)");
   const crows: string[][] = [];
-  for (let i = 0; i < k; i++) crows.push([`${r.names[i]} – reference (infinity)`, formatSI(r.mutual[i * k + i], "F")]);
+  const refName = r.reference === "ground plane" ? "ground plane" : "reference (infinity)";
+  for (let i = 0; i < k; i++) crows.push([`${r.names[i]} – ${refName}`, formatSI(r.mutual[i * k + i], "F")]);
   for (let i = 0; i < k; i++) for (let j = i + 1; j < k; j++) crows.push([`${r.names[i]} – ${r.names[j]}`, formatSI(r.mutual[i * k + j], "F")]);
   out.push(...table(crows, [false, true]).map((l) => "  " + l));
   out.push("");
+  if (r.floatingNames.length > 0) {
+    const m = r.reducedNames.length;
+    out.push(`Maxwell matrix with the floating conductors (${r.floatingNames.join(", ")}) eliminated`);
+    const rrows = [["", ...r.reducedNames]];
+    for (let i = 0; i < m; i++) rrows.push([r.reducedNames[i], ...Array.from({ length: m }, (_, j) => formatSI(r.reducedMaxwell[i * m + j], "F"))]);
+    out.push(...table(rrows, [false, ...r.reducedNames.map(() => true)]).map((l) => "  " + l));
+    out.push("");
+  }
   out.push(`Stored energy at the working potentials: ${formatSI(r.energy, "J")}`);
   for (const c of r.conductors) {
     const f = Math.hypot(...c.force);

@@ -42,14 +42,25 @@ export function extractionReport(r: ExtractionResult, ctx: ReportContext): Recor
       peakFieldAt: c.peakFieldAt.map(finiteOrNull),
       fieldRatio: finiteOrNull(c.fieldRatio),
       force: c.force,
+      floating: c.floating,
     })),
     capacitance: {
       maxwell: toRows(r.maxwell, k),
       mutual: toRows(r.mutual, k),
-      reference: "infinity",
+      reference: r.reference,
       asymmetry: r.asymmetry,
       extrapolated: r.accuracy !== undefined,
+      reduced: r.floatingNames.length > 0
+        ? { names: r.reducedNames, maxwell: toRows(r.reducedMaxwell, r.reducedNames.length), mutual: toRows(r.reducedMutual, r.reducedNames.length) }
+        : null,
     },
+    model: {
+      groundPlane: r.groundPlane ?? null,
+      symmetry: r.symmetry,
+      symmetryCopies: r.symmetryCopies,
+      removedInSymmetryPlane: r.removedInSymmetryPlane,
+    },
+    floating: r.floatingNames.map((name, i) => ({ name, potential: r.floatingPotentials[i] })),
     energy: r.energy,
     accuracy: r.accuracy
       ? {

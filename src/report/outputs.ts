@@ -11,10 +11,14 @@ import { spiceSubcircuit } from "./spice.js";
 import { csvReport, markdownReport, reportData } from "./csv.js";
 import { fieldAlongLineSvg, convergencePlotSvg } from "./svg-plot.js";
 import { unitLabel } from "./si.js";
+import { htmlReport } from "./html.js";
+import { viewerData } from "./viewer-data.js";
 
 export interface OutputFile { path: string; data: string | Uint8Array }
 
 export interface OutputRequest {
+  /** Self-contained HTML report with the 3D viewer. */
+  html?: string;
   spice?: string;
   spiceThreshold?: number;
   csv?: string;
@@ -42,8 +46,10 @@ function safeStem(name: string): string {
 
 export function extractionOutputs(result: ExtractionResult, report: Record<string, unknown>, unit: LengthUnit, req: OutputRequest, title?: string): OutputFile[] {
   const files: OutputFile[] = [];
+  if (req.html) files.push({ path: req.html, data: htmlReport(report, viewerData(result)) });
   if (req.spice) {
-    files.push({ path: req.spice, data: spiceSubcircuit(result.names, result.mutual, { reference: "infinity", relativeThreshold: req.spiceThreshold, title }) });
+    // With floating conductors the circuit sees only the driven ones: the reduced matrix.
+    files.push({ path: req.spice, data: spiceSubcircuit(result.reducedNames, result.reducedMutual, { reference: result.reference, relativeThreshold: req.spiceThreshold, title }) });
   }
   if (req.csv || req.markdown) {
     const data = reportData(JSON.parse(JSON.stringify(report, (_k, v) => (typeof v === "number" && !Number.isFinite(v) ? null : v))));

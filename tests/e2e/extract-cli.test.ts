@@ -11,6 +11,7 @@ import { writeMeshFile } from "../../src/io/write.js";
 import { EPSILON_0 } from "../../src/extract/constants.js";
 import { mutualFromSpice } from "../../src/report/spice.js";
 import { parseCsv } from "../../src/report/csv.js";
+import { embeddedResults } from "../../src/report/html.js";
 
 const cli = fileURLToPath(new URL("../../dist/cli/main.js", import.meta.url));
 let dir = "";
@@ -106,6 +107,18 @@ describe("sigmesh extract", () => {
     expect(Number(probes[1][vcol])).toBeGreaterThan(9.8);
     expect(Number(probes[1][vcol])).toBeLessThan(10.2);
     expect(readFileSync(join(out, "probes-gap.svg"), "utf8")).toMatch(/^<svg|<\?xml/);
+  });
+
+  it("--html writes one self-contained page whose embedded results are the JSON report's", () => {
+    const out = join(dir, "html");
+    const r = run(["extract", join(dir, "anode.stl"), join(dir, "cathode.stl"), "--html", join(out, "r.html"), "--json", join(out, "r.json"), "--json-panels", "--quiet"]);
+    expect(r.code).toBe(0);
+    const html = readFileSync(join(out, "r.html"), "utf8");
+    expect(html).not.toMatch(/<script[^>]+src=/); // nothing loaded from elsewhere
+    const emb = embeddedResults(html)!;
+    const rep = JSON.parse(readFileSync(join(out, "r.json"), "utf8"));
+    expect((emb.report as { capacitance: { maxwell: number[][] } }).capacitance.maxwell).toEqual(rep.capacitance.maxwell);
+    expect(rep.viewer.format).toBe("sigmesh-viewer/1");
   });
 
   it("writes all outputs or none: a failing output leaves no other file behind", () => {
