@@ -83,7 +83,7 @@ export function registerExtract(program: Command): void {
     .option("--unit <unit>", "length unit of the mesh files: m, cm, mm, um, in, mil (default: the scene's, else mm)")
     .option("--potential <name=volts>", "working potential of a conductor (repeatable)", collect, [])
     .option("--method <method>", "discretisation: galerkin or collocation", "galerkin")
-    .option("--solver <solver>", "auto, direct or iterative", "auto")
+    .option("--solver <solver>", "auto, direct (dense factorisation), iterative (dense Krylov) or compressed (hierarchical low-rank + Krylov, for large models)", "auto")
     .option("--refine <K>", "also solve on K uniform refinements and extrapolate, with an error estimate", "0")
     .option("--tol <relative>", "requested relative accuracy of the capacitances (solver tolerance)", "1e-4")
     .option("--permittivity <er>", "relative permittivity of the medium (overrides the scene)")
@@ -112,7 +112,7 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
   const method = opts.method;
   if (method !== "galerkin" && method !== "collocation") throw new InputError(`--method "${method}": use galerkin or collocation`);
   const solver = opts.solver;
-  if (solver !== "auto" && solver !== "direct" && solver !== "iterative") throw new InputError(`--solver "${solver}": use auto, direct or iterative`);
+  if (solver !== "auto" && solver !== "direct" && solver !== "iterative" && solver !== "compressed") throw new InputError(`--solver "${solver}": use auto, direct, iterative or compressed`);
   const refine = number(opts.refine, "--refine", (x) => Number.isInteger(x) && x >= 0 && x <= 4, "a whole number from 0 to 4");
   const tolerance = number(opts.tol, "--tol", (x) => x > 0 && x < 1, "a number between 0 and 1, e.g. 1e-4");
   const permittivity = opts.permittivity === undefined ? undefined : number(opts.permittivity, "--permittivity", (x) => x >= 1, "a relative permittivity of at least 1");
