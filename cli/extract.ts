@@ -156,7 +156,7 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
   if (opts.jsonPanels) report.viewer = viewerDataJson(result);
   const files = extractionOutputs(result, report, scene.unit, {
     html: opts.html, spice: opts.spice, spiceThreshold, csv: opts.csv, markdown: opts.markdown,
-    probes, probeCsv: probes.length > 0 ? (opts.probeCsv ?? "probes.csv") : undefined, convergenceSvg: opts.convergenceSvg,
+    probes: [...scene.probes, ...probes], probeCsv: scene.probes.length + probes.length > 0 ? (opts.probeCsv ?? "probes.csv") : undefined, convergenceSvg: opts.convergenceSvg,
   }, scene.scene ?? scene.files.join(", "));
   if (opts.json !== undefined && opts.json !== "-") files.push({ path: opts.json, data: toJson(report) + "\n" });
   writeFilesAtomic(files);

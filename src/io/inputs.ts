@@ -2,6 +2,7 @@
  * What an extraction reads: a scene file, or mesh files whose bodies are the conductors.
  * One entry point for the CLI and the library API (`loadScene`).
  */
+import type { ProbeSpec } from "../extract/probe-spec.js";
 import { extname } from "node:path";
 import { InputError } from "./errors.js";
 import { loadMeshFiles } from "./load.js";
@@ -20,6 +21,8 @@ export interface LoadedScene {
   unitAssumed: boolean;
   permittivity: number;
   breakdownField?: number;
+  /** Probe requests from the scene (coordinates in `unit`). */
+  probes: ProbeSpec[];
   /** Grounded plane (offset in metres), from the scene or `groundPlane`. */
   groundPlane?: AxisPlane;
   /** Mirror symmetry planes (offsets in metres). */
@@ -76,7 +79,7 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
     out = {
       mesh: sm.mesh, potentials: resolvePotentials(sm.mesh.names, sm.potentials, opts.potentials, floating), unit: scene.unit, unitAssumed: false, permittivity: scene.permittivity,
       breakdownField: scene.breakdownField, groundPlane: scene.groundPlane, symmetry: scene.symmetry, floating,
-      files: sm.files, scene: list[0], warnings: sm.warnings, dropped: sm.dropped,
+      files: sm.files, scene: list[0], warnings: sm.warnings, dropped: sm.dropped, probes: scene.probes,
     };
   } else {
     const unit = opts.unit ?? DEFAULT_UNIT;
@@ -85,7 +88,7 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
     const floating = floatingFlags(lm.mesh.names, lm.mesh.names.map(() => false), opts.floating);
     out = {
       mesh: lm.mesh, potentials: resolvePotentials(lm.mesh.names, given, opts.potentials, floating), unit, unitAssumed: opts.unit === undefined, permittivity: 1,
-      symmetry: [], floating, files: lm.files, warnings: lm.warnings, dropped: lm.dropped,
+      symmetry: [], floating, files: lm.files, warnings: lm.warnings, dropped: lm.dropped, probes: [],
     };
   }
   if (opts.groundPlane !== undefined) out.groundPlane = parsePlane(opts.groundPlane, out.unit, "ground plane");

@@ -15,6 +15,7 @@
  * names the key path of every fault (`conductors[1].potential: expected a number`).
  * Mesh paths are relative to the scene file.
  */
+import { parseSceneProbes, type ProbeSpec } from "../extract/probe-spec.js";
 import { readFileSync, statSync } from "node:fs";
 import { dirname, resolve, basename, extname } from "node:path";
 import { InputError } from "./errors.js";
@@ -48,9 +49,11 @@ export interface Scene {
   /** Mirror symmetry planes; offsets in metres. */
   symmetry: AxisPlane[];
   conductors: SceneConductor[];
+  /** Probe requests, coordinates in the scene's unit. */
+  probes: ProbeSpec[];
 }
 
-const TOP_KEYS = new Set(["$schema", "unit", "permittivity", "breakdownField", "groundPlane", "symmetry", "conductors", "title", "description"]);
+const TOP_KEYS = new Set(["$schema", "unit", "permittivity", "breakdownField", "groundPlane", "symmetry", "conductors", "probes", "title", "description"]);
 const CONDUCTOR_KEYS = new Set(["name", "mesh", "group", "groups", "potential", "floating", "description"]);
 
 /**
@@ -182,7 +185,8 @@ export function parseScene(text: string, file: string): Scene {
     seen.set(c.name, i);
   });
   if (conductors.every((c) => c.floating)) fail("conductors", "every conductor is floating: at least one must be held at a potential");
-  return { file, unit, permittivity, breakdownField, groundPlane, symmetry, conductors };
+  const probes = top.probes === undefined ? [] : parseSceneProbes(top.probes, { file });
+  return { file, unit, permittivity, breakdownField, groundPlane, symmetry, conductors, probes };
 }
 
 /** Read and validate a scene file. */

@@ -75,6 +75,19 @@ describe("sigmesh extract", () => {
     expect(rep.conductors[0].charge).toBeCloseTo(2 * rep.capacitance.maxwell[0][0], 20);
   });
 
+  it("probes named in a scene are evaluated like --probe", () => {
+    writeFileSync(join(dir, "probed.json"), JSON.stringify({ unit: "mm", conductors: [{ name: "ball", mesh: "anode.stl", potential: 1 }],
+      probes: [{ name: "axis", line: { from: [-7.5, 0, 6], to: [-7.5, 0, 20], points: 8 } }] }));
+    const r = run(["extract", "probed.json", "--probe-csv", "p.csv", "--quiet"], dir);
+    expect(r.code).toBe(0);
+    const rows = parseCsv(readFileSync(join(dir, "p.csv"), "utf8"));
+    expect(rows).toHaveLength(9);
+    // Outside a sphere at 1 V: φ = R/r (5 mm sphere; 6 mm and 20 mm from its centre), within the mesh error.
+    const v = rows[0].indexOf("potential (V)");
+    expect(Number(rows[1][v])).toBeCloseTo(5 / 6, 2);
+    expect(Number(rows[8][v])).toBeCloseTo(5 / 20, 2);
+  });
+
   it("an open sheet is reported as such and gets its two-sided field", () => {
     const r = run(["extract", join(dir, "sheet.obj"), "--json", "-", "--quiet"]);
     expect(r.code).toBe(0);
