@@ -82,10 +82,11 @@ describe("sigmesh extract", () => {
     expect(r.code).toBe(0);
     const rows = parseCsv(readFileSync(join(dir, "p.csv"), "utf8"));
     expect(rows).toHaveLength(9);
-    // Outside a sphere at 1 V: φ = R/r (5 mm sphere; 6 mm and 20 mm from its centre), within the mesh error.
+    // Outside a sphere at 1 V: φ = R/r (5 mm sphere; 6 mm and 20 mm from its centre), within the
+    // 320-panel mesh's capacitance error (about 1 % low).
     const v = rows[0].indexOf("potential (V)");
-    expect(Number(rows[1][v])).toBeCloseTo(5 / 6, 2);
-    expect(Number(rows[8][v])).toBeCloseTo(5 / 20, 2);
+    expect(Math.abs(Number(rows[1][v]) / (5 / 6) - 1)).toBeLessThan(0.02);
+    expect(Math.abs(Number(rows[8][v]) / (5 / 20) - 1)).toBeLessThan(0.02);
   });
 
   it("an open sheet is reported as such and gets its two-sided field", () => {
