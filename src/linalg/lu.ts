@@ -10,7 +10,7 @@
  * Pivots follow LAPACK's ipiv convention, 0-based: at step c rows c and piv[c] were swapped.
  */
 import { type DenseKernel, gemmNT, isShared, packTransposed, rowSplits } from "./dense.js";
-import { luBlockRow, luUpdate } from "./tasks.js";
+import { luBlockRow, luUpdate, luUpdateColumns } from "./tasks.js";
 import { solveLower, solveUnitLowerLeft, solveUpper } from "./triangular.js";
 import { type WorkerPool, sharedFloat64 } from "./pool.js";
 
@@ -87,6 +87,12 @@ function factorPanel(T: Float64Array, ld: number, rows: number, c0: number, w: n
  * as exchanging whole rows at every pivot, since the panel's arithmetic never reads them.
  */
 function luPanel(A: Float64Array, n: number, j0: number, w: number, piv: Int32Array, T: Float64Array, S: Float64Array, kernel: DenseKernel): void {
+  factorPanelPacked(A, n, j0, w, piv, T, S, kernel);
+  exchangeRowsOutside(A, n, j0, w, piv);
+}
+
+/** The panel part of luPanel: columns j0..j0+w only, through the packed copy T. */
+function factorPanelPacked(A: Float64Array, n: number, j0: number, w: number, piv: Int32Array, T: Float64Array, S: Float64Array, kernel: DenseKernel): void {
   const rows = n - j0;
   for (let r = 0; r < rows; r++) {
     const a = (j0 + r) * n + j0, t = r * w;
@@ -101,6 +107,10 @@ function luPanel(A: Float64Array, n: number, j0: number, w: number, piv: Int32Ar
       for (let q = 0; q < w; q++) A[a + q] = T[t + q];
     }
   }
+}
+
+/** The panel's row exchanges piv[j0..j0+w), in order, on the columns outside it. */
+function exchangeRowsOutside(A: Float64Array, n: number, j0: number, w: number, piv: Int32Array): void {
   const jEnd = j0 + w;
   for (let c = j0; c < jEnd; c++) {
     const p = piv[c];
@@ -141,16 +151,39 @@ export async function luFactor(A: Float64Array, n: number, opts: LuOptions = {})
   if (S !== A) S.set(A.subarray(0, n * n));
   const piv = new Int32Array(n);
   const Q = sharedFloat64(n * nb);
-  const T = new Float64Array(n * nb);
+  // The caller's panel scratch is its own: Q is being read by the workers meanwhile.
+  const T = new Float64Array(n * nb), R = new Float64Array(nb * nb);
+  luPanel(S, n, 0, Math.min(nb, n), piv, T, R, kernel);
   for (let j0 = 0; j0 < n; j0 += nb) {
     const w = Math.min(nb, n - j0), i0 = j0 + w;
-    luPanel(S, n, j0, w, piv, T, Q, kernel);
     if (i0 >= n) break;
+    const w2 = Math.min(nb, n - i0);
     // Small trailing blocks are not worth a round trip to the workers.
-    if (n - i0 < 2 * nb) { luBlockRow(S, n, j0, w, Q, i0, n, kernel); luUpdate(S, n, j0, w, Q, i0, n, kernel); continue; }
+    if (n - i0 < 2 * nb) {
+      luBlockRow(S, n, j0, w, Q, i0, n, kernel);
+      luUpdate(S, n, j0, w, Q, i0, n, kernel);
+      luPanel(S, n, i0, w2, piv, T, R, kernel);
+      continue;
+    }
     const s = rowSplits(i0, n, pool.size, false);
     await pool.map(tasksUrl, "luBlockRow", s.slice(0, -1).map((c, t) => [S, n, j0, w, Q, c, s[t + 1], kernel]));
-    await pool.map(tasksUrl, "luUpdate", s.slice(0, -1).map((r, t) => [S, n, j0, w, Q, r, s[t + 1], kernel]));
+    // Look-ahead (Kurzak & Dongarra, "Implementing linear algebra routines on multi-core
+    // processors with pipelining and a look ahead", PARA 2006): the caller updates and
+    // factors the next panel while the workers update the columns right of it. The
+    // panel's row exchanges wait for the workers, who read L21 in the columns left of it;
+    // exchanging rows after a row-wise update equals exchanging them before.
+    const c1 = i0 + w2;
+    const rest = pool.map(tasksUrl, "luUpdateColumns", s.slice(0, -1).map((r, t) => [S, n, j0, w, Q, r, s[t + 1], c1, n, kernel]));
+    let failure: unknown;
+    try {
+      luUpdateColumns(S, n, j0, w, Q, i0, n, i0, c1, kernel);
+      factorPanelPacked(S, n, i0, w2, piv, T, R, kernel);
+    } catch (e) {
+      failure = e;
+    }
+    await rest;
+    if (failure) throw failure;
+    exchangeRowsOutside(S, n, i0, w2, piv);
   }
   if (S !== A) A.set(S);
   return piv;

@@ -78,6 +78,16 @@ export function luUpdate(A: Float64Array, n: number, j0: number, nb: number, Q: 
   gemmNT(A, r0 * n + i0, n, A, r0 * n + j0, n, Q, 0, nb, r1 - r0, n - i0, nb, n, -1, kernel);
 }
 
+/**
+ * Columns c0..c1 (c0 ≥ j0 + nb) of the LU trailing update of rows r0..r1, for the
+ * look-ahead of luFactor: the next panel's columns and the rest go to different threads.
+ */
+export function luUpdateColumns(A: Float64Array, n: number, j0: number, nb: number, Q: Float64Array, r0: number, r1: number, c0: number, c1: number, kernel: DenseKernel = "auto"): void {
+  if (r1 <= r0 || c1 <= c0) return;
+  const i0 = j0 + nb;
+  gemmNT(A, r0 * n + c0, n, A, r0 * n + j0, n, Q, (c0 - i0) * nb, nb, r1 - r0, c1 - c0, nb, c1 - c0, -1, kernel);
+}
+
 /** Rows r0..r1 of Y = A·X (A n×n, X and Y n×k, all row-major; Xt = Xᵀ when k > 1). */
 export function multiplyRowRange(A: Float64Array, n: number, X: Float64Array, Xt: Float64Array, k: number, Y: Float64Array, r0: number, r1: number): void {
   multiplyRows(A, n, X, Xt, k, Y, r0, r1);
