@@ -24,7 +24,8 @@ export function progressBar(enabled: boolean): Progress {
       let total = 0, done = 0;
       for (let l = 0; l < levels; l++) total += Math.pow(4, l);
       for (let l = 0; l < level; l++) done += Math.pow(4, l);
-      const within = phase === "assembly" ? 0.5 * fraction : 0.5 + 0.5 * fraction;
+      // Building the operator (dense assembly or compression) and solving share each level.
+      const within = phase === "assembly" || phase === "compression" ? 0.5 * fraction : phase === "solve" ? 0.5 + 0.5 * fraction : 1;
       const value = Math.round((1000 * (done + within * Math.pow(4, level))) / total);
       if (!started) { bar.start(1000, value, { phase, level: level + 1, levels }); started = true; }
       else bar.update(value, { phase, level: level + 1, levels });

@@ -85,9 +85,11 @@ export function extractionSummary(r: ExtractionResult, ctx: SummaryContext): str
   out.push("");
 
   const s = r.solver;
-  const solverLine = s.solver === "iterative"
-    ? `iterative (${s.iterations} iterations, residual ${s.residual?.toExponential(1)})`
-    : `direct (factorisation ${formatNumber(s.factorGflops ?? NaN, 3)} GFLOP/s)`;
+  const solverLine = s.solver === "direct"
+    ? `direct (factorisation ${formatNumber(s.factorGflops ?? NaN, 3)} GFLOP/s)`
+    : s.compressionRatio !== undefined
+      ? `compressed (storage ${formatNumber(100 * s.compressionRatio, 3)} % of dense, ranks ≤ ${s.maxRank}, operator ${formatSI(s.operatorBytes ?? NaN, "B", 3)}; ${s.iterations} iterations, residual ${s.residual?.toExponential(1)})`
+      : `iterative (${s.iterations} iterations, residual ${s.residual?.toExponential(1)})`;
   out.push(`Solver: ${s.method}, ${solverLine}; ${s.panels} panels, ${formatNumber(s.seconds, 3)} s total, peak memory ${formatSI(s.peakMemory, "B", 3)}`);
   out.push("");
 
