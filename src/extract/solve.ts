@@ -90,10 +90,13 @@ export interface UnitSolution {
  * dense Cholesky at FACTOR_RATE flop/s, an iteration of the dense product streaming the
  * n×n matrix at PRODUCT_RATE entries/s, and iterations that grow slowly with n.
  */
-// Measured by tests/bench/extract.bench.mjs (2 workers, shared machine): Cholesky 2.6–2.9 GFLOP/s;
-// a PCG iteration over a 5120² matrix ≈ 50 ms including the preconditioner (≈ 0.5 G entries/s).
-const FACTOR_RATE = 3.0e9;
-const PRODUCT_RATE = 0.6e9;
+// Measured by tests/bench/extract.bench.mjs on the 2-core machine, quiet (2026-12-01, WebAssembly
+// SIMD kernel): Cholesky on 2 workers 10.5–13.6 GFLOP/s at n = 2560–10240; a PCG iteration over a
+// 5120² matrix ≈ 36 ms with the preconditioner (≈ 0.73 G entries/s); extra right-hand sides cost
+// the JavaScript multiply's ≈ 3 GFLOP/s (2560 panels, 8 columns: 45 ms per iteration).
+const FACTOR_RATE = 12e9;
+const PRODUCT_RATE = 0.73e9;
+const MULTIPLY_RATE = 3e9;
 function expectedIterations(n: number): number {
   return 12 + 3 * Math.log2(Math.max(2, n / 64));
 }
@@ -118,7 +121,7 @@ export function compressionTolerance(tolerance: number): number {
 export function chooseSolver(n: number, k: number): { solver: "direct" | "iterative"; reason: string } {
   const direct = (n * n * n) / 3 / FACTOR_RATE + (2 * n * n * k) / FACTOR_RATE;
   // One pass over the matrix serves all k columns; the arithmetic then grows with k.
-  const perProduct = (n * n) / PRODUCT_RATE + (2 * n * n * Math.max(0, k - 1)) / FACTOR_RATE;
+  const perProduct = (n * n) / PRODUCT_RATE + (2 * n * n * Math.max(0, k - 1)) / MULTIPLY_RATE;
   const iterative = expectedIterations(n) * perProduct;
   const solver = direct <= iterative ? "direct" : "iterative";
   return { solver, reason: `estimated direct ${direct.toFixed(2)} s, iterative ${iterative.toFixed(2)} s` };
