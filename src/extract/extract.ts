@@ -14,7 +14,7 @@
 import type { SurfaceMesh } from "../mesh/model.js";
 import { triangleCount, conductorAreas } from "../mesh/model.js";
 import { orientSurfaces, conductorTopology, buildEdgeTable } from "../mesh/topology.js";
-import { refineUniform } from "../mesh/refine.js";
+import { refineUniform, hasFeatureEdges } from "../mesh/refine.js";
 import type { Discretisation } from "../bem/assembly.js";
 import { sharedPool, type WorkerPool } from "../linalg/pool.js";
 import { EPSILON_0, AIR_BREAKDOWN_FIELD } from "./constants.js";
@@ -241,7 +241,7 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   let maxwell = finest.maxwell;
   let accuracy: Accuracy | undefined;
   if (refine > 0) {
-    const sharp = closed.some((c) => !c) || hasSharpEdges(orientedMesh);
+    const sharp = closed.some((c) => !c) || hasFeatureEdges(orientedMesh);
     const sym = levels.map((l) => capacitanceMatrices(l.maxwell, k, input.names).maxwell);
     const r = richardson(sym, k, { assumedOrder: opts.assumedOrder ?? assumedOrder(sharp), fromBelow: method === "galerkin" });
     accuracy = { levels: levels.map((l, i) => ({ panels: l.panels, maxwell: sym[i] })), richardson: r, extrapolated: true };
@@ -405,32 +405,3 @@ function scaleCopy(a: Float64Array, s: number): Float64Array {
   return out;
 }
 
-/** Any interior edge whose dihedral angle exceeds 30°: the charge density is singular there. */
-function hasSharpEdges(mesh: SurfaceMesh): boolean {
-  const tr = mesh.triangles, p = mesh.positions, nt = tr.length / 3;
-  const normal = new Float64Array(3 * nt);
-  for (let t = 0; t < nt; t++) {
-    const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], c = 3 * tr[3 * t + 2];
-    const ux = p[b] - p[a], uy = p[b + 1] - p[a + 1], uz = p[b + 2] - p[a + 2];
-    const vx = p[c] - p[a], vy = p[c + 1] - p[a + 1], vz = p[c + 2] - p[a + 2];
-    const nx = uy * vz - uz * vy, ny = uz * vx - ux * vz, nz = ux * vy - uy * vx;
-    const l = Math.hypot(nx, ny, nz) || 1;
-    normal[3 * t] = nx / l; normal[3 * t + 1] = ny / l; normal[3 * t + 2] = nz / l;
-  }
-  const edges = new Map<number, number>();
-  const nv = p.length / 3;
-  const cos30 = Math.cos(Math.PI / 6);
-  for (let t = 0; t < nt; t++) {
-    for (let j = 0; j < 3; j++) {
-      const u = tr[3 * t + j], v = tr[3 * t + ((j + 1) % 3)];
-      const key = Math.min(u, v) * nv + Math.max(u, v);
-      const other = edges.get(key);
-      if (other === undefined) edges.set(key, t);
-      else {
-        const d = normal[3 * t] * normal[3 * other] + normal[3 * t + 1] * normal[3 * other + 1] + normal[3 * t + 2] * normal[3 * other + 2];
-        if (d < cos30) return true;
-      }
-    }
-  }
-  return false;
-}

@@ -152,6 +152,16 @@ export function featureEdges(mesh: SurfaceMesh, edges: MeshEdges, normals: Float
 }
 
 /**
+ * Whether the mesh has any feature edge (a crease above `featureAngle` degrees, a boundary
+ * or a non-manifold edge): where the surface charge density is singular.
+ */
+export function hasFeatureEdges(mesh: SurfaceMesh, featureAngle = 30): boolean {
+  const f = featureEdges(mesh, meshEdges(mesh), faceNormals(mesh), Math.cos((featureAngle * Math.PI) / 180));
+  for (let e = 0; e < f.length; e++) if (f[e]) return true;
+  return false;
+}
+
+/**
  * Split each triangle into four; new vertices at edge midpoints shared between neighbours,
  * conductor index kept, old vertices unchanged. Triangle count x4, orientation kept.
  */
