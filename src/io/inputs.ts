@@ -29,6 +29,8 @@ export interface LoadedScene {
   symmetry: AxisPlane[];
   /** Per conductor: floating (zero net charge, potential solved for). */
   floating: boolean[];
+  /** The scene's named parameters with the values used (empty for mesh files). */
+  parameters: Record<string, number>;
   files: string[];
   scene?: string;
   warnings: Warning[];
@@ -49,6 +51,8 @@ export interface InputOptions {
   symmetry?: string[];
   /** Names of conductors to leave floating (added to the scene's). */
   floating?: string[];
+  /** Values replacing a scene's named parameters (a sweep point); each must be a parameter of the scene. */
+  parameters?: Readonly<Record<string, number>>;
 }
 
 /** `AXIS=POSITION` (`z=0`, `x=-2.5`) in `unit`, as a plane in metres; `what` names the option in errors. */
@@ -66,7 +70,7 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
   let out: LoadedScene;
   if (scenes.length > 0) {
     if (list.length > 1) throw new InputError("give either one scene file or mesh files, not both", scenes[0]);
-    let scene: Scene = loadSceneFile(list[0]);
+    let scene: Scene = loadSceneFile(list[0], { parameters: opts.parameters });
     if (opts.unit && opts.unit !== scene.unit) {
       // Plane positions were read in the scene's unit: rescale with it.
       const f = metresPer(opts.unit) / metresPer(scene.unit);
@@ -79,16 +83,17 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
     out = {
       mesh: sm.mesh, potentials: resolvePotentials(sm.mesh.names, sm.potentials, opts.potentials, floating), unit: scene.unit, unitAssumed: false, permittivity: scene.permittivity,
       breakdownField: scene.breakdownField, groundPlane: scene.groundPlane, symmetry: scene.symmetry, floating,
-      files: sm.files, scene: list[0], warnings: sm.warnings, dropped: sm.dropped, probes: scene.probes,
+      files: sm.files, scene: list[0], warnings: sm.warnings, dropped: sm.dropped, probes: scene.probes, parameters: scene.parameters,
     };
   } else {
+    if (opts.parameters && Object.keys(opts.parameters).length > 0) throw new InputError("parameters belong to a scene file (.json); mesh files have none", list[0]);
     const unit = opts.unit ?? DEFAULT_UNIT;
     const lm = loadMeshFiles(list, { unit, split: opts.split, merge: opts.merge, weldTolerance: opts.weldTolerance });
     const given = lm.mesh.names.map(() => undefined);
     const floating = floatingFlags(lm.mesh.names, lm.mesh.names.map(() => false), opts.floating);
     out = {
       mesh: lm.mesh, potentials: resolvePotentials(lm.mesh.names, given, opts.potentials, floating), unit, unitAssumed: opts.unit === undefined, permittivity: 1,
-      symmetry: [], floating, files: lm.files, warnings: lm.warnings, dropped: lm.dropped, probes: [],
+      symmetry: [], floating, files: lm.files, warnings: lm.warnings, dropped: lm.dropped, probes: [], parameters: {},
     };
   }
   if (opts.groundPlane !== undefined) out.groundPlane = parsePlane(opts.groundPlane, out.unit, "ground plane");

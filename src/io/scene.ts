@@ -7,6 +7,12 @@
  *     "conductors": [ { "name": "pad", "mesh": "pad.stl", "potential": 1.0 },
  *                     { "name": "shield", "mesh": "shield.stl", "floating": true } ] }
  *
+ * A conductor is a mesh file (`"mesh"`) or a generated shape (`"shape": { "box": { "size": [10, 10, 0.035],
+ * "divisions": 12 } }`, the parameters of `sigmesh mesh`, lengths in the scene's unit), and any
+ * entry may be placed (`"place"`: scale, then rotate, then translate; see ./placement.ts).
+ * `"parameters": { "gap": 2 }` names numbers that expressions (`"=gap/2 + 1"`, ./parameters.ts)
+ * use wherever the scene takes a number; a sweep replaces their values.
+ *
  * `groundPlane` is a grounded conducting plane normal to one axis, `symmetry` lists mirror
  * symmetry planes of a model meshed by half (positions in the scene's unit); a floating
  * conductor carries zero net charge at a potential the solver finds, so it takes no potential.
@@ -22,13 +28,22 @@ import { InputError } from "./errors.js";
 import { parseUnit, metresPer, DEFAULT_UNIT, type LengthUnit } from "./units.js";
 import type { AxisPlane, Axis } from "../bem/images.js";
 import { loadMeshFile, type LoadedMesh } from "./load.js";
-import { concatMeshes } from "../mesh/model.js";
+import { concatMeshes, type SurfaceMesh } from "../mesh/model.js";
+import { SHAPES, shapeParameters, generateShape, type ShapeName, type ShapeParams } from "../mesh/primitives/index.js";
+import { resolveParameters, substituteExpressions } from "./parameters.js";
+import { parsePlacement, placeMesh, type Placement } from "./placement.js";
 
 export interface SceneConductor {
   /** Conductor name as given, or the mesh file stem / group name. */
   name: string;
-  /** Absolute path of the mesh file. */
-  mesh: string;
+  /** Absolute path of the mesh file; undefined for a generated shape. */
+  mesh?: string;
+  /** Generated shape and its parameters (lengths in the scene's unit); undefined for a mesh file. */
+  shape?: { kind: ShapeName; params: ShapeParams };
+  /** Placement (translation in the scene's unit); undefined when the entry has none. */
+  place?: Placement;
+  /** Key path of the entry in the scene (`conductors[2]`), for messages. */
+  path: string;
   /** Groups (named solids, OBJ groups, physical surfaces) of the file that make this conductor; all when absent. */
   groups?: string[];
   /** Working potential; volts. Undefined when the scene does not set it. */
@@ -51,10 +66,17 @@ export interface Scene {
   conductors: SceneConductor[];
   /** Probe requests, coordinates in the scene's unit. */
   probes: ProbeSpec[];
+  /** Values of the named parameters used for this reading (the scene's, or a sweep point's). */
+  parameters: Record<string, number>;
 }
 
-const TOP_KEYS = new Set(["$schema", "unit", "permittivity", "breakdownField", "groundPlane", "symmetry", "conductors", "probes", "title", "description"]);
-const CONDUCTOR_KEYS = new Set(["name", "mesh", "group", "groups", "potential", "floating", "description"]);
+export interface SceneParseOptions {
+  /** Values replacing the scene's parameters (a sweep point); each must name a parameter of the scene. */
+  parameters?: Readonly<Record<string, number>>;
+}
+
+const TOP_KEYS = new Set(["$schema", "parameters", "unit", "permittivity", "breakdownField", "groundPlane", "symmetry", "conductors", "probes", "title", "description"]);
+const CONDUCTOR_KEYS = new Set(["name", "mesh", "shape", "place", "group", "groups", "potential", "floating", "description"]);
 
 /**
  * An axis-aligned plane written `{ "z": 0 }` (one of x, y, z, its position in `unit`), or the
@@ -87,19 +109,39 @@ function isObject(v: unknown): v is Record<string, unknown> {
   return typeof v === "object" && v !== null && !Array.isArray(v);
 }
 
-/** Parse and validate scene text; `file` names the scene in errors and anchors relative mesh paths. */
-export function parseScene(text: string, file: string): Scene {
-  let raw: unknown;
+function parseJson(text: string, file: string): unknown {
   try {
-    raw = JSON.parse(text);
+    return JSON.parse(text) as unknown;
   } catch (err) {
     const detail = String((err as Error).message).replace(/ in JSON at position \d+.*$/, "").replace(/^Unexpected/, "unexpected");
     throw new InputError(`not valid JSON (${detail})`, file, jsonPlace(text, err));
   }
+}
+
+/**
+ * The scene as a user would write it by hand with these parameter values: every expression
+ * replaced by its number and `parameters` holding the values used. `overrides` replace the
+ * scene's parameter values (a sweep point). The result is a parsed JSON value (mesh paths as
+ * written, relative to the scene file).
+ */
+export function substituteScene(text: string, file: string, overrides: Readonly<Record<string, number>> = {}): Record<string, unknown> {
+  const raw = parseJson(text, file);
   const fail = (path: string, fault: string): never => { throw new InputError(`${path}: ${fault}`, file); };
   if (!isObject(raw)) fail("(top level)", "expected a JSON object");
   const top = raw as Record<string, unknown>;
   for (const k of Object.keys(top)) if (!TOP_KEYS.has(k)) fail(k, `unknown key (expected one of ${[...TOP_KEYS].filter((x) => x !== "$schema").join(", ")})`);
+  if (top.parameters !== undefined && !isObject(top.parameters)) fail("parameters", "expected an object of names and numbers, such as { \"gap\": 2 }");
+  const parameters = resolveParameters((top.parameters ?? {}) as Record<string, unknown>, overrides, fail);
+  const out = substituteExpressions(top, parameters, "", fail) as Record<string, unknown>;
+  if (top.parameters !== undefined || Object.keys(overrides).length > 0) out.parameters = parameters;
+  return out;
+}
+
+/** Parse and validate scene text; `file` names the scene in errors and anchors relative mesh paths. */
+export function parseScene(text: string, file: string, opts: SceneParseOptions = {}): Scene {
+  const fail = (path: string, fault: string): never => { throw new InputError(`${path}: ${fault}`, file); };
+  const top = substituteScene(text, file, opts.parameters);
+  const parameters = (top.parameters ?? {}) as Record<string, number>;
 
   let unit: LengthUnit = DEFAULT_UNIT;
   if (top.unit !== undefined) {
@@ -146,8 +188,17 @@ export function parseScene(text: string, file: string): Scene {
     if (!isObject(entry)) fail(at, "expected an object");
     const e = entry as Record<string, unknown>;
     for (const k of Object.keys(e)) if (!CONDUCTOR_KEYS.has(k)) fail(`${at}.${k}`, `unknown key (expected one of ${[...CONDUCTOR_KEYS].join(", ")})`);
-    if (typeof e.mesh !== "string" || e.mesh.length === 0) fail(`${at}.mesh`, e.mesh === undefined ? "missing (path of the conductor's mesh file)" : "expected a file path");
-    const mesh = resolve(base, e.mesh as string);
+    if (e.mesh !== undefined && e.shape !== undefined) fail(at, "give either mesh (a file) or shape (a generated primitive), not both");
+    let mesh: string | undefined;
+    let shape: SceneConductor["shape"];
+    if (e.shape !== undefined) {
+      shape = parseShape(e.shape, `${at}.shape`, fail);
+      if (e.group !== undefined || e.groups !== undefined) fail(`${at}.${e.group !== undefined ? "group" : "groups"}`, "applies to a mesh file, not to a generated shape");
+    } else {
+      if (typeof e.mesh !== "string" || e.mesh.length === 0) fail(`${at}.mesh`, e.mesh === undefined ? "missing (path of the conductor's mesh file, or a \"shape\" instead)" : "expected a file path");
+      mesh = resolve(base, e.mesh as string);
+    }
+    const place = e.place === undefined ? undefined : parsePlacement(e.place, `${at}.place`, fail);
     let groups: string[] | undefined;
     if (e.group !== undefined && e.groups !== undefined) fail(at, "give either group or groups, not both");
     if (e.group !== undefined) {
@@ -163,7 +214,8 @@ export function parseScene(text: string, file: string): Scene {
       if (typeof e.name !== "string" || e.name.trim().length === 0) fail(`${at}.name`, "expected a non-empty string");
       name = (e.name as string).trim();
     } else {
-      name = groups && groups.length === 1 ? groups[0] : basename(mesh, extname(mesh));
+      name = shape ? (typeof shape.params.name === "string" && shape.params.name.trim() ? shape.params.name.trim() : shape.kind)
+        : groups && groups.length === 1 ? groups[0] : basename(mesh as string, extname(mesh as string));
     }
     let potential: number | undefined;
     if (e.potential !== undefined) {
@@ -176,7 +228,7 @@ export function parseScene(text: string, file: string): Scene {
       floating = e.floating as boolean;
       if (floating && potential !== undefined) fail(`${at}.potential`, "a floating conductor takes no potential (its potential is solved for); remove one of the two");
     }
-    return { name, mesh, groups, potential, floating };
+    return { name, mesh, shape, place, path: at, groups, potential, floating };
   });
   const seen = new Map<string, number>();
   conductors.forEach((c, i) => {
@@ -186,11 +238,30 @@ export function parseScene(text: string, file: string): Scene {
   });
   if (conductors.every((c) => c.floating)) fail("conductors", "every conductor is floating: at least one must be held at a potential");
   const probes = top.probes === undefined ? [] : parseSceneProbes(top.probes, { file });
-  return { file, unit, permittivity, breakdownField, groundPlane, symmetry, conductors, probes };
+  return { file, unit, permittivity, breakdownField, groundPlane, symmetry, conductors, probes, parameters };
+}
+
+/** `"shape": { "<kind>": { params } }` with the parameter names checked against the generator's. */
+function parseShape(v: unknown, at: string, fail: (path: string, fault: string) => never): { kind: ShapeName; params: ShapeParams } {
+  if (!isObject(v)) return fail(at, `expected an object naming one shape, such as { "box": { "size": [1, 1, 1] } } (shapes: ${SHAPES.join(", ")})`);
+  const keys = Object.keys(v);
+  if (keys.length !== 1) return fail(at, `expected exactly one shape (one of ${SHAPES.join(", ")}), got ${keys.length === 0 ? "none" : keys.join(", ")}`);
+  const kind = keys[0];
+  if (!(SHAPES as readonly string[]).includes(kind)) return fail(`${at}.${kind}`, `unknown shape (use ${SHAPES.join(", ")})`);
+  const p = v[kind];
+  if (!isObject(p)) return fail(`${at}.${kind}`, "expected an object of the shape's parameters");
+  const known = shapeParameters(kind as ShapeName);
+  for (const [name, value] of Object.entries(p)) {
+    if (!known.some((q) => q.name === name)) fail(`${at}.${kind}.${name}`, `not a parameter of a ${kind} (it takes ${known.map((q) => q.name).join(", ")})`);
+    const ok = (x: unknown): boolean => typeof x === "number" || typeof x === "string";
+    if (!(ok(value) || (Array.isArray(value) && value.every(ok)))) fail(`${at}.${kind}.${name}`, "expected a number, a list of numbers, or text");
+  }
+  for (const q of known) if (q.required && p[q.name] === undefined) fail(`${at}.${kind}`, `a ${kind} needs "${q.name}"`);
+  return { kind: kind as ShapeName, params: p as ShapeParams };
 }
 
 /** Read and validate a scene file. */
-export function loadSceneFile(path: string): Scene {
+export function loadSceneFile(path: string, opts: SceneParseOptions = {}): Scene {
   let text: string;
   try {
     if (statSync(path).isDirectory()) throw new InputError("is a directory, not a scene file", path);
@@ -201,7 +272,7 @@ export function loadSceneFile(path: string): Scene {
     throw new InputError(code === "ENOENT" ? "no such file" : `cannot read (${code ?? String(err)})`, path);
   }
   if (text.trim().length === 0) throw new InputError("empty file", path);
-  return parseScene(text, path);
+  return parseScene(text, path, opts);
 }
 
 
@@ -214,9 +285,19 @@ export interface SceneMesh extends LoadedMesh {
 
 /** Load every conductor of a scene: one conductor per entry, its file's groups joined. */
 export function loadSceneMesh(scene: Scene, opts: { weldTolerance?: number } = {}): SceneMesh {
-  const parts = scene.conductors.map((c) =>
-    loadMeshFile(c.mesh, { unit: scene.unit, groups: c.groups, merge: true, name: c.name, weldTolerance: opts.weldTolerance }));
-  const meshes = parts.map((p, i) => ({ ...p.mesh, names: [scene.conductors[i].name] }));
+  const perUnit = metresPer(scene.unit);
+  const parts: LoadedMesh[] = scene.conductors.map((c) => {
+    if (c.shape) {
+      const mesh = generateShape(c.shape.kind, c.shape.params, { metresPerUnit: perUnit, describe: (p) => `${c.path}.shape.${c.shape!.kind}.${p}`, file: scene.file });
+      return { mesh, warnings: [], files: [], unit: scene.unit, dropped: 0, welded: 0 };
+    }
+    return loadMeshFile(c.mesh as string, { unit: scene.unit, groups: c.groups, merge: true, name: c.name, weldTolerance: opts.weldTolerance });
+  });
+  const meshes = parts.map((p, i): SurfaceMesh => {
+    const c = scene.conductors[i];
+    const placed = c.place ? placeMesh(p.mesh, c.place, perUnit) : p.mesh;
+    return { ...placed, conductor: new Uint32Array(placed.triangles.length / 3), names: [c.name] };
+  });
   return {
     mesh: concatMeshes(meshes),
     warnings: parts.flatMap((p) => p.warnings),
