@@ -277,6 +277,7 @@ function start(root: HTMLElement, data: PageData): void {
     cv.material.opacity = cv.opacity;
     cv.material.transparent = cv.opacity < 1;
     cv.material.depthWrite = cv.opacity >= 1;
+    cv.material.side = faceSide(cv.index, cv.opacity);
     cv.material.needsUpdate = true;
     if (cv.edges) cv.edges.visible = cv.visible && state.edges;
   }
@@ -377,8 +378,10 @@ function start(root: HTMLElement, data: PageData): void {
     if (!gl) throw new Error("no WebGL context");
     const info = gl.getExtension("WEBGL_debug_renderer_info");
     const name = info ? String(gl.getParameter(info.UNMASKED_RENDERER_WEBGL)) : "";
-    renderer = new THREE.WebGLRenderer({ canvas, antialias: true, preserveDrawingBuffer: true });
-    if (/swiftshader|llvmpipe|software/i.test(name)) {
+    const software = /swiftshader|llvmpipe|software/i.test(name);
+    // Multisampling on the CPU costs about 3x per frame at 300k panels (tests/bench/viewer.bench.mjs).
+    renderer = new THREE.WebGLRenderer({ canvas, antialias: !software, preserveDrawingBuffer: true });
+    if (software) {
       glNote.textContent = "Software rendering (no GPU acceleration): large models may respond slowly.";
       glNote.dataset.kind = "software";
     }
@@ -388,6 +391,15 @@ function start(root: HTMLElement, data: PageData): void {
     glNote.dataset.kind = "missing";
     glNote.classList.add("sm-glmissing");
     root.dataset.webgl = "missing";
+  }
+
+  // The back faces of a closed conductor (extract winds every closed surface outward) lie behind
+  // its front faces; skipping them takes a third off a software-rendered frame. They are drawn
+  // wherever they can show: past the clipping plane, through a translucent surface, and on a part
+  // cut open at a symmetry plane (closed only in the full model).
+  const symmetric = ((report.model?.symmetry as unknown[] | undefined)?.length ?? 0) > 0;
+  function faceSide(c: number, opacity: number): number {
+    return v.closed[c] && !symmetric && !clipBox.checked && opacity >= 1 ? THREE.FrontSide : THREE.DoubleSide;
   }
 
   for (let c = 0; c < k; c++) {
@@ -406,7 +418,7 @@ function start(root: HTMLElement, data: PageData): void {
     geometry.setAttribute("color", new THREE.BufferAttribute(colours, 3));
     geometry.computeVertexNormals();
     geometry.computeBoundingSphere();
-    const material = new THREE.MeshLambertMaterial({ vertexColors: true, side: THREE.DoubleSide, clippingPlanes: [], polygonOffset: true, polygonOffsetFactor: 1, polygonOffsetUnits: 1 });
+    const material = new THREE.MeshLambertMaterial({ vertexColors: true, side: faceSide(c, 1), clippingPlanes: [], polygonOffset: true, polygonOffsetFactor: 1, polygonOffsetUnits: 1 });
     const mesh = new THREE.Mesh(geometry, material);
     mesh.userData.conductor = c;
     scene.add(mesh);
@@ -499,6 +511,7 @@ function start(root: HTMLElement, data: PageData): void {
     const planes = clipBox.checked ? [clipPlane] : [];
     for (const cv of views) {
       cv.material.clippingPlanes = planes;
+      cv.material.side = faceSide(cv.index, cv.opacity);
       cv.material.needsUpdate = true;
       if (cv.edges) { cv.edges.material.clippingPlanes = planes; cv.edges.material.needsUpdate = true; }
     }
