@@ -8,6 +8,7 @@ import { registerMesh } from "./mesh.js";
 import { registerExtract } from "./extract.js";
 import { registerDemo } from "./demo.js";
 import { registerView } from "./view.js";
+import { registerSweep } from "./sweep.js";
 
 const require = createRequire(import.meta.url);
 const pkg = require("../../package.json") as { version: string };
@@ -37,6 +38,7 @@ export function buildProgram(): Command {
   registerExtract(program);
   registerDemo(program);
   registerView(program);
+  registerSweep(program);
   return program;
 }
 

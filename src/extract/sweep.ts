@@ -1,0 +1,370 @@
+/**
+ * Parameter sweeps: a scene extracted at every point of a grid of parameter values, with
+ * chosen entries of the Maxwell (C) and mutual (Cm) matrices tabulated per point.
+ *
+ * Points are numbered from 0 in grid order, the first `--vary` parameter varying slowest.
+ * `--shard i/N` (0 ≤ i < N) takes the points whose number is ≡ i (mod N), so N jobs of a
+ * batch scheduler's job array cover the sweep between them; `mergeSweepCsv` joins their
+ * tables, refusing mismatched headers and repeated points and naming the missing ones.
+ *
+ * Each point is an independent extraction of the scene with its parameters replaced
+ * (`loadScene(..., { parameters })`, the same reading as a scene written by hand with those
+ * numbers). They run either one after another in this process, each using every core
+ * through the worker pool, or as child processes (`sigmesh extract --json -`) with one
+ * thread each, several at once.
+ */
+import { spawn } from "node:child_process";
+import { mkdtempSync, writeFileSync, rmSync, readFileSync } from "node:fs";
+import { tmpdir } from "node:os";
+import { join, dirname, resolve, isAbsolute } from "node:path";
+import { InputError } from "../io/errors.js";
+import { loadScene } from "../io/inputs.js";
+import { substituteScene, loadSceneFile } from "../io/scene.js";
+import { checkMesh } from "../mesh/check.js";
+import { pairSentence } from "../report/check-summary.js";
+import { csvText, parseCsv } from "../report/csv.js";
+import { linePlotSvg, type PlotSeries } from "../report/svg-plot.js";
+import { compiledUrl } from "../linalg/pool.js";
+import { extract, type ExtractOptions } from "./extract.js";
+import { fileURLToPath } from "node:url";
+
+/** One swept parameter and its values, in the order they are run. */
+export interface SweepAxis {
+  name: string;
+  values: number[];
+  /** Values are logarithmically spaced (the plot's x axis is then logarithmic). */
+  log: boolean;
+}
+
+const NUMBER = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
+
+/**
+ * Read `NAME=START:STOP:COUNT` (linear steps), `NAME=log:START:STOP:COUNT` (logarithmic
+ * steps, START and STOP positive) or `NAME=V1,V2,...` (the values given). Both ends are
+ * included and exact. InputError naming the option and the fault otherwise.
+ */
+export function parseVary(text: string): SweepAxis {
+  const bad = (fault: string): never => { throw new InputError(`--vary "${text}": ${fault}`); };
+  const eq = text.indexOf("=");
+  if (eq < 0) bad("expected NAME=START:STOP:COUNT, NAME=log:START:STOP:COUNT or NAME=V1,V2,... (e.g. gap=1:5:9)");
+  const name = text.slice(0, eq).trim();
+  if (!/^[A-Za-z_][A-Za-z0-9_]*$/.test(name)) bad(name === "" ? "no parameter name before \"=\"" : `"${name}" is not a parameter name (letters, digits, underscores)`);
+  const spec = text.slice(eq + 1).trim();
+  const num = (s: string, what: string): number => {
+    const t = s.trim();
+    if (!NUMBER.test(t)) bad(`${what} "${t}" is not a number`);
+    const x = Number(t);
+    if (!Number.isFinite(x)) bad(`${what} "${t}" is out of range`);
+    return x;
+  };
+  if (spec.includes(":")) {
+    const parts = spec.split(":");
+    const log = parts[0].trim().toLowerCase() === "log";
+    if (log) parts.shift();
+    if (parts.length !== 3) bad(`expected ${log ? "log:" : ""}START:STOP:COUNT, got ${parts.length} field${parts.length === 1 ? "" : "s"} after "${log ? "log:" : "="}"`);
+    const a = num(parts[0], "start"), b = num(parts[1], "stop");
+    const c = parts[2].trim();
+    if (!/^\d+$/.test(c) || Number(c) < 2) bad(`count "${c}" must be a whole number of at least 2 (the points from start to stop inclusive)`);
+    const n = Number(c);
+    if (n > 100000) bad(`count ${n} is more than 100000 points`);
+    if (a === b) bad(`start and stop are both ${a}: give a list (${name}=${a}) for one value`);
+    if (log && !(a > 0 && b > 0)) bad("logarithmic steps need a positive start and stop");
+    const values: number[] = [];
+    for (let k = 0; k < n; k++) {
+      const f = k / (n - 1);
+      values.push(k === 0 ? a : k === n - 1 ? b : log ? a * (b / a) ** f : a + (b - a) * f);
+    }
+    return { name, values, log };
+  }
+  if (spec === "") bad("no values after \"=\"");
+  const values = spec.split(",").map((s, i) => num(s, `value ${i + 1}`));
+  const seen = new Set<number>();
+  for (const v of values) { if (seen.has(v)) bad(`${v} is listed twice`); seen.add(v); }
+  return { name, values, log: false };
+}
+
+/** Every combination of the axes' values, the first axis varying slowest. */
+export function sweepGrid(axes: readonly SweepAxis[]): Array<Record<string, number>> {
+  const names = new Set<string>();
+  for (const a of axes) {
+    if (names.has(a.name)) throw new InputError(`--vary: "${a.name}" is varied twice; give its values once`);
+    names.add(a.name);
+  }
+  let points: Array<Record<string, number>> = [{}];
+  for (const a of axes) points = points.flatMap((p) => a.values.map((v) => ({ ...p, [a.name]: v })));
+  if (points.length > 1_000_000) throw new InputError(`--vary: the grid has ${points.length} points, more than 1000000`);
+  return points;
+}
+
+/** A slice of a sweep: points numbered ≡ `index` (mod `count`), 0-based. */
+export interface Shard { index: number; count: number }
+
+/** `I/N` with 0 ≤ I < N. */
+export function parseShard(text: string): Shard {
+  const m = /^\s*(\d+)\s*\/\s*(\d+)\s*$/.exec(text);
+  if (!m) throw new InputError(`--shard "${text}": expected I/N (slice I of N, 0-based: 0/4, 1/4, 2/4, 3/4)`);
+  const index = Number(m[1]), count = Number(m[2]);
+  if (count < 1) throw new InputError(`--shard "${text}": N must be at least 1`);
+  if (index >= count) throw new InputError(`--shard "${text}": I must be from 0 to ${count - 1} (slices are numbered from 0)`);
+  return { index, count };
+}
+
+/** Point numbers of a shard, in order. */
+export function shardPoints(total: number, shard?: Shard): number[] {
+  const out: number[] = [];
+  for (let k = 0; k < total; k++) if (!shard || k % shard.count === shard.index) out.push(k);
+  return out;
+}
+
+/** An entry of the Maxwell matrix (`C`) or of the two-terminal (mutual) matrix (`Cm`), by conductor names. */
+export interface MatrixEntry { matrix: "C" | "Cm"; row: string; column: string }
+
+export const entryLabel = (e: MatrixEntry): string => `${e.matrix}(${e.row},${e.column})`;
+
+/** The default: every Maxwell diagonal entry, then the mutual entries between the first conductor and each other one. */
+export function defaultEntries(names: readonly string[]): MatrixEntry[] {
+  return [
+    ...names.map((n): MatrixEntry => ({ matrix: "C", row: n, column: n })),
+    ...names.slice(1).map((n): MatrixEntry => ({ matrix: "Cm", row: names[0], column: n })),
+  ];
+}
+
+/** `C(a,b),Cm(a,c),...` checked against the conductor names. */
+export function parseEntries(text: string, names: readonly string[]): MatrixEntry[] {
+  const out: MatrixEntry[] = [];
+  const re = /\s*(Cm|C)\s*\(\s*([^,()]+?)\s*,\s*([^,()]+?)\s*\)\s*/y;
+  const bad = (at: number): never => {
+    throw new InputError(`--entries "${text}": expected a list like C(pad,pad),Cm(pad,ground) (C: Maxwell matrix, Cm: two-terminal), problem at character ${at + 1}`);
+  };
+  let at = 0;
+  for (;;) {
+    re.lastIndex = at;
+    const m = re.exec(text);
+    if (!m) return bad(at);
+    const e: MatrixEntry = { matrix: m[1] as "C" | "Cm", row: m[2], column: m[3] };
+    for (const n of [e.row, e.column]) {
+      if (!names.includes(n)) throw new InputError(`--entries "${text}": ${entryLabel(e)} names "${n}", which is not a conductor; the conductors are: ${names.join(", ")}`);
+    }
+    out.push(e);
+    at = re.lastIndex;
+    if (at === text.length) return out;
+    if (text[at] !== ",") return bad(at);
+    at++;
+  }
+}
+
+/** Value of an entry; farads. `maxwell` and `mutual` are row-major k×k in the order of `names`. */
+export function entryValue(e: MatrixEntry, names: readonly string[], maxwell: ArrayLike<number>, mutual: ArrayLike<number>): number {
+  const k = names.length, i = names.indexOf(e.row), j = names.indexOf(e.column);
+  return (e.matrix === "C" ? maxwell : mutual)[i * k + j];
+}
+
+/** What one point yields: the conductor names and both matrices (F, row-major). */
+export interface PointMatrices { names: string[]; maxwell: ArrayLike<number>; mutual: ArrayLike<number> }
+
+export interface SweepRunOptions {
+  /** Extraction settings passed to every point. */
+  method?: "galerkin" | "collocation";
+  solver?: "auto" | "direct" | "iterative" | "compressed";
+  tolerance?: number;
+  refine?: number;
+  /** Child processes at once (each with one thread); 0 runs the points in this process, one after another, on every core. */
+  processes?: number;
+  /** Called after each point (for progress). */
+  onPoint?: (done: number, total: number) => void;
+}
+
+const describePoint = (k: number, p: Record<string, number>): string =>
+  `sweep point ${k} (${Object.entries(p).map(([n, v]) => `${n}=${v}`).join(", ")})`;
+
+/** One point in this process: the same steps as `sigmesh extract` (load, refuse touching conductors, extract). */
+export async function extractPoint(scene: string, point: Record<string, number>, opts: SweepRunOptions = {}, k = 0): Promise<PointMatrices> {
+  try {
+    const s = loadScene(scene, { parameters: point });
+    const errors = checkMesh(s.mesh).pairs.filter((p) => p.severity === "error");
+    if (errors.length > 0) throw new InputError(pairSentence(errors[0], s.unit), scene);
+    const options: ExtractOptions = {
+      permittivity: s.permittivity, breakdownField: s.breakdownField, potentials: s.potentials,
+      groundPlane: s.groundPlane, symmetry: s.symmetry, floating: s.floating,
+      method: opts.method ?? "galerkin", solver: opts.solver ?? "auto", tolerance: opts.tolerance ?? 1e-4, refine: opts.refine ?? 0,
+    };
+    const r = await extract(s.mesh, options);
+    return { names: r.names, maxwell: r.maxwell, mutual: r.mutual };
+  } catch (err) {
+    if (err instanceof InputError) throw new InputError(err.fault, err.file ?? scene, [describePoint(k, point), err.place].filter(Boolean).join(", "));
+    throw err;
+  }
+}
+
+function cliPath(): string {
+  const here = import.meta.url;
+  return fileURLToPath(here.endsWith(".ts") ? compiledUrl(new URL("../../cli/main.ts", here).href) : new URL("../../cli/main.js", here).href);
+}
+
+/** The substituted scene with mesh paths made absolute, so it can be read from anywhere. */
+function standaloneSceneText(scene: string, point: Record<string, number>): string {
+  const value = substituteScene(readFileSync(scene, "utf8"), scene, point);
+  const base = dirname(resolve(scene));
+  const list = Array.isArray(value.conductors) ? value.conductors : [];
+  for (const c of list as Array<Record<string, unknown>>) {
+    if (c && typeof c.mesh === "string" && !isAbsolute(c.mesh)) c.mesh = resolve(base, c.mesh);
+  }
+  return JSON.stringify(value, null, 2);
+}
+
+function runChild(args: string[], env: NodeJS.ProcessEnv): Promise<{ code: number | null; out: string; err: string }> {
+  return new Promise((done, fail) => {
+    const child = spawn(process.execPath, args, { env, stdio: ["ignore", "pipe", "pipe"] });
+    const out: Buffer[] = [], err: Buffer[] = [];
+    child.stdout.on("data", (b: Buffer) => out.push(b));
+    child.stderr.on("data", (b: Buffer) => err.push(b));
+    child.on("error", fail);
+    child.on("close", (code) => done({ code, out: Buffer.concat(out).toString("utf8"), err: Buffer.concat(err).toString("utf8") }));
+  });
+}
+
+/**
+ * Extract the scene at the given points (numbers `indices` of the grid `points`), in order
+ * of `indices`; resolves with one result per index. Bad input at any point rejects with an
+ * InputError naming the point.
+ */
+export async function runSweep(scene: string, points: ReadonlyArray<Record<string, number>>, indices: readonly number[],
+  opts: SweepRunOptions = {}): Promise<PointMatrices[]> {
+  const out: PointMatrices[] = new Array(indices.length);
+  const processes = opts.processes ?? 0;
+  let done = 0;
+  if (processes <= 0) {
+    for (let q = 0; q < indices.length; q++) {
+      out[q] = await extractPoint(scene, points[indices[q]], opts, indices[q]);
+      opts.onPoint?.(++done, indices.length);
+    }
+    return out;
+  }
+  const cli = cliPath();
+  const dir = mkdtempSync(join(tmpdir(), "sigmesh-sweep-"));
+  const env = { ...process.env, SIGMESH_THREADS: "1" };
+  const flags = ["--method", opts.method ?? "galerkin", "--solver", opts.solver ?? "auto", "--tol", String(opts.tolerance ?? 1e-4), "--refine", String(opts.refine ?? 0)];
+  let next = 0;
+  let failed: unknown;
+  const worker = async (): Promise<void> => {
+    while (failed === undefined && next < indices.length) {
+      const q = next++;
+      const k = indices[q], point = points[k];
+      try {
+        const file = join(dir, `point-${k}.json`);
+        writeFileSync(file, standaloneSceneText(scene, point));
+        const r = await runChild([cli, "extract", file, "--json", "-", "--quiet", ...flags], env);
+        if (r.code !== 0) {
+          const line = (r.err.split("\n").find((l) => l.startsWith("sigmesh: error:") || l.startsWith("sigmesh: internal error:")) ?? r.err.trim())
+            .replace(/^sigmesh: (internal )?error: /, "").split(file).join(scene);
+          if (r.code === 2) throw new InputError(line.startsWith(`${scene}: `) ? line.slice(scene.length + 2) : line, scene, describePoint(k, point));
+          throw new Error(`${describePoint(k, point)}: ${line}`);
+        }
+        const report = JSON.parse(r.out) as { conductors: Array<{ name: string }>; capacitance: { maxwell: number[][]; mutual: number[][] } };
+        out[q] = { names: report.conductors.map((c) => c.name), maxwell: report.capacitance.maxwell.flat(), mutual: report.capacitance.mutual.flat() };
+        opts.onPoint?.(++done, indices.length);
+      } catch (err) {
+        if (failed === undefined) failed = err;
+      }
+    }
+  };
+  try {
+    await Promise.all(Array.from({ length: Math.min(processes, indices.length) }, worker));
+  } finally {
+    rmSync(dir, { recursive: true, force: true });
+  }
+  if (failed !== undefined) throw failed;
+  return out;
+}
+
+/** Conductor names of the scene at a point, without meshing it (for checking `--entries` before running). */
+export function sceneConductorNames(scene: string, point: Record<string, number>): string[] {
+  return loadSceneFile(scene, { parameters: point }).conductors.map((c) => c.name);
+}
+
+const pointHeader = (total: number): string => `point (of ${total})`;
+
+/**
+ * The sweep table as CSV (RFC 4180, via `csvText`): a header, then one record per point
+ * run: its number, the varied parameters' values, then the entries in farads.
+ */
+export function sweepCsv(axes: readonly SweepAxis[], entries: readonly MatrixEntry[], total: number,
+  indices: readonly number[], points: ReadonlyArray<Record<string, number>>, results: readonly PointMatrices[]): string {
+  const records: Array<Array<string | number>> = [[pointHeader(total), ...axes.map((a) => a.name), ...entries.map((e) => `${entryLabel(e)} (F)`)]];
+  indices.forEach((k, q) => {
+    const r = results[q];
+    records.push([k, ...axes.map((a) => points[k][a.name]), ...entries.map((e) => entryValue(e, r.names, r.maxwell, r.mutual))]);
+  });
+  return csvText(records);
+}
+
+/**
+ * Join slices' CSV tables into the table of the whole sweep, points in order. Headers must
+ * be identical and no point may appear twice; missing points are listed (not an error, so
+ * a partial table can be looked at; the caller says so).
+ */
+export function mergeSweepCsv(files: ReadonlyArray<{ file: string; text: string }>): { text: string; total: number; missing: number[] } {
+  if (files.length === 0) throw new InputError("sweep merge: no CSV files given");
+  let header: string[] | undefined;
+  let headerFile = "";
+  let total = 0;
+  const rows = new Map<number, { file: string; line: number; cells: string[] }>();
+  for (const { file, text } of files) {
+    let records: string[][];
+    try { records = parseCsv(text); } catch (err) {
+      const m = /^line (\d+): (.*)$/.exec((err as Error).message);
+      throw new InputError(m ? m[2] : (err as Error).message, file, m ? `line ${m[1]}` : undefined);
+    }
+    if (records.length === 0) throw new InputError("empty file (expected a sweep table)", file);
+    const head = records[0];
+    const t = /^point \(of (\d+)\)$/.exec(head[0] ?? "");
+    if (!t) throw new InputError(`the first column is "${head[0] ?? ""}", not "point (of N)": not a sigmesh sweep table`, file, "line 1");
+    if (header === undefined) { header = head; headerFile = file; total = Number(t[1]); }
+    else if (head.length !== header.length || head.some((h, i) => h !== header![i])) {
+      throw new InputError(`header differs from ${headerFile}'s (${head.join(",")} against ${header.join(",")}): the slices are of different sweeps`, file, "line 1");
+    }
+    records.slice(1).forEach((cells, i) => {
+      const line = i + 2;
+      if (cells.length === 1 && cells[0] === "") return;
+      if (cells.length !== header!.length) throw new InputError(`expected ${header!.length} fields, got ${cells.length}`, file, `line ${line}`);
+      if (!/^\d+$/.test(cells[0]) || Number(cells[0]) >= total) throw new InputError(`point "${cells[0]}" is not a point number from 0 to ${total - 1}`, file, `line ${line}`);
+      const k = Number(cells[0]);
+      const seen = rows.get(k);
+      if (seen) throw new InputError(`point ${k} is already in ${seen.file}, line ${seen.line}`, file, `line ${line}`);
+      rows.set(k, { file, line, cells });
+    });
+  }
+  const order = [...rows.keys()].sort((a, b) => a - b);
+  const missing: number[] = [];
+  for (let k = 0; k < total; k++) if (!rows.has(k)) missing.push(k);
+  return { text: csvText([header!, ...order.map((k) => rows.get(k)!.cells)]), total, missing };
+}
+
+/**
+ * The chosen entries against the first parameter as an SVG line plot; with more than one
+ * parameter, one line per combination of the others' values.
+ */
+export function sweepSvg(axes: readonly SweepAxis[], entries: readonly MatrixEntry[], indices: readonly number[],
+  points: ReadonlyArray<Record<string, number>>, results: readonly PointMatrices[], title: string): string {
+  const first = axes[0];
+  const others = axes.slice(1);
+  const groups = new Map<string, number[]>();
+  indices.forEach((k, q) => {
+    const key = others.map((a) => `${a.name}=${points[k][a.name]}`).join(", ");
+    const g = groups.get(key) ?? [];
+    g.push(q);
+    groups.set(key, g);
+  });
+  const series: PlotSeries[] = [];
+  for (const e of entries) {
+    for (const [key, qs] of groups) {
+      const sorted = [...qs].sort((a, b) => points[indices[a]][first.name] - points[indices[b]][first.name]);
+      series.push({
+        label: key ? `${entryLabel(e)}, ${key}` : entryLabel(e),
+        x: sorted.map((q) => points[indices[q]][first.name]),
+        y: sorted.map((q) => { const r = results[q]; return entryValue(e, r.names, r.maxwell, r.mutual); }),
+      });
+    }
+  }
+  return linePlotSvg(series, { title, x: { label: first.name, log: first.log, prefix: false }, y: { label: "capacitance", unit: "F" } });
+}
