@@ -17,6 +17,7 @@ import { galerkinEntry, RHO_FAR, RHO_QUADRUPOLE } from "./galerkin.js";
 import { collocationEntry, COLLOCATION_FAR } from "./collocation.js";
 import { sharedFloat64, sharedPool, type WorkerPool } from "../linalg/pool.js";
 import { hasImages, imageSet, type ImageSet, type KernelSpec } from "./images.js";
+import type { InterfaceTesting } from "./interface.js";
 
 export type Discretisation = "galerkin" | "collocation";
 
@@ -272,4 +273,35 @@ export function preparedImages(P: PanelSet, kernel: KernelSpec | ImageSet | unde
     return kernel;
   }
   return hasImages(kernel) ? imageSet(P, kernel, { shared }) : undefined;
+}
+
+/**
+ * The N×N matrix of the equivalent-charge formulation with dielectric interfaces (bem/interface.ts):
+ * panels [0, nConductor) are conductors and keep the rows of `method` (over all N columns, so
+ * they include the potential of the interface charges); panels [nConductor, N) are interface
+ * panels whose rows are the normal-displacement rows with λ = lambda[i − nConductor], tested by
+ * `testing`. The conductor rows come from assembleDense (whose interface rows are then
+ * overwritten), the interface rows from interface.ts on every worker of `pool`.
+ */
+export async function assembleWithInterfaces(P: PanelSet, nConductor: number, lambda: Float64Array, method: Discretisation,
+  testing: InterfaceTesting, pool: WorkerPool = sharedPool(), kernel?: KernelSpec | ImageSet): Promise<Float64Array> {
+  const N = P.n, ni = N - nConductor;
+  if (lambda.length !== ni) throw new Error(`assembleWithInterfaces: ${lambda.length} contrasts for ${ni} interface panels`);
+  const S = sharedPanels(P);
+  const images = preparedImages(S, kernel, true);
+  const out = await assembleDense(S, method, pool, undefined, images);
+  if (ni === 0) return out;
+  const rows = new Uint32Array(new SharedArrayBuffer(4 * ni));
+  for (let a = 0; a < ni; a++) rows[a] = nConductor + a;
+  const lam = sharedFloat64(ni);
+  lam.set(lambda);
+  const parts = Math.max(1, Math.min(pool.size, ni));
+  const url = new URL(import.meta.url.endsWith(".ts") ? "./interface.ts" : "./interface.js", import.meta.url).href;
+  const args: unknown[][] = [];
+  for (let p = 0; p < parts; p++) {
+    const a0 = Math.round((ni * p) / parts), a1 = Math.round((ni * (p + 1)) / parts);
+    args.push(images ? [S, rows, lam, a0, a1, out, testing, images] : [S, rows, lam, a0, a1, out, testing]);
+  }
+  await pool.map(url, "interfaceRowsTask", args);
+  return out;
 }

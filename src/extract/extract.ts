@@ -31,6 +31,10 @@ import {
   edgeInSymmetryPlane, foldVectors, type AxisPlane, type KernelSpec, type ImageSet,
 } from "../bem/images.js";
 import { eliminateFloating, withFloatingPotentials } from "./floating.js";
+import { prepareBodies, dielectricModel, freeCharges, dielectricExcitation, type DielectricBody, type BodySummary, type DielectricModel } from "./dielectric.js";
+import { solveUnitPotentialsWithInterfaces } from "./solve.js";
+import { panelSet } from "../bem/panels.js";
+import type { InterfaceTesting } from "../bem/interface.js";
 
 export interface ExtractOptions {
   /** Relative permittivity of the uniform medium (default 1). */
@@ -56,6 +60,26 @@ export interface ExtractOptions {
   symmetry?: AxisPlane[];
   /** Per conductor: zero net charge at a potential solved for (its entry in `potentials` is ignored). */
   floating?: ArrayLike<boolean>;
+  /** Dielectric bodies: closed surfaces (metres) with their relative permittivity, in the background `permittivity`. */
+  dielectrics?: DielectricBody[];
+  /** Testing of the interface rows (default galerkin: measured more accurate, bem/interface.ts). */
+  interfaceTesting?: InterfaceTesting;
+}
+
+/** What the dielectric model did, on the finest mesh. */
+export interface DielectricResult {
+  bodies: BodySummary[];
+  /** Interface panels kept (unknowns besides the conductor panels). */
+  interfacePanels: number;
+  /** Coincident panels of touching bodies merged into one. */
+  mergedInterfacePanels: number;
+  testing: InterfaceTesting;
+  /** Relative permittivity just outside each conductor panel (finest mesh). */
+  conductorPermittivity: Float64Array;
+  /** All panels of the finest model (conductors first, then interfaces) and their total charges at the working potentials; coulombs (for field probes: every charge radiates in vacuum). */
+  panels: PanelSet;
+  totalCharge: Float64Array;
+  model: DielectricModel;
 }
 
 export interface ConductorResult {
@@ -135,6 +159,9 @@ export interface ExtractionResult {
   /** Names of the floating conductors and their solved potentials (V), in conductor order. */
   floatingNames: string[];
   floatingPotentials: Float64Array;
+  /** Interface panels removed because a conductor covers or encloses them, or they lie in the ground plane (0 without dielectrics). */
+  removedInterfacePanels: number;
+  dielectric?: DielectricResult;
   /** Maxwell matrix with the floating conductors eliminated (Schur complement), over `reducedNames`; F. Equals `maxwell` when none floats. */
   reducedMaxwell: Float64Array;
   reducedMutual: Float64Array;
@@ -179,6 +206,17 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   } else potentials[floating.indexOf(false)] = 1;
   const pool = opts.pool ?? sharedPool();
   const warnings: string[] = [];
+  const testing: InterfaceTesting = opts.interfaceTesting ?? "galerkin";
+  if (testing !== "collocation" && testing !== "galerkin") throw new InputError(`interface testing must be collocation or galerkin, got ${String(testing)}`);
+  let bodies = opts.dielectrics && opts.dielectrics.length > 0 ? prepareBodies(opts.dielectrics, er) : undefined;
+  if (bodies && (opts.symmetry?.length ?? 0) > 0) throw new InputError("dielectric bodies cannot be combined with symmetry planes yet: mesh the whole model");
+  if (bodies) {
+    const flipped = bodies.filter((b) => b.flipped).map((b) => b.name);
+    if (flipped.length > 0) warnings.push(`dielectric interface(s) ${flipped.join(", ")} were wound inward or inconsistently and have been reoriented`);
+  }
+  let model: DielectricModel | undefined;
+  let totalX: Float64Array | undefined;
+  let allPanels: PanelSet | undefined;
 
   let removedInSymmetryPlane = 0;
   if (kernel) {
@@ -225,6 +263,22 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   const nLevels = refine + 1;
   for (let level = 0; level <= refine; level++) {
     if (level > 0) mesh = refineUniform(mesh);
+    if (bodies) {
+      if (level > 0) bodies = bodies.map((b) => ({ ...b, mesh: refineUniform(b.mesh) }));
+      model = dielectricModel(mesh, bodies, er, opts.groundPlane);
+      const dsol = await solveUnitPotentialsWithInterfaces(model.positions, model.triangles, mesh.conductor, k, model.lambda, testing, {
+        method, solver: opts.solver ?? "auto", tolerance, pool, memoryLimit: opts.memoryLimit, kernel,
+        progress: (phase, f) => opts.progress?.(phase, f, level, nLevels),
+      });
+      const images = kernel ? imageSet(dsol.panels, kernel) : undefined;
+      const xFree = freeCharges(model, dsol.panels, dsol.x, k, images);
+      const qd = conductorCharges(xFree, mesh.conductor, k);
+      for (let i = 0; i < qd.length; i++) qd[i] *= 4 * Math.PI * EPSILON_0 * copies;
+      levels.push({ panels: dsol.panels.n, maxwell: qd, info: dsol.info });
+      totalX = dsol.x; allPanels = dsol.panels;
+      last = { x: xFree, panels: panelSet(mesh.positions, mesh.triangles), info: dsol.info };
+      continue;
+    }
     const sol = await solveUnitPotentials(mesh.positions, mesh.triangles, mesh.conductor, k, {
       method, solver: opts.solver ?? "auto", tolerance, pool, memoryLimit: opts.memoryLimit, kernel,
       progress: (phase, f) => opts.progress?.(phase, f, level, nLevels),
@@ -243,7 +297,7 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   if (refine > 0) {
     const sharp = closed.some((c) => !c) || hasFeatureEdges(orientedMesh);
     const sym = levels.map((l) => capacitanceMatrices(l.maxwell, k, input.names).maxwell);
-    const r = richardson(sym, k, { assumedOrder: opts.assumedOrder ?? assumedOrder(sharp), fromBelow: method === "galerkin" });
+    const r = richardson(sym, k, { assumedOrder: opts.assumedOrder ?? assumedOrder(sharp), fromBelow: method === "galerkin" && !bodies });
     accuracy = { levels: levels.map((l, i) => ({ panels: l.panels, maxwell: sym[i] })), richardson: r, extrapolated: true };
     maxwell = r.extrapolated;
     warnings.push(...r.warnings);
@@ -270,33 +324,50 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   // Excitation on the finest mesh.
   const P = last.panels;
   const images = kernel ? imageSet(P, kernel) : undefined;
-  const openPanel = new Uint8Array(P.n);
-  for (let p = 0; p < P.n; p++) openPanel[p] = closed[mesh.conductor[p]] ? 0 : 1;
-  // Open sheets need the two-sided (principal-value) field of all the charge at their panels,
-  // for their stronger face's field and their force.
-  let excitation = panelExcitation(last.x, k, P, working, eps, openPanel);
-  let nOpen = 0;
-  for (let p = 0; p < P.n; p++) nOpen += openPanel[p];
-  let fieldPv: Float64Array | undefined;
-  if (nOpen > 0) {
-    opts.progress?.("fields", 0, refine, nLevels);
-    const list = new Uint32Array(nOpen);
-    for (let p = 0, a = 0; p < P.n; p++) if (openPanel[p]) list[a++] = p;
-    const e = centroidFields(P, excitation.charge, eps, list, images);
-    fieldPv = new Float64Array(3 * P.n);
-    const normalPv = new Float64Array(P.n);
-    for (let a = 0; a < nOpen; a++) {
-      const p = list[a];
-      fieldPv[3 * p] = e[3 * a]; fieldPv[3 * p + 1] = e[3 * a + 1]; fieldPv[3 * p + 2] = e[3 * a + 2];
-      normalPv[p] = e[3 * a] * P.normals[3 * p] + e[3 * a + 1] * P.normals[3 * p + 1] + e[3 * a + 2] * P.normals[3 * p + 2];
+  let excitation: PanelExcitation, rawForce: Float64Array, complete: boolean;
+  let dielectric: DielectricResult | undefined;
+  if (model && totalX && allPanels) {
+    // Every charge radiates in vacuum: fields and forces from the total charges of all panels.
+    const allImages = kernel ? imageSet(allPanels, kernel) : undefined;
+    const d = dielectricExcitation(model, allPanels, totalX, k, working, mesh.conductor, k, allImages);
+    excitation = d.excitation; rawForce = d.force; complete = true;
+    const totalCharge = new Float64Array(allPanels.n);
+    totalCharge.set(scaleCopy(xAtWorking(totalX, k, working), 4 * Math.PI * EPSILON_0));
+    dielectric = {
+      bodies: model.bodies, interfacePanels: model.ni, mergedInterfacePanels: model.mergedInterfacePanels, testing,
+      conductorPermittivity: model.conductorPlus, panels: allPanels, totalCharge, model,
+    };
+    if (model.removedInterfacePanels > 0) warnings.push(`${model.removedInterfacePanels} dielectric interface panel(s) covered by or inside a conductor (or in the ground plane) were removed`);
+  } else {
+    const openPanel = new Uint8Array(P.n);
+    for (let p = 0; p < P.n; p++) openPanel[p] = closed[mesh.conductor[p]] ? 0 : 1;
+    // Open sheets need the two-sided (principal-value) field of all the charge at their panels,
+    // for their stronger face's field and their force.
+    excitation = panelExcitation(last.x, k, P, working, eps, openPanel);
+    let nOpen = 0;
+    for (let p = 0; p < P.n; p++) nOpen += openPanel[p];
+    let fieldPv: Float64Array | undefined;
+    if (nOpen > 0) {
+      opts.progress?.("fields", 0, refine, nLevels);
+      const list = new Uint32Array(nOpen);
+      for (let p = 0, a = 0; p < P.n; p++) if (openPanel[p]) list[a++] = p;
+      const e = centroidFields(P, excitation.charge, eps, list, images);
+      fieldPv = new Float64Array(3 * P.n);
+      const normalPv = new Float64Array(P.n);
+      for (let a = 0; a < nOpen; a++) {
+        const p = list[a];
+        fieldPv[3 * p] = e[3 * a]; fieldPv[3 * p + 1] = e[3 * a + 1]; fieldPv[3 * p + 2] = e[3 * a + 2];
+        normalPv[p] = e[3 * a] * P.normals[3 * p] + e[3 * a + 1] * P.normals[3 * p + 1] + e[3 * a + 2] * P.normals[3 * p + 2];
+      }
+      excitation = panelExcitation(last.x, k, P, working, eps, openPanel, normalPv);
+      opts.progress?.("fields", 1, refine, nLevels);
     }
-    excitation = panelExcitation(last.x, k, P, working, eps, openPanel, normalPv);
-    opts.progress?.("fields", 1, refine, nLevels);
+    const forces = conductorForces(excitation.sigma, P, mesh.conductor, k, eps, openPanel, fieldPv);
+    complete = forces.complete;
+    rawForce = forces.force;
   }
   const peaks = peakFields(excitation.field, mesh.conductor, k, P);
-  const forces = conductorForces(excitation.sigma, P, mesh.conductor, k, eps, openPanel, fieldPv);
-  const complete = forces.complete;
-  const force = kernel ? foldVectors(kernel, forces.force) : forces.force;
+  const force = kernel ? foldVectors(kernel, rawForce) : rawForce;
   const q = chargesAt(maxwell, k, working);
   const energy = storedEnergy(maxwell, k, working);
   const areas = conductorAreas(mesh);
@@ -320,12 +391,13 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   return {
     names: input.names.slice(), conductors, k, permittivity: eps, relativePermittivity: er, breakdownField,
     maxwell, mutual, asymmetry: finest.asymmetry, energy, potentials: working, mesh, panelConductor: mesh.conductor,
-    excitation, panels: P, unitCharges: scaleCopy(last.x, 4 * Math.PI * eps), peaks, forcesComplete: complete, accuracy,
+    excitation, panels: P, unitCharges: scaleCopy(last.x, 4 * Math.PI * (model ? EPSILON_0 : eps)), peaks, forcesComplete: complete, accuracy,
     solver: { ...lastInfo, seconds, peakMemory: peakResidentBytes(), levels },
     orientation: { flippedComponents, unorientable },
     reference: kernel?.groundPlane ? "ground plane" : "infinity",
     groundPlane: opts.groundPlane, symmetry: (opts.symmetry ?? []).slice(), symmetryCopies: copies, images, removedInSymmetryPlane,
     floatingNames, floatingPotentials, reducedMaxwell, reducedMutual, reducedNames,
+    removedInterfacePanels: model?.removedInterfacePanels ?? 0, dielectric,
     warnings,
   };
 }
@@ -397,6 +469,13 @@ function closeBySymmetry(spec: KernelSpec, mesh: SurfaceMesh, table: ReturnType<
   const conductorClosed = new Array<boolean>(k).fill(true);
   for (let t = 0; t < nt; t++) if (strayEdge[componentOf[t]]) conductorClosed[mesh.conductor[t]] = false;
   return { mesh: flipped > 0 ? { ...mesh, triangles } : mesh, conductorClosed, flipped };
+}
+
+/** Σ_j x[p·k + j] V_j per row p. */
+function xAtWorking(x: Float64Array, k: number, potentials: ArrayLike<number>): Float64Array {
+  const n = x.length / k, out = new Float64Array(n);
+  for (let p = 0; p < n; p++) { let s = 0; for (let j = 0; j < k; j++) s += x[p * k + j] * potentials[j]; out[p] = s; }
+  return out;
 }
 
 function scaleCopy(a: Float64Array, s: number): Float64Array {

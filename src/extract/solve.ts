@@ -6,7 +6,8 @@
  * (entries in 1/m), P·x = v gives physical panel charges Q = 4π ε0 εr x.
  */
 import { panelSetShared, type PanelSet } from "../bem/panels.js";
-import { assembleDense, preparedImages, type Discretisation } from "../bem/assembly.js";
+import { assembleDense, assembleWithInterfaces, preparedImages, type Discretisation } from "../bem/assembly.js";
+import type { InterfaceTesting } from "../bem/interface.js";
 import type { KernelSpec } from "../bem/images.js";
 import { choleskyFactor, choleskySolve, NotPositiveDefiniteError } from "../linalg/cholesky.js";
 import { luFactor, luSolve } from "../linalg/lu.js";
@@ -296,3 +297,72 @@ export function clusterCover(tree: ClusterTree, size: number): number[] {
 }
 
 export type { HMatrix };
+
+/**
+ * The dense solve with dielectric interfaces (equivalent-charge formulation, bem/interface.ts):
+ * panels [0, nConductor) are conductor panels (conductorOf gives their conductor), the rest
+ * interface panels with contrasts `lambda`. Every conductor at 1 V in turn; interface rows have
+ * right-hand side 0. The system is not symmetric: LU (direct) or GMRES with block-Jacobi LU
+ * (iterative). x (N×k) holds total charges, Q = 4π ε0 x, on all N panels. The compressed solver
+ * does not take interfaces yet: a request for it runs the dense iterative solver, and says so.
+ */
+export async function solveUnitPotentialsWithInterfaces(
+  positions: Float64Array, triangles: Uint32Array, conductorOf: Uint32Array, k: number, lambda: Float64Array,
+  testing: InterfaceTesting, opts: SolveOptions,
+): Promise<UnitSolution> {
+  const nc = conductorOf.length, N = triangles.length / 3;
+  if (N - nc !== lambda.length) throw new Error(`solveUnitPotentialsWithInterfaces: ${N} panels, ${nc} conductor panels, ${lambda.length} contrasts`);
+  let solver: "direct" | "iterative";
+  let choice: string;
+  if (opts.solver === "auto") {
+    const c = chooseSolver(N, k);
+    // LU costs twice the Cholesky flops the model counts.
+    const lu = chooseSolver(Math.round(N * Math.cbrt(2)), k);
+    solver = lu.solver === "direct" && c.solver === "direct" ? "direct" : "iterative";
+    choice = `auto (dielectric interfaces, non-symmetric): ${lu.reason}`;
+  } else if (opts.solver === "direct" || opts.solver === "iterative") {
+    solver = opts.solver; choice = "requested";
+  } else if (opts.solver === "compressed") {
+    solver = "iterative"; choice = "compressed requested, but it does not take dielectric interfaces yet: dense iterative";
+  } else throw new RangeError(`unknown solver ${String(opts.solver)}`);
+  assertDenseFits(N, k, opts.memoryLimit);
+  const progress = opts.progress ?? (() => {});
+  const panels = panelSetShared(positions, triangles);
+  progress("assembly", 0);
+  const t0 = performance.now();
+  const A = await assembleWithInterfaces(panels, nc, lambda, opts.method, testing, opts.pool, opts.kernel);
+  const t1 = performance.now();
+  progress("assembly", 1);
+  const B = sharedFloat64(N * k);
+  for (let p = 0; p < nc; p++) B[p * k + conductorOf[p]] = 1;
+  const info: SolveInfo = {
+    method: opts.method, solver, choice, panels: N, rightHandSides: k,
+    assemblySeconds: (t1 - t0) / 1e3, solveSeconds: 0, entriesPerSecond: (N * N) / Math.max(1e-9, (t1 - t0) / 1e3),
+  };
+  progress("solve", 0);
+  const t2 = performance.now();
+  let x: Float64Array;
+  if (solver === "direct") {
+    const piv = await luFactor(A, N, { pool: opts.pool });
+    info.factorGflops = (2 * N * N * N) / 3 / ((performance.now() - t2) / 1e3) / 1e9;
+    luSolve(A, piv, N, B, k);
+    x = B;
+  } else {
+    const tol = krylovTolerance(opts.tolerance);
+    const tree = clusterPoints(panels.centroids, 64);
+    const precondition = blockJacobi(A, N, leafIndexSets(tree), { lu: true });
+    const apply = (X: Float64Array, Y: Float64Array, kk: number) => denseMultiply(A, N, X, kk, Y, opts.pool);
+    const maxIter = Math.max(200, Math.ceil(4 * Math.sqrt(N)));
+    const res = await gmres(apply, precondition, B, k, { tol, maxIter });
+    if (!res.converged) {
+      throw new Error(`the iterative solver did not converge in ${res.iterations} iterations (residual ${Math.max(...res.residuals).toExponential(2)}); try --solver direct`);
+    }
+    info.iterations = res.iterations;
+    info.residual = Math.max(...res.residuals);
+    info.krylovTolerance = tol;
+    x = res.X;
+  }
+  info.solveSeconds = (performance.now() - t2) / 1e3;
+  progress("solve", 1);
+  return { x, panels, info };
+}

@@ -1,0 +1,402 @@
+/**
+ * Dielectric bodies by the equivalent (total) charge formulation (S. M. Rao, T. K. Sarkar,
+ * R. F. Harrington, IEEE Trans. MTT 32(11):1441, 1984): every charge — free and polarisation —
+ * radiates in vacuum (ε0); conductor panels carry their total charge and keep the potential rows
+ * of src/bem; interface panels carry polarisation charge and get the normal-displacement rows of
+ * bem/interface.ts. Free charge on a conductor panel is its total charge times ε_local/ε0, ε_local
+ * the permittivity of the medium just outside it (Gauss's law at the conductor surface: the
+ * displacement there is σ_free, the field σ_total/ε0).
+ *
+ * Media: each body is a closed, outward-oriented surface holding its permittivity. The medium at a
+ * point is the smallest body (by enclosed volume) whose winding number there is 1, else the
+ * background; so nested bodies resolve by containment and the two sides of every interface panel
+ * are read at points DELTA panel radii along ∓n̂ (touching bodies, bodies inside bodies).
+ * Interface panels are removed where a conductor covers them (centroid on a conductor panel within
+ * the coincidence tolerance and parallel), where they lie inside a closed conductor, or in the
+ * ground plane; coincident panels of two touching bodies are merged into one.
+ */
+import type { SurfaceMesh } from "../mesh/model.js";
+import { boundingDiagonal, triangleCount } from "../mesh/model.js";
+import { orientSurfaces, conductorTopology, buildEdgeTable } from "../mesh/topology.js";
+import { signedVolume } from "../mesh/measure.js";
+import { triangleBoxes, buildBoxTree, forEachItemInBox, type BoxTree } from "../mesh/bvh.js";
+import { panelSet, type PanelSet } from "../bem/panels.js";
+import { sourceFrame, frameDistance, triangleSolidAngle, FRAME_SIZE } from "../bem/triangle-potential.js";
+import { normalFieldAt } from "../bem/interface.js";
+import { fieldAt } from "../bem/field.js";
+import type { AxisPlane, ImageSet } from "../bem/images.js";
+import type { PanelExcitation } from "./excitation.js";
+import { InputError } from "../io/errors.js";
+import { EPSILON_0 } from "./constants.js";
+
+export interface DielectricBody {
+  name: string;
+  /** Closed surface; metres. */
+  mesh: SurfaceMesh;
+  /** Relative permittivity inside. */
+  permittivity: number;
+}
+
+/** A body checked and oriented outward, with what containment queries need. */
+export interface PreparedBody {
+  name: string;
+  permittivity: number;
+  mesh: SurfaceMesh;
+  /** m³, positive. */
+  volume: number;
+  flipped: boolean;
+}
+
+export interface BodySummary {
+  name: string;
+  permittivity: number;
+  /** Relative permittivity and name of the medium just outside (most of) its surface. */
+  outsidePermittivity: number;
+  outside: string;
+  panels: number;
+  /** Panels dropped as covered by, or enclosed in, a conductor or lying in the ground plane. */
+  removed: number;
+  /** Panels dropped as coincident with a panel of another body. */
+  merged: number;
+}
+
+export interface DielectricModel {
+  /** Conductor panels first (nc), then interface panels (ni); metres. */
+  positions: Float64Array;
+  triangles: Uint32Array;
+  nc: number;
+  ni: number;
+  /** Body index of each interface panel. */
+  interfaceBody: Uint32Array;
+  /** Relative permittivity on the − (inside) and + (outside) side of each interface panel. */
+  epsMinus: Float64Array;
+  epsPlus: Float64Array;
+  /** (ε+ − ε−)/(ε+ + ε−) per interface panel. */
+  lambda: Float64Array;
+  /** Relative permittivity just outside each conductor panel (+n̂ side) and on its −n̂ side (open sheets only; else equal). */
+  conductorPlus: Float64Array;
+  conductorMinus: Float64Array;
+  /** 1 for panels of open conductor sheets. */
+  openPanel: Uint8Array;
+  removedInterfacePanels: number;
+  mergedInterfacePanels: number;
+  bodies: BodySummary[];
+}
+
+/** Offset of the side-probing points, in panel radii. */
+export const DELTA = 1e-4;
+/** Coincidence tolerance, relative to the model's bounding diagonal. */
+export const COINCIDENCE = 1e-6;
+/** |n̂_a·n̂_b| at or above this counts as parallel. */
+const PARALLEL = 1 - 1e-6;
+
+/** Check and orient the bodies; InputError naming the body for open, non-manifold or bad input. */
+export function prepareBodies(bodies: DielectricBody[], background: number): PreparedBody[] {
+  const seen = new Set<string>();
+  return bodies.map((b, index) => {
+    const name = typeof b.name === "string" && b.name !== "" ? b.name : `dielectric ${index + 1}`;
+    if (seen.has(name)) throw new InputError(`dielectric ${name}: the name is used twice`);
+    seen.add(name);
+    const er = b.permittivity;
+    if (typeof er !== "number" || !Number.isFinite(er) || er < 1) {
+      throw new InputError(`dielectric ${name}: relative permittivity must be a number of at least 1, got ${String(er)}`);
+    }
+    if (!b.mesh || triangleCount(b.mesh) === 0) throw new InputError(`dielectric ${name}: the interface mesh has no triangles`);
+    void background;
+    const single: SurfaceMesh = { positions: b.mesh.positions, triangles: b.mesh.triangles, conductor: new Uint32Array(triangleCount(b.mesh)), names: [name] };
+    const table = buildEdgeTable(single);
+    const topo = conductorTopology(single, table)[0];
+    if (topo.boundaryEdges > 0) throw new InputError(`dielectric ${name}: the interface is not closed (${topo.boundaryEdges} boundary edges); a dielectric body must be a closed surface`);
+    if (topo.nonManifoldEdges > 0) throw new InputError(`dielectric ${name}: the interface has ${topo.nonManifoldEdges} edges shared by three or more triangles`);
+    const o = orientSurfaces(single, table);
+    let flipped = false;
+    for (const c of o.components) {
+      if (c.status === "non-orientable" || c.status === "non-manifold") throw new InputError(`dielectric ${name}: the interface cannot be oriented (${c.status})`);
+      if (c.status === "inward-flipped" || c.status === "repaired") flipped = true;
+    }
+    const volume = signedVolume(o.mesh);
+    if (!(volume > 0)) throw new InputError(`dielectric ${name}: the interface encloses no volume`);
+    return { name, permittivity: er, mesh: o.mesh, volume, flipped };
+  });
+}
+
+/** Containment queries over the prepared bodies. */
+class Media {
+  private readonly v: Float64Array[];
+  private readonly boxes: Float64Array;
+  constructor(private readonly bodies: PreparedBody[], private readonly background: number) {
+    this.v = bodies.map((b) => panelSet(b.mesh.positions, b.mesh.triangles).vertices);
+    this.boxes = new Float64Array(6 * bodies.length);
+    bodies.forEach((b, i) => {
+      const p = b.mesh.positions;
+      const o = 6 * i;
+      this.boxes.fill(Infinity, o, o + 3); this.boxes.fill(-Infinity, o + 3, o + 6);
+      for (let k = 0; k < p.length; k += 3) for (let a = 0; a < 3; a++) {
+        if (p[k + a] < this.boxes[o + a]) this.boxes[o + a] = p[k + a];
+        if (p[k + a] > this.boxes[o + 3 + a]) this.boxes[o + 3 + a] = p[k + a];
+      }
+    });
+  }
+
+  /** Index of the innermost body containing the point, −1 for the background. */
+  bodyAt(x: number, y: number, z: number): number {
+    let best = -1, bestVolume = Infinity;
+    const B = this.boxes;
+    for (let b = 0; b < this.bodies.length; b++) {
+      const o = 6 * b;
+      if (x < B[o] || y < B[o + 1] || z < B[o + 2] || x > B[o + 3] || y > B[o + 4] || z > B[o + 5]) continue;
+      if (this.bodies[b].volume >= bestVolume) continue;
+      const v = this.v[b], nt = v.length / 9;
+      let w = 0;
+      for (let t = 0; t < nt; t++) w += triangleSolidAngle(v, 9 * t, x, y, z);
+      // Seen from inside, an outward surface shows its −n̂ side: solid angles sum to −4π.
+      if (w < -2 * Math.PI) { best = b; bestVolume = this.bodies[b].volume; }
+    }
+    return best;
+  }
+
+  /** Relative permittivity at the point. */
+  at(x: number, y: number, z: number): number {
+    const b = this.bodyAt(x, y, z);
+    return b < 0 ? this.background : this.bodies[b].permittivity;
+  }
+
+  name(b: number): string {
+    return b < 0 ? "background" : this.bodies[b].name;
+  }
+}
+
+const FRAME = new Float64Array(FRAME_SIZE);
+const QUERY = new Float64Array(6);
+
+/**
+ * The combined panel model for one mesh level: conductors (already oriented, metres) and bodies
+ * (prepared, metres). `groundPlane`: interface panels in it are removed (the plane covers them);
+ * a body crossing it is refused.
+ */
+export function dielectricModel(conductors: SurfaceMesh, bodies: PreparedBody[], background: number,
+  groundPlane?: AxisPlane): DielectricModel {
+  const nc = triangleCount(conductors);
+  const Pc = panelSet(conductors.positions, conductors.triangles);
+  let diag = boundingDiagonal(conductors.positions);
+  for (const b of bodies) diag = Math.max(diag, boundingDiagonal(b.mesh.positions));
+  const tol = COINCIDENCE * diag;
+  const media = new Media(bodies, background);
+
+  // Conductors: closed or open sheets, and the containment test for closed ones.
+  const topo = conductorTopology(conductors);
+  const openPanel = new Uint8Array(nc);
+  for (let p = 0; p < nc; p++) openPanel[p] = topo[conductors.conductor[p]].closed ? 0 : 1;
+  const closedVertices: number[] = [];
+  for (let p = 0; p < nc; p++) if (!openPanel[p]) for (let a = 0; a < 9; a++) closedVertices.push(Pc.vertices[9 * p + a]);
+  const closedV = Float64Array.from(closedVertices);
+  const conductorTree = buildBoxTree(triangleBoxes(conductors.positions, conductors.triangles, new Float64Array(nc).fill(tol)));
+
+  const axis = groundPlane ? (groundPlane.axis === "x" ? 0 : groundPlane.axis === "y" ? 1 : 2) : -1;
+  const all: { body: number; panels: PanelSet }[] = bodies.map((b, i) => ({ body: i, panels: panelSet(b.mesh.positions, b.mesh.triangles) }));
+  const summaries: BodySummary[] = bodies.map((b) => ({ name: b.name, permittivity: b.permittivity, outsidePermittivity: background, outside: "background", panels: 0, removed: 0, merged: 0 }));
+  if (groundPlane) {
+    for (const { body, panels: Q } of all) {
+      let below = false, above = false;
+      for (let a = 0; a < 3 * Q.n; a++) {
+        const d = Q.vertices[3 * a + axis] - groundPlane.offset;
+        if (d < -tol) below = true; else if (d > tol) above = true;
+      }
+      if (below && above) throw new InputError(`dielectric ${bodies[body].name} crosses the ground plane ${groundPlane.axis} = ${groundPlane.offset} m; it must lie on one side`);
+    }
+  }
+
+  // Keep-or-drop per interface panel, in body order.
+  const kept: { body: number; t: number }[] = [];
+  const keptCentroids: number[] = [];
+  const keptNormals: number[] = [];
+  let removed = 0, merged = 0;
+  for (const { body, panels: Q } of all) {
+    for (let t = 0; t < Q.n; t++) {
+      const cx = Q.centroids[3 * t], cy = Q.centroids[3 * t + 1], cz = Q.centroids[3 * t + 2];
+      const nx = Q.normals[3 * t], ny = Q.normals[3 * t + 1], nz = Q.normals[3 * t + 2];
+      if (Q.areas[t] === 0) { removed++; summaries[body].removed++; continue; }
+      if (axis >= 0 && Math.abs(Q.vertices[9 * t + axis] - groundPlane!.offset) <= tol && Math.abs(Q.vertices[9 * t + 3 + axis] - groundPlane!.offset) <= tol
+        && Math.abs(Q.vertices[9 * t + 6 + axis] - groundPlane!.offset) <= tol) { removed++; summaries[body].removed++; continue; }
+      if (coveredByConductor(conductorTree, Pc, cx, cy, cz, nx, ny, nz, tol) || insideClosed(closedV, cx, cy, cz)) {
+        removed++; summaries[body].removed++; continue;
+      }
+      let twin = false;
+      for (let a = 0; a < kept.length && !twin; a++) {
+        if (kept[a].body === body) continue;
+        const dx = keptCentroids[3 * a] - cx, dy = keptCentroids[3 * a + 1] - cy, dz = keptCentroids[3 * a + 2] - cz;
+        if (dx * dx + dy * dy + dz * dz > tol * tol) continue;
+        const dot = keptNormals[3 * a] * nx + keptNormals[3 * a + 1] * ny + keptNormals[3 * a + 2] * nz;
+        if (Math.abs(dot) >= PARALLEL) twin = true;
+      }
+      if (twin) { merged++; summaries[body].merged++; continue; }
+      kept.push({ body, t });
+      keptCentroids.push(cx, cy, cz); keptNormals.push(nx, ny, nz);
+    }
+  }
+
+  // Combined vertex and triangle arrays: conductor vertices, then the kept panels' own corners
+  // (body vertices are shared within a body, so touching-panel detection keeps working).
+  const ni = kept.length;
+  let nv = conductors.positions.length / 3;
+  const vertexBase: number[] = [];
+  for (const b of bodies) { vertexBase.push(nv); nv += b.mesh.positions.length / 3; }
+  const positions = new Float64Array(3 * nv);
+  positions.set(conductors.positions, 0);
+  bodies.forEach((b, i) => positions.set(b.mesh.positions, 3 * vertexBase[i]));
+  const triangles = new Uint32Array(3 * (nc + ni));
+  triangles.set(conductors.triangles, 0);
+  const interfaceBody = new Uint32Array(ni), epsMinus = new Float64Array(ni), epsPlus = new Float64Array(ni), lambda = new Float64Array(ni);
+  const outsideVotes = bodies.map(() => new Map<number, number>());
+  for (let a = 0; a < ni; a++) {
+    const { body, t } = kept[a], Q = all[body].panels, tr = bodies[body].mesh.triangles;
+    for (let m = 0; m < 3; m++) triangles[3 * (nc + a) + m] = vertexBase[body] + tr[3 * t + m];
+    interfaceBody[a] = body;
+    const d = DELTA * Q.radii[t];
+    const cx = Q.centroids[3 * t], cy = Q.centroids[3 * t + 1], cz = Q.centroids[3 * t + 2];
+    const nx = Q.normals[3 * t], ny = Q.normals[3 * t + 1], nz = Q.normals[3 * t + 2];
+    const inner = media.bodyAt(cx - d * nx, cy - d * ny, cz - d * nz);
+    const outer = media.bodyAt(cx + d * nx, cy + d * ny, cz + d * nz);
+    const em = inner < 0 ? background : bodies[inner].permittivity, ep = outer < 0 ? background : bodies[outer].permittivity;
+    epsMinus[a] = em; epsPlus[a] = ep; lambda[a] = (ep - em) / (ep + em);
+    const votes = outsideVotes[body];
+    votes.set(outer, (votes.get(outer) ?? 0) + Q.areas[t]);
+    summaries[body].panels++;
+  }
+  bodies.forEach((_, b) => {
+    let best = -1, w = -1;
+    for (const [o, area] of outsideVotes[b]) if (area > w) { w = area; best = o; }
+    if (w >= 0) { summaries[b].outside = media.name(best); summaries[b].outsidePermittivity = best < 0 ? background : bodies[best].permittivity; }
+  });
+
+  const conductorPlus = new Float64Array(nc), conductorMinus = new Float64Array(nc);
+  for (let p = 0; p < nc; p++) {
+    const d = DELTA * Pc.radii[p];
+    const cx = Pc.centroids[3 * p], cy = Pc.centroids[3 * p + 1], cz = Pc.centroids[3 * p + 2];
+    const nx = Pc.normals[3 * p], ny = Pc.normals[3 * p + 1], nz = Pc.normals[3 * p + 2];
+    conductorPlus[p] = media.at(cx + d * nx, cy + d * ny, cz + d * nz);
+    conductorMinus[p] = openPanel[p] ? media.at(cx - d * nx, cy - d * ny, cz - d * nz) : conductorPlus[p];
+  }
+  return {
+    positions, triangles, nc, ni, interfaceBody, epsMinus, epsPlus, lambda, conductorPlus, conductorMinus, openPanel,
+    removedInterfacePanels: removed, mergedInterfacePanels: merged, bodies: summaries,
+  };
+}
+
+let coverHit = false, coverX = 0, coverY = 0, coverZ = 0, coverNx = 0, coverNy = 0, coverNz = 0, coverTol = 0;
+let coverP: PanelSet | undefined;
+function coverVisit(j: number): void {
+  if (coverHit || coverP === undefined) return;
+  const P = coverP, nm = P.normals;
+  const dot = nm[3 * j] * coverNx + nm[3 * j + 1] * coverNy + nm[3 * j + 2] * coverNz;
+  if (Math.abs(dot) < PARALLEL) return;
+  sourceFrame(FRAME, P.vertices, 9 * j);
+  if (frameDistance(FRAME, coverX, coverY, coverZ) <= coverTol) coverHit = true;
+}
+
+/** Whether the point lies on a conductor panel parallel to (nx, ny, nz), within tol. */
+function coveredByConductor(tree: BoxTree, P: PanelSet, x: number, y: number, z: number, nx: number, ny: number, nz: number, tol: number): boolean {
+  coverHit = false; coverP = P; coverX = x; coverY = y; coverZ = z; coverNx = nx; coverNy = ny; coverNz = nz; coverTol = tol;
+  QUERY[0] = x; QUERY[1] = y; QUERY[2] = z; QUERY[3] = x; QUERY[4] = y; QUERY[5] = z;
+  forEachItemInBox(tree, QUERY, coverVisit);
+  coverP = undefined;
+  return coverHit;
+}
+
+/** Winding number test against the closed conductors' panels (9 coordinates each). */
+function insideClosed(v: Float64Array, x: number, y: number, z: number): boolean {
+  const nt = v.length / 9;
+  if (nt === 0) return false;
+  let w = 0;
+  for (let t = 0; t < nt; t++) w += triangleSolidAngle(v, 9 * t, x, y, z);
+  return w < -2 * Math.PI;
+}
+
+/**
+ * Free charge per conductor panel from the total-charge solution (scaled unknowns x = q/(4πε0),
+ * N×k row-major over all panels; only the first nc rows are returned, same scaling). Closed
+ * panels: ε_out/ε0 times the total. Open sheets with different media on their faces: each face's
+ * total charge is σ/2 ± ε0 E_pv·n̂ (excitation.ts), so free = (ε+ + ε−)/2 σ + (ε+ − ε−) ε0 E_pv·n̂,
+ * with E_pv·n̂ from all panels (bem/interface.ts).
+ */
+export function freeCharges(model: DielectricModel, P: PanelSet, x: Float64Array, k: number, images?: ImageSet): Float64Array {
+  const nc = model.nc, N = P.n;
+  const out = new Float64Array(nc * k);
+  const en = new Float64Array(k);
+  for (let p = 0; p < nc; p++) {
+    const ep = model.conductorPlus[p], em = model.conductorMinus[p];
+    if (!model.openPanel[p] || ep === em) {
+      for (let j = 0; j < k; j++) out[p * k + j] = ep * x[p * k + j];
+      continue;
+    }
+    en.fill(0);
+    const c = P.centroids, nm = P.normals;
+    const px = c[3 * p], py = c[3 * p + 1], pz = c[3 * p + 2], nx = nm[3 * p], ny = nm[3 * p + 1], nz = nm[3 * p + 2];
+    for (let q = 0; q < N; q++) {
+      if (q === p) continue;
+      const K = normalFieldAt(P, q, px, py, pz, nx, ny, nz);
+      for (let j = 0; j < k; j++) en[j] += K * x[q * k + j];
+    }
+    if (images !== undefined) {
+      for (let e = 0; e < images.count; e++) for (let q = 0; q < N; q++) {
+        const K = images.signs[e] * normalFieldAt(images.panels, N * (e + 1) + q, px, py, pz, nx, ny, nz);
+        for (let j = 0; j < k; j++) en[j] += K * x[q * k + j];
+      }
+    }
+    // E_pv·n̂ = Σ K x (V/m per 1/(4πε0)·4πε0); in x units ε0 E_pv A/(4πε0 ... ) = A Σ K x / (4π).
+    const a4 = P.areas[p] / (4 * Math.PI);
+    for (let j = 0; j < k; j++) out[p * k + j] = 0.5 * (ep + em) * x[p * k + j] + (ep - em) * a4 * en[j];
+  }
+  return out;
+}
+
+export interface DielectricExcitation {
+  excitation: PanelExcitation;
+  /** Net force per conductor, 3 each; newtons. */
+  force: Float64Array;
+  /** Polarisation charge per interface panel at the working potentials; coulombs. */
+  interfaceCharge: Float64Array;
+}
+
+/**
+ * The conductors at their working potentials in the dielectric model. Fields: closed panels
+ * |σ_total|/ε0 (= |σ_free|/ε_local); open sheets the stronger face |E_pv·n̂ ± σ_total/(2ε0)|.
+ * Forces: Maxwell stress ε E_n²/2 along the outward normal of each face in its own medium
+ * (common practice for a conductor in a linear fluid dielectric; electrostriction and forces on
+ * the dielectric bodies themselves are not included).
+ */
+export function dielectricExcitation(model: DielectricModel, P: PanelSet, x: Float64Array, k: number, potentials: ArrayLike<number>,
+  conductorOf: Uint32Array, nConductors: number, images?: ImageSet): DielectricExcitation {
+  const nc = model.nc, N = P.n;
+  const fourPiEps0 = 4 * Math.PI * EPSILON_0;
+  const total = new Float64Array(N);
+  for (let p = 0; p < N; p++) {
+    let s = 0;
+    for (let j = 0; j < k; j++) s += x[p * k + j] * potentials[j];
+    total[p] = fourPiEps0 * s;
+  }
+  const charge = new Float64Array(nc), sigma = new Float64Array(nc), field = new Float64Array(nc);
+  const force = new Float64Array(3 * nConductors);
+  const point = new Float64Array(3), e = new Float64Array(3);
+  for (let p = 0; p < nc; p++) {
+    const A = P.areas[p], st = total[p] / A, nx = P.normals[3 * p], ny = P.normals[3 * p + 1], nz = P.normals[3 * p + 2];
+    const ep = model.conductorPlus[p], em = model.conductorMinus[p];
+    let f: number, sf: number, fn: number;
+    if (!model.openPanel[p]) {
+      const E = st / EPSILON_0;
+      f = Math.abs(E); sf = ep * st; fn = 0.5 * ep * EPSILON_0 * E * E;
+    } else {
+      point[0] = P.centroids[3 * p]; point[1] = P.centroids[3 * p + 1]; point[2] = P.centroids[3 * p + 2];
+      fieldAt(P, total, point, e, images);
+      const En = (e[0] * nx + e[1] * ny + e[2] * nz) / fourPiEps0;
+      const Ep = En + st / (2 * EPSILON_0), Em = En - st / (2 * EPSILON_0);
+      f = Math.max(Math.abs(Ep), Math.abs(Em));
+      sf = EPSILON_0 * (ep * Ep - em * Em);
+      fn = 0.5 * EPSILON_0 * (ep * Ep * Ep - em * Em * Em);
+    }
+    charge[p] = sf * A; sigma[p] = sf; field[p] = f;
+    const c = conductorOf[p];
+    force[3 * c] += fn * A * nx; force[3 * c + 1] += fn * A * ny; force[3 * c + 2] += fn * A * nz;
+  }
+  return { excitation: { charge, sigma, field }, force, interfaceCharge: total.slice(nc) };
+}
