@@ -54,13 +54,14 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
   if (!opts.quiet) process.stderr.write(`sigmesh: sweep of ${scene}: ${points.length} point${points.length === 1 ? "" : "s"}${shard ? `, slice ${shard.index}/${shard.count}: ${indices.length} of them` : ""}, ${processes > 0 ? `${processes} processes at a time` : "one at a time on every core"}\n`);
   const start = Date.now();
   let results;
+  let shown = 0;
   try {
     results = await runSweep(scene, points, indices, {
       method, solver, tolerance, refine, processes,
-      onPoint: opts.quiet ? undefined : (done, total) => process.stderr.write(`\rsigmesh: ${done}/${total} points`),
+      onPoint: opts.quiet ? undefined : (done, total) => { shown = done; process.stderr.write(`\rsigmesh: ${done}/${total} points`); },
     });
   } finally {
-    if (!opts.quiet && indices.length > 0) process.stderr.write("\n");
+    if (shown > 0) process.stderr.write("\n");
     await closeSharedPool();
   }
   const files = [{ path: opts.csv, data: sweepCsv(axes, entries, points.length, indices, points, results) }];
@@ -109,5 +110,13 @@ export function registerSweep(program: Command): void {
     .argument("<tables...>", "CSV files written by sigmesh sweep --shard")
     .option("--csv <file>", "the joined table", "sweep.csv")
     .option("--quiet", "print only errors and warnings")
-    .action(action((tables: string[], opts: { csv: string; quiet?: boolean }) => runSweepMerge(tables, opts)));
+    .action(action((tables: string[], opts: { csv: string; quiet?: boolean }, cmd: Command) => {
+      // The program reads options anywhere on the line, so `--csv` and `--quiet` after "merge" land on `sweep`, whose options they also are.
+      const parent = cmd.parent!;
+      const given = (key: string): boolean => parent.getOptionValueSource(key) === "cli";
+      return runSweepMerge(tables, {
+        csv: given("csv") ? (parent.opts().csv as string) : opts.csv,
+        quiet: opts.quiet || (given("quiet") && Boolean(parent.opts().quiet)),
+      });
+    }));
 }
