@@ -58,7 +58,8 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
   try {
     results = await runSweep(scene, points, indices, {
       method, solver, tolerance, refine, processes,
-      onPoint: opts.quiet ? undefined : (done, total) => { shown = done; process.stderr.write(`\rsigmesh: ${done}/${total} points`); },
+      // A live counter only on a terminal; logs get the closing line alone.
+      onPoint: opts.quiet || !process.stderr.isTTY ? undefined : (done, total) => { shown = done; process.stderr.write(`\rsigmesh: ${done}/${total} points`); },
     });
   } finally {
     if (shown > 0) process.stderr.write("\n");
