@@ -64,7 +64,8 @@ function isPacked(d: ViewerData | Record<string, unknown>): d is PackedViewerDat
  * The self-contained HTML report. `report` is the JSON report (`extractionReport`), `data`
  * the viewer data (`viewerData(result)`, or its packed form from a JSON report's `viewer`).
  */
-export function htmlReport(report: object, data: ViewerData | PackedViewerData, bundle: ViewerBundle = viewerBundle()): string {
+export function htmlReport(report: object, data: ViewerData | PackedViewerData, bundle: ViewerBundle = viewerBundle(),
+  plots: Array<{ title: string; svg: string }> = []): string {
   const viewer = isPacked(data) ? data : packViewerData(data);
   // A script body must not close its element; the bundle is minified code, where "</script" can only sit in a string or regex.
   const script = bundle.script.replace(/<\/(script)/gi, "<\\/$1");
@@ -95,6 +96,13 @@ export function htmlReport(report: object, data: ViewerData | PackedViewerData, 
     "</head>",
     "<body>",
     '<div id="sigmesh-app"><noscript>This sigmesh report needs JavaScript to show its 3D view and tables.</noscript></div>',
+    // Plots (field along probe lines, convergence) are static SVG made by src/report/svg-plot.ts,
+    // whose text is XML-escaped there; they sit below the viewer and need no script.
+    ...(plots.length
+      ? ['<section id="sigmesh-plots" style="padding:12px 16px;border-top:1px solid #ccc"><h2 style="font-size:15px">Plots</h2>',
+        ...plots.map((p) => `<figure style="margin:0 0 16px 0"><figcaption style="font-weight:600">${escapeHtml(p.title)}</figcaption>${p.svg.replace(/^<\?xml[^>]*>\s*/, "")}</figure>`),
+        "</section>"]
+      : []),
     `<script type="application/json" id="sigmesh-data">${scriptSafeJson({ report, viewer })}</script>`,
     `<script>${script}</script>`,
     "</body>",

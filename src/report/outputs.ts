@@ -46,7 +46,7 @@ function safeStem(name: string): string {
 
 export function extractionOutputs(result: ExtractionResult, report: Record<string, unknown>, unit: LengthUnit, req: OutputRequest, title?: string): OutputFile[] {
   const files: OutputFile[] = [];
-  if (req.html) files.push({ path: req.html, data: htmlReport(report, viewerData(result)) });
+  const plots: Array<{ title: string; svg: string }> = [];
   if (req.spice) {
     // With floating conductors the circuit sees only the driven ones: the reduced matrix.
     files.push({ path: req.spice, data: spiceSubcircuit(result.reducedNames, result.reducedMutual, { reference: result.reference, relativeThreshold: req.spiceThreshold, title }) });
@@ -68,17 +68,16 @@ export function extractionOutputs(result: ExtractionResult, report: Record<strin
       if (r.spec.kind !== "line") continue;
       const d = distanceAlong(r.points), s = metresPer(unit);
       const dist = Float64Array.from(d, (x) => x / s);
-      files.push({
-        path: `${stem}-${safeStem(r.spec.name)}.svg`,
-        data: fieldAlongLineSvg(dist, fieldMagnitude(r.result), { lengthUnit: unitLabel(unit), breakdownField: result.breakdownField, title: `Field along ${r.spec.name}` }),
-      });
+      const svg = fieldAlongLineSvg(dist, fieldMagnitude(r.result), { lengthUnit: unitLabel(unit), breakdownField: result.breakdownField, title: `Field along ${r.spec.name}` });
+      files.push({ path: `${stem}-${safeStem(r.spec.name)}.svg`, data: svg });
+      plots.push({ title: `Field along probe line ${r.spec.name}`, svg });
     }
   }
-  if (req.convergenceSvg && result.accuracy) {
-    files.push({
-      path: req.convergenceSvg,
-      data: convergencePlotSvg(result.accuracy.levels.map((l) => ({ panels: l.panels, value: l.maxwell[0] })), result.maxwell[0], `C(${result.names[0]})`, { unit: "F" }),
-    });
+  if (result.accuracy && (req.convergenceSvg || req.html)) {
+    const svg = convergencePlotSvg(result.accuracy.levels.map((l) => ({ panels: l.panels, value: l.maxwell[0] })), result.maxwell[0], `C(${result.names[0]})`, { unit: "F" });
+    if (req.convergenceSvg) files.push({ path: req.convergenceSvg, data: svg });
+    plots.push({ title: `Convergence of C(${result.names[0]}) under refinement`, svg });
   }
+  if (req.html) files.push({ path: req.html, data: htmlReport(report, viewerData(result), undefined, plots) });
   return files;
 }

@@ -135,6 +135,17 @@ describe("sigmesh extract", () => {
     expect(rep.viewer.format).toBe("sigmesh-viewer/1");
   });
 
+  it("--html carries the probe-line and convergence plots", () => {
+    const out = join(dir, "htmlplots");
+    const r = run(["extract", join(dir, "anode.stl"), "--probe", "radial=line:-2,0,0:10,0,0:9", "--probe-csv", join(out, "p.csv"), "--refine", "1", "--html", join(out, "r.html"), "--quiet"]);
+    expect(r.code).toBe(0);
+    const html = readFileSync(join(out, "r.html"), "utf8");
+    expect(html).toMatch(/id="sigmesh-plots"/);
+    expect(html).toMatch(/Field along probe line radial/);
+    expect(html).toMatch(/Convergence of C\(anode\)/);
+    expect((html.match(/<svg/g) ?? []).length).toBe(2);
+  });
+
   it("writes all outputs or none: a failing output leaves no other file behind", () => {
     const out = join(dir, "allornone");
     // An existing directory where the SPICE file should go makes that rename fail.
