@@ -143,6 +143,7 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
       method, solver, refine, tolerance, potentials: scene.potentials,
       breakdownField: breakdown ?? scene.breakdownField,
       groundPlane: scene.groundPlane, symmetry: scene.symmetry, floating: scene.floating,
+      dielectrics: scene.dielectrics.length ? scene.dielectrics : undefined,
       progress: (phase, f, level, levels) => bar.update(phase, f, level, levels),
     });
   } finally {

@@ -23,6 +23,8 @@ export interface LoadedScene {
   breakdownField?: number;
   /** Probe requests from the scene (coordinates in `unit`). */
   probes: ProbeSpec[];
+  /** Dielectric bodies from the scene; meshes in metres. */
+  dielectrics: Array<{ name: string; mesh: SurfaceMesh; permittivity: number }>;
   /** Grounded plane (offset in metres), from the scene or `groundPlane`. */
   groundPlane?: AxisPlane;
   /** Mirror symmetry planes (offsets in metres). */
@@ -83,7 +85,7 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
     out = {
       mesh: sm.mesh, potentials: resolvePotentials(sm.mesh.names, sm.potentials, opts.potentials, floating), unit: scene.unit, unitAssumed: false, permittivity: scene.permittivity,
       breakdownField: scene.breakdownField, groundPlane: scene.groundPlane, symmetry: scene.symmetry, floating,
-      files: sm.files, scene: list[0], warnings: sm.warnings, dropped: sm.dropped, probes: scene.probes, parameters: scene.parameters,
+      files: sm.files, scene: list[0], warnings: sm.warnings, dropped: sm.dropped, probes: scene.probes, dielectrics: sm.dielectrics, parameters: scene.parameters,
     };
   } else {
     if (opts.parameters && Object.keys(opts.parameters).length > 0) throw new InputError("parameters belong to a scene file (.json); mesh files have none", list[0]);
@@ -93,7 +95,7 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
     const floating = floatingFlags(lm.mesh.names, lm.mesh.names.map(() => false), opts.floating);
     out = {
       mesh: lm.mesh, potentials: resolvePotentials(lm.mesh.names, given, opts.potentials, floating), unit, unitAssumed: opts.unit === undefined, permittivity: 1,
-      symmetry: [], floating, files: lm.files, warnings: lm.warnings, dropped: lm.dropped, probes: [], parameters: {},
+      symmetry: [], floating, files: lm.files, warnings: lm.warnings, dropped: lm.dropped, probes: [], dielectrics: [], parameters: {},
     };
   }
   if (opts.groundPlane !== undefined) out.groundPlane = parsePlane(opts.groundPlane, out.unit, "ground plane");

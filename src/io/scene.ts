@@ -52,6 +52,11 @@ export interface SceneConductor {
   floating: boolean;
 }
 
+/** A dielectric body: a closed surface with its relative permittivity inside. */
+export interface SceneDielectric extends Omit<SceneConductor, "potential" | "floating"> {
+  permittivity: number;
+}
+
 export interface Scene {
   file: string;
   unit: LengthUnit;
@@ -64,6 +69,7 @@ export interface Scene {
   /** Mirror symmetry planes; offsets in metres. */
   symmetry: AxisPlane[];
   conductors: SceneConductor[];
+  dielectrics: SceneDielectric[];
   /** Probe requests, coordinates in the scene's unit. */
   probes: ProbeSpec[];
   /** Values of the named parameters used for this reading (the scene's, or a sweep point's). */
@@ -75,8 +81,9 @@ export interface SceneParseOptions {
   parameters?: Readonly<Record<string, number>>;
 }
 
-const TOP_KEYS = new Set(["$schema", "parameters", "unit", "permittivity", "breakdownField", "groundPlane", "symmetry", "conductors", "probes", "title", "description"]);
+const TOP_KEYS = new Set(["$schema", "parameters", "unit", "permittivity", "breakdownField", "groundPlane", "symmetry", "conductors", "dielectrics", "probes", "title", "description"]);
 const CONDUCTOR_KEYS = new Set(["name", "mesh", "shape", "place", "group", "groups", "potential", "floating", "description"]);
+const DIELECTRIC_KEYS = new Set(["name", "mesh", "shape", "place", "group", "groups", "permittivity", "description"]);
 
 /**
  * An axis-aligned plane written `{ "z": 0 }` (one of x, y, z, its position in `unit`), or the
@@ -185,38 +192,7 @@ export function parseScene(text: string, file: string, opts: SceneParseOptions =
   const base = dirname(resolve(file));
   const conductors: SceneConductor[] = list.map((entry, i) => {
     const at = `conductors[${i}]`;
-    if (!isObject(entry)) fail(at, "expected an object");
-    const e = entry as Record<string, unknown>;
-    for (const k of Object.keys(e)) if (!CONDUCTOR_KEYS.has(k)) fail(`${at}.${k}`, `unknown key (expected one of ${[...CONDUCTOR_KEYS].join(", ")})`);
-    if (e.mesh !== undefined && e.shape !== undefined) fail(at, "give either mesh (a file) or shape (a generated primitive), not both");
-    let mesh: string | undefined;
-    let shape: SceneConductor["shape"];
-    if (e.shape !== undefined) {
-      shape = parseShape(e.shape, `${at}.shape`, fail);
-      if (e.group !== undefined || e.groups !== undefined) fail(`${at}.${e.group !== undefined ? "group" : "groups"}`, "applies to a mesh file, not to a generated shape");
-    } else {
-      if (typeof e.mesh !== "string" || e.mesh.length === 0) fail(`${at}.mesh`, e.mesh === undefined ? "missing (path of the conductor's mesh file, or a \"shape\" instead)" : "expected a file path");
-      mesh = resolve(base, e.mesh as string);
-    }
-    const place = e.place === undefined ? undefined : parsePlacement(e.place, `${at}.place`, fail);
-    let groups: string[] | undefined;
-    if (e.group !== undefined && e.groups !== undefined) fail(at, "give either group or groups, not both");
-    if (e.group !== undefined) {
-      if (typeof e.group !== "string") fail(`${at}.group`, "expected a string");
-      groups = [e.group as string];
-    }
-    if (e.groups !== undefined) {
-      if (!Array.isArray(e.groups) || e.groups.length === 0 || !e.groups.every((g) => typeof g === "string")) fail(`${at}.groups`, "expected a non-empty list of strings");
-      groups = e.groups as string[];
-    }
-    let name: string;
-    if (e.name !== undefined) {
-      if (typeof e.name !== "string" || e.name.trim().length === 0) fail(`${at}.name`, "expected a non-empty string");
-      name = (e.name as string).trim();
-    } else {
-      name = shape ? (typeof shape.params.name === "string" && shape.params.name.trim() ? shape.params.name.trim() : shape.kind)
-        : groups && groups.length === 1 ? groups[0] : basename(mesh as string, extname(mesh as string));
-    }
+    const { e, name, mesh, shape, place, groups } = parseBody(entry, at, CONDUCTOR_KEYS, base, fail);
     let potential: number | undefined;
     if (e.potential !== undefined) {
       if (typeof e.potential !== "number" || !Number.isFinite(e.potential)) fail(`${at}.potential`, "expected a number (volts)");
@@ -230,6 +206,17 @@ export function parseScene(text: string, file: string, opts: SceneParseOptions =
     }
     return { name, mesh, shape, place, path: at, groups, potential, floating };
   });
+  const dielectrics: SceneDielectric[] = [];
+  if (top.dielectrics !== undefined) {
+    if (!Array.isArray(top.dielectrics)) fail("dielectrics", "expected a list of dielectric bodies");
+    (top.dielectrics as unknown[]).forEach((entry, i) => {
+      const at = `dielectrics[${i}]`;
+      const { e, name, mesh, shape, place, groups } = parseBody(entry, at, DIELECTRIC_KEYS, base, fail);
+      if (typeof e.permittivity !== "number" || !Number.isFinite(e.permittivity)) fail(`${at}.permittivity`, e.permittivity === undefined ? "missing (the body's relative permittivity)" : "expected a number");
+      if ((e.permittivity as number) < 1) fail(`${at}.permittivity`, `relative permittivity must be at least 1, got ${e.permittivity}`);
+      dielectrics.push({ name, mesh, shape, place, path: at, groups, permittivity: e.permittivity as number });
+    });
+  }
   const seen = new Map<string, number>();
   conductors.forEach((c, i) => {
     const j = seen.get(c.name);
@@ -238,7 +225,51 @@ export function parseScene(text: string, file: string, opts: SceneParseOptions =
   });
   if (conductors.every((c) => c.floating)) fail("conductors", "every conductor is floating: at least one must be held at a potential");
   const probes = top.probes === undefined ? [] : parseSceneProbes(top.probes, { file });
-  return { file, unit, permittivity, breakdownField, groundPlane, symmetry, conductors, probes, parameters };
+  const dseen = new Map<string, number>();
+  dielectrics.forEach((d, i) => {
+    const j = dseen.get(d.name);
+    if (j !== undefined) fail(`dielectrics[${i}].name`, `"${d.name}" is already the name of dielectrics[${j}]`);
+    dseen.set(d.name, i);
+  });
+  return { file, unit, permittivity, breakdownField, groundPlane, symmetry, conductors, dielectrics, probes, parameters };
+}
+
+
+/** What conductor and dielectric entries share: name, a mesh file (with groups) or a shape, a placement. */
+function parseBody(entry: unknown, at: string, keys: Set<string>, base: string, fail: (path: string, fault: string) => never) {
+  if (!isObject(entry)) fail(at, "expected an object");
+  const e = entry as Record<string, unknown>;
+  for (const k of Object.keys(e)) if (!keys.has(k)) fail(`${at}.${k}`, `unknown key (expected one of ${[...keys].join(", ")})`);
+  if (e.mesh !== undefined && e.shape !== undefined) fail(at, "give either mesh (a file) or shape (a generated primitive), not both");
+  let mesh: string | undefined;
+  let shape: SceneConductor["shape"];
+  if (e.shape !== undefined) {
+    shape = parseShape(e.shape, `${at}.shape`, fail);
+    if (e.group !== undefined || e.groups !== undefined) fail(`${at}.${e.group !== undefined ? "group" : "groups"}`, "applies to a mesh file, not to a generated shape");
+  } else {
+    if (typeof e.mesh !== "string" || e.mesh.length === 0) fail(`${at}.mesh`, e.mesh === undefined ? "missing (path of the mesh file, or a \"shape\" instead)" : "expected a file path");
+    mesh = resolve(base, e.mesh as string);
+  }
+  const place = e.place === undefined ? undefined : parsePlacement(e.place, `${at}.place`, fail);
+  let groups: string[] | undefined;
+  if (e.group !== undefined && e.groups !== undefined) fail(at, "give either group or groups, not both");
+  if (e.group !== undefined) {
+    if (typeof e.group !== "string") fail(`${at}.group`, "expected a string");
+    groups = [e.group as string];
+  }
+  if (e.groups !== undefined) {
+    if (!Array.isArray(e.groups) || e.groups.length === 0 || !e.groups.every((g) => typeof g === "string")) fail(`${at}.groups`, "expected a non-empty list of strings");
+    groups = e.groups as string[];
+  }
+  let name: string;
+  if (e.name !== undefined) {
+    if (typeof e.name !== "string" || e.name.trim().length === 0) fail(`${at}.name`, "expected a non-empty string");
+    name = (e.name as string).trim();
+  } else {
+    name = shape ? (typeof shape.params.name === "string" && shape.params.name.trim() ? shape.params.name.trim() : shape.kind)
+      : groups && groups.length === 1 ? groups[0] : basename(mesh as string, extname(mesh as string));
+  }
+  return { e, name, mesh, shape, place, groups };
 }
 
 /** `"shape": { "<kind>": { params } }` with the parameter names checked against the generator's. */
@@ -277,6 +308,8 @@ export function loadSceneFile(path: string, opts: SceneParseOptions = {}): Scene
 
 
 export interface SceneMesh extends LoadedMesh {
+  /** Dielectric bodies, meshes in metres. */
+  dielectrics: Array<{ name: string; mesh: SurfaceMesh; permittivity: number }>;
   /** Potential of each conductor as the scene gives it; volts (undefined where it is silent). */
   potentials: Array<number | undefined>;
   /** Floating flag of each conductor. */
@@ -307,5 +340,12 @@ export function loadSceneMesh(scene: Scene, opts: { weldTolerance?: number } = {
     welded: parts.reduce((s, p) => s + p.welded, 0),
     potentials: scene.conductors.map((c) => c.potential),
     floating: scene.conductors.map((c) => c.floating),
+    dielectrics: scene.dielectrics.map((d) => {
+      const m = d.shape
+        ? generateShape(d.shape.kind, d.shape.params, { metresPerUnit: perUnit, describe: (q) => `${d.path}.shape.${d.shape!.kind}.${q}`, file: scene.file })
+        : loadMeshFile(d.mesh as string, { unit: scene.unit, groups: d.groups, merge: true, name: d.name, weldTolerance: opts.weldTolerance }).mesh;
+      const placed = d.place ? placeMesh(m, d.place, perUnit) : m;
+      return { name: d.name, mesh: { ...placed, conductor: new Uint32Array(placed.triangles.length / 3), names: [d.name] }, permittivity: d.permittivity };
+    }),
   };
 }

@@ -34,6 +34,11 @@ export function extractionSummary(r: ExtractionResult, ctx: SummaryContext): str
     : "infinity (no ground plane)";
   out.push(`  reference: ${ref}`);
   if (r.symmetryCopies > 1) out.push(`  symmetry: ${r.symmetry.map((p) => `${p.axis} = ${formatLength(p.offset, ctx.unit)}`).join(", ")}; results are for the full model (${r.symmetryCopies} copies of the meshed part)`);
+  if (r.dielectric) {
+    for (const b of r.dielectric.bodies) out.push(`  dielectric ${b.name}: εr = ${formatNumber(b.permittivity)} inside, ${b.outside} (εr = ${formatNumber(b.outsidePermittivity)}) outside, ${b.panels} interface panels`);
+    if (r.removedInterfacePanels > 0) out.push(`  ${r.removedInterfacePanels} interface panels covered by conductors were removed`);
+    if (r.dielectric.mergedInterfacePanels > 0) out.push(`  ${r.dielectric.mergedInterfacePanels} coincident interface panels of touching bodies were merged`);
+  }
   for (let i = 0; i < r.floatingNames.length; i++) out.push(`  floating: ${r.floatingNames[i]} settles at ${formatSI(r.floatingPotentials[i], "V")}`);
   out.push("");
 

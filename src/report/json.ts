@@ -61,6 +61,15 @@ export function extractionReport(r: ExtractionResult, ctx: ReportContext): Recor
       removedInSymmetryPlane: r.removedInSymmetryPlane,
     },
     floating: r.floatingNames.map((name, i) => ({ name, potential: r.floatingPotentials[i] })),
+    dielectrics: r.dielectric
+      ? {
+          bodies: r.dielectric.bodies,
+          interfacePanels: r.dielectric.interfacePanels,
+          removedInterfacePanels: r.removedInterfacePanels,
+          mergedInterfacePanels: r.dielectric.mergedInterfacePanels,
+          testing: r.dielectric.testing,
+        }
+      : null,
     energy: r.energy,
     accuracy: r.accuracy
       ? {
