@@ -12,8 +12,10 @@ import { runExtract } from "./extract.js";
 const DEMO_DIR = fileURLToPath(new URL("../../meshes/demo/", import.meta.url));
 
 export const DEMO_SCENES = [
-  { scene: "keypad.json", what: "three-key touch pad, fingertip over the middle key, ground pour under the board", probes: ["above-key2=line:0,0,0.1:0,0,2.9:30"] },
-  { scene: "hv-electrode.json", what: "30 kV ball electrode over a grounded plate", probes: ["gap=line:0,0,14.9:0,0,0.1:40"] },
+  // The keypad's dielectric board makes a refined run slow on two cores (the interface rows are
+  // dense only), so it runs on the bundled mesh; the electrode gets the Richardson estimate.
+  { scene: "keypad.json", what: "three-key touch pad on an FR-4 board over a ground pour, fingertip over the middle key", probes: ["above-key2=line:0,0,0.1:0,0,2.9:30"], refine: 0 },
+  { scene: "hv-electrode.json", what: "30 kV ball electrode over a grounded plate", probes: ["gap=line:0,0,14.9:0,0,0.1:40"], refine: 1 },
 ];
 
 export function registerDemo(program: Command): void {
@@ -21,18 +23,19 @@ export function registerDemo(program: Command): void {
     .command("demo")
     .description("extract the bundled demo scenes (meshes/demo) and write their reports")
     .option("--out <dir>", "folder for the reports", "sigmesh-demo")
-    .option("--refine <K>", "uniform refinements for the error estimate", "1")
-    .action(action(async (opts: { out: string; refine: string }) => {
+    .option("--refine <K>", "uniform refinements for the error estimate (default: per scene, 0 for the keypad, 1 for the electrode)")
+    .action(action(async (opts: { out: string; refine?: string }) => {
       for (const d of DEMO_SCENES) {
         const scene = join(DEMO_DIR, d.scene);
         if (!existsSync(scene)) throw new Error(`demo scene ${scene} is missing from the installation`);
         process.stdout.write(`\n=== demo: ${d.what}\n`);
         const stem = join(opts.out, d.scene.replace(/\.json$/, ""));
+        const refine = opts.refine ?? String(d.refine);
         await runExtract([scene], {
-          potential: [], method: "galerkin", solver: "auto", refine: opts.refine, tol: "1e-4",
+          potential: [], method: "galerkin", solver: "auto", refine, tol: "1e-4",
           json: `${stem}.report.json`, html: `${stem}.html`, spice: `${stem}.cir`, markdown: `${stem}.md`, csv: `${stem}.csv`,
           probe: d.probes, probeCsv: `${stem}.probes.csv`,
-          convergenceSvg: Number(opts.refine) > 0 ? `${stem}.convergence.svg` : undefined,
+          convergenceSvg: Number(refine) > 0 ? `${stem}.convergence.svg` : undefined,
         });
         process.stdout.write(`written: ${stem}.html (open it in a browser), ${stem}.report.json, .cir (SPICE), .md, .csv, .probes.csv and plots\n`);
       }
