@@ -89,6 +89,28 @@ describe("sigmesh extract", () => {
     expect(Math.abs(Number(rows[8][v]) / (5 / 20) - 1)).toBeLessThan(0.02);
   });
 
+  it("a scene with a dielectric coat matches two spherical capacitors in series (exact closed form)", () => {
+    // C = 4π ε0 / ((1/a − 1/b)/εr + 1/b) for a sphere of radius a coated out to b with εr.
+    writeFileSync(join(dir, "coat.json"), JSON.stringify({ unit: "mm",
+      conductors: [{ name: "ball", shape: { sphere: { radius: 1, level: 2 } }, potential: 1 }],
+      dielectrics: [{ name: "coat", shape: { sphere: { radius: 2, level: 2 } }, permittivity: 4 }] }));
+    const r = run(["extract", "coat.json", "--json", "-", "--quiet"], dir);
+    expect(r.code).toBe(0);
+    const rep = JSON.parse(r.out);
+    const a = 1e-3, b = 2e-3;
+    const exact = 4 * Math.PI * EPSILON_0 / ((1 / a - 1 / b) / 4 + 1 / b);
+    expect(Math.abs(rep.capacitance.maxwell[0][0] / exact - 1)).toBeLessThan(0.02);
+    expect(rep.dielectrics.bodies[0].name).toBe("coat");
+    expect(rep.dielectrics.interfacePanels).toBe(320);
+  });
+
+  it("refuses a dielectric entry without a permittivity, naming the key", () => {
+    writeFileSync(join(dir, "nodiel.json"), JSON.stringify({ conductors: [{ mesh: "anode.stl" }], dielectrics: [{ name: "x", mesh: "cathode.stl" }] }));
+    const r = run(["extract", "nodiel.json"], dir);
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(/nodiel\.json: dielectrics\[0\]\.permittivity: missing/);
+  });
+
   it("an open sheet is reported as such and gets its two-sided field", () => {
     const r = run(["extract", join(dir, "sheet.obj"), "--json", "-", "--quiet"]);
     expect(r.code).toBe(0);
