@@ -197,20 +197,7 @@ export async function solveUnitPotentials(
     x = B;
   } else {
     const tol = krylovTolerance(opts.tolerance);
-    const tree = clusterPoints(panels.centroids, 64);
-    const precondition = blockJacobi(A, n, leafIndexSets(tree), { lu: opts.method !== "galerkin" });
-    const apply = (X: Float64Array, Y: Float64Array, kk: number) => denseMultiply(A, n, X, kk, Y, opts.pool);
-    const maxIter = Math.max(200, Math.ceil(4 * Math.sqrt(n)));
-    const res = opts.method === "galerkin"
-      ? await pcg(apply, precondition, B, k, { tol, maxIter })
-      : await gmres(apply, precondition, B, k, { tol, maxIter });
-    if (!res.converged) {
-      throw new Error(`the iterative solver did not converge in ${res.iterations} iterations (residual ${Math.max(...res.residuals).toExponential(2)}); try --solver direct`);
-    }
-    info.iterations = res.iterations;
-    info.residual = Math.max(...res.residuals);
-    info.krylovTolerance = tol;
-    x = res.X;
+    x = await denseKrylov(A, n, B, k, panels.centroids, opts.method === "galerkin", tol, opts.pool, info);
   }
   info.solveSeconds = (performance.now() - t2) / 1e3;
   progress("solve", 1);
@@ -283,6 +270,26 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
   }
 }
 
+/**
+ * Krylov solve on a dense shared matrix: PCG when symmetric positive definite, else GMRES,
+ * block-Jacobi over leaves of a cluster tree of the panel centroids (leaf size 64).
+ */
+async function denseKrylov(A: Float64Array, n: number, B: Float64Array, k: number, centroids: Float64Array,
+  spd: boolean, tol: number, pool: WorkerPool, info: SolveInfo): Promise<Float64Array> {
+  const tree = clusterPoints(centroids, 64);
+  const precondition = blockJacobi(A, n, leafIndexSets(tree), { lu: !spd });
+  const apply = (X: Float64Array, Y: Float64Array, kk: number) => denseMultiply(A, n, X, kk, Y, pool);
+  const maxIter = Math.max(200, Math.ceil(4 * Math.sqrt(n)));
+  const res = spd ? await pcg(apply, precondition, B, k, { tol, maxIter }) : await gmres(apply, precondition, B, k, { tol, maxIter });
+  if (!res.converged) {
+    throw new Error(`the iterative solver did not converge in ${res.iterations} iterations (residual ${Math.max(...res.residuals).toExponential(2)}); try --solver direct`);
+  }
+  info.iterations = res.iterations;
+  info.residual = Math.max(...res.residuals);
+  info.krylovTolerance = tol;
+  return res.X;
+}
+
 /** Disjoint tree nodes covering every point, each the largest node on its path of at most `size` points. */
 export function clusterCover(tree: ClusterTree, size: number): number[] {
   const out: number[] = [];
@@ -349,18 +356,7 @@ export async function solveUnitPotentialsWithInterfaces(
     x = B;
   } else {
     const tol = krylovTolerance(opts.tolerance);
-    const tree = clusterPoints(panels.centroids, 64);
-    const precondition = blockJacobi(A, N, leafIndexSets(tree), { lu: true });
-    const apply = (X: Float64Array, Y: Float64Array, kk: number) => denseMultiply(A, N, X, kk, Y, opts.pool);
-    const maxIter = Math.max(200, Math.ceil(4 * Math.sqrt(N)));
-    const res = await gmres(apply, precondition, B, k, { tol, maxIter });
-    if (!res.converged) {
-      throw new Error(`the iterative solver did not converge in ${res.iterations} iterations (residual ${Math.max(...res.residuals).toExponential(2)}); try --solver direct`);
-    }
-    info.iterations = res.iterations;
-    info.residual = Math.max(...res.residuals);
-    info.krylovTolerance = tol;
-    x = res.X;
+    x = await denseKrylov(A, N, B, k, panels.centroids, false, tol, opts.pool, info);
   }
   info.solveSeconds = (performance.now() - t2) / 1e3;
   progress("solve", 1);
