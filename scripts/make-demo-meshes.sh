@@ -6,10 +6,9 @@
 set -euo pipefail
 out=meshes/demo
 s="node dist/cli/main.js mesh --unit mm -q"
-# Keypad: 10 mm square keys on a 14 mm pitch on a 1.6 mm board; the ground pour under the board is the scene's ground plane.
-$s plate --size 10,10 --divisions 12 --grading 3 --center -14,0,0 --name key1 -o $out/key1.stl
-$s plate --size 10,10 --divisions 12 --grading 3 --center 0,0,0 --name key2 -o $out/key2.stl
-$s plate --size 10,10 --divisions 12 --grading 3 --center 14,0,0 --name key3 -o $out/key3.stl
+# Keypad keys with their traces and the guard ring: scripts/make-demo-keypad.mjs; the ground pour
+# under the board is the scene's ground plane.
+node scripts/make-demo-keypad.mjs
 # Fingertip: an 8 mm radius sphere, 3 mm above key 2.
 $s sphere --radius 8 --level 2 --center 0,0,11 --name finger -o $out/finger.stl
 # HV electrode: a 10 mm radius ball on a 4 mm radius stem, 15 mm above a 120 mm square plate.
