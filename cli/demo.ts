@@ -14,7 +14,7 @@ const DEMO_DIR = fileURLToPath(new URL("../../meshes/demo/", import.meta.url));
 export const DEMO_SCENES = [
   // The keypad's dielectric board makes a refined run slow on two cores (the interface rows are
   // dense only), so it runs on the bundled mesh; the electrode gets the Richardson estimate.
-  { scene: "keypad.json", what: "three-key touch pad on an FR-4 board over a ground pour, fingertip over the middle key", probes: ["above-key2=line:0,0,0.1:0,0,2.9:30"], refine: 0 },
+  { scene: "keypad.json", what: "three-key touch pad with traces and a guard ring on an FR-4 board over a ground pour, fingertip over the middle key", probes: ["above-key2=line:0,0,0.1:0,0,2.9:30"], refine: 0 },
   { scene: "hv-electrode.json", what: "30 kV ball electrode over a grounded plate", probes: ["gap=line:0,0,14.9:0,0,0.1:40"], refine: 1 },
 ];
 
