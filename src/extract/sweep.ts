@@ -205,10 +205,13 @@ function cliPath(): string {
 function standaloneSceneText(scene: string, point: Record<string, number>): string {
   const value = substituteScene(readFileSync(scene, "utf8"), scene, point);
   const base = dirname(resolve(scene));
-  const list = Array.isArray(value.conductors) ? value.conductors : [];
-  for (const c of list as Array<Record<string, unknown>>) {
-    if (c && typeof c.mesh === "string" && !isAbsolute(c.mesh)) c.mesh = resolve(base, c.mesh);
-  }
+  const absolute = (o: unknown): void => {
+    if (typeof o !== "object" || o === null) return;
+    const e = o as Record<string, unknown>;
+    if (typeof e.mesh === "string" && !isAbsolute(e.mesh)) e.mesh = resolve(base, e.mesh);
+    if (Array.isArray(e.parts)) e.parts.forEach(absolute);
+  };
+  for (const key of ["conductors", "dielectrics"]) if (Array.isArray(value[key])) (value[key] as unknown[]).forEach(absolute);
   return JSON.stringify(value, null, 2);
 }
 

@@ -10,6 +10,11 @@
  * A conductor is a mesh file (`"mesh"`) or a generated shape (`"shape": { "box": { "size": [10, 10, 0.035],
  * "divisions": 12 } }`, the parameters of `sigmesh mesh`, lengths in the scene's unit), and any
  * entry may be placed (`"place"`: scale, then rotate, then translate; see ./placement.ts).
+ * An entry may instead list `"parts"`, each a mesh file or a shape with its own placement,
+ * joined into one net (a key pad and its trace, a pin and its solder tail); the entry's
+ * `place` then moves the whole net after each part's own. Joined parts are welded as one mesh
+ * file's bodies are, and faces two parts share exactly (abutting solids) are interior to the
+ * net and removed.
  * `"parameters": { "gap": 2 }` names numbers that expressions (`"=gap/2 + 1"`, ./parameters.ts)
  * use wherever the scene takes a number; a sweep replaces their values.
  *
@@ -32,20 +37,37 @@ import { concatMeshes, type SurfaceMesh } from "../mesh/model.js";
 import { SHAPES, shapeParameters, generateShape, type ShapeName, type ShapeParams } from "../mesh/primitives/index.js";
 import { resolveParameters, substituteExpressions } from "./parameters.js";
 import { parsePlacement, placeMesh, type Placement } from "./placement.js";
+import { weldVertices, dropDegenerate, DEFAULT_WELD_TOLERANCE } from "../mesh/weld.js";
 
-export interface SceneConductor {
-  /** Conductor name as given, or the mesh file stem / group name. */
-  name: string;
+/** One piece of a conductor or dielectric entry: a mesh file or a generated shape, with its placement. */
+export interface ScenePart {
   /** Absolute path of the mesh file; undefined for a generated shape. */
   mesh?: string;
   /** Generated shape and its parameters (lengths in the scene's unit); undefined for a mesh file. */
   shape?: { kind: ShapeName; params: ShapeParams };
-  /** Placement (translation in the scene's unit); undefined when the entry has none. */
+  /** Groups (named solids, OBJ groups, physical surfaces) of the file taken; all when absent. */
+  groups?: string[];
+  /** The part's own placement (translation in the scene's unit), applied before the entry's. */
+  place?: Placement;
+  /** Key path of the part (`conductors[2].parts[1]`, or the entry's path for a one-piece entry), for messages. */
+  path: string;
+}
+
+export interface SceneConductor {
+  /** Conductor name as given, or the mesh file stem / group name / shape name of its (first) part. */
+  name: string;
+  /** One-piece entries: absolute path of the mesh file; undefined for a shape or a `parts` entry. */
+  mesh?: string;
+  /** One-piece entries: the generated shape (lengths in the scene's unit); undefined otherwise. */
+  shape?: { kind: ShapeName; params: ShapeParams };
+  /** Placement of the whole entry (translation in the scene's unit), after each part's own; undefined when the entry has none. */
   place?: Placement;
   /** Key path of the entry in the scene (`conductors[2]`), for messages. */
   path: string;
-  /** Groups (named solids, OBJ groups, physical surfaces) of the file that make this conductor; all when absent. */
+  /** One-piece entries: groups of the file that make this conductor; all when absent. */
   groups?: string[];
+  /** Every piece of the entry (one for a `mesh` or `shape` entry), joined into one net. */
+  parts: ScenePart[];
   /** Working potential; volts. Undefined when the scene does not set it. */
   potential?: number;
   /** Zero net charge at a solved potential. */
@@ -82,8 +104,9 @@ export interface SceneParseOptions {
 }
 
 const TOP_KEYS = new Set(["$schema", "parameters", "unit", "permittivity", "breakdownField", "groundPlane", "symmetry", "conductors", "dielectrics", "probes", "title", "description"]);
-const CONDUCTOR_KEYS = new Set(["name", "mesh", "shape", "place", "group", "groups", "potential", "floating", "description"]);
-const DIELECTRIC_KEYS = new Set(["name", "mesh", "shape", "place", "group", "groups", "permittivity", "description"]);
+const CONDUCTOR_KEYS = new Set(["name", "mesh", "shape", "parts", "place", "group", "groups", "potential", "floating", "description"]);
+const DIELECTRIC_KEYS = new Set(["name", "mesh", "shape", "parts", "place", "group", "groups", "permittivity", "description"]);
+const PART_KEYS = new Set(["mesh", "shape", "place", "group", "groups", "description"]);
 
 /**
  * An axis-aligned plane written `{ "z": 0 }` (one of x, y, z, its position in `unit`), or the
@@ -192,7 +215,7 @@ export function parseScene(text: string, file: string, opts: SceneParseOptions =
   const base = dirname(resolve(file));
   const conductors: SceneConductor[] = list.map((entry, i) => {
     const at = `conductors[${i}]`;
-    const { e, name, mesh, shape, place, groups } = parseBody(entry, at, CONDUCTOR_KEYS, base, fail);
+    const { e, name, mesh, shape, place, groups, parts } = parseBody(entry, at, CONDUCTOR_KEYS, base, fail);
     let potential: number | undefined;
     if (e.potential !== undefined) {
       if (typeof e.potential !== "number" || !Number.isFinite(e.potential)) fail(`${at}.potential`, "expected a number (volts)");
@@ -204,17 +227,17 @@ export function parseScene(text: string, file: string, opts: SceneParseOptions =
       floating = e.floating as boolean;
       if (floating && potential !== undefined) fail(`${at}.potential`, "a floating conductor takes no potential (its potential is solved for); remove one of the two");
     }
-    return { name, mesh, shape, place, path: at, groups, potential, floating };
+    return { name, mesh, shape, place, path: at, groups, parts, potential, floating };
   });
   const dielectrics: SceneDielectric[] = [];
   if (top.dielectrics !== undefined) {
     if (!Array.isArray(top.dielectrics)) fail("dielectrics", "expected a list of dielectric bodies");
     (top.dielectrics as unknown[]).forEach((entry, i) => {
       const at = `dielectrics[${i}]`;
-      const { e, name, mesh, shape, place, groups } = parseBody(entry, at, DIELECTRIC_KEYS, base, fail);
+      const { e, name, mesh, shape, place, groups, parts } = parseBody(entry, at, DIELECTRIC_KEYS, base, fail);
       if (typeof e.permittivity !== "number" || !Number.isFinite(e.permittivity)) fail(`${at}.permittivity`, e.permittivity === undefined ? "missing (the body's relative permittivity)" : "expected a number");
       if ((e.permittivity as number) < 1) fail(`${at}.permittivity`, `relative permittivity must be at least 1, got ${e.permittivity}`);
-      dielectrics.push({ name, mesh, shape, place, path: at, groups, permittivity: e.permittivity as number });
+      dielectrics.push({ name, mesh, shape, place, path: at, groups, parts, permittivity: e.permittivity as number });
     });
   }
   const seen = new Map<string, number>();
@@ -235,22 +258,56 @@ export function parseScene(text: string, file: string, opts: SceneParseOptions =
 }
 
 
-/** What conductor and dielectric entries share: name, a mesh file (with groups) or a shape, a placement. */
+/** What conductor and dielectric entries share: name, a mesh file (with groups), a shape or a list of parts, a placement. */
 function parseBody(entry: unknown, at: string, keys: Set<string>, base: string, fail: (path: string, fault: string) => never) {
   if (!isObject(entry)) fail(at, "expected an object");
   const e = entry as Record<string, unknown>;
   for (const k of Object.keys(e)) if (!keys.has(k)) fail(`${at}.${k}`, `unknown key (expected one of ${[...keys].join(", ")})`);
+  const place = e.place === undefined ? undefined : parsePlacement(e.place, `${at}.place`, fail);
+  let parts: ScenePart[];
+  let single: Omit<ScenePart, "place" | "path"> = {};
+  if (e.parts !== undefined) {
+    const other = ["mesh", "shape", "group", "groups"].filter((k) => e[k] !== undefined);
+    if (other.length > 0) fail(`${at}.${other[0]}`, "an entry with parts takes its mesh files and shapes inside the parts, not beside them");
+    if (!Array.isArray(e.parts) || e.parts.length === 0) {
+      fail(`${at}.parts`, Array.isArray(e.parts) ? "the list is empty (give at least one part)" : "expected a list of parts, each { \"mesh\": file } or { \"shape\": {...} } with an optional \"place\"");
+    }
+    parts = (e.parts as unknown[]).map((p, j) => {
+      const pat = `${at}.parts[${j}]`;
+      if (!isObject(p)) return fail(pat, "expected an object: { \"mesh\": file } or { \"shape\": {...} }, with an optional \"place\"");
+      for (const k of Object.keys(p)) if (!PART_KEYS.has(k)) fail(`${pat}.${k}`, `unknown key (a part takes ${[...PART_KEYS].join(", ")}; name, potential and the like belong to the entry)`);
+      const src = parseSource(p, pat, base, fail);
+      return { ...src, place: p.place === undefined ? undefined : parsePlacement(p.place, `${pat}.place`, fail), path: pat };
+    });
+  } else {
+    single = parseSource(e, at, base, fail);
+    parts = [{ ...single, path: at }];
+  }
+  let name: string;
+  if (e.name !== undefined) {
+    if (typeof e.name !== "string" || e.name.trim().length === 0) fail(`${at}.name`, "expected a non-empty string");
+    name = (e.name as string).trim();
+  } else {
+    const first = parts[0];
+    const shape = first.shape;
+    name = shape ? (typeof shape.params.name === "string" && shape.params.name.trim() ? shape.params.name.trim() : shape.kind)
+      : first.groups && first.groups.length === 1 ? first.groups[0] : basename(first.mesh as string, extname(first.mesh as string));
+  }
+  return { e, name, mesh: single.mesh, shape: single.shape, place, groups: single.groups, parts };
+}
+
+/** The source of a piece: `mesh` (with `group`/`groups`) or `shape`, exactly one. */
+function parseSource(e: Record<string, unknown>, at: string, base: string, fail: (path: string, fault: string) => never): Omit<ScenePart, "place" | "path"> {
   if (e.mesh !== undefined && e.shape !== undefined) fail(at, "give either mesh (a file) or shape (a generated primitive), not both");
   let mesh: string | undefined;
-  let shape: SceneConductor["shape"];
+  let shape: ScenePart["shape"];
   if (e.shape !== undefined) {
     shape = parseShape(e.shape, `${at}.shape`, fail);
     if (e.group !== undefined || e.groups !== undefined) fail(`${at}.${e.group !== undefined ? "group" : "groups"}`, "applies to a mesh file, not to a generated shape");
   } else {
-    if (typeof e.mesh !== "string" || e.mesh.length === 0) fail(`${at}.mesh`, e.mesh === undefined ? "missing (path of the mesh file, or a \"shape\" instead)" : "expected a file path");
+    if (typeof e.mesh !== "string" || e.mesh.length === 0) fail(`${at}.mesh`, e.mesh === undefined ? "missing (path of the mesh file, or a \"shape\" or \"parts\" instead)" : "expected a file path");
     mesh = resolve(base, e.mesh as string);
   }
-  const place = e.place === undefined ? undefined : parsePlacement(e.place, `${at}.place`, fail);
   let groups: string[] | undefined;
   if (e.group !== undefined && e.groups !== undefined) fail(at, "give either group or groups, not both");
   if (e.group !== undefined) {
@@ -261,15 +318,7 @@ function parseBody(entry: unknown, at: string, keys: Set<string>, base: string, 
     if (!Array.isArray(e.groups) || e.groups.length === 0 || !e.groups.every((g) => typeof g === "string")) fail(`${at}.groups`, "expected a non-empty list of strings");
     groups = e.groups as string[];
   }
-  let name: string;
-  if (e.name !== undefined) {
-    if (typeof e.name !== "string" || e.name.trim().length === 0) fail(`${at}.name`, "expected a non-empty string");
-    name = (e.name as string).trim();
-  } else {
-    name = shape ? (typeof shape.params.name === "string" && shape.params.name.trim() ? shape.params.name.trim() : shape.kind)
-      : groups && groups.length === 1 ? groups[0] : basename(mesh as string, extname(mesh as string));
-  }
-  return { e, name, mesh, shape, place, groups };
+  return { mesh, shape, groups };
 }
 
 /** `"shape": { "<kind>": { params } }` with the parameter names checked against the generator's. */
@@ -316,36 +365,85 @@ export interface SceneMesh extends LoadedMesh {
   floating: boolean[];
 }
 
-/** Load every conductor of a scene: one conductor per entry, its file's groups joined. */
+/** Load every conductor of a scene: one conductor per entry, its parts (and their files' groups) joined. */
 export function loadSceneMesh(scene: Scene, opts: { weldTolerance?: number } = {}): SceneMesh {
-  const perUnit = metresPer(scene.unit);
-  const parts: LoadedMesh[] = scene.conductors.map((c) => {
-    if (c.shape) {
-      const mesh = generateShape(c.shape.kind, c.shape.params, { metresPerUnit: perUnit, describe: (p) => `${c.path}.shape.${c.shape!.kind}.${p}`, file: scene.file });
-      return { mesh, warnings: [], files: [], unit: scene.unit, dropped: 0, welded: 0 };
-    }
-    return loadMeshFile(c.mesh as string, { unit: scene.unit, groups: c.groups, merge: true, name: c.name, weldTolerance: opts.weldTolerance });
-  });
-  const meshes = parts.map((p, i): SurfaceMesh => {
-    const c = scene.conductors[i];
-    const placed = c.place ? placeMesh(p.mesh, c.place, perUnit) : p.mesh;
-    return { ...placed, conductor: new Uint32Array(placed.triangles.length / 3), names: [c.name] };
-  });
+  const bodies = scene.conductors.map((c) => loadBody(c, scene.file, scene.unit, opts.weldTolerance));
+  const dielectrics = scene.dielectrics.map((d) => loadBody(d, scene.file, scene.unit, opts.weldTolerance));
   return {
-    mesh: concatMeshes(meshes),
-    warnings: parts.flatMap((p) => p.warnings),
-    files: parts.flatMap((p) => p.files),
+    mesh: concatMeshes(bodies.map((b) => b.mesh)),
+    warnings: [...bodies, ...dielectrics].flatMap((b) => b.warnings),
+    files: [...new Set(bodies.flatMap((b) => b.files))],
     unit: scene.unit,
-    dropped: parts.reduce((s, p) => s + p.dropped, 0),
-    welded: parts.reduce((s, p) => s + p.welded, 0),
+    dropped: bodies.reduce((s, b) => s + b.dropped, 0),
+    welded: bodies.reduce((s, b) => s + b.welded, 0),
     potentials: scene.conductors.map((c) => c.potential),
     floating: scene.conductors.map((c) => c.floating),
-    dielectrics: scene.dielectrics.map((d) => {
-      const m = d.shape
-        ? generateShape(d.shape.kind, d.shape.params, { metresPerUnit: perUnit, describe: (q) => `${d.path}.shape.${d.shape!.kind}.${q}`, file: scene.file })
-        : loadMeshFile(d.mesh as string, { unit: scene.unit, groups: d.groups, merge: true, name: d.name, weldTolerance: opts.weldTolerance }).mesh;
-      const placed = d.place ? placeMesh(m, d.place, perUnit) : m;
-      return { name: d.name, mesh: { ...placed, conductor: new Uint32Array(placed.triangles.length / 3), names: [d.name] }, permittivity: d.permittivity };
-    }),
+    dielectrics: dielectrics.map((b, i) => ({ name: scene.dielectrics[i].name, mesh: b.mesh, permittivity: scene.dielectrics[i].permittivity })),
+  };
+}
+
+/**
+ * One entry as a one-conductor mesh in metres: each part read or generated and placed, the
+ * parts joined, welded and cleared of the faces they share, then the entry's placement.
+ */
+function loadBody(entry: SceneConductor | SceneDielectric, file: string, unit: LengthUnit, weldTolerance?: number): LoadedMesh {
+  const perUnit = metresPer(unit);
+  const pieces = entry.parts.map((part): LoadedMesh => {
+    let lm: LoadedMesh;
+    if (part.shape) {
+      const kind = part.shape.kind;
+      const mesh = generateShape(kind, part.shape.params, { metresPerUnit: perUnit, describe: (q) => `${part.path}.shape.${kind}.${q}`, file });
+      lm = { mesh, warnings: [], files: [], unit, dropped: 0, welded: 0 };
+    } else {
+      lm = loadMeshFile(part.mesh as string, { unit, groups: part.groups, merge: true, name: entry.name, weldTolerance });
+    }
+    return part.place ? { ...lm, mesh: placeMesh(lm.mesh, part.place, perUnit) } : lm;
+  });
+  let joined = pieces[0];
+  if (pieces.length > 1) joined = joinParts(pieces, entry, file, weldTolerance);
+  const placed = entry.place ? placeMesh(joined.mesh, entry.place, perUnit) : joined.mesh;
+  return { ...joined, mesh: { ...placed, conductor: new Uint32Array(placed.triangles.length / 3), names: [entry.name] } };
+}
+
+/** Parts of one net as one mesh: welded like the bodies of one file, faces shared by two parts removed. */
+function joinParts(pieces: LoadedMesh[], entry: SceneConductor | SceneDielectric, file: string, weldTolerance?: number): LoadedMesh {
+  const all = concatMeshes(pieces.map((p) => p.mesh));
+  // `all.conductor` numbers the parts (each piece holds one conductor).
+  const welded = weldVertices(all.positions, all.triangles, weldTolerance ?? DEFAULT_WELD_TOLERANCE);
+  const clean = dropDegenerate(welded.positions, welded.triangles, all.conductor);
+  const warnings = pieces.flatMap((p) => p.warnings);
+  if (clean.dropped > 0) warnings.push({ file, message: `${entry.path}: ${clean.dropped} triangle(s) of the joined parts dropped (zero area after welding)` });
+  // Two parts meeting face to face (abutting solids) each carry the shared face; inside the
+  // net it is no surface at all, so both copies go.
+  const tri = clean.triangles, part = clean.group;
+  const nt = part.length;
+  const seen = new Map<string, number>();
+  const drop = new Uint8Array(nt);
+  let shared = 0;
+  for (let t = 0; t < nt; t++) {
+    const a = tri[3 * t], b = tri[3 * t + 1], c = tri[3 * t + 2];
+    const lo = Math.min(a, b, c), hi = Math.max(a, b, c), mid = a + b + c - lo - hi;
+    const key = `${lo},${mid},${hi}`;
+    const u = seen.get(key);
+    if (u !== undefined && drop[u] === 0 && part[u] !== part[t]) { drop[u] = 1; drop[t] = 1; shared++; }
+    else if (u === undefined) seen.set(key, t);
+  }
+  if (shared === nt / 2) throw new InputError(`${entry.path}.parts: the parts are the same surface; nothing is left when their shared faces are removed`, file);
+  let triangles = tri.slice();
+  if (shared > 0) {
+    triangles = new Uint32Array(3 * (nt - 2 * shared));
+    for (let t = 0, k = 0; t < nt; t++) if (!drop[t]) { triangles[k++] = tri[3 * t]; triangles[k++] = tri[3 * t + 1]; triangles[k++] = tri[3 * t + 2]; }
+    warnings.push({ file, message: `${entry.path}: ${shared} triangle(s) shared by two of its parts removed from both (inside the joined net)` });
+  }
+  // Vertices only the removed triangles used would still count in bounding boxes.
+  const remap = new Int32Array(welded.positions.length / 3).fill(-1);
+  let nv = 0;
+  for (let i = 0; i < triangles.length; i++) { const v = triangles[i]; if (remap[v] < 0) remap[v] = nv++; triangles[i] = remap[v]; }
+  const positions = new Float64Array(3 * nv);
+  for (let v = 0; v < remap.length; v++) if (remap[v] >= 0) positions.set(welded.positions.subarray(3 * v, 3 * v + 3), 3 * remap[v]);
+  const mesh: SurfaceMesh = { positions, triangles, conductor: new Uint32Array(triangles.length / 3), names: [entry.name] };
+  return {
+    mesh, warnings, files: pieces.flatMap((p) => p.files), unit: pieces[0].unit,
+    dropped: pieces.reduce((s, p) => s + p.dropped, 0) + clean.dropped, welded: pieces.reduce((s, p) => s + p.welded, 0) + welded.merged,
   };
 }
