@@ -30,7 +30,7 @@
  */
 import type { PanelSet } from "./panels.js";
 import type { ImageSet } from "./images.js";
-import { trianglePotentialGradient } from "./triangle-potential.js";
+import { trianglePotentialGradient, PLANE_TOLERANCE } from "./triangle-potential.js";
 import { dunavantRule, type TriangleRule } from "./dunavant.js";
 
 export type InterfaceTesting = "collocation" | "galerkin";
@@ -43,6 +43,8 @@ const FAR_RULE = dunavantRule(5);
 const OUTER_RULE = dunavantRule(6);
 const OUTER_NEAR = 3;
 export const GALERKIN_SPLIT = 2;
+/** |n̂·n̂_j| at or above which a test normal counts as parallel to panel j's (coplanar test). */
+const COPLANAR_PARALLEL = 1 - 1e-9;
 const grad = new Float64Array(3);
 
 /**
@@ -54,6 +56,12 @@ export function normalFieldAt(S: PanelSet, j: number, px: number, py: number, pz
   const dx = px - c[3 * j], dy = py - c[3 * j + 1], dz = pz - c[3 * j + 2];
   const r2 = dx * dx + dy * dy + dz * dz, rj = S.radii[j];
   if (r2 < NORMAL_FIELD_FAR * NORMAL_FIELD_FAR * rj * rj) {
+    // On T_j's own plane with n̂ parallel to T_j's normal the value is the principal value 0
+    // (the field of a flat panel lies in its plane there); the in-plane gradient, infinite
+    // exactly on T_j's edges (a pad edge through a board panel's quadrature point), would
+    // otherwise enter as ∞·0.
+    const m = S.normals, mx = m[3 * j], my = m[3 * j + 1], mz = m[3 * j + 2];
+    if (Math.abs(mx * nx + my * ny + mz * nz) >= COPLANAR_PARALLEL && Math.abs(dx * mx + dy * my + dz * mz) <= PLANE_TOLERANCE * rj) return 0;
     trianglePotentialGradient(grad, 0, v, 9 * j, px, py, pz);
     return -(grad[0] * nx + grad[1] * ny + grad[2] * nz) / S.areas[j];
   }
