@@ -4,16 +4,20 @@
  * joins the tables of `--shard` slices. A thin shell over src/extract/sweep.ts.
  */
 import type { Command } from "commander";
-import { readFileSync } from "node:fs";
+import { readFileSync, existsSync } from "node:fs";
+import { createRequire } from "node:module";
 import { extname } from "node:path";
 import { InputError } from "../src/io/errors.js";
 import { writeFilesAtomic } from "../src/io/atomic.js";
 import { closeSharedPool } from "../src/linalg/pool.js";
+import { journalPath, readJournal, removeJournal, SweepJournal, type JournalEntry } from "../src/io/sweep-journal.js";
 import {
   parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, sceneConductorNames,
-  runSweep, sweepCsv, sweepSvg, mergeSweepCsv,
+  runSweepPoints, isPointFailure, sweepPointKey, sweepCsv, sweepSvg, mergeSweepCsv, type PointMatrices,
 } from "../src/extract/sweep.js";
-import { collect, action, printWarnings } from "./common.js";
+import { collect, action, printWarnings, reportFailure } from "./common.js";
+
+const version = (): string => (createRequire(import.meta.url)("../../package.json") as { version: string }).version;
 
 export interface SweepCliOptions {
   vary: string[];
@@ -26,6 +30,7 @@ export interface SweepCliOptions {
   solver: string;
   tol: string;
   refine: string;
+  resume?: boolean;
   quiet?: boolean;
 }
 
@@ -51,24 +56,79 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
   // Names and parameters are checked on the first point before anything runs.
   const names = sceneConductorNames(scene, points[0]);
   const entries = opts.entries === undefined ? defaultEntries(names) : parseEntries(opts.entries, names);
-  if (!opts.quiet) process.stderr.write(`sigmesh: sweep of ${scene}: ${points.length} point${points.length === 1 ? "" : "s"}${shard ? `, slice ${shard.index}/${shard.count}: ${indices.length} of them` : ""}, ${processes > 0 ? `${processes} processes at a time` : "one at a time on every core"}\n`);
+  // The journal keeps finished points across a failed or interrupted run; --resume reuses them.
+  const journalFile = journalPath(opts.csv);
+  let kept = new Map<string, JournalEntry>();
+  if (existsSync(journalFile)) {
+    const prior = readJournal(journalFile);
+    if (!opts.resume) {
+      throw new InputError(`holds ${prior.entries.size} point${prior.entries.size === 1 ? "" : "s"} of an earlier run of this table that did not finish: add --resume to keep them (only the other points run), or delete it to start over`, journalFile);
+    }
+    kept = prior.entries;
+  }
+  const runOpts = { method, solver, tolerance, refine, processes } as const;
+  const digests = new Map<string, string>();
+  const keys = new Map<number, string>();
+  for (const k of indices) {
+    // A point whose scene cannot even be written out gets no key: it runs, and fails with its own message.
+    try { keys.set(k, sweepPointKey(scene, points[k], runOpts, version(), digests)); } catch { /* no key */ }
+  }
+  const results = new Map<number, PointMatrices>();
+  for (const k of indices) {
+    const e = keys.has(k) ? kept.get(keys.get(k)!) : undefined;
+    if (e) results.set(k, { names: e.names, maxwell: e.maxwell, mutual: e.mutual });
+  }
+  const toRun = indices.filter((k) => !results.has(k));
+  if (!opts.quiet) {
+    process.stderr.write(`sigmesh: sweep of ${scene}: ${points.length} point${points.length === 1 ? "" : "s"}${shard ? `, slice ${shard.index}/${shard.count}: ${indices.length} of them` : ""}`
+      + `${results.size > 0 ? `, ${results.size} kept from ${journalFile}, ${toRun.length} to run` : ""}, ${processes > 0 ? `${processes} processes at a time` : "one at a time on every core"}\n`);
+  }
   const start = Date.now();
-  let results;
   let shown = 0;
+  const journal = toRun.length > 0 ? new SweepJournal(journalFile, scene) : undefined;
+  const controller = new AbortController();
+  const interrupted = (signal: NodeJS.Signals): void => {
+    controller.abort();
+    if (shown > 0) process.stderr.write("\n");
+    process.stderr.write(`sigmesh: interrupted (${signal}); the points finished are kept in ${journalFile}: rerun with --resume to run only the others\n`);
+    // In this process a point cannot be stopped half-way, and the journal is complete up to the last line: leave now.
+    if (processes <= 0) process.exit(signal === "SIGINT" ? 130 : 143);
+    process.exitCode = signal === "SIGINT" ? 130 : 143;
+  };
+  process.once("SIGINT", interrupted);
+  process.once("SIGTERM", interrupted);
+  let outcome;
   try {
-    results = await runSweep(scene, points, indices, {
-      method, solver, tolerance, refine, processes,
+    outcome = await runSweepPoints(scene, points, toRun, {
+      ...runOpts, signal: controller.signal,
+      onResult: (k, r) => journal!.append({ point: k, key: keys.get(k) ?? "", parameters: points[k], names: r.names, maxwell: Array.from(r.maxwell), mutual: Array.from(r.mutual) }),
       // A live counter only on a terminal; logs get the closing line alone.
       onPoint: opts.quiet || !process.stderr.isTTY ? undefined : (done, total) => { shown = done; process.stderr.write(`\rsigmesh: ${done}/${total} points`); },
     });
+  } catch (err) {
+    if (controller.signal.aborted) return;
+    throw err;
   } finally {
-    if (shown > 0) process.stderr.write("\n");
+    process.off("SIGINT", interrupted);
+    process.off("SIGTERM", interrupted);
+    if (shown > 0 && !controller.signal.aborted) process.stderr.write("\n");
     await closeSharedPool();
   }
-  const files = [{ path: opts.csv, data: sweepCsv(axes, entries, points.length, indices, points, results) }];
-  if (opts.svg) files.push({ path: opts.svg, data: sweepSvg(axes, entries, indices, points, results, `sweep of ${scene}`) });
+  const failures = outcome.filter(isPointFailure);
+  outcome.forEach((r, q) => { if (!isPointFailure(r)) results.set(toRun[q], r); });
+  if (failures.length > 0) {
+    let code = 0;
+    for (const f of failures) code = Math.max(code, reportFailure(f.error));
+    process.stderr.write(`sigmesh: ${failures.length} of ${indices.length} points failed and no table was written; the ${results.size} finished are kept in ${journalFile}: fix the scene and rerun with --resume to run only the others\n`);
+    process.exitCode = code;
+    return;
+  }
+  const ordered = indices.map((k) => results.get(k)!);
+  const files = [{ path: opts.csv, data: sweepCsv(axes, entries, points.length, indices, points, ordered) }];
+  if (opts.svg) files.push({ path: opts.svg, data: sweepSvg(axes, entries, indices, points, ordered, `sweep of ${scene}`) });
   writeFilesAtomic(files);
-  if (!opts.quiet) process.stderr.write(`sigmesh: ${indices.length} points in ${((Date.now() - start) / 1000).toFixed(1)} s -> ${files.map((f) => f.path).join(", ")}\n`);
+  removeJournal(journalFile);
+  if (!opts.quiet) process.stderr.write(`sigmesh: ${indices.length} points (${toRun.length} run) in ${((Date.now() - start) / 1000).toFixed(1)} s -> ${files.map((f) => f.path).join(", ")}\n`);
 }
 
 export async function runSweepMerge(inputs: string[], opts: { csv: string; quiet?: boolean }): Promise<void> {
@@ -103,6 +163,7 @@ export function registerSweep(program: Command): void {
     .option("--solver <solver>", "auto, direct, iterative or compressed", "auto")
     .option("--tol <relative>", "requested relative accuracy of the capacitances", "1e-4")
     .option("--refine <K>", "solve on K uniform refinements at each point and extrapolate", "0")
+    .option("--resume", "keep the points an earlier, failed or interrupted run finished (kept in <csv>.journal) and run only the others")
     .option("--quiet", "print only errors and warnings")
     .action(action((scene: string, opts: SweepCliOptions) => runSweepCommand(scene, opts)));
   sweep

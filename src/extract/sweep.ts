@@ -14,6 +14,7 @@
  * thread each, several at once.
  */
 import { spawn } from "node:child_process";
+import { createHash } from "node:crypto";
 import { mkdtempSync, writeFileSync, rmSync, readFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join, dirname, resolve, isAbsolute } from "node:path";
@@ -186,6 +187,7 @@ export async function extractPoint(scene: string, point: Record<string, number>,
     const options: ExtractOptions = {
       permittivity: s.permittivity, breakdownField: s.breakdownField, potentials: s.potentials,
       groundPlane: s.groundPlane, symmetry: s.symmetry, floating: s.floating,
+      dielectrics: s.dielectrics.length > 0 ? s.dielectrics : undefined,
       method: opts.method ?? "galerkin", solver: opts.solver ?? "auto", tolerance: opts.tolerance ?? 1e-4, refine: opts.refine ?? 0,
     };
     const r = await extract(s.mesh, options);
@@ -215,31 +217,57 @@ function standaloneSceneText(scene: string, point: Record<string, number>): stri
   return JSON.stringify(value, null, 2);
 }
 
-function runChild(args: string[], env: NodeJS.ProcessEnv): Promise<{ code: number | null; out: string; err: string }> {
+function runChild(args: string[], env: NodeJS.ProcessEnv, signal?: AbortSignal): Promise<{ code: number | null; out: string; err: string }> {
   return new Promise((done, fail) => {
-    const child = spawn(process.execPath, args, { env, stdio: ["ignore", "pipe", "pipe"] });
+    const child = spawn(process.execPath, args, { env, stdio: ["ignore", "pipe", "pipe"], signal });
     const out: Buffer[] = [], err: Buffer[] = [];
     child.stdout.on("data", (b: Buffer) => out.push(b));
     child.stderr.on("data", (b: Buffer) => err.push(b));
-    child.on("error", fail);
+    child.on("error", (e) => { if ((e as Error).name === "AbortError") done({ code: null, out: "", err: "" }); else fail(e); });
     child.on("close", (code) => done({ code, out: Buffer.concat(out).toString("utf8"), err: Buffer.concat(err).toString("utf8") }));
   });
 }
 
+/** A point that could not be extracted: its number and the error (an InputError naming the point for bad input). */
+export interface PointFailure { point: number; error: unknown }
+
+export interface SweepPointsOptions extends SweepRunOptions {
+  /** Called with each point's result as soon as it is known (for a journal), in completion order. */
+  onResult?: (point: number, result: PointMatrices) => void;
+  /** Stops the sweep: no new point starts, child processes are killed, and the run rejects with an AbortError. */
+  signal?: AbortSignal;
+}
+
+const isFailure = (r: PointMatrices | PointFailure): r is PointFailure => "error" in r;
+export { isFailure as isPointFailure };
+
+function aborted(): Error {
+  const e = new Error("the sweep was interrupted");
+  e.name = "AbortError";
+  return e;
+}
+
 /**
- * Extract the scene at the given points (numbers `indices` of the grid `points`), in order
- * of `indices`; resolves with one result per index. Bad input at any point rejects with an
- * InputError naming the point.
+ * Extract the scene at the given points (numbers `indices` of the grid `points`); resolves with
+ * one entry per index, in order of `indices`: the matrices, or the failure of that point. A
+ * failing point does not stop the others. Rejects only when `signal` aborts.
  */
-export async function runSweep(scene: string, points: ReadonlyArray<Record<string, number>>, indices: readonly number[],
-  opts: SweepRunOptions = {}): Promise<PointMatrices[]> {
-  const out: PointMatrices[] = new Array(indices.length);
+export async function runSweepPoints(scene: string, points: ReadonlyArray<Record<string, number>>, indices: readonly number[],
+  opts: SweepPointsOptions = {}): Promise<Array<PointMatrices | PointFailure>> {
+  const out: Array<PointMatrices | PointFailure> = new Array(indices.length);
   const processes = opts.processes ?? 0;
+  const signal = opts.signal;
   let done = 0;
+  const settle = (q: number, r: PointMatrices | PointFailure): void => {
+    out[q] = r;
+    if (!isFailure(r)) opts.onResult?.(indices[q], r);
+    opts.onPoint?.(++done, indices.length);
+  };
   if (processes <= 0) {
     for (let q = 0; q < indices.length; q++) {
-      out[q] = await extractPoint(scene, points[indices[q]], opts, indices[q]);
-      opts.onPoint?.(++done, indices.length);
+      if (signal?.aborted) throw aborted();
+      const k = indices[q];
+      try { settle(q, await extractPoint(scene, points[k], opts, k)); } catch (error) { settle(q, { point: k, error }); }
     }
     return out;
   }
@@ -248,15 +276,15 @@ export async function runSweep(scene: string, points: ReadonlyArray<Record<strin
   const env = { ...process.env, SIGMESH_THREADS: "1" };
   const flags = ["--method", opts.method ?? "galerkin", "--solver", opts.solver ?? "auto", "--tol", String(opts.tolerance ?? 1e-4), "--refine", String(opts.refine ?? 0)];
   let next = 0;
-  let failed: unknown;
   const worker = async (): Promise<void> => {
-    while (failed === undefined && next < indices.length) {
+    while (next < indices.length && !signal?.aborted) {
       const q = next++;
       const k = indices[q], point = points[k];
       try {
         const file = join(dir, `point-${k}.json`);
         writeFileSync(file, standaloneSceneText(scene, point));
-        const r = await runChild([cli, "extract", file, "--json", "-", "--quiet", ...flags], env);
+        const r = await runChild([cli, "extract", file, "--json", "-", "--quiet", ...flags], env, signal);
+        if (signal?.aborted) return;
         if (r.code !== 0) {
           const line = (r.err.split("\n").find((l) => l.startsWith("sigmesh: error:") || l.startsWith("sigmesh: internal error:")) ?? r.err.trim())
             .replace(/^sigmesh: (internal )?error: /, "").split(file).join(scene);
@@ -264,10 +292,11 @@ export async function runSweep(scene: string, points: ReadonlyArray<Record<strin
           throw new Error(`${describePoint(k, point)}: ${line}`);
         }
         const report = JSON.parse(r.out) as { conductors: Array<{ name: string }>; capacitance: { maxwell: number[][]; mutual: number[][] } };
-        out[q] = { names: report.conductors.map((c) => c.name), maxwell: report.capacitance.maxwell.flat(), mutual: report.capacitance.mutual.flat() };
-        opts.onPoint?.(++done, indices.length);
-      } catch (err) {
-        if (failed === undefined) failed = err;
+        settle(q, { names: report.conductors.map((c) => c.name), maxwell: report.capacitance.maxwell.flat(), mutual: report.capacitance.mutual.flat() });
+      } catch (error) {
+        if (signal?.aborted) return;
+        // A point that cannot even be written out (bad scene text) fails like one whose extraction fails.
+        settle(q, { point: k, error: error instanceof InputError && !error.place ? new InputError(error.fault, error.file ?? scene, describePoint(k, point)) : error });
       }
     }
   };
@@ -276,8 +305,54 @@ export async function runSweep(scene: string, points: ReadonlyArray<Record<strin
   } finally {
     rmSync(dir, { recursive: true, force: true });
   }
-  if (failed !== undefined) throw failed;
+  if (signal?.aborted) throw aborted();
   return out;
+}
+
+/**
+ * Extract the scene at the given points, in order of `indices`; resolves with one result per
+ * index. Every point is run; if any failed, rejects with the failure of the first of them
+ * (an InputError naming the point for bad input).
+ */
+export async function runSweep(scene: string, points: ReadonlyArray<Record<string, number>>, indices: readonly number[],
+  opts: SweepPointsOptions = {}): Promise<PointMatrices[]> {
+  const all = await runSweepPoints(scene, points, indices, opts);
+  const failed = all.find(isFailure);
+  if (failed) throw failed.error;
+  return all as PointMatrices[];
+}
+
+/**
+ * A digest of everything a point's result depends on: the scene as written by hand at that
+ * point (numbers substituted, mesh paths absolute), the contents of the mesh files it names,
+ * the extraction settings and the program version. Equal keys give equal matrices, so a
+ * journalled point with the same key is not run again. `fileDigests` caches file contents' digests.
+ */
+export function sweepPointKey(scene: string, point: Record<string, number>, opts: SweepRunOptions, version: string,
+  fileDigests: Map<string, string> = new Map()): string {
+  const text = standaloneSceneText(scene, point);
+  const value = JSON.parse(text) as Record<string, unknown>;
+  const files: string[] = [];
+  const collect = (o: unknown): void => {
+    if (typeof o !== "object" || o === null) return;
+    const e = o as Record<string, unknown>;
+    if (typeof e.mesh === "string") files.push(e.mesh);
+    if (Array.isArray(e.parts)) e.parts.forEach(collect);
+  };
+  for (const key of ["conductors", "dielectrics"]) if (Array.isArray(value[key])) (value[key] as unknown[]).forEach(collect);
+  const h = createHash("sha256");
+  h.update(JSON.stringify({ version, method: opts.method ?? "galerkin", solver: opts.solver ?? "auto", tolerance: opts.tolerance ?? 1e-4, refine: opts.refine ?? 0 }));
+  h.update("\n");
+  h.update(text);
+  for (const f of [...new Set(files)].sort()) {
+    let d = fileDigests.get(f);
+    if (d === undefined) {
+      try { d = createHash("sha256").update(readFileSync(f)).digest("hex"); } catch { d = "unreadable"; }
+      fileDigests.set(f, d);
+    }
+    h.update(`\n${f} ${d}`);
+  }
+  return h.digest("hex");
 }
 
 /** Conductor names of the scene at a point, without meshing it (for checking `--entries` before running). */
