@@ -6,7 +6,7 @@
  * refused by key path.
  */
 import { describe, it, expect, afterAll } from "vitest";
-import { mkdtempSync, writeFileSync, rmSync } from "node:fs";
+import { mkdtempSync, writeFileSync, rmSync, readFileSync } from "node:fs";
 import { join } from "node:path";
 import { tmpdir } from "node:os";
 import { boxMesh, plateMesh } from "../../src/mesh/primitives/index.js";
@@ -109,5 +109,24 @@ describe("multi-part conductors", () => {
     const s = parseScene(JSON.stringify({ parameters: { w: 2 }, conductors: [{ name: "c", parts: [{ shape: { plate: { size: ["=w", 1] } }, place: { translate: ["=w/2", 0, 0] } }] }] }), join(dir, "e.json"), { parameters: { w: 4 } });
     expect(s.conductors[0].parts[0].shape?.params.size).toEqual([4, 1]);
     expect(s.conductors[0].parts[0].place?.translate).toEqual([2, 0, 0]);
+  });
+
+  it("accept every key schema/scene.schema.json lists for entries and parts, and refuse others", () => {
+    const schema = JSON.parse(readFileSync(new URL("../../schema/scene.schema.json", import.meta.url), "utf8"));
+    const lists: Array<[string, string[], (k: string) => unknown]> = [
+      ["conductors", Object.keys(schema.properties.conductors.items.properties), (k) => ({ conductors: [{ [k]: 1 }] })],
+      ["dielectrics", Object.keys(schema.properties.dielectrics.items.properties), (k) => ({ conductors: [{ shape: { sphere: { radius: 1 } } }], dielectrics: [{ [k]: 1 }] })],
+      ["parts", Object.keys(schema.$defs.part.properties), (k) => ({ conductors: [{ parts: [{ [k]: 1 }] }] })],
+    ];
+    for (const [what, keys, scene] of lists) {
+      expect(keys.length, what).toBeGreaterThan(4);
+      for (const k of keys) {
+        let message = "";
+        try { parseScene(JSON.stringify(scene(k)), "k.json"); } catch (e) { message = (e as Error).message; }
+        expect(message, `${what}: ${k}`).not.toMatch(/unknown key/);
+      }
+      expect(() => parseScene(JSON.stringify(scene("colour")), "k.json"), what).toThrow(/colour: unknown key/);
+    }
+    expect(schema.properties.conductors.items.oneOf).toContainEqual({ required: ["parts"] });
   });
 });
