@@ -24,3 +24,8 @@ export { extractionReport } from "./report/json.js";
 export { extractionSummary } from "./report/extract-summary.js";
 export { formatSI } from "./report/si.js";
 export { closeSharedPool } from "./linalg/pool.js";
+export {
+  parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, entryValue, entryLabel,
+  extractPoint, runSweep, runSweepPoints, isPointFailure, sweepCsv, mergeSweepCsv,
+  type SweepAxis, type Shard, type MatrixEntry, type PointMatrices, type SweepRunOptions, type SweepPointsOptions, type PointFailure,
+} from "./extract/sweep.js";

@@ -91,3 +91,21 @@ describe("sweep points", () => {
     expect(() => mergeSweepCsv([{ file: "x.csv", text: "a,b\r\n1,2\r\n" }])).toThrow(/x\.csv: line 1: the first column is "a"/);
   });
 });
+
+describe("sweep through the library entry point", () => {
+  it("runs a grid with runSweep and tabulates it as the CLI does", async () => {
+    const api = await import("../../src/index.js");
+    writeFileSync(join(dir, "api.json"), JSON.stringify({ unit: "mm", parameters: { gap: 2 }, conductors: [
+      { name: "a", shape: { box: { size: [2, 2, 0.5], divisions: 1 } }, potential: 1 },
+      { name: "b", shape: { box: { size: [2, 2, 0.5], divisions: 1 } }, place: { translate: [0, 0, "=gap"] } }] }));
+    const axes = [api.parseVary("gap=1,3")], points = api.sweepGrid(axes);
+    const results = await api.runSweep(join(dir, "api.json"), points, [0, 1]);
+    const single = await api.extractPoint(join(dir, "api.json"), { gap: 3 });
+    expect(Array.from(results[1].maxwell)).toEqual(Array.from(single.maxwell));
+    // Farther apart, less coupled: |C(a,b)| falls with the gap.
+    expect(Math.abs(results[1].maxwell[1])).toBeLessThan(Math.abs(results[0].maxwell[1]));
+    const entries = api.parseEntries("C(a,b)", results[0].names);
+    const csv = api.sweepCsv(axes, entries, 2, [0, 1], points, results);
+    expect(csv.split(/\r?\n/).filter((l) => l.length > 0)).toHaveLength(3);
+  });
+});
