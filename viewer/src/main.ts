@@ -4,13 +4,17 @@
  * capacitance tables. Everything a user file names is written with textContent.
  *
  * One BufferGeometry per conductor, three vertices per panel (so colours are per panel),
- * colours as a normalised byte attribute; redrawn on demand, not every frame, so software
- * WebGL stays usable.
+ * positions and sRGB colour bytes only (normals and edges come from the shader, see
+ * panel-material.ts). Redrawn on demand, not every frame. On a large model a coarse proxy
+ * of each conductor (proxy.ts) is drawn while the camera moves and the full mesh as soon as
+ * it rests, so software WebGL stays interactive; picking always uses the full mesh.
  */
 import * as THREE from "three";
 import { OrbitControls } from "three/examples/jsm/controls/OrbitControls.js";
 import { readPageData, type PageData, type Excitation, type HotSpot } from "./data.js";
 import { coolWarmTable, viridisTable, LUT_SIZE } from "./colormap.js";
+import { clusterProxy, proxyPlan } from "./proxy.js";
+import { panelMaterial, type PanelMaterial } from "./panel-material.js";
 import { formatSI, formatPoint, formatNumber, formatArea } from "../../src/report/si.js";
 import type { LengthUnit } from "../../src/io/units.js";
 import "./style.css";
@@ -21,6 +25,12 @@ type Scale = "linear" | "log";
 /** Decades shown below the top of a log scale at most. */
 const LOG_DECADES = 6;
 const MARKER_COLOUR = 0xff00ff;
+/** Above this many panels the view draws proxies while it moves (a frame's cost is mostly per triangle in software WebGL). */
+const PROXY_ABOVE_PANELS = 60000;
+/** Triangles of all proxies together, about. */
+const PROXY_TRIANGLES = 30000;
+/** The full mesh is drawn once the view has not moved for this long; ms. */
+const SETTLE_MS = 160;
 
 function el<K extends keyof HTMLElementTagNameMap>(tag: K, cls?: string, text?: string): HTMLElementTagNameMap[K] {
   const e = document.createElement(tag);
@@ -110,10 +120,16 @@ interface ConductorView {
   index: number;
   panels: Uint32Array;
   mesh: any;
-  /** Linear-light RGB per vertex (three.js shades in linear light; the tables are sRGB). */
-  colours: Float32Array;
-  edges: any | null;
+  /** RGBA bytes per vertex, sRGB (the shader turns them into linear light), as one word each. */
+  colours: Uint32Array;
   material: any;
+  edgeSwitch: PanelMaterial["edges"];
+  /** Coarse stand-in drawn while the view moves (null: the full mesh is drawn then too). */
+  proxy: any | null;
+  /** Index into `panels` of the panel each proxy triangle stands for. */
+  proxySource: Uint32Array | null;
+  proxyColours: Uint32Array | null;
+  proxyMaterial: any | null;
   visible: boolean;
   opacity: number;
 }
@@ -239,9 +255,14 @@ function start(root: HTMLElement, data: PageData): void {
   glNote.id = "sm-glnote";
   stage.appendChild(glNote);
 
-  const linearTable = (t: Uint8Array): Float32Array => Float32Array.from(t, (b) => { const c = b / 255; return c <= 0.04045 ? c / 12.92 : Math.pow((c + 0.055) / 1.055, 2.4); });
   const coolWarm = coolWarmTable(), viridis = viridisTable();
-  const coolWarmLinear = linearTable(coolWarm), viridisLinear = linearTable(viridis);
+  // The tables as RGBA words in memory order (bytes r, g, b, 255), to fill vertex colours a word at a time.
+  const words = (t: Uint8Array): Uint32Array => {
+    const out = new Uint32Array(LUT_SIZE);
+    new Uint8Array(out.buffer).set(Uint8Array.from({ length: 4 * LUT_SIZE }, (_, j) => (j % 4 === 3 ? 255 : t[3 * (j >> 2) + (j % 4)])));
+    return out;
+  };
+  const coolWarmWords = words(coolWarm), viridisWords = words(viridis);
 
   // ---- Conductor list (visibility, opacity) ----
   const views: ConductorView[] = [];
@@ -273,13 +294,22 @@ function start(root: HTMLElement, data: PageData): void {
   }
 
   function applyVisibility(cv: ConductorView): void {
-    cv.mesh.visible = cv.visible;
-    cv.material.opacity = cv.opacity;
-    cv.material.transparent = cv.opacity < 1;
-    cv.material.depthWrite = cv.opacity >= 1;
-    cv.material.side = faceSide(cv.index, cv.opacity);
-    cv.material.needsUpdate = true;
-    if (cv.edges) cv.edges.visible = cv.visible && state.edges;
+    for (const m of [cv.material, cv.proxyMaterial]) {
+      if (!m) continue;
+      m.opacity = cv.opacity;
+      m.transparent = cv.opacity < 1;
+      m.depthWrite = cv.opacity >= 1;
+      m.side = faceSide(cv.index, cv.opacity);
+      m.needsUpdate = true;
+    }
+    applyDetail(cv);
+  }
+
+  /** Full mesh or proxy, by whether the view is moving. */
+  function applyDetail(cv: ConductorView): void {
+    const coarse = moving && cv.proxy !== null;
+    cv.mesh.visible = cv.visible && !coarse;
+    if (cv.proxy) cv.proxy.visible = cv.visible && coarse;
   }
 
   // ---- Colour bar and hot spots ----
@@ -414,30 +444,106 @@ function start(root: HTMLElement, data: PageData): void {
     }
     const geometry = new THREE.BufferGeometry();
     geometry.setAttribute("position", new THREE.BufferAttribute(pos, 3));
-    const colours = new Float32Array(9 * list.length);
-    geometry.setAttribute("color", new THREE.BufferAttribute(colours, 3));
-    geometry.computeVertexNormals();
+    // Four bytes per vertex: a 3-byte stride is not a native vertex format for Vulkan, and
+    // ANGLE would convert the buffer on the CPU at every upload.
+    const colours = new Uint32Array(3 * list.length);
+    geometry.setAttribute("color", new THREE.BufferAttribute(new Uint8Array(colours.buffer), 4, true));
     geometry.computeBoundingSphere();
-    const material = new THREE.MeshLambertMaterial({ vertexColors: true, side: faceSide(c, 1), clippingPlanes: [], polygonOffset: true, polygonOffsetFactor: 1, polygonOffsetUnits: 1 });
+    const { material, edges: edgeSwitch } = panelMaterial(faceSide(c, 1));
     const mesh = new THREE.Mesh(geometry, material);
     mesh.userData.conductor = c;
     scene.add(mesh);
-    views.push({ index: c, panels: list, mesh, colours, edges: null, material, visible: true, opacity: 1 });
+    views.push({ index: c, panels: list, mesh, colours, material, edgeSwitch, proxy: null, proxySource: null, proxyColours: null, proxyMaterial: null, visible: true, opacity: 1 });
+  }
+
+  // ---- Proxies for a moving view (built once, after the first frame) ----
+  const useProxies = v.panelConductor.length > PROXY_ABOVE_PANELS;
+  let proxiesBuilt = false;
+  function buildProxies(): void {
+    if (proxiesBuilt || !useProxies) return;
+    proxiesBuilt = true;
+    const t0 = performance.now();
+    const areas = new Float64Array(k), extents = new Float64Array(k);
+    for (let p = 0; p < v.areas.length; p++) areas[v.panelConductor[p]] += v.areas[p];
+    for (const cv of views) {
+      const b = cv.mesh.geometry.boundingSphere;
+      extents[cv.index] = b ? 2 * b.radius : 0;
+    }
+    const plan = proxyPlan(counts, areas, extents, PROXY_TRIANGLES);
+    let drawn = 0;
+    for (const cv of views) {
+      const cell = plan.cells[cv.index];
+      if (!(cell > 0)) { drawn += cv.panels.length; continue; }
+      const px = clusterProxy(v.positions, v.triangles, cv.panels, cell, [box.min.x, box.min.y, box.min.z]);
+      const nt = px.source.length;
+      const pos = new Float32Array(9 * nt);
+      for (let i = 0; i < 3 * nt; i++) {
+        const q = px.triangles[i];
+        pos[3 * i] = px.positions[3 * q]; pos[3 * i + 1] = px.positions[3 * q + 1]; pos[3 * i + 2] = px.positions[3 * q + 2];
+      }
+      const g = new THREE.BufferGeometry();
+      g.setAttribute("position", new THREE.BufferAttribute(pos, 3));
+      cv.proxyColours = new Uint32Array(3 * nt);
+      g.setAttribute("color", new THREE.BufferAttribute(new Uint8Array(cv.proxyColours.buffer), 4, true));
+      g.computeBoundingSphere();
+      cv.proxyMaterial = panelMaterial(cv.material.side).material;
+      cv.proxyMaterial.clippingPlanes = cv.material.clippingPlanes;
+      cv.proxy = new THREE.Mesh(g, cv.proxyMaterial);
+      cv.proxy.visible = false;
+      cv.proxySource = px.source;
+      scene.add(cv.proxy);
+      applyVisibility(cv);
+      colourProxy(cv);
+      drawn += nt;
+    }
+    root.dataset.proxyPanels = String(drawn);
+    root.dataset.proxyMs = (performance.now() - t0).toFixed(0);
+  }
+
+  function colourProxy(cv: ConductorView): void {
+    if (!cv.proxy || !cv.proxySource || !cv.proxyColours) return;
+    const src = cv.proxySource, from = cv.colours, to = cv.proxyColours;
+    for (let i = 0; i < src.length; i++) {
+      const w = from[3 * src[i]];
+      to[3 * i] = w; to[3 * i + 1] = w; to[3 * i + 2] = w;
+    }
+    cv.proxy.geometry.attributes.color.needsUpdate = true;
+  }
+
+  // The view is "moving" from a user's drag, wheel or key (or a flight to a hot spot) until it
+  // has rested for SETTLE_MS; meanwhile proxies are drawn.
+  let moving = false;
+  let settleTimer = 0;
+  let drewCoarse = false;
+  function motion(): void {
+    if (!useProxies) return;
+    buildProxies();
+    if (!moving) { moving = true; for (const cv of views) applyDetail(cv); }
+    clearTimeout(settleTimer);
+    settleTimer = window.setTimeout(settle, SETTLE_MS);
+  }
+  function settle(): void {
+    if (!moving) return;
+    moving = false;
+    for (const cv of views) applyDetail(cv);
+    if (drewCoarse) { drewCoarse = false; requestRender(); }
   }
 
   function recolour(): void {
     const e = v.excitations[state.excitation];
     scaleNow = colourScale(e, state.quantity, state.scale);
     const values = state.quantity === "field" ? e.field : e.sigma;
-    const lut = state.quantity === "field" ? viridisLinear : coolWarmLinear;
+    const lut = state.quantity === "field" ? viridisWords : coolWarmWords;
     for (const cv of views) {
       const col = cv.colours, list = cv.panels;
       for (let i = 0; i < list.length; i++) {
         const t = scaleNow.map(values[list[i]]);
-        const li = 3 * Math.round(Math.min(1, Math.max(0, Number.isFinite(t) ? t : 0)) * (LUT_SIZE - 1));
-        for (let j = 0; j < 3; j++) { col[9 * i + 3 * j] = lut[li]; col[9 * i + 3 * j + 1] = lut[li + 1]; col[9 * i + 3 * j + 2] = lut[li + 2]; }
+        const li = Math.round(Math.min(1, Math.max(0, Number.isFinite(t) ? t : 0)) * (LUT_SIZE - 1));
+        const w = lut[li];
+        col[3 * i] = w; col[3 * i + 1] = w; col[3 * i + 2] = w;
       }
       cv.mesh.geometry.attributes.color.needsUpdate = true;
+      colourProxy(cv);
     }
     drawBar();
     fillHotSpots();
@@ -486,16 +592,10 @@ function start(root: HTMLElement, data: PageData): void {
     return ring;
   }
 
+  // Mesh edges are drawn by the panel shader of the full mesh only (a proxy's edges are not the mesh's).
   function setEdges(on: boolean): void {
     state.edges = on;
-    for (const cv of views) {
-      if (on && !cv.edges) {
-        const w = new THREE.WireframeGeometry(cv.mesh.geometry);
-        cv.edges = new THREE.LineSegments(w, new THREE.LineBasicMaterial({ color: 0x222222, transparent: true, opacity: 0.35, clippingPlanes: cv.material.clippingPlanes }));
-        scene.add(cv.edges);
-      }
-      if (cv.edges) cv.edges.visible = on && cv.visible;
-    }
+    for (const cv of views) cv.edgeSwitch.value = on ? 1 : 0;
     requestRender();
   }
 
@@ -510,10 +610,12 @@ function start(root: HTMLElement, data: PageData): void {
     clipPlane.constant = -s * at;
     const planes = clipBox.checked ? [clipPlane] : [];
     for (const cv of views) {
-      cv.material.clippingPlanes = planes;
-      cv.material.side = faceSide(cv.index, cv.opacity);
-      cv.material.needsUpdate = true;
-      if (cv.edges) { cv.edges.material.clippingPlanes = planes; cv.edges.material.needsUpdate = true; }
+      for (const m of [cv.material, cv.proxyMaterial]) {
+        if (!m) continue;
+        m.clippingPlanes = planes;
+        m.side = faceSide(cv.index, cv.opacity);
+        m.needsUpdate = true;
+      }
     }
     requestRender();
   }
@@ -541,6 +643,7 @@ function start(root: HTMLElement, data: PageData): void {
   }
 
   let flight = 0;
+  let flying = false;
   function flyTo(i: number): void {
     const spots = v.excitations[state.excitation].hotSpots;
     const h = spots[i];
@@ -568,7 +671,9 @@ function start(root: HTMLElement, data: PageData): void {
       const e = f * f * (3 - 2 * f);
       camera.position.lerpVectors(startPos, endPos, e);
       controls.target.lerpVectors(startTarget, target, e);
+      flying = true;
       controls.update();
+      flying = false;
       render();
       if (f < 1) requestAnimationFrame(step);
       else root.dataset.flown = String(i);
@@ -669,6 +774,8 @@ function start(root: HTMLElement, data: PageData): void {
   function render(): void {
     if (!renderer) return;
     renderer.render(scene, camera);
+    if (moving) drewCoarse = true;
+    root.dataset.detail = moving ? "proxy" : "full";
     root.dataset.frames = String(Number(root.dataset.frames ?? "0") + 1);
   }
   let renderQueued = false;
@@ -690,7 +797,12 @@ function start(root: HTMLElement, data: PageData): void {
 
   if (renderer) {
     renderer.localClippingEnabled = true;
-    controls!.addEventListener("change", requestRender);
+    // Fit to view and resizes move the camera too, but as one jump: only user input and
+    // flights count as motion.
+    let interacting = false;
+    controls!.addEventListener("start", () => { interacting = true; });
+    controls!.addEventListener("end", () => { interacting = false; });
+    controls!.addEventListener("change", () => { if (interacting || flying) motion(); requestRender(); });
     new ResizeObserver(resize).observe(stage);
     resize();
   }
@@ -709,6 +821,8 @@ function start(root: HTMLElement, data: PageData): void {
   fit();
   recolour();
   root.dataset.ready = "1";
+  // Build the proxies once the first frame is up (or at the first motion, if sooner).
+  if (renderer && useProxies) requestAnimationFrame(() => setTimeout(buildProxies, 0));
 }
 
 function matrixTable(caption: string, m: number[][], names: string[], id: string): HTMLTableElement {
