@@ -31,6 +31,8 @@ const PROXY_ABOVE_PANELS = 60000;
 const PROXY_TRIANGLES = 30000;
 /** The full mesh is drawn once the view has not moved for this long; ms. */
 const SETTLE_MS = 160;
+/** Share of the pixel ratio while the view moves under software rendering (pixel fill is the rest of a frame). */
+const MOVING_PIXEL_SCALE = 0.5;
 
 function el<K extends keyof HTMLElementTagNameMap>(tag: K, cls?: string, text?: string): HTMLElementTagNameMap[K] {
   const e = document.createElement(tag);
@@ -275,6 +277,7 @@ function start(root: HTMLElement, data: PageData): void {
   for (let c = 0; c < k; c++) panelLists[c].forEach((p, i) => { localIndex[p] = i; });
 
   let renderer: any = null;
+  let software = false;
   let requestRender = (): void => {};
 
   for (let c = 0; c < k; c++) {
@@ -408,7 +411,7 @@ function start(root: HTMLElement, data: PageData): void {
     if (!gl) throw new Error("no WebGL context");
     const info = gl.getExtension("WEBGL_debug_renderer_info");
     const name = info ? String(gl.getParameter(info.UNMASKED_RENDERER_WEBGL)) : "";
-    const software = /swiftshader|llvmpipe|software/i.test(name);
+    software = /swiftshader|llvmpipe|software/i.test(name);
     // Multisampling on the CPU costs about 3x per frame at 300k panels (tests/bench/viewer.bench.mjs).
     renderer = new THREE.WebGLRenderer({ canvas, antialias: !software, preserveDrawingBuffer: true });
     if (software) {
@@ -518,7 +521,11 @@ function start(root: HTMLElement, data: PageData): void {
   function motion(): void {
     if (!useProxies) return;
     buildProxies();
-    if (!moving) { moving = true; for (const cv of views) applyDetail(cv); }
+    if (!moving) {
+      moving = true;
+      for (const cv of views) applyDetail(cv);
+      if (software) sizeBuffer();
+    }
     clearTimeout(settleTimer);
     settleTimer = window.setTimeout(settle, SETTLE_MS);
   }
@@ -526,7 +533,10 @@ function start(root: HTMLElement, data: PageData): void {
     if (!moving) return;
     moving = false;
     for (const cv of views) applyDetail(cv);
-    if (drewCoarse) { drewCoarse = false; requestRender(); }
+    // Resizing the drawing buffer clears it: draw at once, so no blank canvas is ever shown.
+    if (software) { sizeBuffer(); render(); }
+    else if (drewCoarse) requestRender();
+    drewCoarse = false;
   }
 
   function recolour(): void {
@@ -786,13 +796,17 @@ function start(root: HTMLElement, data: PageData): void {
   };
 
   function resize(): void {
+    sizeBuffer();
+    requestRender();
+  }
+  function sizeBuffer(): void {
     if (!renderer) return;
     const w = Math.max(1, stage.clientWidth), h = Math.max(1, stage.clientHeight);
-    renderer.setPixelRatio(Math.min(2, window.devicePixelRatio || 1));
+    const full = Math.min(2, window.devicePixelRatio || 1);
+    renderer.setPixelRatio(moving && software ? MOVING_PIXEL_SCALE * full : full);
     renderer.setSize(w, h, false);
     camera.aspect = w / h;
     camera.updateProjectionMatrix();
-    requestRender();
   }
 
   if (renderer) {

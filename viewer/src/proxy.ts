@@ -18,7 +18,7 @@
 export interface SurfaceProxy {
   /** Proxy vertex positions, 3 per vertex, in the frame of the input positions. */
   positions: Float32Array;
-  /** Proxy vertex indices, 3 per triangle, each with the winding of its source panel. */
+  /** Proxy vertex indices, 3 per triangle, each wound to face the way its source panel faces. */
   triangles: Uint32Array;
   /** For each proxy triangle, its source: an index into the `panels` list it was built from. */
   source: Uint32Array;
@@ -81,6 +81,17 @@ export function clusterProxy(positions: Float32Array, triangles: Uint32Array, pa
   const pc = new Int32Array(3 * m);
   for (let j = 0; j < 3 * m; j++) pc[j] = clusterOf(triangles[3 * panels[(j / 3) | 0] + (j % 3)]);
 
+  const facing = (a: number, b: number, c: number, p: number): number => {
+    const wa = 1 / counts[a], wb = 1 / counts[b], wc = 1 / counts[c];
+    const ax = sums[3 * a] * wa, ay = sums[3 * a + 1] * wa, az = sums[3 * a + 2] * wa;
+    const ux = sums[3 * b] * wb - ax, uy = sums[3 * b + 1] * wb - ay, uz = sums[3 * b + 2] * wb - az;
+    const vx = sums[3 * c] * wc - ax, vy = sums[3 * c + 1] * wc - ay, vz = sums[3 * c + 2] * wc - az;
+    const i0 = 3 * triangles[3 * p], i1 = 3 * triangles[3 * p + 1], i2 = 3 * triangles[3 * p + 2];
+    const sx = positions[i1] - positions[i0], sy = positions[i1 + 1] - positions[i0 + 1], sz = positions[i1 + 2] - positions[i0 + 2];
+    const tx = positions[i2] - positions[i0], ty = positions[i2 + 1] - positions[i0 + 1], tz = positions[i2 + 2] - positions[i0 + 2];
+    return (uy * vz - uz * vy) * (sy * tz - sz * ty) + (uz * vx - ux * vz) * (sz * tx - sx * tz) + (ux * vy - uy * vx) * (sx * ty - sy * tx);
+  };
+
   // Survivors, deduplicated by their cell triple rotated to start at the smallest (winding kept).
   const tri = new Uint32Array(3 * m);
   const source = new Uint32Array(m);
@@ -88,8 +99,12 @@ export function clusterProxy(positions: Float32Array, triangles: Uint32Array, pa
   const n = clusters;
   const tKeys = n ** 3 < 2 ** 53 ? new Float64Array(size).fill(EMPTY) : null;
   for (let i = 0; i < m; i++) {
-    const a = pc[3 * i], b = pc[3 * i + 1], c = pc[3 * i + 2];
+    const a = pc[3 * i];
+    let b = pc[3 * i + 1], c = pc[3 * i + 2];
     if (a === b || b === c || a === c) continue;
+    // Clustering can fold a triangle over (Rossignac & Borrel, section 5); turned to face
+    // the way its source panel faces, it fills the fold instead of leaving a culled hole.
+    if (facing(a, b, c, panels[i]) < 0) { const t = b; b = c; c = t; }
     if (tKeys) {
       let r0 = a, r1 = b, r2 = c;
       if (b < a && b < c) { r0 = b; r1 = c; r2 = a; } else if (c < a && c < b) { r0 = c; r1 = a; r2 = b; }
