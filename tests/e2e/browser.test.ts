@@ -10,8 +10,12 @@ import { fileURLToPath, pathToFileURL } from "node:url";
 import type { Browser, Page } from "playwright-core";
 import { chromiumMissing, launchChromium, sampleExtraction, writeSampleHtml, ARTIFACTS, MARKUP_NAME } from "./browser-helper.js";
 import type { ExtractionResult } from "../../src/extract/extract.js";
-import { viewerData, viewerDataJson, type ViewerData } from "../../src/report/viewer-data.js";
+import { viewerData, viewerDataJson, hotSpots, type ViewerData } from "../../src/report/viewer-data.js";
 import { formatSI } from "../../src/report/si.js";
+import { htmlReport } from "../../src/report/html.js";
+import { sphereMesh, boxMesh } from "../../src/mesh/primitives/index.js";
+import { concatMeshes, boundingBox } from "../../src/mesh/model.js";
+import { EPSILON_0, AIR_BREAKDOWN_FIELD } from "../../src/extract/constants.js";
 
 const missing = chromiumMissing();
 if (missing) console.warn(`browser tests skipped: ${missing}`);
@@ -73,6 +77,45 @@ async function openReport(url: string, requests: string[], dialogs: string[]): P
   await page.waitForFunction(() => Number(document.querySelector(".sm-app")?.getAttribute("data-frames")) > 0);
   expect(errors).toEqual([]);
   return page;
+}
+
+/**
+ * A page too large to orbit at full detail in software WebGL (82k panels: a fine sphere and a
+ * coarse box). Nothing is solved, σ is made up (largest at the sphere's top): this page
+ * checks drawing and picking only, never a number.
+ */
+function largeSyntheticPage(path: string): { panels: number; hotPanel: number } {
+  const mesh = concatMeshes([
+    sphereMesh({ radius: 4e-3, level: 6, center: [0, 0, 0], name: "fine sphere" }),
+    boxMesh({ size: [4e-3, 4e-3, 4e-3], divisions: 6, center: [8e-3, 0, -2e-3], name: "coarse box" }),
+  ]);
+  const n = mesh.triangles.length / 3;
+  const b = boundingBox(mesh.positions);
+  const origin: [number, number, number] = [(b[0] + b[3]) / 2, (b[1] + b[4]) / 2, (b[2] + b[5]) / 2];
+  const positions = Float32Array.from(mesh.positions, (x, i) => x - origin[i % 3]);
+  const centroids = new Float64Array(3 * n), areas = new Float32Array(n);
+  const sigma = new Float64Array(n), field = new Float64Array(n);
+  for (let t = 0; t < n; t++) {
+    const [a, bb, c] = [0, 1, 2].map((j) => 3 * mesh.triangles[3 * t + j]);
+    for (let i = 0; i < 3; i++) centroids[3 * t + i] = (mesh.positions[a + i] + mesh.positions[bb + i] + mesh.positions[c + i]) / 3;
+    const u = [0, 1, 2].map((i) => mesh.positions[bb + i] - mesh.positions[a + i]), w = [0, 1, 2].map((i) => mesh.positions[c + i] - mesh.positions[a + i]);
+    areas[t] = 0.5 * Math.hypot(u[1] * w[2] - u[2] * w[1], u[2] * w[0] - u[0] * w[2], u[0] * w[1] - u[1] * w[0]);
+    sigma[t] = mesh.conductor[t] === 0 ? 1e-6 * (2 + centroids[3 * t + 2] / 4e-3) : -3e-7;
+    field[t] = Math.abs(sigma[t]) / EPSILON_0;
+  }
+  const range = (x: Float64Array): [number, number] => [x.reduce((p, q) => Math.min(p, q)), x.reduce((p, q) => Math.max(p, q))];
+  const spots = hotSpots(field, sigma, mesh.conductor, 2, centroids, AIR_BREAKDOWN_FIELD, 6, 1e-3);
+  const data: ViewerData = {
+    names: mesh.names, closed: [true, true], origin, positions, triangles: mesh.triangles, panelConductor: mesh.conductor, areas,
+    breakdownField: AIR_BREAKDOWN_FIELD, permittivity: EPSILON_0,
+    excitations: [{
+      id: "scene", potentials: [1000, 0], sigma: Float32Array.from(sigma), field: Float32Array.from(field),
+      sigmaRange: range(sigma), fieldRange: range(field), fieldMinPositive: range(field)[0], sheetFieldBound: false, hotSpots: spots,
+    }],
+  };
+  const page = { format: "sigmesh-report/1", input: { files: ["synthetic drawing test (not solved)"], unit: "mm" }, conductors: [], fieldCheck: { cautions: [] } };
+  writeFileSync(path, htmlReport(page, data));
+  return { panels: n, hotPanel: spots[0].panel };
 }
 
 describe.skipIf(missing !== undefined)("HTML report in Chromium", () => {
@@ -168,6 +211,122 @@ describe.skipIf(missing !== undefined)("HTML report in Chromium", () => {
 
     // Nothing was fetched but the file itself (and in-page data: URLs).
     expect(requests.filter((r) => r !== url && !r.startsWith("data:") && !r.startsWith("blob:"))).toEqual([]);
+    await page.close();
+  });
+
+  it("orbits a large model on a coarse proxy, draws the full mesh when the view rests, and picks on the full mesh", async () => {
+    const path = join(ARTIFACTS, "report-large.html");
+    const { panels, hotPanel } = largeSyntheticPage(path);
+    const requests: string[] = [], dialogs: string[] = [];
+    const page = await browser!.newPage({ viewport: { width: 1280, height: 800 } });
+    // Every redraw's level of detail, and the picture of each proxy frame, taken as it is drawn.
+    await page.addInitScript(() => {
+      const w = window as any;
+      w.__details = [];
+      w.__proxyStats = null;
+      new MutationObserver(() => {
+        const app = document.querySelector(".sm-app") as HTMLElement | null;
+        if (!app) return;
+        w.__details.push(app.dataset.detail);
+        if (app.dataset.detail === "proxy") w.__proxyStats = w.__stats();
+      }).observe(document, { subtree: true, attributes: true, attributeFilter: ["data-frames"] });
+      w.__stats = () => {
+        const c = document.getElementById("sm-canvas") as HTMLCanvasElement;
+        const off = document.createElement("canvas");
+        off.width = c.width; off.height = c.height;
+        const g = off.getContext("2d")!;
+        g.drawImage(c, 0, 0);
+        const d = g.getImageData(0, 0, off.width, off.height).data;
+        let fg = 0, luma = 0, hash = 0;
+        for (let i = 0; i < d.length; i += 4) {
+          const y = 0.2126 * d[i] + 0.7152 * d[i + 1] + 0.0722 * d[i + 2];
+          if (Math.abs(d[i] - d[0]) + Math.abs(d[i + 1] - d[1]) + Math.abs(d[i + 2] - d[2]) > 12) { fg++; luma += y; }
+          hash = (Math.imul(hash, 31) + d[i] + 7 * d[i + 1] + 13 * d[i + 2]) | 0;
+        }
+        return { foreground: fg / (d.length / 4), luma: luma / Math.max(1, fg), hash, width: c.width };
+      };
+    });
+    page.on("request", (r) => requests.push(r.url()));
+    page.on("dialog", (d) => { dialogs.push(d.message()); void d.dismiss(); });
+    const errors: string[] = [];
+    page.on("pageerror", (e) => errors.push(e.message));
+    await page.goto(pathToFileURL(path).href);
+    await page.waitForSelector(".sm-app[data-ready='1']", { timeout: 60_000 });
+    await page.waitForSelector(".sm-app[data-proxy-panels]", { timeout: 60_000 });
+    const app = page.locator(".sm-app");
+    const proxyPanels = Number(await app.getAttribute("data-proxy-panels"));
+    expect(proxyPanels).toBeGreaterThan(1000);
+    expect(proxyPanels).toBeLessThan(0.6 * panels);
+    expect(await app.getAttribute("data-detail")).toBe("full");
+    const stat = () => page.evaluate(() => (window as any).__stats() as { foreground: number; luma: number; hash: number; width: number });
+    const still = await stat();
+    expect(still.foreground).toBeGreaterThan(0.05);
+
+    // Drag to orbit: the frames drawn meanwhile are proxies, then the view rests at full detail.
+    const r = await page.locator("#sm-canvas").boundingBox();
+    const cx = r!.x + r!.width / 2, cy = r!.y + r!.height / 2;
+    await page.evaluate(() => { (window as any).__details = []; });
+    await page.mouse.move(cx - 150, cy);
+    await page.mouse.down();
+    for (let i = 1; i <= 15; i++) await page.mouse.move(cx - 150 + 20 * i, cy + 4 * i);
+    await page.mouse.up();
+    await page.waitForFunction(() => { const w = window as any; return w.__details.length > 1 && w.__details[w.__details.length - 1] === "full"; }, null, { timeout: 20_000 });
+    const details: string[] = await page.evaluate(() => (window as any).__details);
+    expect(details).toContain("proxy");
+    expect(details[details.length - 1]).toBe("full");
+    const coarse = await page.evaluate(() => (window as any).__proxyStats);
+    const settled = await stat();
+    // The rested frame is the full mesh at full resolution, and the proxy looked like it.
+    expect(settled.width).toBeGreaterThan(coarse.width);
+    expect(settled.foreground).toBeGreaterThan(0.05);
+    expect(Math.abs(coarse.foreground - settled.foreground)).toBeLessThan(0.15 * settled.foreground);
+    expect(Math.abs(coarse.luma - settled.luma)).toBeLessThan(12);
+    expect(settled.hash).not.toBe(still.hash);
+    await page.screenshot({ path: join(ARTIFACTS, "browser-large-orbited.png") });
+    // Any other still redraw from this camera gives the very same picture.
+    let f = await frames(page);
+    await page.locator(".sm-conductor[data-conductor='1'] .sm-visible").uncheck();
+    await afterRedraw(page, f);
+    f = await frames(page);
+    await page.locator(".sm-conductor[data-conductor='1'] .sm-visible").check();
+    await afterRedraw(page, f);
+    expect((await stat()).hash).toBe(settled.hash);
+
+    // Fly to the strongest panel (the flight draws proxies), then pick: a click at the centre
+    // of the view lands on that very panel of the full mesh; a click beside it on another.
+    await page.locator("#sm-hotspots button").first().click();
+    await page.waitForSelector(".sm-app[data-flown='0']", { timeout: 20_000 });
+    await page.waitForFunction(() => document.querySelector(".sm-app")?.getAttribute("data-detail") === "full", null, { timeout: 20_000 });
+    await page.mouse.click(cx + 80, cy + 40);
+    const beside = await page.locator("#sm-readout").getAttribute("data-panel");
+    expect(beside).not.toBe(String(hotPanel));
+    expect(beside).not.toBe("");
+    await page.mouse.click(cx, cy);
+    expect(await page.locator("#sm-readout").getAttribute("data-panel")).toBe(String(hotPanel));
+
+    expect(errors).toEqual([]);
+    expect(dialogs).toEqual([]);
+    expect(requests.filter((u) => u !== pathToFileURL(path).href && !u.startsWith("data:") && !u.startsWith("blob:"))).toEqual([]);
+    await page.close();
+  });
+
+  it("draws mesh edges without building lines, and the same picture again without them", async () => {
+    const page = await openReport(pathToFileURL(htmlPath).href, [], []);
+    const plain = await canvasStats(page);
+    let f = await frames(page);
+    await page.locator("#sm-edges").check();
+    await afterRedraw(page, f);
+    const edged = await canvasStats(page);
+    await page.screenshot({ path: join(ARTIFACTS, "browser-edges.png") });
+    // Dark lines over the panels: the same silhouette, a darker and more varied picture.
+    expect(Math.abs(edged.foreground - plain.foreground)).toBeLessThan(0.01 * plain.pixels);
+    expect(edged.variance).toBeGreaterThan(plain.variance);
+    f = await frames(page);
+    await page.locator("#sm-edges").uncheck();
+    await afterRedraw(page, f);
+    const again = await canvasStats(page);
+    expect(again.variance).toBeCloseTo(plain.variance, 6);
+    expect(again.foreground).toBe(plain.foreground);
     await page.close();
   });
 
