@@ -31,6 +31,8 @@ const PROXY_ABOVE_PANELS = 60000;
 const PROXY_TRIANGLES = 30000;
 /** The full mesh is drawn once the view has not moved for this long; ms. */
 const SETTLE_MS = 160;
+/** The same while a drag goes on (the button still held: more motion is likely); ms. */
+const SETTLE_HELD_MS = 400;
 /** Share of the pixel ratio while the view moves under software rendering (pixel fill is the rest of a frame). */
 const MOVING_PIXEL_SCALE = 0.5;
 
@@ -516,6 +518,7 @@ function start(root: HTMLElement, data: PageData): void {
   // The view is "moving" from a user's drag, wheel or key (or a flight to a hot spot) until it
   // has rested for SETTLE_MS; meanwhile proxies are drawn.
   let moving = false;
+  let interacting = false;
   let settleTimer = 0;
   let drewCoarse = false;
   function motion(): void {
@@ -527,7 +530,7 @@ function start(root: HTMLElement, data: PageData): void {
       if (software) sizeBuffer();
     }
     clearTimeout(settleTimer);
-    settleTimer = window.setTimeout(settle, SETTLE_MS);
+    settleTimer = window.setTimeout(settle, interacting ? SETTLE_HELD_MS : SETTLE_MS);
   }
   function settle(): void {
     if (!moving) return;
@@ -813,9 +816,11 @@ function start(root: HTMLElement, data: PageData): void {
     renderer.localClippingEnabled = true;
     // Fit to view and resizes move the camera too, but as one jump: only user input and
     // flights count as motion.
-    let interacting = false;
     controls!.addEventListener("start", () => { interacting = true; });
-    controls!.addEventListener("end", () => { interacting = false; });
+    controls!.addEventListener("end", () => {
+      interacting = false;
+      if (moving) { clearTimeout(settleTimer); settleTimer = window.setTimeout(settle, SETTLE_MS); }
+    });
     controls!.addEventListener("change", () => { if (interacting || flying) motion(); requestRender(); });
     new ResizeObserver(resize).observe(stage);
     resize();
