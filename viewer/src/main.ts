@@ -27,6 +27,8 @@ const LOG_DECADES = 6;
 const MARKER_COLOUR = 0xff00ff;
 /** Above this many panels the view draws proxies while it moves (a frame's cost is mostly per triangle in software WebGL). */
 const PROXY_ABOVE_PANELS = 60000;
+/** The same with a GPU, which draws a few hundred thousand triangles far within a frame. */
+const PROXY_ABOVE_PANELS_GPU = 2000000;
 /** Triangles of all proxies together, about. */
 const PROXY_TRIANGLES = 30000;
 /** The full mesh is drawn once the view has not moved for this long; ms. */
@@ -462,7 +464,7 @@ function start(root: HTMLElement, data: PageData): void {
   }
 
   // ---- Proxies for a moving view (built once, after the first frame) ----
-  const useProxies = v.panelConductor.length > PROXY_ABOVE_PANELS;
+  const useProxies = v.panelConductor.length > (software ? PROXY_ABOVE_PANELS : PROXY_ABOVE_PANELS_GPU);
   let proxiesBuilt = false;
   function buildProxies(): void {
     if (proxiesBuilt || !useProxies) return;
