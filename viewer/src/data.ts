@@ -29,6 +29,9 @@ export interface PageData {
 }
 
 function bytesOf(b64: string): Uint8Array {
+  // The native decoder where the browser has it (ES2026 Uint8Array.fromBase64): no binary string in between.
+  const native = (Uint8Array as unknown as { fromBase64?: (s: string) => Uint8Array }).fromBase64;
+  if (native) return native(b64);
   const s = atob(b64);
   const out = new Uint8Array(s.length);
   for (let i = 0; i < s.length; i++) out[i] = s.charCodeAt(i);
