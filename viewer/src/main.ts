@@ -35,8 +35,8 @@ const PROXY_TRIANGLES = 30000;
 const SETTLE_MS = 160;
 /** The same while a drag goes on (the button still held: more motion is likely); ms. */
 const SETTLE_HELD_MS = 400;
-/** Share of the pixel ratio while the view moves under software rendering (pixel fill is the rest of a frame). */
-const MOVING_PIXEL_SCALE = 0.5;
+/** Pixels drawn at most per frame while the view moves under software rendering (fill is the rest of a frame's cost). */
+const MOVING_PIXELS = 700000;
 
 function el<K extends keyof HTMLElementTagNameMap>(tag: K, cls?: string, text?: string): HTMLElementTagNameMap[K] {
   const e = document.createElement(tag);
@@ -808,7 +808,9 @@ function start(root: HTMLElement, data: PageData): void {
     if (!renderer) return;
     const w = Math.max(1, stage.clientWidth), h = Math.max(1, stage.clientHeight);
     const full = Math.min(2, window.devicePixelRatio || 1);
-    renderer.setPixelRatio(moving && software ? MOVING_PIXEL_SCALE * full : full);
+    // A large or high-density canvas is drawn coarser while moving; a small one keeps every pixel.
+    const ratio = moving && software ? Math.min(full, Math.sqrt(MOVING_PIXELS / (w * h))) : full;
+    renderer.setPixelRatio(ratio);
     renderer.setSize(w, h, false);
     camera.aspect = w / h;
     camera.updateProjectionMatrix();
