@@ -218,7 +218,8 @@ describe.skipIf(missing !== undefined)("HTML report in Chromium", () => {
     const path = join(ARTIFACTS, "report-large.html");
     const { panels, hotPanel } = largeSyntheticPage(path);
     const requests: string[] = [], dialogs: string[] = [];
-    const page = await browser!.newPage({ viewport: { width: 1280, height: 800 } });
+    // A canvas of over a million pixels: while moving, software rendering draws at most 700k.
+    const page = await browser!.newPage({ viewport: { width: 1600, height: 1000 } });
     // Every redraw's level of detail, and the picture of each proxy frame, taken as it is drawn.
     await page.addInitScript(() => {
       const w = window as any;
@@ -243,7 +244,7 @@ describe.skipIf(missing !== undefined)("HTML report in Chromium", () => {
           if (Math.abs(d[i] - d[0]) + Math.abs(d[i + 1] - d[1]) + Math.abs(d[i + 2] - d[2]) > 12) { fg++; luma += y; }
           hash = (Math.imul(hash, 31) + d[i] + 7 * d[i + 1] + 13 * d[i + 2]) | 0;
         }
-        return { foreground: fg / (d.length / 4), luma: luma / Math.max(1, fg), hash, width: c.width };
+        return { foreground: fg / (d.length / 4), luma: luma / Math.max(1, fg), hash, width: c.width, height: c.height };
       };
     });
     page.on("request", (r) => requests.push(r.url()));
@@ -258,7 +259,7 @@ describe.skipIf(missing !== undefined)("HTML report in Chromium", () => {
     expect(proxyPanels).toBeGreaterThan(1000);
     expect(proxyPanels).toBeLessThan(0.6 * panels);
     expect(await app.getAttribute("data-detail")).toBe("full");
-    const stat = () => page.evaluate(() => (window as any).__stats() as { foreground: number; luma: number; hash: number; width: number });
+    const stat = () => page.evaluate(() => (window as any).__stats() as { foreground: number; luma: number; hash: number; width: number; height: number });
     const still = await stat();
     expect(still.foreground).toBeGreaterThan(0.05);
 
@@ -277,7 +278,9 @@ describe.skipIf(missing !== undefined)("HTML report in Chromium", () => {
     const coarse = await page.evaluate(() => (window as any).__proxyStats);
     const settled = await stat();
     // The rested frame is the full mesh at full resolution, and the proxy looked like it.
-    expect(settled.width).toBeGreaterThan(coarse.width);
+    expect(settled.width * settled.height).toBeGreaterThan(1e6);
+    expect(coarse.width).toBeLessThan(settled.width);
+    expect(coarse.width * coarse.height).toBeLessThanOrEqual(700000 * 1.01);
     expect(settled.foreground).toBeGreaterThan(0.05);
     expect(Math.abs(coarse.foreground - settled.foreground)).toBeLessThan(0.15 * settled.foreground);
     expect(Math.abs(coarse.luma - settled.luma)).toBeLessThan(12);
