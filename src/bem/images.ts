@@ -8,6 +8,10 @@
  *   ed., §2.1–2.2). Conductors must lie strictly on one side.
  * - A mirror symmetry plane is an even image (s = +1): the mirrored half carries the same
  *   charge, so a symmetric model is meshed by half (a quarter, an eighth).
+ * - An odd (antisymmetric) symmetry plane is an image of sign −1, like the ground plane: the
+ *   mirrored half carries the opposite charge and potential (a differential pair, a balanced
+ *   electrode pair), and the plane itself is at 0 V, so no conductor may touch it. The even and
+ *   odd solves of a half model together give the full model's matrix (extract.ts, "both").
  *
  * Reflections in planes of distinct axes commute, so the group of m planes has 2^m elements and
  * s_g is the product of the signs of the reflections that make g up. Two planes on the same
@@ -34,11 +38,32 @@ export interface AxisPlane {
   offset: number;
 }
 
+/**
+ * Images of a symmetry plane: `even` (the mirror half at the same potential, the default), `odd`
+ * (at the opposite potential) or `both` (an extraction solves both and rebuilds the full model
+ * with the mirror half as its own conductors; a kernel takes only even or odd).
+ */
+export type SymmetryImages = "even" | "odd" | "both";
+
+/** A mirror symmetry plane. */
+export interface SymmetryPlane extends AxisPlane {
+  /** Default even. */
+  images?: SymmetryImages;
+  /**
+   * With `both`: the working potentials of the mirrored conductors, the same as (default) or
+   * opposite to their originals'.
+   */
+  mirrored?: "same" | "opposite";
+}
+
 /** The surroundings the kernel includes: at most one ground plane, symmetry planes on the other axes. */
 export interface KernelSpec {
   groundPlane?: AxisPlane;
-  symmetry?: AxisPlane[];
+  symmetry?: SymmetryPlane[];
 }
+
+/** What lies on each axis: none, the ground plane, an even or an odd symmetry plane. */
+export const PLANE_NONE = 0, PLANE_GROUND = 1, PLANE_EVEN = 2, PLANE_ODD = 3;
 
 /**
  * A prepared image kernel for a PanelSet of n panels: `panels` holds the n originals (indices
@@ -71,26 +96,44 @@ export function symmetryCopies(spec: KernelSpec | undefined): number {
   return 2 ** (spec?.symmetry?.length ?? 0);
 }
 
+/** Copies tied to the same potential as the meshed part: 2^(even planes). */
+export function evenCopies(spec: KernelSpec | undefined): number {
+  return 2 ** (spec?.symmetry ?? []).filter((p) => (p.images ?? "even") === "even").length;
+}
+
+/** How a plane is described in messages. */
+function planeWord(kind: number): string {
+  return kind === PLANE_GROUND ? "ground plane" : kind === PLANE_ODD ? "odd symmetry plane" : "symmetry plane";
+}
+
 /**
- * The planes of a spec, validated: finite offsets, each axis used once. Returns per axis the
- * offset (NaN when unused) and the sign of its reflection (−1 ground, +1 symmetry, 0 unused).
- * Throws a RangeError with the fault (the caller names the file).
+ * The planes of a spec, validated: finite offsets, each axis used once, symmetry images even or
+ * odd. Returns per axis the offset (NaN when unused), the sign of its reflection (−1 ground or
+ * odd, +1 even, 0 unused) and its kind (PLANE_*). Throws a RangeError with the fault (the
+ * caller names the file).
  */
-export function kernelPlanes(spec: KernelSpec): { offsets: Float64Array; signs: Int8Array } {
-  const offsets = new Float64Array(3).fill(NaN), signs = new Int8Array(3);
-  const add = (p: AxisPlane, sign: number, what: string) => {
+export function kernelPlanes(spec: KernelSpec): { offsets: Float64Array; signs: Int8Array; kinds: Uint8Array } {
+  const offsets = new Float64Array(3).fill(NaN), signs = new Int8Array(3), kinds = new Uint8Array(3);
+  const add = (p: AxisPlane, kind: number) => {
+    const what = planeWord(kind);
     const a = AXIS_INDEX[p.axis];
     if (a === undefined) throw new RangeError(`${what}: axis must be x, y or z, got ${String(p.axis)}`);
     if (!Number.isFinite(p.offset)) throw new RangeError(`${what}: the plane ${p.axis} = ${p.offset} is not a finite position`);
     if (signs[a] !== 0) {
-      throw new RangeError(`${what} ${p.axis} = ${p.offset}: there is already a ${signs[a] < 0 ? "ground" : "symmetry"} plane normal to ${p.axis}; `
+      throw new RangeError(`${what} ${p.axis} = ${p.offset}: there is already a ${kinds[a] === PLANE_GROUND ? "ground" : "symmetry"} plane normal to ${p.axis}; `
         + "two parallel planes would need infinitely many images (at most one plane per axis)");
     }
-    offsets[a] = p.offset; signs[a] = sign;
+    offsets[a] = p.offset; kinds[a] = kind; signs[a] = kind === PLANE_EVEN ? 1 : -1;
   };
-  if (spec.groundPlane) add(spec.groundPlane, -1, "ground plane");
-  for (const s of spec.symmetry ?? []) add(s, 1, "symmetry plane");
-  return { offsets, signs };
+  if (spec.groundPlane) add(spec.groundPlane, PLANE_GROUND);
+  for (const s of spec.symmetry ?? []) {
+    const images = s.images ?? "even";
+    if (images !== "even" && images !== "odd") {
+      throw new RangeError(`symmetry plane ${s.axis} = ${s.offset}: a kernel takes even or odd images, got ${String(images)}`);
+    }
+    add(s, images === "odd" ? PLANE_ODD : PLANE_EVEN);
+  }
+  return { offsets, signs, kinds };
 }
 
 /** The mirror images of panel set P under the planes of `spec`. */
@@ -195,15 +238,16 @@ export function conductorRanges(positions: Float64Array, triangles: Uint32Array,
 export type Side = 1 | -1;
 
 /**
- * Check that every conductor lies on one side of each plane: strictly for the ground plane,
- * touching allowed for a symmetry plane (a half model meets its plane), and all conductors on
+ * Check that every conductor lies on one side of each plane: strictly for the ground plane and
+ * an odd plane (both are at 0 V), touching allowed for an even symmetry plane (a half model
+ * meets its plane), and all conductors on
  * the same side (their images would otherwise overlap other conductors). Returns the side per
  * axis (0 for no plane), or the first fault as a sentence naming the conductor and the side.
  * `describe` formats a coordinate for messages (default: metres).
  */
 export function checkSides(spec: KernelSpec, ranges: Float64Array, names: string[],
   describe: (metres: number) => string = (m) => `${m} m`): { sides: Int8Array; fault?: string } {
-  const { offsets, signs } = kernelPlanes(spec);
+  const { offsets, signs, kinds } = kernelPlanes(spec);
   const sides = new Int8Array(3);
   let extent = 0;
   for (let c = 0; c < names.length; c++) for (let a = 0; a < 3; a++) {
@@ -213,7 +257,7 @@ export function checkSides(spec: KernelSpec, ranges: Float64Array, names: string
   for (let a = 0; a < 3; a++) {
     if (signs[a] === 0) continue;
     const ground = signs[a] < 0, c0 = offsets[a], axis = AXES[a];
-    const what = ground ? `the ground plane ${axis} = ${describe(c0)}` : `the symmetry plane ${axis} = ${describe(c0)}`;
+    const what = `the ${planeWord(kinds[a])} ${axis} = ${describe(c0)}`;
     // The side is the one holding the first conductor's bulk.
     const mid0 = 0.5 * (ranges[2 * a] + ranges[2 * a + 1]);
     const side: Side = mid0 >= c0 ? 1 : -1;
@@ -227,7 +271,8 @@ export function checkSides(spec: KernelSpec, ranges: Float64Array, names: string
         const how = ground && Math.abs(reach) <= tol ? "touches" : "crosses";
         return {
           sides, fault: `conductor ${names[c]} ${how} ${what} (its ${side > 0 ? "lowest" : "highest"} point is at ${axis} = ${describe(far)}); `
-            + `every conductor must lie ${ground ? "strictly " : ""}${above}${ground ? "" : ", meeting the plane at most"}`,
+            + `every conductor must lie ${ground ? "strictly " : ""}${above}${ground ? "" : ", meeting the plane at most"}`
+            + (kinds[a] === PLANE_ODD ? " (an odd plane is at 0 V: a conductor meeting it would be cut in two halves at opposite potentials; use even images, or mesh the whole model)" : ""),
         };
       }
     }
@@ -272,19 +317,46 @@ export function edgeInSymmetryPlane(spec: KernelSpec, positions: Float64Array, v
 }
 
 /**
- * Fold a vector quantity of the meshed part (a net force, 3 per conductor) into the full model:
- * Σ_g g(F) over the symmetry reflections only (ground images are not bodies). Components along
- * a symmetry axis cancel; the others are multiplied by the number of copies.
+ * Fold a vector quantity of the meshed part (a net force, 3 per conductor) into the conductor
+ * it stands for: Σ_g g(F) over the even symmetry reflections only (ground images and the
+ * mirrors of an odd plane are other bodies). Components along an even axis cancel; the others
+ * are multiplied by the number of even copies.
  */
 export function foldVectors(spec: KernelSpec, v: Float64Array): Float64Array {
   const out = new Float64Array(v.length);
   const sym = new Uint8Array(3);
-  for (const s of spec.symmetry ?? []) sym[AXIS_INDEX[s.axis]] = 1;
-  const copies = symmetryCopies(spec);
+  for (const s of spec.symmetry ?? []) if ((s.images ?? "even") === "even") sym[AXIS_INDEX[s.axis]] = 1;
+  const copies = evenCopies(spec);
   for (let i = 0; i < v.length; i++) out[i] = sym[i % 3] ? 0 : copies * v[i];
   return out;
 }
 
 export function axisIndex(axis: Axis): number {
   return AXIS_INDEX[axis];
+}
+
+/**
+ * A surface reflected in the planes of `mask` (1 = x, 2 = y, 4 = z) at `offsets` (metres, per
+ * axis): positions mirrored, and the windings reversed when the number of reflections is odd so
+ * the surface stays outward.
+ */
+export function reflectSurface(positions: Float64Array, triangles: Uint32Array, mask: number, offsets: ArrayLike<number>): { positions: Float64Array; triangles: Uint32Array } {
+  const p = positions.slice();
+  let flips = 0;
+  for (let a = 0; a < 3; a++) {
+    if (!((mask >> a) & 1)) continue;
+    flips++;
+    const c2 = 2 * offsets[a];
+    for (let i = a; i < p.length; i += 3) p[i] = c2 - p[i];
+  }
+  const t = triangles.slice();
+  if (flips % 2 === 1) for (let i = 0; i < t.length; i += 3) { const x = t[i + 1]; t[i + 1] = t[i + 2]; t[i + 2] = x; }
+  return { positions: p, triangles: t };
+}
+
+/** Suffix naming the mirror copy of a conductor reflected in the axes of `mask`: `~x`, `~xz`. */
+export function mirrorSuffix(mask: number): string {
+  let s = "";
+  for (let a = 0; a < 3; a++) if ((mask >> a) & 1) s += AXES[a];
+  return s === "" ? "" : `~${s}`;
 }

@@ -76,6 +76,9 @@ export interface DielectricModel {
   /** Relative permittivity just outside each conductor panel (+n̂ side) and on its −n̂ side (open sheets only; else equal). */
   conductorPlus: Float64Array;
   conductorMinus: Float64Array;
+  /** Body index of the medium on the +n̂ and −n̂ side of each conductor panel, −1 for the background (equal on closed panels). */
+  conductorMediumPlus: Int32Array;
+  conductorMediumMinus: Int32Array;
   /** 1 for panels of open conductor sheets. */
   openPanel: Uint8Array;
   removedInterfacePanels: number;
@@ -270,15 +273,20 @@ export function dielectricModel(conductors: SurfaceMesh, bodies: PreparedBody[],
   });
 
   const conductorPlus = new Float64Array(nc), conductorMinus = new Float64Array(nc);
+  const conductorMediumPlus = new Int32Array(nc), conductorMediumMinus = new Int32Array(nc);
   for (let p = 0; p < nc; p++) {
     const d = DELTA * Pc.radii[p];
     const cx = Pc.centroids[3 * p], cy = Pc.centroids[3 * p + 1], cz = Pc.centroids[3 * p + 2];
     const nx = Pc.normals[3 * p], ny = Pc.normals[3 * p + 1], nz = Pc.normals[3 * p + 2];
-    conductorPlus[p] = media.at(cx + d * nx, cy + d * ny, cz + d * nz);
-    conductorMinus[p] = openPanel[p] ? media.at(cx - d * nx, cy - d * ny, cz - d * nz) : conductorPlus[p];
+    const bp = media.bodyAt(cx + d * nx, cy + d * ny, cz + d * nz);
+    const bm = openPanel[p] ? media.bodyAt(cx - d * nx, cy - d * ny, cz - d * nz) : bp;
+    conductorMediumPlus[p] = bp; conductorMediumMinus[p] = bm;
+    conductorPlus[p] = bp < 0 ? background : bodies[bp].permittivity;
+    conductorMinus[p] = bm < 0 ? background : bodies[bm].permittivity;
   }
   return {
-    positions, triangles, nc, ni, interfaceBody, epsMinus, epsPlus, lambda, conductorPlus, conductorMinus, openPanel,
+    positions, triangles, nc, ni, interfaceBody, epsMinus, epsPlus, lambda, conductorPlus, conductorMinus,
+    conductorMediumPlus, conductorMediumMinus, openPanel,
     removedInterfacePanels: removed, mergedInterfacePanels: merged, bodies: summaries,
   };
 }

@@ -91,3 +91,39 @@ export function conductorForces(
   }
   return { force, complete };
 }
+
+/** Per conductor, the panel where the field comes closest to the breakdown strength of the medium there. */
+export interface CriticalField {
+  /** Largest field / strength over the conductor's panels. */
+  ratio: number;
+  /** Panel index (−1 for a conductor without panels). */
+  panel: number;
+  /** Field there; V/m. */
+  field: number;
+  /** Index of the medium there (caller's numbering; −1 the background). */
+  medium: number;
+  /** Breakdown strength of that medium; V/m. */
+  strength: number;
+  /** Centroid of the panel; metres. */
+  at: [number, number, number];
+}
+
+/**
+ * The field check per medium: each panel's field against the strength of the medium just
+ * outside it. `mediumOf(p)` gives the medium index of panel p and `strengthOf(m)` its strength
+ * (V/m); on open sheets the caller passes the weaker of the two faces' media.
+ */
+export function criticalFields(field: Float64Array, conductorOf: Uint32Array, k: number, P: PanelSet,
+  mediumOf: (panel: number) => number, strengthOf: (medium: number) => number): CriticalField[] {
+  const best = new Int32Array(k).fill(-1), ratio = new Float64Array(k).fill(-Infinity), med = new Int32Array(k);
+  for (let p = 0; p < field.length; p++) {
+    const c = conductorOf[p], m = mediumOf(p), r = field[p] / strengthOf(m);
+    if (best[c] < 0 || r > ratio[c]) { best[c] = p; ratio[c] = r; med[c] = m; }
+  }
+  return Array.from(best, (p, c) => p < 0
+    ? { ratio: NaN, panel: -1, field: NaN, medium: -1, strength: strengthOf(-1), at: [NaN, NaN, NaN] as [number, number, number] }
+    : {
+        ratio: ratio[c], panel: p, field: field[p], medium: med[c], strength: strengthOf(med[c]),
+        at: [P.centroids[3 * p], P.centroids[3 * p + 1], P.centroids[3 * p + 2]] as [number, number, number],
+      });
+}

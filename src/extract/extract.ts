@@ -21,14 +21,15 @@ import { EPSILON_0, AIR_BREAKDOWN_FIELD } from "./constants.js";
 import { solveUnitPotentials, type SolverChoice, type SolveInfo, type UnitSolution } from "./solve.js";
 import { conductorCharges, capacitanceMatrices, chargesAt, storedEnergy, mutualFromMaxwell } from "./capacitance.js";
 import { richardson, type RichardsonResult } from "./accuracy.js";
-import { panelExcitation, peakFields, conductorForces, type PanelExcitation, type PeakField } from "./excitation.js";
+import { panelExcitation, peakFields, conductorForces, criticalFields, type PanelExcitation, type PeakField } from "./excitation.js";
 import { peakResidentBytes } from "./memory.js";
 import { centroidFields } from "./probe.js";
 import type { PanelSet } from "../bem/panels.js";
 import { InputError } from "../io/errors.js";
 import {
   hasImages, kernelPlanes, imageSet, symmetryCopies, conductorRanges, checkSides, trianglesInSymmetryPlanes,
-  edgeInSymmetryPlane, foldVectors, type AxisPlane, type KernelSpec, type ImageSet,
+  edgeInSymmetryPlane, foldVectors, evenCopies, axisIndex, reflectSurface, mirrorSuffix,
+  type AxisPlane, type KernelSpec, type ImageSet, type SymmetryPlane,
 } from "../bem/images.js";
 import { eliminateFloating, withFloatingPotentials } from "./floating.js";
 import { prepareBodies, dielectricModel, freeCharges, dielectricExcitation, type DielectricBody, type BodySummary, type DielectricModel } from "./dielectric.js";
@@ -56,12 +57,21 @@ export interface ExtractOptions {
   memoryLimit?: number;
   /** Grounded conducting plane (method of images); metres. Becomes the reference of the mutual matrix. */
   groundPlane?: AxisPlane;
-  /** Mirror symmetry planes (even images); metres. At most one plane per axis, none on the ground plane's axis. */
-  symmetry?: AxisPlane[];
+  /**
+   * Mirror symmetry planes; metres. At most one plane per axis, none on the ground plane's axis.
+   * `images`: even (default; the mirror half tied to the same potential), odd (the mirror half at
+   * the opposite potential; the plane is at 0 V) or both (an even and an odd solve per plane
+   * rebuild the full model, each mirrored conductor its own net named `name~x`).
+   */
+  symmetry?: SymmetryPlane[];
   /** Per conductor: zero net charge at a potential solved for (its entry in `potentials` is ignored). */
   floating?: ArrayLike<boolean>;
-  /** Dielectric bodies: closed surfaces (metres) with their relative permittivity, in the background `permittivity`. */
-  dielectrics?: DielectricBody[];
+  /**
+   * Dielectric bodies: closed surfaces (metres) with their relative permittivity, in the background
+   * `permittivity`; `breakdownField` (V/m) is the body's strength for the field check (default:
+   * the background's `breakdownField`).
+   */
+  dielectrics?: Array<DielectricBody & { breakdownField?: number }>;
   /** Testing of the interface rows (default galerkin: measured more accurate, bem/interface.ts). */
   interfaceTesting?: InterfaceTesting;
 }
@@ -96,8 +106,13 @@ export interface ConductorResult {
   peakField: number;
   /** Centroid of the panel with the peak field; metres. */
   peakFieldAt: [number, number, number];
-  /** Peak field over the breakdown strength. */
+  /** Largest ratio over its panels of the field to the breakdown strength of the medium just outside. */
   fieldRatio: number;
+  /** The panel deciding `fieldRatio`: its field (V/m), centroid (metres), medium and that medium's strength (V/m). */
+  criticalField: number;
+  criticalFieldAt: [number, number, number];
+  medium: string;
+  mediumBreakdownField: number;
   /** Net electrostatic force; newtons. */
   force: [number, number, number];
   /** Zero net charge at a solved potential. */
@@ -149,9 +164,17 @@ export interface ExtractionResult {
   /** What the mutual matrix's diagonal (capacitance to the reference) refers to. */
   reference: "ground plane" | "infinity";
   groundPlane?: AxisPlane;
-  symmetry: AxisPlane[];
-  /** Copies of the meshed part in the full model (2^symmetry planes); charges, areas, C are the full model's. */
+  /** The symmetry planes with their images (even, odd, both). */
+  symmetry: SymmetryPlane[];
+  /**
+   * Copies of the meshed part in the full model (2^symmetry planes). Each conductor reported
+   * stands for itself with its even mirrors (charges, areas, C summed over them); odd mirrors
+   * are at the opposite potential and not included; with `both` planes the mirrors are
+   * conductors of their own (`name~x`) and the mesh is the unfolded model. Energy is the full model's.
+   */
   symmetryCopies: number;
+  /** Nets per meshed conductor: 2^(planes with both images). */
+  mirrorNets: number;
   /** Mirror images of the finest panels (for probes: probeExtraction includes them). */
   images?: ImageSet;
   /** Triangles dropped because they lay in a symmetry plane (the cut face of a half model). */
@@ -183,12 +206,41 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   const t0 = performance.now();
   const k = input.names.length;
   if (k === 0 || triangleCount(input) === 0) throw new InputError("nothing to extract: no conductor with triangles");
-  const spec: KernelSpec = { groundPlane: opts.groundPlane, symmetry: opts.symmetry ?? [] };
-  const kernel = hasImages(spec) ? spec : undefined;
-  const floating = new Array<boolean>(k).fill(false);
+  const planes = checkedSymmetry(opts.symmetry ?? []);
+  // Planes with both images are unfolded: copy h of the meshed part is reflected in the planes
+  // of the set bits of h (bit b ↔ both[b]); solve pattern s makes the planes of its set bits odd.
+  const both = planes.filter((p) => p.images === "both");
+  const nets = 1 << both.length, K = k * nets;
+  const copyMask = (h: number) => { let m = 0; for (let b = 0; b < both.length; b++) if ((h >> b) & 1) m |= 1 << axisIndex(both[b].axis); return m; };
+  const kernelFor = (pattern: number): KernelSpec | undefined => {
+    const spec: KernelSpec = {
+      groundPlane: opts.groundPlane,
+      symmetry: planes.map((p) => ({ axis: p.axis, offset: p.offset, images: p.images === "both" ? ((pattern >> both.indexOf(p)) & 1 ? "odd" : "even") : p.images })),
+    };
+    return hasImages(spec) ? spec : undefined;
+  };
+  // Side checks as if every both-plane were odd (its odd solve needs the conductors off it).
+  const checkKernel = kernelFor(nets - 1);
+  // The images of the reported (unfolded) model: the ground plane and the even and odd planes.
+  const fixedSpec: KernelSpec = { groundPlane: opts.groundPlane, symmetry: planes.filter((p) => p.images !== "both").map((p) => ({ axis: p.axis, offset: p.offset, images: p.images })) };
+  const kernel = hasImages(fixedSpec) ? fixedSpec : undefined;
+  const tied = evenCopies(kernel), oddCopies = symmetryCopies(kernel) / tied;
+  const netNames: string[] = [];
+  for (let h = 0; h < nets; h++) for (let j = 0; j < k; j++) netNames.push(input.names[j] + mirrorSuffix(copyMask(h)));
+  if (nets > 1) {
+    const seen = new Set<string>();
+    for (const n of netNames) {
+      if (seen.has(n)) throw new InputError(`conductor name ${n} is also the name of a mirrored conductor (symmetry images "both" name mirrors ${mirrorSuffix(copyMask(1))} etc.); rename it`);
+      seen.add(n);
+    }
+  }
+  // Working potential sign of copy h relative to the meshed part.
+  const copySign = (h: number) => { let s = 1; for (let b = 0; b < both.length; b++) if ((h >> b) & 1 && both[b].mirrored === "opposite") s = -s; return s; };
+
+  const floating = new Array<boolean>(K).fill(false);
   if (opts.floating) {
-    if (opts.floating.length !== k) throw new InputError(`${opts.floating.length} floating flags given for ${k} conductors`);
-    for (let i = 0; i < k; i++) floating[i] = Boolean(opts.floating[i]);
+    if (opts.floating.length !== k && opts.floating.length !== K) throw new InputError(`${opts.floating.length} floating flags given for ${k} conductors${K > k ? ` (or ${K} with their mirrors)` : ""}`);
+    for (let i = 0; i < K; i++) floating[i] = Boolean(opts.floating[opts.floating.length === K ? i : i % k]);
     if (floating.every((f) => f)) throw new InputError("every conductor is floating: at least one must be held at a potential");
   }
   const er = opts.permittivity ?? 1;
@@ -199,17 +251,23 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   const refine = opts.refine ?? 0;
   if (!Number.isInteger(refine) || refine < 0 || refine > 4) throw new InputError(`refine must be a whole number from 0 to 4, got ${refine}`);
   const breakdownField = opts.breakdownField ?? AIR_BREAKDOWN_FIELD;
-  const potentials = new Float64Array(k);
+  if (!(breakdownField > 0) || !Number.isFinite(breakdownField)) throw new InputError(`breakdown field must be a positive number of V/m, got ${breakdownField}`);
+  const potentials = new Float64Array(K);
   if (opts.potentials) {
-    if (opts.potentials.length !== k) throw new InputError(`${opts.potentials.length} potentials given for ${k} conductors`);
-    for (let i = 0; i < k; i++) potentials[i] = opts.potentials[i];
-  } else potentials[floating.indexOf(false)] = 1;
+    const m = opts.potentials.length;
+    if (m !== k && m !== K) throw new InputError(`${m} potentials given for ${k} conductors${K > k ? ` (or ${K} with their mirrors)` : ""}`);
+    for (let i = 0; i < K; i++) potentials[i] = m === K ? opts.potentials[i] : copySign((i / k) | 0) * opts.potentials[i % k];
+  } else {
+    const first = floating.indexOf(false) % k;
+    for (let h = 0; h < nets; h++) potentials[h * k + first] = copySign(h);
+  }
   const pool = opts.pool ?? sharedPool();
   const warnings: string[] = [];
   const testing: InterfaceTesting = opts.interfaceTesting ?? "galerkin";
   if (testing !== "collocation" && testing !== "galerkin") throw new InputError(`interface testing must be collocation or galerkin, got ${String(testing)}`);
   let bodies = opts.dielectrics && opts.dielectrics.length > 0 ? prepareBodies(opts.dielectrics, er) : undefined;
-  if (bodies && (opts.symmetry?.length ?? 0) > 0) throw new InputError("dielectric bodies cannot be combined with symmetry planes yet: mesh the whole model");
+  const strengths = bodyStrengths(opts.dielectrics ?? [], breakdownField);
+  if (bodies && planes.length > 0) throw new InputError("dielectric bodies cannot be combined with symmetry planes yet: mesh the whole model");
   if (bodies) {
     const flipped = bodies.filter((b) => b.flipped).map((b) => b.name);
     if (flipped.length > 0) warnings.push(`dielectric interface(s) ${flipped.join(", ")} were wound inward or inconsistently and have been reoriented`);
@@ -219,17 +277,17 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   let allPanels: PanelSet | undefined;
 
   let removedInSymmetryPlane = 0;
-  if (kernel) {
-    try { kernelPlanes(kernel); } catch (e) { throw new InputError((e as Error).message); }
-    const cut = trianglesInSymmetryPlanes(kernel, input.positions, input.triangles);
+  if (checkKernel) {
+    try { kernelPlanes(checkKernel); } catch (e) { throw new InputError((e as Error).message); }
+    const cut = trianglesInSymmetryPlanes(checkKernel, input.positions, input.triangles);
     if (cut.count > 0) {
       input = withoutTriangles(input, cut.flags);
       removedInSymmetryPlane = cut.count;
       warnings.push(`${cut.count} triangle(s) lying in a symmetry plane were removed (the cut face of a half model is not a conductor surface)`);
     }
     const ranges = conductorRanges(input.positions, input.triangles, input.conductor, k);
-    const sides = checkSides(kernel, ranges, input.names);
-    if (sides.fault) throw new InputError(sides.fault);
+    const sides = checkSides(checkKernel, ranges, input.names);
+    if (sides.fault) throw new InputError(both.length > 0 ? sides.fault.replace("odd symmetry plane", "symmetry plane with both images") : sides.fault);
   }
 
   // Every conductor needs triangles of its own.
@@ -247,19 +305,19 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   let orientedMesh = oriented.mesh;
   const table = buildEdgeTable(orientedMesh);
   const topo = conductorTopology(orientedMesh, table);
-  // A part cut open only along symmetry planes is closed in the full model.
+  // A part cut open only along even symmetry planes is closed in the full model.
   const closed = topo.map((t) => t.closed);
-  if (kernel && (kernel.symmetry?.length ?? 0) > 0) {
-    const half = closeBySymmetry(kernel, orientedMesh, table, oriented.componentOf, oriented.components.length);
+  if (checkKernel && evenCopies(checkKernel) > 1) {
+    const half = closeBySymmetry(checkKernel, orientedMesh, table, oriented.componentOf, oriented.components.length);
     orientedMesh = half.mesh;
     for (let c = 0; c < k; c++) if (!closed[c] && topo[c].nonManifoldEdges === 0 && half.conductorClosed[c]) closed[c] = true;
     if (half.flipped > 0) flippedComponents += half.flipped;
   }
 
-  const copies = symmetryCopies(kernel);
   const levels: LevelResult[] = [];
   let mesh = orientedMesh;
   let last: UnitSolution | undefined;
+  let lastPatterns: Float64Array[] = [];
   const nLevels = refine + 1;
   for (let level = 0; level <= refine; level++) {
     if (level > 0) mesh = refineUniform(mesh);
@@ -273,51 +331,69 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
       const images = kernel ? imageSet(dsol.panels, kernel) : undefined;
       const xFree = freeCharges(model, dsol.panels, dsol.x, k, images);
       const qd = conductorCharges(xFree, mesh.conductor, k);
-      for (let i = 0; i < qd.length; i++) qd[i] *= 4 * Math.PI * EPSILON_0 * copies;
+      for (let i = 0; i < qd.length; i++) qd[i] *= 4 * Math.PI * EPSILON_0 * tied;
       levels.push({ panels: dsol.panels.n, maxwell: qd, info: dsol.info });
       totalX = dsol.x; allPanels = dsol.panels;
       last = { x: xFree, panels: panelSet(mesh.positions, mesh.triangles), info: dsol.info };
       continue;
     }
-    const sol = await solveUnitPotentials(mesh.positions, mesh.triangles, mesh.conductor, k, {
-      method, solver: opts.solver ?? "auto", tolerance, pool, memoryLimit: opts.memoryLimit, kernel,
-      progress: (phase, f) => opts.progress?.(phase, f, level, nLevels),
-    });
-    const q = conductorCharges(sol.x, mesh.conductor, k);
-    const scale = 4 * Math.PI * eps * copies;
-    for (let i = 0; i < q.length; i++) q[i] *= scale;
-    levels.push({ panels: sol.panels.n, maxwell: q, info: sol.info });
-    last = sol;
+    const perPattern: Float64Array[] = [], xs: Float64Array[] = [];
+    for (let s = 0; s < nets; s++) {
+      const sol = await solveUnitPotentials(mesh.positions, mesh.triangles, mesh.conductor, k, {
+        method, solver: opts.solver ?? "auto", tolerance, pool, memoryLimit: opts.memoryLimit, kernel: kernelFor(s),
+        progress: (phase, f) => opts.progress?.(phase, f, level * nets + s, nLevels * nets),
+      });
+      const q = conductorCharges(sol.x, mesh.conductor, k);
+      const scale = 4 * Math.PI * eps * tied;
+      for (let i = 0; i < q.length; i++) q[i] *= scale;
+      perPattern.push(q); xs.push(sol.x);
+      last = sol;
+    }
+    levels.push({ panels: last!.panels.n, maxwell: nets > 1 ? unfoldMatrix(perPattern, k, nets) : perPattern[0], info: last!.info });
+    lastPatterns = xs;
   }
   if (!last) throw new Error("no level solved");
 
-  const finest = capacitanceMatrices(levels[levels.length - 1].maxwell, k, input.names);
+  // With both-planes: the unfolded mesh, each copy's conductors their own nets, and the unit
+  // solutions of every net on every panel from the per-pattern solutions.
+  let netClosed = closed, netCounts = counts;
+  if (nets > 1) {
+    const n = last.panels.n;
+    const { offsets } = kernelPlanes(checkKernel!);
+    mesh = unfoldedMesh(mesh, nets, copyMask, offsets, netNames);
+    const x = unfoldSolutions(lastPatterns, n, k, nets);
+    last = { x, panels: panelSet(mesh.positions, mesh.triangles), info: last.info };
+    netClosed = netNames.map((_, i) => closed[i % k]);
+    netCounts = Uint32Array.from(netNames, (_, i) => counts[i % k]);
+  }
+
+  const finest = capacitanceMatrices(levels[levels.length - 1].maxwell, K, netNames);
   let maxwell = finest.maxwell;
   let accuracy: Accuracy | undefined;
   if (refine > 0) {
     const sharp = closed.some((c) => !c) || hasFeatureEdges(orientedMesh);
-    const sym = levels.map((l) => capacitanceMatrices(l.maxwell, k, input.names).maxwell);
-    const r = richardson(sym, k, { assumedOrder: opts.assumedOrder ?? assumedOrder(sharp), fromBelow: method === "galerkin" && !bodies });
+    const sym = levels.map((l) => capacitanceMatrices(l.maxwell, K, netNames).maxwell);
+    const r = richardson(sym, K, { assumedOrder: opts.assumedOrder ?? assumedOrder(sharp), fromBelow: method === "galerkin" && !bodies });
     accuracy = { levels: levels.map((l, i) => ({ panels: l.panels, maxwell: sym[i] })), richardson: r, extrapolated: true };
     maxwell = r.extrapolated;
     warnings.push(...r.warnings);
   }
-  const checked = refine > 0 ? capacitanceMatrices(maxwell, k, input.names) : finest;
+  const checked = refine > 0 ? capacitanceMatrices(maxwell, K, netNames) : finest;
   warnings.push(...checked.warnings);
-  const mutual = mutualFromMaxwell(maxwell, k);
+  const mutual = mutualFromMaxwell(maxwell, K);
 
   // Floating conductors: eliminated from the reported matrix, potentials solved at the working point.
-  let reducedMaxwell = maxwell, reducedNames = input.names.slice();
+  let reducedMaxwell = maxwell, reducedNames = netNames.slice();
   let working: Float64Array = potentials;
   const floatingNames: string[] = [];
   let floatingPotentials = new Float64Array(0);
   if (floating.some((f) => f)) {
-    const red = eliminateFloating(maxwell, k, floating);
+    const red = eliminateFloating(maxwell, K, floating);
     reducedMaxwell = red.reducedMaxwell;
-    reducedNames = Array.from(red.driven, (i) => input.names[i]);
-    working = withFloatingPotentials(red, k, potentials);
+    reducedNames = Array.from(red.driven, (i) => netNames[i]);
+    working = withFloatingPotentials(red, K, potentials);
     floatingPotentials = Float64Array.from(red.floating, (i) => working[i]);
-    for (const i of red.floating) floatingNames.push(input.names[i]);
+    for (const i of red.floating) floatingNames.push(netNames[i]);
   }
   const reducedMutual = mutualFromMaxwell(reducedMaxwell, reducedNames.length);
 
@@ -340,10 +416,10 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
     if (model.removedInterfacePanels > 0) warnings.push(`${model.removedInterfacePanels} dielectric interface panel(s) covered by or inside a conductor (or in the ground plane) were removed`);
   } else {
     const openPanel = new Uint8Array(P.n);
-    for (let p = 0; p < P.n; p++) openPanel[p] = closed[mesh.conductor[p]] ? 0 : 1;
+    for (let p = 0; p < P.n; p++) openPanel[p] = netClosed[mesh.conductor[p]] ? 0 : 1;
     // Open sheets need the two-sided (principal-value) field of all the charge at their panels,
     // for their stronger face's field and their force.
-    excitation = panelExcitation(last.x, k, P, working, eps, openPanel);
+    excitation = panelExcitation(last.x, K, P, working, eps, openPanel);
     let nOpen = 0;
     for (let p = 0; p < P.n; p++) nOpen += openPanel[p];
     let fieldPv: Float64Array | undefined;
@@ -359,47 +435,144 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
         fieldPv[3 * p] = e[3 * a]; fieldPv[3 * p + 1] = e[3 * a + 1]; fieldPv[3 * p + 2] = e[3 * a + 2];
         normalPv[p] = e[3 * a] * P.normals[3 * p] + e[3 * a + 1] * P.normals[3 * p + 1] + e[3 * a + 2] * P.normals[3 * p + 2];
       }
-      excitation = panelExcitation(last.x, k, P, working, eps, openPanel, normalPv);
+      excitation = panelExcitation(last.x, K, P, working, eps, openPanel, normalPv);
       opts.progress?.("fields", 1, refine, nLevels);
     }
-    const forces = conductorForces(excitation.sigma, P, mesh.conductor, k, eps, openPanel, fieldPv);
+    const forces = conductorForces(excitation.sigma, P, mesh.conductor, K, eps, openPanel, fieldPv);
     complete = forces.complete;
     rawForce = forces.force;
   }
-  const peaks = peakFields(excitation.field, mesh.conductor, k, P);
+  const peaks = peakFields(excitation.field, mesh.conductor, K, P);
+  // The field check per medium: each panel against the strength of the medium just outside it
+  // (on open sheets the weaker of its two faces' media).
+  const mediumName = (m: number) => m < 0 ? "background" : model!.bodies[m].name;
+  const critical = criticalFields(excitation.field, mesh.conductor, K, P,
+    model ? (p) => weakerMedium(model!.conductorMediumPlus[p], model!.conductorMediumMinus[p], strengths) : () => -1,
+    (m) => m < 0 ? breakdownField : strengths[m]);
   const force = kernel ? foldVectors(kernel, rawForce) : rawForce;
-  const q = chargesAt(maxwell, k, working);
-  const energy = storedEnergy(maxwell, k, working);
+  const q = chargesAt(maxwell, K, working);
+  // The full model's energy: odd mirrors store as much as the conductors they mirror.
+  const energy = storedEnergy(maxwell, K, working) * oddCopies;
   const areas = conductorAreas(mesh);
-  for (let i = 0; i < k; i++) areas[i] *= copies;
+  for (let i = 0; i < K; i++) areas[i] *= tied;
 
-  const conductors: ConductorResult[] = input.names.map((name, i) => ({
+  const conductors: ConductorResult[] = netNames.map((name, i) => ({
     name,
-    triangles: counts[i],
+    triangles: netCounts[i],
     area: areas[i],
-    closed: closed[i],
+    closed: netClosed[i],
     potential: working[i],
     charge: q[i],
     peakField: peaks[i].value,
     peakFieldAt: peaks[i].at,
-    fieldRatio: peaks[i].value / breakdownField,
+    fieldRatio: critical[i].ratio,
+    criticalField: critical[i].field,
+    criticalFieldAt: critical[i].at,
+    medium: mediumName(critical[i].medium),
+    mediumBreakdownField: critical[i].strength,
     force: [force[3 * i], force[3 * i + 1], force[3 * i + 2]],
     floating: floating[i],
   }));
   const seconds = (performance.now() - t0) / 1e3;
   const lastInfo = levels[levels.length - 1].info;
   return {
-    names: input.names.slice(), conductors, k, permittivity: eps, relativePermittivity: er, breakdownField,
+    names: netNames.slice(), conductors, k: K, permittivity: eps, relativePermittivity: er, breakdownField,
     maxwell, mutual, asymmetry: finest.asymmetry, energy, potentials: working, mesh, panelConductor: mesh.conductor,
     excitation, panels: P, unitCharges: scaleCopy(last.x, 4 * Math.PI * (model ? EPSILON_0 : eps)), peaks, forcesComplete: complete, accuracy,
     solver: { ...lastInfo, seconds, peakMemory: peakResidentBytes(), levels },
     orientation: { flippedComponents, unorientable },
     reference: kernel?.groundPlane ? "ground plane" : "infinity",
-    groundPlane: opts.groundPlane, symmetry: (opts.symmetry ?? []).slice(), symmetryCopies: copies, images, removedInSymmetryPlane,
+    groundPlane: opts.groundPlane, symmetry: planes, symmetryCopies: symmetryCopies(checkKernel), mirrorNets: nets, images, removedInSymmetryPlane,
     floatingNames, floatingPotentials, reducedMaxwell, reducedMutual, reducedNames,
     removedInterfacePanels: model?.removedInterfacePanels ?? 0, dielectric,
     warnings,
   };
+}
+
+/** Symmetry planes with their images filled in and checked; InputError naming the plane. */
+function checkedSymmetry(list: SymmetryPlane[]): SymmetryPlane[] {
+  return list.map((p) => {
+    const images = p.images ?? "even";
+    const at = `symmetry plane ${p.axis} = ${p.offset} m`;
+    if (images !== "even" && images !== "odd" && images !== "both") throw new InputError(`${at}: images must be even, odd or both, got ${String(images)}`);
+    if (p.mirrored !== undefined) {
+      if (images !== "both") throw new InputError(`${at}: "mirrored" (the mirror conductors' working potentials) needs images "both"`);
+      if (p.mirrored !== "same" && p.mirrored !== "opposite") throw new InputError(`${at}: mirrored must be same or opposite, got ${String(p.mirrored)}`);
+    }
+    const out: SymmetryPlane = { axis: p.axis, offset: p.offset, images };
+    if (images === "both") out.mirrored = p.mirrored ?? "same";
+    return out;
+  });
+}
+
+/** Breakdown strength per body (V/m): its own, else the background's. */
+function bodyStrengths(bodies: Array<DielectricBody & { breakdownField?: number }>, background: number): Float64Array {
+  return Float64Array.from(bodies, (b, i) => {
+    const e = b.breakdownField;
+    if (e === undefined) return background;
+    if (typeof e !== "number" || !(e > 0) || !Number.isFinite(e)) throw new InputError(`dielectric ${b.name ?? i + 1}: breakdown field must be a positive number of V/m, got ${String(e)}`);
+    return e;
+  });
+}
+
+/** Of the media on a panel's two faces, the one with the lower breakdown strength. */
+function weakerMedium(a: number, b: number, strengths: Float64Array): number {
+  if (a === b) return a;
+  return (b < 0 ? Infinity : strengths[b]) < (a < 0 ? Infinity : strengths[a]) ? b : a;
+}
+
+/**
+ * The full model's Maxwell matrix from the per-pattern matrices of the meshed part (k×k each,
+ * pattern s odd in the both-planes of its set bits): with χ_s(m) = (−1)^popcount(s & m),
+ *   C[(g,i),(h,j)] = 2^−b Σ_s χ_s(g ⊕ h) C_s[i,j]
+ * (the character decomposition of the reflection group Z₂^b; for one plane
+ * C = [[(Ce + Co)/2, (Ce − Co)/2], [(Ce − Co)/2, (Ce + Co)/2]]). Nets are ordered copy-major.
+ */
+export function unfoldMatrix(perPattern: Float64Array[], k: number, nets: number): Float64Array {
+  const K = k * nets, out = new Float64Array(K * K);
+  for (let g = 0; g < nets; g++) for (let h = 0; h < nets; h++) {
+    const m = g ^ h;
+    for (let s = 0; s < nets; s++) {
+      const w = (popcount(s & m) & 1 ? -1 : 1) / nets, C = perPattern[s];
+      for (let i = 0; i < k; i++) for (let j = 0; j < k; j++) out[(g * k + i) * K + h * k + j] += w * C[i * k + j];
+    }
+  }
+  return out;
+}
+
+/** Unit solutions of every net on every panel of the unfolded model, (n·nets)×(k·nets), from the per-pattern n×k solutions. */
+function unfoldSolutions(xs: Float64Array[], n: number, k: number, nets: number): Float64Array {
+  const K = k * nets, out = new Float64Array(n * nets * K);
+  for (let h = 0; h < nets; h++) for (let g = 0; g < nets; g++) {
+    const m = h ^ g;
+    for (let s = 0; s < nets; s++) {
+      const w = (popcount(s & m) & 1 ? -1 : 1) / nets, x = xs[s];
+      for (let p = 0; p < n; p++) {
+        const row = (h * n + p) * K + g * k;
+        for (let j = 0; j < k; j++) out[row + j] += w * x[p * k + j];
+      }
+    }
+  }
+  return out;
+}
+
+/** The meshed part and its mirror copies as one mesh, copy h's conductor j numbered h·k + j. */
+function unfoldedMesh(mesh: SurfaceMesh, nets: number, copyMask: (h: number) => number, offsets: Float64Array, names: string[]): SurfaceMesh {
+  const nv = mesh.positions.length / 3, nt = mesh.conductor.length, k = mesh.names.length;
+  const positions = new Float64Array(3 * nv * nets), triangles = new Uint32Array(3 * nt * nets), conductor = new Uint32Array(nt * nets);
+  for (let h = 0; h < nets; h++) {
+    const r = reflectSurface(mesh.positions, mesh.triangles, copyMask(h), offsets);
+    positions.set(r.positions, 3 * nv * h);
+    for (let t = 0; t < 3 * nt; t++) triangles[3 * nt * h + t] = r.triangles[t] + nv * h;
+    for (let t = 0; t < nt; t++) conductor[nt * h + t] = h * k + mesh.conductor[t];
+  }
+  return { positions, triangles, conductor, names: names.slice() };
+}
+
+function popcount(x: number): number {
+  let c = 0;
+  for (; x; x &= x - 1) c++;
+  return c;
 }
 
 /** The mesh without the flagged triangles (vertices kept: unused ones are harmless). */
@@ -437,7 +610,7 @@ function closeBySymmetry(spec: KernelSpec, mesh: SurfaceMesh, table: ReturnType<
   }
   const { offsets } = kernelPlanes(spec);
   const sym = new Uint8Array(3);
-  for (const s of spec.symmetry ?? []) sym[s.axis === "x" ? 0 : s.axis === "y" ? 1 : 2] = 1;
+  for (const s of spec.symmetry ?? []) if ((s.images ?? "even") === "even") sym[axisIndex(s.axis)] = 1;
   // Reference point per component: its vertex mean, moved onto every symmetry plane.
   const ref = new Float64Array(4 * components);
   for (let t = 0; t < nt; t++) {
