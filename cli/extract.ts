@@ -89,7 +89,7 @@ export function registerExtract(program: Command): void {
     .option("--permittivity <er>", "relative permittivity of the medium (overrides the scene)")
     .option("--breakdown-field <V/m>", "breakdown strength of the medium for the field check (default 3e6, air)")
     .option("--ground-plane <axis=pos>", "an infinite grounded plane, e.g. z=0 (user unit); it becomes the reference")
-    .option("--symmetry <axis=pos>", "a mirror symmetry plane of the model, e.g. x=0 (repeatable): mesh only one side", collect, [])
+    .option("--symmetry <axis=pos[:images]>", "a mirror symmetry plane of the model, e.g. x=0 (repeatable): mesh only one side; images even (default), odd (mirror half at the opposite potential) or both (mirror half its own conductors, name~x; x=0:both:opposite drives them at the opposite potential)", collect, [])
     .option("--floating <name>", "leave this conductor floating: no net charge, potential solved for (repeatable)", collect, [])
     .option("--split", "mesh files: each connected component is a conductor")
     .option("--merge", "mesh files: all groups of a file are one conductor")

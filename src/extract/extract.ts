@@ -140,6 +140,8 @@ export interface ExtractionResult {
   permittivity: number;
   relativePermittivity: number;
   breakdownField: number;
+  /** The media of the field check: the background, then each dielectric body, with relative permittivity and breakdown strength (V/m). */
+  media: Array<{ name: string; relativePermittivity: number; breakdownField: number }>;
   /** Maxwell matrix reported (extrapolated when refinement was asked for); F, row-major k×k. */
   maxwell: Float64Array;
   mutual: Float64Array;
@@ -477,6 +479,8 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   const lastInfo = levels[levels.length - 1].info;
   return {
     names: netNames.slice(), conductors, k: K, permittivity: eps, relativePermittivity: er, breakdownField,
+    media: [{ name: "background", relativePermittivity: er, breakdownField },
+      ...(bodies ?? []).map((b, i) => ({ name: b.name, relativePermittivity: b.permittivity, breakdownField: strengths[i] }))],
     maxwell, mutual, asymmetry: finest.asymmetry, energy, potentials: working, mesh, panelConductor: mesh.conductor,
     excitation, panels: P, unitCharges: scaleCopy(last.x, 4 * Math.PI * (model ? EPSILON_0 : eps)), peaks, forcesComplete: complete, accuracy,
     solver: { ...lastInfo, seconds, peakMemory: peakResidentBytes(), levels },

@@ -8,7 +8,7 @@ import { InputError } from "./errors.js";
 import { loadMeshFiles } from "./load.js";
 import { loadSceneFile, loadSceneMesh, type Scene } from "./scene.js";
 import { DEFAULT_UNIT, metresPer, type LengthUnit } from "./units.js";
-import type { AxisPlane, Axis } from "../bem/images.js";
+import type { AxisPlane, Axis, SymmetryPlane } from "../bem/images.js";
 import type { SurfaceMesh } from "../mesh/model.js";
 import type { Warning } from "./errors.js";
 
@@ -24,11 +24,11 @@ export interface LoadedScene {
   /** Probe requests from the scene (coordinates in `unit`). */
   probes: ProbeSpec[];
   /** Dielectric bodies from the scene; meshes in metres. */
-  dielectrics: Array<{ name: string; mesh: SurfaceMesh; permittivity: number }>;
+  dielectrics: Array<{ name: string; mesh: SurfaceMesh; permittivity: number; breakdownField?: number }>;
   /** Grounded plane (offset in metres), from the scene or `groundPlane`. */
   groundPlane?: AxisPlane;
-  /** Mirror symmetry planes (offsets in metres). */
-  symmetry: AxisPlane[];
+  /** Mirror symmetry planes with their images (offsets in metres). */
+  symmetry: SymmetryPlane[];
   /** Per conductor: floating (zero net charge, potential solved for). */
   floating: boolean[];
   /** The scene's named parameters with the values used (empty for mesh files). */
@@ -64,6 +64,28 @@ export function parsePlane(text: string, unit: LengthUnit, what: string): AxisPl
   return { axis: m[1].toLowerCase() as Axis, offset: Number(m[2]) * metresPer(unit) };
 }
 
+/**
+ * `AXIS=POSITION[:IMAGES[:MIRRORED]]` (`x=0`, `y=0:odd`, `x=0:both:opposite`) as a symmetry plane
+ * in metres: images even (default), odd or both; for both, the mirrored conductors' working
+ * potentials same (default) or opposite.
+ */
+export function parseSymmetryPlane(text: string, unit: LengthUnit): SymmetryPlane {
+  const [where, images, mirrored, ...extra] = text.split(":").map((s) => s.trim());
+  const plane: SymmetryPlane = { ...parsePlane(where, unit, "symmetry plane"), images: "even" };
+  const bad = (what: string) => new InputError(`symmetry plane "${text}": ${what} (write AXIS=POSITION[:even|odd|both[:same|opposite]], e.g. x=0:odd)`);
+  if (extra.length > 0) throw bad("too many parts");
+  if (images !== undefined) {
+    if (images !== "even" && images !== "odd" && images !== "both") throw bad(`images must be even, odd or both, got "${images}"`);
+    plane.images = images;
+  }
+  if (mirrored !== undefined) {
+    if (plane.images !== "both") throw bad("same/opposite potentials of the mirrored conductors apply to both only");
+    if (mirrored !== "same" && mirrored !== "opposite") throw bad(`the mirrored conductors' potentials must be same or opposite, got "${mirrored}"`);
+    plane.mirrored = mirrored;
+  }
+  return plane;
+}
+
 /** Load a scene (one .json file) or mesh files. */
 export function loadScene(inputs: string | string[], opts: InputOptions = {}): LoadedScene {
   const list = typeof inputs === "string" ? [inputs] : inputs;
@@ -76,7 +98,7 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
     if (opts.unit && opts.unit !== scene.unit) {
       // Plane positions were read in the scene's unit: rescale with it.
       const f = metresPer(opts.unit) / metresPer(scene.unit);
-      const move = (p: AxisPlane): AxisPlane => ({ axis: p.axis, offset: p.offset * f });
+      const move = <P extends AxisPlane>(p: P): P => ({ ...p, offset: p.offset * f });
       scene = { ...scene, unit: opts.unit, groundPlane: scene.groundPlane && move(scene.groundPlane), symmetry: scene.symmetry.map(move) };
     }
     if (opts.split || opts.merge) throw new InputError("--split and --merge apply to mesh files; in a scene, each entry is one conductor", list[0]);
@@ -99,7 +121,7 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
     };
   }
   if (opts.groundPlane !== undefined) out.groundPlane = parsePlane(opts.groundPlane, out.unit, "ground plane");
-  if (opts.symmetry !== undefined) out.symmetry = opts.symmetry.map((t) => parsePlane(t, out.unit, "symmetry plane"));
+  if (opts.symmetry !== undefined) out.symmetry = opts.symmetry.map((t) => parseSymmetryPlane(t, out.unit));
   const axes = new Set<string>();
   for (const p of out.symmetry) {
     if (axes.has(p.axis)) throw new InputError(`two symmetry planes normal to ${p.axis}: at most one per axis`);

@@ -3,7 +3,7 @@
  * the medium and the breakdown strength used by the field check.
  *
  *   { "unit": "mm", "permittivity": 1.0,
- *     "groundPlane": { "z": 0 }, "symmetry": [ { "x": 0 } ],
+ *     "groundPlane": { "z": 0 }, "symmetry": [ { "x": 0 }, { "y": 0, "images": "odd" } ],
  *     "conductors": [ { "name": "pad", "mesh": "pad.stl", "potential": 1.0 },
  *                     { "name": "shield", "mesh": "shield.stl", "floating": true } ] }
  *
@@ -19,7 +19,10 @@
  * use wherever the scene takes a number; a sweep replaces their values.
  *
  * `groundPlane` is a grounded conducting plane normal to one axis, `symmetry` lists mirror
- * symmetry planes of a model meshed by half (positions in the scene's unit); a floating
+ * symmetry planes of a model meshed by half (positions in the scene's unit) with their images:
+ * "even" (default), "odd" (the mirror half at the opposite potential) or "both" (the mirror
+ * half is its own conductors, `name~x`; `"mirrored": "same" | "opposite"` sets their working
+ * potentials). A dielectric body may carry its own `breakdownField` (V/m); a floating
  * conductor carries zero net charge at a potential the solver finds, so it takes no potential.
  *
  * The schema is kept in `schema/scene.schema.json`; this module is its validator and
@@ -31,7 +34,7 @@ import { readFileSync, statSync } from "node:fs";
 import { dirname, resolve, basename, extname } from "node:path";
 import { InputError } from "./errors.js";
 import { parseUnit, metresPer, DEFAULT_UNIT, type LengthUnit } from "./units.js";
-import type { AxisPlane, Axis } from "../bem/images.js";
+import type { AxisPlane, Axis, SymmetryPlane } from "../bem/images.js";
 import { loadMeshFile, type LoadedMesh } from "./load.js";
 import { concatMeshes, type SurfaceMesh } from "../mesh/model.js";
 import { SHAPES, shapeParameters, generateShape, type ShapeName, type ShapeParams } from "../mesh/primitives/index.js";
@@ -77,6 +80,8 @@ export interface SceneConductor {
 /** A dielectric body: a closed surface with its relative permittivity inside. */
 export interface SceneDielectric extends Omit<SceneConductor, "potential" | "floating"> {
   permittivity: number;
+  /** Breakdown strength of the body's material for the field check; V/m. Undefined: the background's. */
+  breakdownField?: number;
 }
 
 export interface Scene {
@@ -88,8 +93,8 @@ export interface Scene {
   breakdownField?: number;
   /** Grounded plane; offset in metres. */
   groundPlane?: AxisPlane;
-  /** Mirror symmetry planes; offsets in metres. */
-  symmetry: AxisPlane[];
+  /** Mirror symmetry planes with their images; offsets in metres. */
+  symmetry: SymmetryPlane[];
   conductors: SceneConductor[];
   dielectrics: SceneDielectric[];
   /** Probe requests, coordinates in the scene's unit. */
@@ -105,7 +110,7 @@ export interface SceneParseOptions {
 
 const TOP_KEYS = new Set(["$schema", "parameters", "unit", "permittivity", "breakdownField", "groundPlane", "symmetry", "conductors", "dielectrics", "probes", "title", "description"]);
 const CONDUCTOR_KEYS = new Set(["name", "mesh", "shape", "parts", "place", "group", "groups", "potential", "floating", "description"]);
-const DIELECTRIC_KEYS = new Set(["name", "mesh", "shape", "parts", "place", "group", "groups", "permittivity", "description"]);
+const DIELECTRIC_KEYS = new Set(["name", "mesh", "shape", "parts", "place", "group", "groups", "permittivity", "breakdownField", "description"]);
 const PART_KEYS = new Set(["mesh", "shape", "place", "group", "groups", "description"]);
 
 /**
@@ -195,13 +200,29 @@ export function parseScene(text: string, file: string, opts: SceneParseOptions =
     if (typeof g === "string") fail("groundPlane", g);
     groundPlane = g as AxisPlane;
   }
-  const symmetry: AxisPlane[] = [];
+  const symmetry: SymmetryPlane[] = [];
   if (top.symmetry !== undefined) {
     if (!Array.isArray(top.symmetry)) fail("symmetry", "expected a list of planes, such as [ { \"x\": 0 } ]");
     (top.symmetry as unknown[]).forEach((entry, i) => {
-      const g = planeFromObject(entry, unit);
+      let images: SymmetryPlane["images"], mirrored: SymmetryPlane["mirrored"];
+      let bare = entry;
+      if (isObject(entry) && ("images" in entry || "mirrored" in entry)) {
+        const { images: im, mirrored: mi, ...rest } = entry;
+        if (im !== undefined) {
+          if (im !== "even" && im !== "odd" && im !== "both") fail(`symmetry[${i}].images`, `expected "even", "odd" or "both", got ${JSON.stringify(im)}`);
+          images = im as SymmetryPlane["images"];
+        }
+        if (mi !== undefined) {
+          if (images !== "both") fail(`symmetry[${i}].mirrored`, "the mirrored conductors' potentials apply to \"images\": \"both\" only");
+          if (mi !== "same" && mi !== "opposite") fail(`symmetry[${i}].mirrored`, `expected "same" or "opposite", got ${JSON.stringify(mi)}`);
+          mirrored = mi as SymmetryPlane["mirrored"];
+        }
+        bare = rest;
+      }
+      const g = planeFromObject(bare, unit);
       if (typeof g === "string") fail(`symmetry[${i}]`, g);
-      const plane = g as AxisPlane;
+      const plane: SymmetryPlane = { ...(g as AxisPlane), images: images ?? "even" };
+      if (mirrored) plane.mirrored = mirrored;
       const j = symmetry.findIndex((q) => q.axis === plane.axis);
       if (j >= 0) fail(`symmetry[${i}]`, `symmetry[${j}] is already normal to ${plane.axis} (at most one symmetry plane per axis)`);
       if (groundPlane && groundPlane.axis === plane.axis) fail(`symmetry[${i}]`, `parallel to the ground plane (normal to ${plane.axis}): the images would never end; use planes on other axes`);
@@ -237,7 +258,12 @@ export function parseScene(text: string, file: string, opts: SceneParseOptions =
       const { e, name, mesh, shape, place, groups, parts } = parseBody(entry, at, DIELECTRIC_KEYS, base, fail);
       if (typeof e.permittivity !== "number" || !Number.isFinite(e.permittivity)) fail(`${at}.permittivity`, e.permittivity === undefined ? "missing (the body's relative permittivity)" : "expected a number");
       if ((e.permittivity as number) < 1) fail(`${at}.permittivity`, `relative permittivity must be at least 1, got ${e.permittivity}`);
-      dielectrics.push({ name, mesh, shape, place, path: at, groups, parts, permittivity: e.permittivity as number });
+      let breakdownField: number | undefined;
+      if (e.breakdownField !== undefined) {
+        if (typeof e.breakdownField !== "number" || !Number.isFinite(e.breakdownField) || e.breakdownField <= 0) fail(`${at}.breakdownField`, "expected a positive number in V/m");
+        breakdownField = e.breakdownField as number;
+      }
+      dielectrics.push({ name, mesh, shape, place, path: at, groups, parts, permittivity: e.permittivity as number, ...(breakdownField !== undefined ? { breakdownField } : {}) });
     });
   }
   const seen = new Map<string, number>();
@@ -358,7 +384,7 @@ export function loadSceneFile(path: string, opts: SceneParseOptions = {}): Scene
 
 export interface SceneMesh extends LoadedMesh {
   /** Dielectric bodies, meshes in metres. */
-  dielectrics: Array<{ name: string; mesh: SurfaceMesh; permittivity: number }>;
+  dielectrics: Array<{ name: string; mesh: SurfaceMesh; permittivity: number; breakdownField?: number }>;
   /** Potential of each conductor as the scene gives it; volts (undefined where it is silent). */
   potentials: Array<number | undefined>;
   /** Floating flag of each conductor. */
@@ -378,7 +404,7 @@ export function loadSceneMesh(scene: Scene, opts: { weldTolerance?: number } = {
     welded: bodies.reduce((s, b) => s + b.welded, 0),
     potentials: scene.conductors.map((c) => c.potential),
     floating: scene.conductors.map((c) => c.floating),
-    dielectrics: dielectrics.map((b, i) => ({ name: scene.dielectrics[i].name, mesh: b.mesh, permittivity: scene.dielectrics[i].permittivity })),
+    dielectrics: dielectrics.map((b, i) => ({ name: scene.dielectrics[i].name, mesh: b.mesh, permittivity: scene.dielectrics[i].permittivity, breakdownField: scene.dielectrics[i].breakdownField })),
   };
 }
 

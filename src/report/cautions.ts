@@ -16,8 +16,14 @@ export const FIELD_CAUTIONS: readonly string[] = [
 export const HAZARD_CAUTION =
   "Hazardous voltages: follow the applicable clearance and creepage standards (for example IEC 60664-1), local electrical codes and licensed engineering practice. sigmesh does not certify a design.";
 
-/** The cautions for a job with these potentials (volts). */
-export function cautionsFor(potentials: ArrayLike<number>): string[] {
+export const SOLID_INSULATION_CAUTION =
+  "Breakdown strengths of solid and liquid insulation are material data for a given thickness, temperature and waveform; voids, interfaces, creepage along surfaces and ageing lower them. The per-medium check compares the field just outside each conductor with the strength entered for that medium only; the field inside the bodies and along their surfaces is not checked.";
+
+/**
+ * The cautions for a job with these potentials (volts). `perMedium`: the field check used
+ * strengths of dielectric bodies besides the background's.
+ */
+export function cautionsFor(potentials: ArrayLike<number>, opts: { perMedium?: boolean } = {}): string[] {
   let vmax = 0;
   for (let i = 0; i < potentials.length; i++) vmax = Math.max(vmax, Math.abs(potentials[i]));
   // Differences between conductors matter as much as potentials to the reference.
@@ -25,6 +31,7 @@ export function cautionsFor(potentials: ArrayLike<number>): string[] {
   for (let i = 0; i < potentials.length; i++) { vmin = Math.min(vmin, potentials[i]); vtop = Math.max(vtop, potentials[i]); }
   const span = Math.max(vmax, vtop - vmin);
   const out = [...FIELD_CAUTIONS];
+  if (opts.perMedium) out.push(SOLID_INSULATION_CAUTION);
   if (span > HAZARDOUS_VOLTAGE) out.unshift(HAZARD_CAUTION);
   else out.push(HAZARD_CAUTION);
   return out;

@@ -31,9 +31,16 @@ export function extractionSummary(r: ExtractionResult, ctx: SummaryContext): str
   out.push(`  ${k} conductor${k === 1 ? "" : "s"}, ${r.solver.panels} panels, length unit ${unitNote}, εr = ${formatNumber(r.relativePermittivity)}`);
   const ref = r.reference === "ground plane" && r.groundPlane
     ? `grounded plane ${r.groundPlane.axis} = ${formatLength(r.groundPlane.offset, ctx.unit)} (the reference of the two-terminal values)`
-    : "infinity (no ground plane)";
+    : r.symmetry.some((p) => p.images === "odd") ? "infinity and the odd symmetry plane (0 V)" : "infinity (no ground plane)";
   out.push(`  reference: ${ref}`);
-  if (r.symmetryCopies > 1) out.push(`  symmetry: ${r.symmetry.map((p) => `${p.axis} = ${formatLength(p.offset, ctx.unit)}`).join(", ")}; results are for the full model (${r.symmetryCopies} copies of the meshed part)`);
+  if (r.symmetryCopies > 1) {
+    const how = (p: ExtractionResult["symmetry"][number]) => p.images === "odd" ? "odd: its mirror half at the opposite potential, the plane at 0 V"
+      : p.images === "both" ? `both: even and odd solves, its mirror half conductors of their own (~${p.axis}) at the ${p.mirrored === "opposite" ? "opposite" : "same"} working potential`
+        : "even: its mirror half tied to the same potential";
+    out.push(`  symmetry: ${r.symmetryCopies} copies of the meshed part in the full model`);
+    for (const p of r.symmetry) out.push(`    plane ${p.axis} = ${formatLength(p.offset, ctx.unit)}, ${how(p)}`);
+    if (r.symmetry.some((p) => p.images === "odd")) out.push("    capacitances are those of the antisymmetric excitation (each conductor with its odd mirror at the opposite potential); energy is the full model's");
+  }
   if (r.dielectric) {
     for (const b of r.dielectric.bodies) out.push(`  dielectric ${b.name}: εr = ${formatNumber(b.permittivity)} inside, ${b.outside} (εr = ${formatNumber(b.outsidePermittivity)}) outside, ${b.panels} interface panels`);
     if (r.removedInterfacePanels > 0) out.push(`  ${r.removedInterfacePanels} interface panels covered by conductors were removed`);
@@ -98,15 +105,21 @@ export function extractionSummary(r: ExtractionResult, ctx: SummaryContext): str
   out.push(`Solver: ${s.method}, ${solverLine}; ${s.panels} panels, ${formatNumber(s.seconds, 3)} s total, peak memory ${formatSI(s.peakMemory, "B", 3)}`);
   out.push("");
 
-  out.push(`Field check (breakdown field ${formatFieldStrength(r.breakdownField)})`);
+  const perMedium = r.media.length > 1;
+  out.push(perMedium
+    ? `Field check (each panel against the medium just outside it: ${r.media.map((m) => `${m.name} ${formatFieldStrength(m.breakdownField)}`).join(", ")})`
+    : `Field check (breakdown field ${formatFieldStrength(r.breakdownField)})`);
   for (const c of r.conductors) {
     const margin = c.fieldRatio > 0 ? 1 / c.fieldRatio : Infinity;
     const verdict = c.fieldRatio >= 1 ? "EXCEEDS the breakdown field" : `${formatNumber(margin, 3)}× below breakdown`;
-    out.push(`  ${c.name}: peak ${formatFieldStrength(c.peakField)} — ${verdict}`);
+    const where = perMedium
+      ? `; critical in ${c.medium} (${formatFieldStrength(c.mediumBreakdownField)}): ${formatFieldStrength(c.criticalField)} at ${formatPoint(c.criticalFieldAt, ctx.unit, 3)}`
+      : "";
+    out.push(`  ${c.name}: peak ${formatFieldStrength(c.peakField)}${where} — ${verdict}`);
   }
   out.push("");
   out.push("Cautions");
-  for (const line of cautionsFor(r.potentials)) out.push(`  - ${line}`);
+  for (const line of cautionsFor(r.potentials, { perMedium: r.media.length > 1 })) out.push(`  - ${line}`);
   if (r.warnings.length) {
     out.push("");
     out.push("Warnings");
