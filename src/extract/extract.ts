@@ -27,12 +27,14 @@ import { centroidFields } from "./probe.js";
 import type { PanelSet } from "../bem/panels.js";
 import { InputError } from "../io/errors.js";
 import {
-  hasImages, kernelPlanes, imageSet, symmetryCopies, conductorRanges, checkSides, trianglesInSymmetryPlanes,
+  AXES, hasImages, kernelPlanes, imageSet, symmetryCopies, conductorRanges, checkSides, trianglesInSymmetryPlanes,
   edgeInSymmetryPlane, foldVectors, evenCopies, axisIndex, reflectSurface, mirrorSuffix,
   type AxisPlane, type KernelSpec, type ImageSet, type SymmetryPlane,
 } from "../bem/images.js";
 import { eliminateFloating, withFloatingPotentials } from "./floating.js";
-import { prepareBodies, dielectricModel, freeCharges, dielectricExcitation, type DielectricBody, type BodySummary, type DielectricModel } from "./dielectric.js";
+import {
+  prepareBodies, dielectricModel, freeCharges, dielectricExcitation, type DielectricBody, type BodySummary, type DielectricModel, type PreparedBody,
+} from "./dielectric.js";
 import { solveUnitPotentialsWithInterfaces } from "./solve.js";
 import { panelSet } from "../bem/panels.js";
 import type { InterfaceTesting } from "../bem/interface.js";
@@ -267,18 +269,16 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   const warnings: string[] = [];
   const testing: InterfaceTesting = opts.interfaceTesting ?? "galerkin";
   if (testing !== "collocation" && testing !== "galerkin") throw new InputError(`interface testing must be collocation or galerkin, got ${String(testing)}`);
-  let bodies = opts.dielectrics && opts.dielectrics.length > 0 ? prepareBodies(opts.dielectrics, er) : undefined;
   const strengths = bodyStrengths(opts.dielectrics ?? [], breakdownField);
-  if (bodies && planes.length > 0) throw new InputError("dielectric bodies cannot be combined with symmetry planes yet: mesh the whole model");
-  if (bodies) {
-    const flipped = bodies.filter((b) => b.flipped).map((b) => b.name);
-    if (flipped.length > 0) warnings.push(`dielectric interface(s) ${flipped.join(", ")} were wound inward or inconsistently and have been reoriented`);
-  }
+  const hasBodies = (opts.dielectrics?.length ?? 0) > 0;
+  if (hasBodies && both.length > 0) throw new InputError("dielectric bodies cannot be combined with symmetry images \"both\" yet: use even or odd images, or mesh the whole model");
+  let bodies: PreparedBody[] | undefined;
   let model: DielectricModel | undefined;
   let totalX: Float64Array | undefined;
   let allPanels: PanelSet | undefined;
 
   let removedInSymmetryPlane = 0;
+  let conductorSides: Int8Array | undefined;
   if (checkKernel) {
     try { kernelPlanes(checkKernel); } catch (e) { throw new InputError((e as Error).message); }
     const cut = trianglesInSymmetryPlanes(checkKernel, input.positions, input.triangles);
@@ -290,6 +290,16 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
     const ranges = conductorRanges(input.positions, input.triangles, input.conductor, k);
     const sides = checkSides(checkKernel, ranges, input.names);
     if (sides.fault) throw new InputError(both.length > 0 ? sides.fault.replace("odd symmetry plane", "symmetry plane with both images") : sides.fault);
+    conductorSides = sides.sides;
+  }
+  // Dielectric bodies of a symmetric model are meshed on the conductors' side; the media are
+  // found on the unfolded bodies (a half body encloses nothing).
+  const unfold = hasBodies && planes.length > 0 && checkKernel ? unfolding(checkKernel, conductorSides!) : undefined;
+  if (hasBodies) {
+    const given = unfold ? opts.dielectrics!.map((b, i) => ({ ...b, mesh: unfold.body(b.mesh, typeof b.name === "string" && b.name !== "" ? b.name : `dielectric ${i + 1}`) })) : opts.dielectrics!;
+    bodies = prepareBodies(given, er);
+    const flipped = bodies.filter((b) => b.flipped).map((b) => b.name);
+    if (flipped.length > 0) warnings.push(`dielectric interface(s) ${flipped.join(", ")} were wound inward or inconsistently and have been reoriented`);
   }
 
   // Every conductor needs triangles of its own.
@@ -325,7 +335,8 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
     if (level > 0) mesh = refineUniform(mesh);
     if (bodies) {
       if (level > 0) bodies = bodies.map((b) => ({ ...b, mesh: refineUniform(b.mesh) }));
-      model = dielectricModel(mesh, bodies, er, opts.groundPlane);
+      model = unfold ? unfold.restrict(dielectricModel(unfold.surface(mesh), bodies, er, opts.groundPlane), mesh.conductor.length)
+        : dielectricModel(mesh, bodies, er, opts.groundPlane);
       const dsol = await solveUnitPotentialsWithInterfaces(model.positions, model.triangles, mesh.conductor, k, model.lambda, testing, {
         method, solver: opts.solver ?? "auto", tolerance, pool, memoryLimit: opts.memoryLimit, kernel,
         progress: (phase, f) => opts.progress?.(phase, f, level, nLevels),
@@ -661,3 +672,87 @@ function scaleCopy(a: Float64Array, s: number): Float64Array {
   return out;
 }
 
+
+/**
+ * Dielectric bodies with symmetry planes. The bodies are meshed on the conductors' side (cut
+ * faces in the planes, if any, are dropped: they are no interface); `body` welds a body and its
+ * mirror copies into the closed surface of the full model, `surface` does the same for the
+ * conductors, so the media of the full model are found by containment as without planes, and
+ * `restrict` keeps of the full model the meshed part's panels: the conductors' own (the first
+ * ones) and the interface panels on the conductors' side. Their mirror images come from the
+ * image kernel as for the conductors (even or odd: the polarisation charge mirrors with the
+ * free charge).
+ */
+function unfolding(spec: KernelSpec, sides: Int8Array) {
+  const { offsets } = kernelPlanes(spec);
+  const axes = (spec.symmetry ?? []).map((p) => axisIndex(p.axis));
+  const copies = 1 << axes.length;
+  const maskOf = (c: number) => { let m = 0; for (let b = 0; b < axes.length; b++) if ((c >> b) & 1) m |= 1 << axes[b]; return m; };
+  const tolOf = (p: Float64Array) => { let e = 0; for (let i = 0; i < p.length; i++) e = Math.max(e, Math.abs(p[i])); return 1e-9 * Math.max(e, 1e-30); };
+  const weld = (mesh: SurfaceMesh, keepTriangle: (t: number) => boolean): SurfaceMesh => {
+    const p = mesh.positions, nv = p.length / 3, tol = tolOf(p);
+    const onBits = new Uint8Array(nv);
+    for (let v = 0; v < nv; v++) for (let b = 0; b < axes.length; b++) if (Math.abs(p[3 * v + axes[b]] - offsets[axes[b]]) <= tol) onBits[v] |= 1 << b;
+    const positions = new Float64Array(3 * nv * copies);
+    const tri: number[] = [], cond: number[] = [];
+    for (let c = 0; c < copies; c++) {
+      positions.set(reflectSurface(p, new Uint32Array(0), maskOf(c), offsets).positions, 3 * nv * c);
+      const odd = popcount(c) & 1;
+      for (let t = 0; t < mesh.conductor.length; t++) {
+        if (!keepTriangle(t)) continue;
+        const idx = [0, 1, 2].map((m) => { const v = mesh.triangles[3 * t + m]; return v + nv * (c & ~onBits[v]); });
+        if (odd) tri.push(idx[0], idx[2], idx[1]); else tri.push(idx[0], idx[1], idx[2]);
+        cond.push(mesh.conductor[t]);
+      }
+    }
+    return { positions, triangles: Uint32Array.from(tri), conductor: Uint32Array.from(cond), names: mesh.names.slice() };
+  };
+  return {
+    body(mesh: SurfaceMesh, name: string): SurfaceMesh {
+      const p = mesh.positions, tol = tolOf(p);
+      for (const a of axes) {
+        let across = false, along = false;
+        for (let t = 0; t < mesh.triangles.length; t++) {
+          const d = (p[3 * mesh.triangles[t] + a] - offsets[a]) * sides[a];
+          if (d < -tol) across = true; else if (d > tol) along = true;
+        }
+        if (across) {
+          throw new InputError(`dielectric ${name} reaches across the symmetry plane ${AXES[a]} = ${offsets[a]} m${along ? "" : " (it lies on the other side)"}: `
+            + "with symmetry planes, mesh the part of each body on the conductors' side only");
+        }
+      }
+      // Cut faces in a plane are dropped (an even or an odd plane alike: no interface there).
+      const inPlane = trianglesInSymmetryPlanes({ symmetry: (spec.symmetry ?? []).map((s) => ({ ...s, images: "even" as const })) }, p, mesh.triangles).flags;
+      return weld(mesh, (t) => !inPlane[t]);
+    },
+    surface(mesh: SurfaceMesh): SurfaceMesh {
+      return weld(mesh, () => true);
+    },
+    restrict(m: DielectricModel, nc: number): DielectricModel {
+      const keep: number[] = [];
+      const tol = tolOf(m.positions);
+      for (let a = 0; a < m.ni; a++) {
+        const t = m.nc + a;
+        let inside = true;
+        for (const ax of axes) {
+          let c = 0;
+          for (let k3 = 0; k3 < 3; k3++) c += m.positions[3 * m.triangles[3 * t + k3] + ax];
+          if ((c / 3 - offsets[ax]) * sides[ax] <= tol) inside = false;
+        }
+        if (inside) keep.push(a);
+      }
+      const ni = keep.length, triangles = new Uint32Array(3 * (nc + ni));
+      triangles.set(m.triangles.subarray(0, 3 * nc));
+      keep.forEach((a, i) => triangles.set(m.triangles.subarray(3 * (m.nc + a), 3 * (m.nc + a) + 3), 3 * (nc + i)));
+      const pick = <T extends Float64Array | Uint32Array>(x: T): T => { const out = new (x.constructor as { new(n: number): T })(ni); keep.forEach((a, i) => { out[i] = x[a]; }); return out; };
+      const interfaceBody = pick(m.interfaceBody);
+      const bodies = m.bodies.map((b, i) => ({ ...b, panels: interfaceBody.filter((x) => x === i).length }));
+      return {
+        ...m, triangles, nc, ni, interfaceBody, epsMinus: pick(m.epsMinus), epsPlus: pick(m.epsPlus), lambda: pick(m.lambda),
+        conductorPlus: m.conductorPlus.slice(0, nc), conductorMinus: m.conductorMinus.slice(0, nc),
+        conductorMediumPlus: m.conductorMediumPlus.slice(0, nc), conductorMediumMinus: m.conductorMediumMinus.slice(0, nc),
+        openPanel: m.openPanel.slice(0, nc), bodies,
+      };
+    },
+  };
+}
