@@ -9,6 +9,7 @@ import { sphereMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes, type SurfaceMesh } from "../../src/mesh/model.js";
 import { extract, unfoldMatrix } from "../../src/extract/extract.js";
 import { reflectSurface } from "../../src/bem/images.js";
+import { probeExtraction } from "../../src/extract/probe.js";
 import { EPSILON_0 } from "../../src/extract/constants.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
 
@@ -95,6 +96,12 @@ describe("even and odd solves rebuild the full model (images both)", () => {
     expect(rel(r.conductors[1].peakField, full.conductors[1].peakField)).toBeLessThan(1e-6);
     expect(rel(r.conductors[1].force[0], full.conductors[1].force[0])).toBeLessThan(1e-6);
     expect(r.mesh.conductor.length).toBe(2 * right.conductor.length);
+    // Probes on the unfolded model: 0 V on the plane at the ±1 V working point, and the full model's potential elsewhere.
+    const pts = Float64Array.from([0, 0.4, 0.3, -0.2, 1.7, 0, 1.5, 0, 0]);
+    const pr = probeExtraction(r, pts), pf = probeExtraction(full, pts);
+    expect(Math.abs(pr.potential[0])).toBeLessThan(1e-12);
+    expect(rel(pr.potential[1], pf.potential[1])).toBeLessThan(1e-7);
+    expect(Math.abs(pr.potential[2] - 1)).toBeLessThan(2e-2);
   });
 
   it("the unfolding formula is the character sum: Ce, Co → [[(Ce+Co)/2, (Ce−Co)/2], ...]", () => {
