@@ -8,7 +8,13 @@
  * meets the plane, copies tied to the same potential when it does not), and its charge, area,
  * capacitances and energy are reported for the full model (the meshed part's times 2^m; net
  * forces are the sum over the copies, so components normal to a symmetry plane cancel).
- * Panel-level results (charges, densities, fields) stay those of the meshed panels.
+ * An odd plane puts the mirror half at the opposite potential: the conductor no longer includes
+ * that mirror (C is the antisymmetric excitation's, C11 − C12 of a pair; the energy is still the
+ * full model's). Planes with images "both" are solved once per even/odd pattern and unfolded:
+ * the full Maxwell matrix by the character sum (`unfoldMatrix`), the mesh and unit solutions
+ * into explicit mirror copies whose conductors are nets of their own (`name~x`).
+ * Panel-level results (charges, densities, fields) stay those of the meshed panels (of the
+ * unfolded mesh with "both").
  * Floating conductors are eliminated from the Maxwell matrix (floating.ts).
  */
 import type { SurfaceMesh } from "../mesh/model.js";
