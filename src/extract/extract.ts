@@ -42,6 +42,7 @@ import {
   prepareBodies, dielectricModel, freeCharges, dielectricExcitation, type DielectricBody, type BodySummary, type DielectricModel, type PreparedBody,
 } from "./dielectric.js";
 import { solveUnitPotentialsWithInterfaces } from "./solve.js";
+import { dielectricBodyForces } from "./dielectric-force.js";
 import { panelSet } from "../bem/panels.js";
 import type { InterfaceTesting } from "../bem/interface.js";
 
@@ -98,6 +99,8 @@ export interface DielectricResult {
   panels: PanelSet;
   totalCharge: Float64Array;
   model: DielectricModel;
+  /** Net force on each body (N; full model, folded like the conductors'), null where a conductor touches it or it faces several media (dielectric-force.ts). */
+  forces: Array<[number, number, number] | null>;
 }
 
 export interface ConductorResult {
@@ -428,9 +431,14 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
     excitation = d.excitation; rawForce = d.force; complete = true;
     const totalCharge = new Float64Array(allPanels.n);
     totalCharge.set(scaleCopy(xAtWorking(totalX, k, working), 4 * Math.PI * EPSILON_0));
+    const forces = dielectricBodyForces(model, allPanels, totalCharge, allImages).map((f) => {
+      if (!f || !kernel) return f;
+      const g = foldVectors(kernel, Float64Array.from(f));
+      return [g[0], g[1], g[2]] as [number, number, number];
+    });
     dielectric = {
       bodies: model.bodies, interfacePanels: model.ni, mergedInterfacePanels: model.mergedInterfacePanels, testing,
-      conductorPermittivity: model.conductorPlus, panels: allPanels, totalCharge, model,
+      conductorPermittivity: model.conductorPlus, panels: allPanels, totalCharge, model, forces,
     };
     if (model.removedInterfacePanels > 0) warnings.push(`${model.removedInterfacePanels} dielectric interface panel(s) covered by or inside a conductor (or in the ground plane) were removed`);
   } else {

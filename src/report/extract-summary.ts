@@ -84,6 +84,12 @@ export function extractionSummary(r: ExtractionResult, ctx: SummaryContext): str
     if (f > 0) out.push(`  force on ${c.name}: ${formatSI(f, "N")} along (${c.force.map((x) => formatNumber(x / f, 3)).join(", ")})`);
   }
   if (!r.forcesComplete) out.push("  (forces on open sheets are not included)");
+  r.dielectric?.bodies.forEach((b, i) => {
+    const f = r.dielectric!.forces[i];
+    if (!f) return;
+    const m = Math.hypot(...f);
+    if (m > 0) out.push(`  force on dielectric ${b.name}: ${formatSI(m, "N")} along (${f.map((x) => formatNumber(x / m, 3)).join(", ")})`);
+  });
   out.push("");
 
   if (r.accuracy) {

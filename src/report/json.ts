@@ -72,6 +72,7 @@ export function extractionReport(r: ExtractionResult, ctx: ReportContext): Recor
     dielectrics: r.dielectric
       ? {
           bodies: r.dielectric.bodies,
+          forces: r.dielectric.bodies.map((b, i) => ({ name: b.name, force: r.dielectric!.forces[i] })),
           interfacePanels: r.dielectric.interfacePanels,
           removedInterfacePanels: r.removedInterfacePanels,
           mergedInterfacePanels: r.dielectric.mergedInterfacePanels,
