@@ -106,7 +106,9 @@ describe("scene keys for surroundings and floating conductors", () => {
   it("reads groundPlane and symmetry in the scene's unit and floating flags", () => {
     const s = parseScene(scene({ unit: "mm", groundPlane: { z: -2 }, symmetry: [{ x: 0 }, { y: 1.5 }] }), "/tmp/s.json");
     expect(s.groundPlane).toEqual({ axis: "z", offset: -0.002 });
-    expect(s.symmetry).toEqual([{ axis: "x", offset: 0 }, { axis: "y", offset: 0.0015 }]);
+    expect(s.symmetry).toEqual([{ axis: "x", offset: 0, images: "even" }, { axis: "y", offset: 0.0015, images: "even" }]);
+    const odd = parseScene(scene({ unit: "mm", symmetry: [{ x: 1, images: "odd" }, { images: "both", z: 0, mirrored: "opposite" }] }), "/tmp/s.json");
+    expect(odd.symmetry).toEqual([{ axis: "x", offset: 0.001, images: "odd" }, { axis: "z", offset: 0, images: "both", mirrored: "opposite" }]);
     expect(s.conductors.map((c) => c.floating)).toEqual([false, true]);
   });
   it("names the key of each fault", () => {
