@@ -360,3 +360,22 @@ export function mirrorSuffix(mask: number): string {
   for (let a = 0; a < 3; a++) if ((mask >> a) & 1) s += AXES[a];
   return s === "" ? "" : `~${s}`;
 }
+
+/**
+ * The nets of a model whose planes with images `both` are unfolded: copy h of the meshed part
+ * is reflected in the both-planes of the set bits of h (bit b ↔ the b-th both-plane in list
+ * order); nets are copy-major, conductor j of copy h at h·k + j, named `name~x`, `name~xy`, ...
+ * `sign[h]` is the working-potential sign of copy h (−1 per plane with `mirrored: "opposite"`).
+ */
+export function mirrorNets(names: string[], planes: SymmetryPlane[]): { names: string[]; masks: number[]; sign: number[] } {
+  const both = planes.filter((p) => p.images === "both");
+  const nets = 1 << both.length;
+  const masks: number[] = [], sign: number[] = [], out: string[] = [];
+  for (let h = 0; h < nets; h++) {
+    let m = 0, s = 1;
+    for (let b = 0; b < both.length; b++) if ((h >> b) & 1) { m |= 1 << AXIS_INDEX[both[b].axis]; if (both[b].mirrored === "opposite") s = -s; }
+    masks.push(m); sign.push(s);
+    for (const n of names) out.push(n + mirrorSuffix(m));
+  }
+  return { names: out, masks, sign };
+}

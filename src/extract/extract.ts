@@ -33,7 +33,7 @@ import { centroidFields } from "./probe.js";
 import type { PanelSet } from "../bem/panels.js";
 import { InputError } from "../io/errors.js";
 import {
-  AXES, hasImages, kernelPlanes, imageSet, symmetryCopies, conductorRanges, checkSides, trianglesInSymmetryPlanes,
+  AXES, mirrorNets, hasImages, kernelPlanes, imageSet, symmetryCopies, conductorRanges, checkSides, trianglesInSymmetryPlanes,
   edgeInSymmetryPlane, foldVectors, evenCopies, axisIndex, reflectSurface, mirrorSuffix,
   type AxisPlane, type KernelSpec, type ImageSet, type SymmetryPlane,
 } from "../bem/images.js";
@@ -224,7 +224,8 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   // of the set bits of h (bit b ↔ both[b]); solve pattern s makes the planes of its set bits odd.
   const both = planes.filter((p) => p.images === "both");
   const nets = 1 << both.length, K = k * nets;
-  const copyMask = (h: number) => { let m = 0; for (let b = 0; b < both.length; b++) if ((h >> b) & 1) m |= 1 << axisIndex(both[b].axis); return m; };
+  const unfoldedNets = mirrorNets(input.names, planes);
+  const copyMask = (h: number) => unfoldedNets.masks[h];
   const kernelFor = (pattern: number): KernelSpec | undefined => {
     const spec: KernelSpec = {
       groundPlane: opts.groundPlane,
@@ -238,8 +239,7 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   const fixedSpec: KernelSpec = { groundPlane: opts.groundPlane, symmetry: planes.filter((p) => p.images !== "both").map((p) => ({ axis: p.axis, offset: p.offset, images: p.images })) };
   const kernel = hasImages(fixedSpec) ? fixedSpec : undefined;
   const tied = evenCopies(kernel), oddCopies = symmetryCopies(kernel) / tied;
-  const netNames: string[] = [];
-  for (let h = 0; h < nets; h++) for (let j = 0; j < k; j++) netNames.push(input.names[j] + mirrorSuffix(copyMask(h)));
+  const netNames = unfoldedNets.names;
   if (nets > 1) {
     const seen = new Set<string>();
     for (const n of netNames) {
@@ -248,7 +248,7 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
     }
   }
   // Working potential sign of copy h relative to the meshed part.
-  const copySign = (h: number) => { let s = 1; for (let b = 0; b < both.length; b++) if ((h >> b) & 1 && both[b].mirrored === "opposite") s = -s; return s; };
+  const copySign = (h: number) => unfoldedNets.sign[h];
 
   const floating = new Array<boolean>(K).fill(false);
   if (opts.floating) {

@@ -8,13 +8,16 @@ import { InputError } from "./errors.js";
 import { loadMeshFiles } from "./load.js";
 import { loadSceneFile, loadSceneMesh, type Scene } from "./scene.js";
 import { DEFAULT_UNIT, metresPer, type LengthUnit } from "./units.js";
-import type { AxisPlane, Axis, SymmetryPlane } from "../bem/images.js";
+import { mirrorNets, type AxisPlane, type Axis, type SymmetryPlane } from "../bem/images.js";
 import type { SurfaceMesh } from "../mesh/model.js";
 import type { Warning } from "./errors.js";
 
 export interface LoadedScene {
   mesh: SurfaceMesh;
-  /** Working potential of each conductor, volts (first 1 V, rest 0 V when nothing sets them). */
+  /**
+   * Working potential of each conductor, volts (first 1 V, rest 0 V when nothing sets them); one
+   * per net of the unfolded model (bem/images.ts mirrorNets) when `--potential` names a mirror.
+   */
   potentials: Float64Array;
   unit: LengthUnit;
   /** True when no scene or option chose the unit. */
@@ -92,6 +95,7 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
   if (list.length === 0) throw new InputError("no input given: name a scene file (.json) or mesh files");
   const scenes = list.filter((f) => extname(f).toLowerCase() === ".json");
   let out: LoadedScene;
+  const baseOverrides = opts.potentials;
   if (scenes.length > 0) {
     if (list.length > 1) throw new InputError("give either one scene file or mesh files, not both", scenes[0]);
     let scene: Scene = loadSceneFile(list[0], { parameters: opts.parameters });
@@ -105,7 +109,7 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
     const sm = loadSceneMesh(scene, { weldTolerance: opts.weldTolerance });
     const floating = floatingFlags(sm.mesh.names, sm.floating, opts.floating);
     out = {
-      mesh: sm.mesh, potentials: resolvePotentials(sm.mesh.names, sm.potentials, opts.potentials, floating), unit: scene.unit, unitAssumed: false, permittivity: scene.permittivity,
+      mesh: sm.mesh, potentials: resolvePotentials(sm.mesh.names, sm.potentials, baseOverrides, floating), unit: scene.unit, unitAssumed: false, permittivity: scene.permittivity,
       breakdownField: scene.breakdownField, groundPlane: scene.groundPlane, symmetry: scene.symmetry, floating,
       files: sm.files, scene: list[0], warnings: sm.warnings, dropped: sm.dropped, probes: scene.probes, dielectrics: sm.dielectrics, parameters: scene.parameters,
     };
@@ -116,7 +120,7 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
     const given = lm.mesh.names.map(() => undefined);
     const floating = floatingFlags(lm.mesh.names, lm.mesh.names.map(() => false), opts.floating);
     out = {
-      mesh: lm.mesh, potentials: resolvePotentials(lm.mesh.names, given, opts.potentials, floating), unit, unitAssumed: opts.unit === undefined, permittivity: 1,
+      mesh: lm.mesh, potentials: resolvePotentials(lm.mesh.names, given, baseOverrides, floating), unit, unitAssumed: opts.unit === undefined, permittivity: 1,
       symmetry: [], floating, files: lm.files, warnings: lm.warnings, dropped: lm.dropped, probes: [], dielectrics: [], parameters: {},
     };
   }
@@ -128,7 +132,31 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
     if (out.groundPlane && out.groundPlane.axis === p.axis) throw new InputError(`symmetry plane ${p.axis}: parallel to the ground plane, the images would never end; use planes on other axes`);
     axes.add(p.axis);
   }
+  // Names with a mirror suffix (`pad~x`) that no conductor has set the potentials of mirrored conductors (images both).
+  const mirrorOverrides = Object.entries(opts.potentials ?? {}).filter(([n]) => n.includes("~") && !out.mesh.names.includes(n));
+  if (mirrorOverrides.length > 0) out.potentials = mirrorPotentials(out, mirrorOverrides);
   return out;
+}
+
+/**
+ * Working potentials of every net of an unfolded model (images both): the meshed conductors'
+ * potentials, their mirrors' by the planes' `mirrored` rule, then the `--potential name~x=V`
+ * overrides.
+ */
+function mirrorPotentials(out: LoadedScene, overrides: Array<[string, number]>): Float64Array {
+  const names = out.mesh.names, k = names.length;
+  const nets = mirrorNets(names, out.symmetry);
+  if (nets.names.length === k) {
+    throw new InputError(`--potential names "${overrides[0][0]}", a mirrored conductor, but no symmetry plane has images both (e.g. --symmetry x=0:both)`);
+  }
+  const v = Float64Array.from(nets.names, (_, i) => nets.sign[(i / k) | 0] * out.potentials[i % k]);
+  for (const [name, volts] of overrides) {
+    const i = nets.names.indexOf(name);
+    if (i < k) throw new InputError(`--potential names "${name}", which is not a mirrored conductor; they are: ${nets.names.slice(k).join(", ")}`);
+    if (out.floating[i % k]) throw new InputError(`--potential names "${name}", which is floating (its potential is solved for)`);
+    v[i] = volts;
+  }
+  return v;
 }
 
 /** Floating flags from the scene and the names given as floating. */
@@ -153,6 +181,7 @@ function resolvePotentials(names: string[], scene: Array<number | undefined>, ov
   const v = scene.slice();
   for (const [name, volts] of Object.entries(overrides ?? {})) {
     const i = names.indexOf(name);
+    if (i < 0 && name.includes("~")) continue; // a mirrored conductor's: set once the symmetry planes are known
     if (i < 0) throw new InputError(`--potential names "${name}", which is not a conductor; the conductors are: ${names.join(", ")}`);
     if (floating[i]) throw new InputError(`--potential names "${name}", which is floating (its potential is solved for)`);
     v[i] = volts;

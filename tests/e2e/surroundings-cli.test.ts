@@ -41,6 +41,19 @@ describe("symmetry images in scenes and on the command line", () => {
     expect(Math.abs(repOdd.capacitance.maxwell[0][0] / (c11 - c12) - 1)).toBeLessThan(1e-9);
   });
 
+  it("--potential sets a mirrored conductor's working potential by its name~x", () => {
+    const r = run(["extract", "both.json", "--potential", "p~x=3", "--json", "-", "--quiet"]);
+    expect(r.code).toBe(0);
+    const rep = JSON.parse(r.out);
+    expect(rep.conductors.map((c: { potential: number }) => c.potential)).toEqual([1, 3]);
+    const bad = run(["extract", "both.json", "--potential", "p~y=3"]);
+    expect(bad.code).toBe(2);
+    expect(bad.err).toMatch(/--potential names "p~y", which is not a mirrored conductor; they are: p~x/);
+    const none = run(["extract", "both.json", "--symmetry", "x=0:odd", "--potential", "p~x=3"]);
+    expect(none.code).toBe(2);
+    expect(none.err).toMatch(/no symmetry plane has images both/);
+  });
+
   it("the summary names each plane's images", () => {
     const r = run(["extract", "both.json", "--symmetry", "x=0:odd"]);
     expect(r.code).toBe(0);
