@@ -280,7 +280,6 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   if (testing !== "collocation" && testing !== "galerkin") throw new InputError(`interface testing must be collocation or galerkin, got ${String(testing)}`);
   const strengths = bodyStrengths(opts.dielectrics ?? [], breakdownField);
   const hasBodies = (opts.dielectrics?.length ?? 0) > 0;
-  if (hasBodies && both.length > 0) throw new InputError("dielectric bodies cannot be combined with symmetry images \"both\" yet: use even or odd images, or mesh the whole model");
   let bodies: PreparedBody[] | undefined;
   let model: DielectricModel | undefined;
   let totalX: Float64Array | undefined;
@@ -346,17 +345,22 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
       if (level > 0) bodies = bodies.map((b) => ({ ...b, mesh: refineUniform(b.mesh) }));
       model = unfold ? unfold.restrict(dielectricModel(unfold.surface(mesh), bodies, er, opts.groundPlane), mesh.conductor.length)
         : dielectricModel(mesh, bodies, er, opts.groundPlane);
-      const dsol = await solveUnitPotentialsWithInterfaces(model.positions, model.triangles, mesh.conductor, k, model.lambda, testing, {
-        method, solver: opts.solver ?? "auto", tolerance, pool, memoryLimit: opts.memoryLimit, kernel,
-        progress: (phase, f) => opts.progress?.(phase, f, level, nLevels),
-      });
-      const images = kernel ? imageSet(dsol.panels, kernel) : undefined;
-      const xFree = freeCharges(model, dsol.panels, dsol.x, k, images);
-      const qd = conductorCharges(xFree, mesh.conductor, k);
-      for (let i = 0; i < qd.length; i++) qd[i] *= 4 * Math.PI * EPSILON_0 * tied;
-      levels.push({ panels: dsol.panels.n, maxwell: qd, info: dsol.info });
-      totalX = dsol.x; allPanels = dsol.panels;
-      last = { x: xFree, panels: panelSet(mesh.positions, mesh.triangles), info: dsol.info };
+      const perPattern: Float64Array[] = [], xs: Float64Array[] = [];
+      let dsol: UnitSolution | undefined;
+      for (let s = 0; s < nets; s++) {
+        const ks = kernelFor(s);
+        dsol = await solveUnitPotentialsWithInterfaces(model.positions, model.triangles, mesh.conductor, k, model.lambda, testing, {
+          method, solver: opts.solver ?? "auto", tolerance, pool, memoryLimit: opts.memoryLimit, kernel: ks,
+          progress: (phase, f) => opts.progress?.(phase, f, level * nets + s, nLevels * nets),
+        });
+        const xFree = freeCharges(model, dsol.panels, dsol.x, k, ks ? imageSet(dsol.panels, ks) : undefined);
+        const qd = conductorCharges(xFree, mesh.conductor, k);
+        for (let i = 0; i < qd.length; i++) qd[i] *= 4 * Math.PI * EPSILON_0 * tied;
+        perPattern.push(qd); xs.push(dsol.x);
+        if (s === 0) last = { x: xFree, panels: panelSet(mesh.positions, mesh.triangles), info: dsol.info };
+      }
+      levels.push({ panels: dsol!.panels.n, maxwell: nets > 1 ? unfoldMatrix(perPattern, k, nets) : perPattern[0], info: dsol!.info });
+      totalX = xs[0]; allPanels = dsol!.panels; lastPatterns = xs;
       continue;
     }
     const perPattern: Float64Array[] = [], xs: Float64Array[] = [];
@@ -383,8 +387,17 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
     const n = last.panels.n;
     const { offsets } = kernelPlanes(checkKernel!);
     mesh = unfoldedMesh(mesh, nets, copyMask, offsets, netNames);
-    const x = unfoldSolutions(lastPatterns, n, k, nets);
-    last = { x, panels: panelSet(mesh.positions, mesh.triangles), info: last.info };
+    if (model) {
+      // The dielectric model unfolded the same way: conductor panels of every copy first, then
+      // interface panels of every copy; total charges per net from the per-pattern solutions.
+      const u = unfoldedDielectric(model, lastPatterns, k, nets, copyMask, offsets);
+      model = u.model; totalX = u.x; allPanels = panelSet(u.model.positions, u.model.triangles);
+      const x = freeCharges(model, allPanels, totalX, K, kernel ? imageSet(allPanels, kernel) : undefined);
+      last = { x, panels: panelSet(mesh.positions, mesh.triangles), info: last.info };
+    } else {
+      const x = unfoldSolutions(lastPatterns, n, k, nets);
+      last = { x, panels: panelSet(mesh.positions, mesh.triangles), info: last.info };
+    }
     netClosed = netNames.map((_, i) => closed[i % k]);
     netCounts = Uint32Array.from(netNames, (_, i) => counts[i % k]);
   }
@@ -427,10 +440,10 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   if (model && totalX && allPanels) {
     // Every charge radiates in vacuum: fields and forces from the total charges of all panels.
     const allImages = kernel ? imageSet(allPanels, kernel) : undefined;
-    const d = dielectricExcitation(model, allPanels, totalX, k, working, mesh.conductor, k, allImages);
+    const d = dielectricExcitation(model, allPanels, totalX, K, working, mesh.conductor, K, allImages);
     excitation = d.excitation; rawForce = d.force; complete = true;
     const totalCharge = new Float64Array(allPanels.n);
-    totalCharge.set(scaleCopy(xAtWorking(totalX, k, working), 4 * Math.PI * EPSILON_0));
+    totalCharge.set(scaleCopy(xAtWorking(totalX, K, working), 4 * Math.PI * EPSILON_0));
     const forces = dielectricBodyForces(model, allPanels, totalCharge, allImages).map((f) => {
       if (!f || !kernel) return f;
       const g = foldVectors(kernel, Float64Array.from(f));
@@ -768,5 +781,50 @@ function unfolding(spec: KernelSpec, sides: Int8Array) {
         openPanel: m.openPanel.slice(0, nc), bodies,
       };
     },
+  };
+}
+
+/**
+ * The restricted dielectric model of the meshed part unfolded into the copies of the
+ * both-planes (copy h reflected in copyMask(h)): conductor panels of copies 0, 1, ... first
+ * (conductor j of copy h is net h·k + j, as unfoldedMesh), then interface panels copy by copy;
+ * and the total charges of every net, (N·nets)×(k·nets), from the per-pattern N×k solutions by
+ * the character sum of unfoldSolutions.
+ */
+function unfoldedDielectric(m: DielectricModel, xs: Float64Array[], k: number, nets: number, copyMask: (h: number) => number,
+  offsets: Float64Array): { model: DielectricModel; x: Float64Array } {
+  const nc = m.nc, ni = m.ni, N = nc + ni, nv = m.positions.length / 3;
+  const positions = new Float64Array(3 * nv * nets), triangles = new Uint32Array(3 * N * nets);
+  const rowOf = (h: number, p: number) => (p < nc ? h * nc + p : nets * nc + h * ni + (p - nc));
+  for (let h = 0; h < nets; h++) {
+    const r = reflectSurface(m.positions, m.triangles, copyMask(h), offsets);
+    positions.set(r.positions, 3 * nv * h);
+    for (let p = 0; p < N; p++) for (let c = 0; c < 3; c++) triangles[3 * rowOf(h, p) + c] = r.triangles[3 * p + c] + nv * h;
+  }
+  const K = k * nets, x = new Float64Array(N * nets * K);
+  for (let h = 0; h < nets; h++) for (let g = 0; g < nets; g++) {
+    const mm = h ^ g;
+    for (let s = 0; s < nets; s++) {
+      const w = (popcount(s & mm) & 1 ? -1 : 1) / nets, xs_ = xs[s];
+      for (let p = 0; p < N; p++) {
+        const row = rowOf(h, p) * K + g * k;
+        for (let j = 0; j < k; j++) x[row + j] += w * xs_[p * k + j];
+      }
+    }
+  }
+  const rep = <T extends Float64Array | Uint32Array | Int32Array | Uint8Array>(a: T): T => {
+    const out = new (a.constructor as { new(n: number): T })(a.length * nets);
+    for (let h = 0; h < nets; h++) out.set(a, a.length * h);
+    return out;
+  };
+  return {
+    model: {
+      ...m, positions, triangles, nc: nc * nets, ni: ni * nets,
+      interfaceBody: rep(m.interfaceBody), epsMinus: rep(m.epsMinus), epsPlus: rep(m.epsPlus), lambda: rep(m.lambda),
+      conductorPlus: rep(m.conductorPlus), conductorMinus: rep(m.conductorMinus),
+      conductorMediumPlus: rep(m.conductorMediumPlus), conductorMediumMinus: rep(m.conductorMediumMinus), openPanel: rep(m.openPanel),
+      bodies: m.bodies.map((b) => ({ ...b, panels: b.panels * nets })),
+    },
+    x,
   };
 }

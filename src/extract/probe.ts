@@ -4,7 +4,7 @@
  * legal: the panel integrals are in closed form there; on a panel the normal field is
  * the principal value (the mean of the two sides).
  */
-import { hasImages, imageSet, type AxisPlane } from "../bem/images.js";
+import { hasImages, imageSet, type AxisPlane, type SymmetryPlane } from "../bem/images.js";
 import { EPSILON_0 } from "./constants.js";
 import { potentialAt, fieldAt } from "../bem/field.js";
 import type { PanelSet } from "../bem/panels.js";
@@ -48,12 +48,13 @@ export function centroidFields(panels: PanelSet, charge: Float64Array, permittiv
 
 /** Probe an extraction's field at the working potentials (finest mesh). */
 export function probeExtraction(r: { panels: PanelSet; excitation: { charge: Float64Array }; permittivity: number; images?: ImageSet;
-  dielectric?: { panels: PanelSet; totalCharge: Float64Array }; groundPlane?: AxisPlane; symmetry?: AxisPlane[] },
+  dielectric?: { panels: PanelSet; totalCharge: Float64Array }; groundPlane?: AxisPlane; symmetry?: SymmetryPlane[] },
   points: Float64Array): ProbeResult {
   // With dielectric bodies every charge, free and bound, radiates in vacuum; the images then
   // mirror all panels, not only the conductors'.
   if (r.dielectric) {
-    const spec = { groundPlane: r.groundPlane, symmetry: r.symmetry ?? [] };
+    // Planes with images "both" are unfolded into explicit copies (extract.ts): no images for them.
+    const spec = { groundPlane: r.groundPlane, symmetry: (r.symmetry ?? []).filter((p) => p.images !== "both") };
     const images = hasImages(spec) ? imageSet(r.dielectric.panels, spec) : undefined;
     return probeField(r.dielectric.panels, r.dielectric.totalCharge, EPSILON_0, points, images);
   }

@@ -49,7 +49,7 @@ describe("dielectric bodies with symmetry planes", () => {
     for (let i = 0; i < 3; i++) expect(rel(ph.potential[i], pf.potential[i])).toBeLessThan(1e-5);
   });
 
-  it("a coated sphere pair split by an odd plane equals C11 − C12 of the whole pair; by an even plane the tied pair", async () => {
+  it("a coated sphere pair split by an odd plane equals C11 − C12 of the whole pair, an even plane the tied pair, images both the whole matrix", async () => {
     const ball = { ...sphereMesh({ radius: 1, level: 2, center: [2, 0, 0] }), names: ["p"] };
     const shell = sphereMesh({ radius: 1.4, level: 1, center: [2, 0, 0] });
     const mirror = (m: SurfaceMesh, name: string) => { const r = reflectSurface(m.positions, m.triangles, 1, [0, 0, 0]); return { ...m, ...r, names: [name] }; };
@@ -61,12 +61,20 @@ describe("dielectric bodies with symmetry planes", () => {
     const [c11, c12] = [full.maxwell[0], full.maxwell[1]];
     expect(rel(odd.maxwell[0], c11 - c12)).toBeLessThan(1e-6);
     expect(rel(even.maxwell[0], 2 * (c11 + c12))).toBeLessThan(1e-6);
+    // Images both: the whole pair's matrix and its working point (p at 1 V, its mirror at 0 V) from the half.
+    const both = await extract(ball, { ...opts, potentials: [1, 0], symmetry: [{ axis: "x", offset: 0, images: "both" }], dielectrics: [{ name: "coat p", mesh: shell, permittivity: 3 }] });
+    expect(both.names).toEqual(["p", "p~x"]);
+    for (let i = 0; i < 4; i++) expect(rel(both.maxwell[i], full.maxwell[i])).toBeLessThan(1e-6);
+    expect(rel(both.conductors[1].peakField, full.conductors[1].peakField)).toBeLessThan(1e-5);
+    expect(rel(both.conductors[1].force[0], full.conductors[1].force[0])).toBeLessThan(1e-5);
+    expect(both.conductors[1].medium).toBe("coat p");
+    const pts = Float64Array.from([0, 0.5, 0.2, -3.6, 0.1, 0, 2, 1.7, 0.3]);
+    const pf = probeExtraction(full, pts), pb = probeExtraction(both, pts);
+    for (let i = 0; i < 3; i++) expect(rel(pb.potential[i], pf.potential[i])).toBeLessThan(1e-5);
   });
 
   it("a body reaching across a symmetry plane is refused by name", async () => {
     await expect(extract(part(cube, (x) => x > 0), { symmetry: [{ axis: "x", offset: 0 }],
       dielectrics: [{ name: "coat", mesh: coat, permittivity: 4 }] })).rejects.toThrow(/dielectric coat reaches across the symmetry plane x = 0 m/);
-    await expect(extract(part(cube, (x) => x > 0), { symmetry: [{ axis: "x", offset: 0, images: "both" }],
-      dielectrics: [{ name: "coat", mesh: part(coat, (x) => x > 0), permittivity: 4 }] })).rejects.toThrow(/images "both" yet/);
   });
 });
