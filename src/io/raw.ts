@@ -28,6 +28,10 @@ export class GrowF64 {
     d.set(this.data.subarray(0, this.length));
     this.data = d;
   }
+  push1(x: number): void {
+    if (this.length >= this.data.length) this.reserve(1);
+    this.data[this.length++] = x;
+  }
   push3(x: number, y: number, z: number): void {
     if (this.length + 3 > this.data.length) this.reserve(3);
     const d = this.data, n = this.length;
