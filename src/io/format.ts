@@ -25,12 +25,13 @@ export function sniffFormat(bytes: Uint8Array): MeshFormat | undefined {
     if (84 + 50 * n === bytes.length) return "stl";
   }
   const head = new TextDecoder("utf-8").decode(bytes.subarray(0, 4096)).replace(/^\uFEFF/, "");
+  // Binary MSH opens with the same text line as ASCII MSH.
+  if (head.trimStart().startsWith("$MeshFormat")) return "msh";
   for (let i = 0; i < Math.min(head.length, 4096); i++) {
     const ch = head.charCodeAt(i);
     if (ch === 0 || ch === 0xfffd) return undefined;
   }
   const start = head.trimStart();
-  if (start.startsWith("$MeshFormat")) return "msh";
   if (/^solid(\s|$)/i.test(start) && /\bfacet\b|\bendsolid\b/i.test(head)) return "stl";
   // OBJ: every statement line starts with a known keyword, and at least one is a vertex.
   const lines = head.split("\n").slice(0, -1).map((l) => l.trim()).filter((l) => l !== "" && !l.startsWith("#"));

@@ -3,9 +3,18 @@ import fc from "fast-check";
 import { parseMeshBytes } from "../../src/io/load.js";
 import { InputError } from "../../src/io/errors.js";
 import { fixtureBytes } from "./helpers.js";
+import { msh41Binary, msh22Binary, msh40Ascii } from "./msh-fixtures.js";
 
 // Corrupted real files must either load or fail with an InputError: never any other exception.
 const files = ["tetra_solid_header.stl", "two_solids.stl", "tetra_quirks.stl", "parts.obj", "groups.obj", "two_tets_41.msh", "two_tets_22.msh", "two_tets_41_nophys.msh"];
+// Binary MSH written byte by byte (tests/io/msh-fixtures.ts): a fault in the binary data must name its byte.
+const built: Record<string, () => Uint8Array> = {
+  "bin41_le8.msh": () => msh41Binary(true, 8),
+  "bin41_be4.msh": () => msh41Binary(false, 4),
+  "bin22_le.msh": () => msh22Binary(true),
+  "bin22_be.msh": () => msh22Binary(false),
+  "ascii40.msh": () => new TextEncoder().encode(msh40Ascii()),
+};
 
 const corruption = fc.oneof(
   fc.record({ kind: fc.constant("truncate" as const), at: fc.double({ min: 0, max: 1, noNaN: true }) }),
@@ -36,9 +45,9 @@ function corrupt(bytes: Uint8Array, c: fc.Infer<typeof corruption>): Uint8Array 
 }
 
 describe("fuzzed corruptions of real files", () => {
-  for (const f of files) {
+  for (const f of [...files, ...Object.keys(built)]) {
     it(`${f}: loads or throws InputError`, () => {
-      const original = fixtureBytes(f);
+      const original = built[f]?.() ?? fixtureBytes(f);
       let failures = 0, loads = 0;
       fc.assert(fc.property(corruption, (c) => {
         const bytes = corrupt(original, c);
@@ -53,6 +62,7 @@ describe("fuzzed corruptions of real files", () => {
           failures++;
           expect(e.file).toBe(f);
           expect(e.message).not.toMatch(/\n/);
+          if (f.startsWith("bin") && e.fault !== "empty file") expect(e.place ?? "").toMatch(/^(byte|line) \d+$/);
         }
       }), { numRuns: 300, seed: 20261201 });
       expect(loads + failures).toBe(300);
