@@ -33,6 +33,7 @@ export function readObj(text: string | Uint8Array, file: string): RawMesh {
   let curObject = 0, curGroup = 0, sawObject = false;
   const warnings: string[] = [];
   const unknown = new Map<string, { line: number; count: number }>();
+  let degenerateFaces = 0, firstDegenerate = 0;
   let pending = -1, pendingLine = 0; // highest forward (positive) reference and where it was made
 
   let lineNo = 0, i = 0;
@@ -83,7 +84,22 @@ export function readObj(text: string | Uint8Array, file: string): RawMesh {
           idx = count + r;
           if (idx < 0) throw new InputError(`relative vertex index ${r} reaches before the first vertex (${count} defined so far)`, file, place);
         } else throw new InputError("vertex index 0 (OBJ indices start at 1)", file, place);
+        // A vertex repeated next to itself (or closing the loop) adds no corner: some exporters
+        // write triangles as quads with one vertex twice.
+        const from = polyStart.data[polyStart.length - 1];
+        if (polyIndex.length > from && polyIndex.data[polyIndex.length - 1] === idx) continue;
         polyIndex.push(idx);
+      }
+      {
+        const from = polyStart.data[polyStart.length - 1];
+        while (polyIndex.length - from > 1 && polyIndex.data[polyIndex.length - 1] === polyIndex.data[from]) polyIndex.length--;
+        if (polyIndex.length - from < 3) {
+          // Fewer than 3 distinct corners: no area; counted as degenerate.
+          polyIndex.length = from;
+          degenerateFaces++;
+          if (firstDegenerate === 0) firstDegenerate = firstLine;
+          continue;
+        }
       }
       polyStart.push(polyIndex.length);
       polyLine.push(firstLine);
@@ -106,6 +122,7 @@ export function readObj(text: string | Uint8Array, file: string): RawMesh {
       if (u) u.count++; else unknown.set(key, { line: firstLine, count: 1 });
     }
   }
+  if (degenerateFaces > 0) warnings.push(`line ${firstDegenerate}: ${degenerateFaces} face(s) with fewer than 3 distinct vertices dropped`);
   for (const [k, u] of unknown) {
     warnings.push(`line ${u.line}: unknown statement "${k.slice(0, 40)}" ignored${u.count > 1 ? ` (${u.count} times)` : ""}`);
   }

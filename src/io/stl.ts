@@ -30,6 +30,7 @@ export function readStl(bytes: Uint8Array, file: string): RawMesh {
     if (HEADER + 4 + RECORD * n === size) return readStlBinary(bytes, file, n);
   }
   if (looksLikeAsciiStl(bytes)) return readStlAscii(bytes, file);
+  if (isBlank(bytes)) throw new InputError("empty file (only white space)", file);
   if (size < HEADER + 4) {
     throw new InputError(`not an STL file: ${size} bytes is too short for binary STL (84 at least) and the text does not start with "solid"`, file);
   }
@@ -39,7 +40,13 @@ export function readStl(bytes: Uint8Array, file: string): RawMesh {
     const whole = Math.floor((size - HEADER - 4) / RECORD);
     throw new InputError(`binary STL header claims ${n} triangles (${need} bytes) but the file holds ${size} bytes, room for ${whole}: file truncated or not an STL`, file, atByte(HEADER));
   }
-  throw new InputError(`binary STL header claims ${n} triangles (${need} bytes) but the file has ${size - need} bytes more (${size}): not a well-formed binary STL, and not ASCII STL either`, file, atByte(HEADER));
+  if (n === 0) {
+    throw new InputError(`binary STL header counts 0 triangles but the file holds ${size} bytes (room for ${Math.floor((size - HEADER - 4) / RECORD)}): not a well-formed binary STL, and not ASCII STL either`, file, atByte(HEADER));
+  }
+  // Some exporters pad the file or append their own data after the counted triangles.
+  const r = readStlBinary(bytes, file, n);
+  r.warnings.push(`byte ${need}: ${size - need} bytes after the ${n} triangles the header counts (${need} bytes of ${size}) ignored`);
+  return r;
 }
 
 /** ASCII when the first word is `solid` and the opening bytes are text (binary float data is not). */
@@ -82,6 +89,12 @@ function readStlBinary(bytes: Uint8Array, file: string, n: number): RawMesh {
 const kw = (s: string): Uint8Array => new TextEncoder().encode(s);
 const SOLID = kw("solid"), ENDSOLID = kw("endsolid"), FACET = kw("facet"), NORMAL = kw("normal");
 const OUTER = kw("outer"), LOOP = kw("loop"), VERTEX = kw("vertex"), ENDLOOP = kw("endloop"), ENDFACET = kw("endfacet");
+
+function isBlank(bytes: Uint8Array): boolean {
+  let p = bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf ? 3 : 0;
+  while (p < bytes.length && isSpace(bytes[p])) p++;
+  return p === bytes.length;
+}
 
 function isSpace(b: number): boolean { return b === 32 || (b >= 9 && b <= 13); }
 
