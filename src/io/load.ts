@@ -14,7 +14,7 @@ import { type SurfaceMesh, concatMeshes, uniqueNames } from "../mesh/model.js";
 import { weldVertices, dropDegenerate, DEFAULT_WELD_TOLERANCE } from "../mesh/weld.js";
 import { connectedComponents } from "../mesh/components.js";
 import { InputError, type Warning } from "./errors.js";
-import { metresPer, type LengthUnit } from "./units.js";
+import { metresPer, UNIT_CHOICES, type LengthUnit } from "./units.js";
 import { detectFormat } from "./format.js";
 import { readStl } from "./stl.js";
 import { readObj } from "./obj.js";
@@ -87,7 +87,7 @@ function readMeshBytes(path: string): Uint8Array {
 export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOptions): LoadedMesh {
   if (opts.split && opts.merge) throw new InputError("split and merge cannot both be set for one file", file);
   const scale = metresPer(opts.unit);
-  if (!(scale > 0)) throw new InputError(`unknown length unit "${String(opts.unit)}" (use m, cm, mm, um, in or mil)`, file);
+  if (!(scale > 0)) throw new InputError(`unknown length unit "${String(opts.unit)}" (use ${UNIT_CHOICES})`, file);
   if (opts.groups !== undefined && opts.groups.length === 0) throw new InputError("the list of groups to keep is empty", file);
   if (bytes.length === 0) throw new InputError("empty file", file);
   const format = detectFormat(file, bytes);

@@ -20,15 +20,28 @@ export const METRES_PER_UNIT: Readonly<Record<LengthUnit, number>> = {
   mil: 25.4e-6,
 };
 
-const ALIASES: Record<string, LengthUnit> = {
-  m: "m", cm: "cm", mm: "mm", um: "um", "µm": "um", "μm": "um", micron: "um", in: "in", inch: "in", mil: "mil", thou: "mil",
+/** Spellings accepted for each unit, compared after trimming and lower-casing. */
+const SPELLINGS: Readonly<Record<LengthUnit, readonly string[]>> = {
+  m: ["m", "meter", "meters", "metre", "metres"],
+  cm: ["cm", "centimeter", "centimeters", "centimetre", "centimetres"],
+  mm: ["mm", "millimeter", "millimeters", "millimetre", "millimetres"],
+  // U+00B5 MICRO SIGN and U+03BC GREEK SMALL LETTER MU both appear in the wild.
+  um: ["um", "\u00b5m", "\u03bcm", "micron", "microns", "micrometer", "micrometers", "micrometre", "micrometres"],
+  in: ["in", "inch", "inches"],
+  mil: ["mil", "mils", "thou"],
 };
 
-/** Parse a unit name; throws InputError listing the accepted names. */
+const ALIASES = new Map<string, LengthUnit>();
+for (const [u, names] of Object.entries(SPELLINGS) as Array<[LengthUnit, readonly string[]]>) for (const n of names) ALIASES.set(n, u);
+
+/** The accepted set, for messages: "m, cm, mm, um (µm, micron), in (inch), mil (thou)". */
+export const UNIT_CHOICES = "m, cm, mm, um (µm, micron), in (inch), mil (thou); full names such as millimetre(s) or millimeter(s) also";
+
+/** Parse a unit name, case-insensitively; throws InputError listing the accepted names. */
 export function parseUnit(text: string, where?: string): LengthUnit {
-  const u = ALIASES[text.trim().toLowerCase()];
+  const u = typeof text === "string" ? ALIASES.get(text.trim().toLowerCase()) : undefined;
   if (u === undefined) {
-    throw new InputError(`unknown length unit "${text}" (use m, cm, mm, um, in or mil)`, where);
+    throw new InputError(`unknown length unit "${String(text).slice(0, 40)}" (use ${UNIT_CHOICES})`, where);
   }
   return u;
 }
