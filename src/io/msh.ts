@@ -438,8 +438,7 @@ function readMshBinary(bytes: Uint8Array, start: number, file: string, v: Versio
     textLine();
   };
 
-  // The int 1 tells the byte order.
-  while (p < n && bytes[p] !== 10 && (bytes[p] === 32 || bytes[p] === 13 || bytes[p] === 9)) p++;
+  // The int 1 tells the byte order; it starts right after the format line's newline.
   need(4, "the byte-order int after the format line");
   const one = p;
   if (dv.getInt32(p, true) === 1) little = true;
