@@ -412,11 +412,13 @@ function readMshBinary(bytes: Uint8Array, start: number, file: string, v: Versio
     if (c * minBytes > n - p) fail(`${what} ${c} is more than the file can hold (${n - p} bytes left)`, at);
     return c;
   };
-  const textLine = (): string => {
+  const utf8 = new TextDecoder("utf-8"), latin1 = new TextDecoder("latin1");
+  /** The next non-blank text line; names are UTF-8, section heads and counts ASCII. */
+  const textLine = (names = false): string => {
     while (p < n && (bytes[p] === 10 || bytes[p] === 13 || bytes[p] === 32 || bytes[p] === 9)) p++;
     let q = p;
     while (q < n && bytes[q] !== 10) q++;
-    const s = new TextDecoder("latin1").decode(bytes.subarray(p, q)).trim();
+    const s = (names ? utf8 : latin1).decode(bytes.subarray(p, q)).trim();
     p = Math.min(n, q + 1);
     return s;
   };
@@ -462,7 +464,7 @@ function readMshBinary(bytes: Uint8Array, start: number, file: string, v: Versio
       if (!Number.isSafeInteger(c) || c < 0) fail("number of physical names is not a count", countAt);
       for (let k = 0; k < c; k++) {
         const lineAt = p;
-        const s = textLine();
+        const s = textLine(true);
         const m = /^(\d+)\s+([+-]?\d+)\s+"(.*)"$/.exec(s);
         if (m === null) fail(s.startsWith("$") ? `$PhysicalNames ends early: fewer names than its count announces` : `physical name entry "${printable(s)}" is not: dimension tag "name"`, lineAt);
         const [, dim, tag, name] = m as RegExpExecArray;

@@ -155,3 +155,20 @@ describe("format sniffing", () => {
     expect(detectFormat("mesh", msh22Binary(false))).toBe("msh");
   });
 });
+
+describe("binary MSH details", () => {
+  it("UTF-8 physical names and parametric nodes (u, v after x, y, z on a surface)", () => {
+    const w = new ByteWriter(true, 8);
+    w.text('$MeshFormat\n4.1 1 8\n').i32(1).text('\n$EndMeshFormat\n$PhysicalNames\n1\n2 7 "électrode <HV> 1"\n$EndPhysicalNames\n');
+    w.text("$Entities\n").sz(0).sz(0).sz(1).sz(0).i32(4);
+    for (const b of [0, 0, 0, 1, 1, 0]) w.f64(b);
+    w.sz(1).i32(7).sz(0).text("\n$EndEntities\n$Nodes\n").sz(1).sz(3).sz(1).sz(3);
+    w.i32(2).i32(4).i32(1).sz(3).sz(1).sz(2).sz(3);
+    for (const [x, y] of [[0, 0], [1, 0], [0, 1]]) w.f64(x).f64(y).f64(0).f64(99).f64(-99);
+    w.text("\n$EndNodes\n$NodeData\n").i32(12345).text("\n$EndNodeData\n$Elements\n").sz(1).sz(1).sz(1).sz(1);
+    w.i32(2).i32(4).i32(2).sz(1).sz(1).sz(1).sz(2).sz(3).text("\n$EndElements\n");
+    const m = readMsh(w.bytes(), "p.msh");
+    expect(m.groupNames).toEqual(["électrode <HV> 1"]);
+    expect(Array.from(m.positions)).toEqual([0, 0, 0, 1, 0, 0, 0, 1, 0]);
+  });
+});
