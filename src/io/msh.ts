@@ -80,7 +80,8 @@ type Version = "4.1" | "4.0" | "2";
  * nodes are known), and counts of what was skipped. `place` is a line or a byte offset.
  */
 class MeshBuilder {
-  readonly nodeIndex = new Map<number, number>();
+  readonly nodeTags = new GrowF64(1024);
+  readonly nodePlace = new GrowU32(1024);
   readonly pos = new GrowF64(3 * 1024);
   /** Node tags, 3 per triangle then 4 per quadrangle (doubles: tags may exceed 2^32). */
   readonly triTags = new GrowF64(3 * 1024);
@@ -104,9 +105,34 @@ class MeshBuilder {
   fail(fault: string, at: number): never { throw new InputError(fault, this.file, this.place(at)); }
 
   addNode(tag: number, x: number, y: number, z: number, at: number): void {
-    if (this.nodeIndex.has(tag)) this.fail(`node tag ${tag} defined twice`, at);
-    this.nodeIndex.set(tag, this.pos.length / 3);
+    this.nodeTags.push1(tag);
+    this.nodePlace.push(at);
     this.pos.push3(x, y, z);
+  }
+
+  /**
+   * Index of each node tag: a typed array over the tag range when tags are dense (Gmsh numbers
+   * nodes 1..n), else a Map. A tag defined twice is an error at its second definition.
+   */
+  private nodeLookup(): (tag: number) => number {
+    const tags = this.nodeTags.data, n = this.nodeTags.length;
+    let lo = Infinity, hi = -Infinity;
+    for (let k = 0; k < n; k++) { const t = tags[k]; if (t < lo) lo = t; if (t > hi) hi = t; }
+    if (n > 0 && hi - lo < 2 * n + 1024) {
+      const index = new Int32Array(hi - lo + 1).fill(-1);
+      for (let k = 0; k < n; k++) {
+        const j = tags[k] - lo;
+        if (index[j] >= 0) this.fail(`node tag ${tags[k]} defined twice`, this.nodePlace.data[k]);
+        index[j] = k;
+      }
+      return (tag) => (tag >= lo && tag <= hi ? index[tag - lo] : -1);
+    }
+    const map = new Map<number, number>();
+    for (let k = 0; k < n; k++) {
+      if (map.has(tags[k])) this.fail(`node tag ${tags[k]} defined twice`, this.nodePlace.data[k]);
+      map.set(tags[k], k);
+    }
+    return (tag) => map.get(tag) ?? -1;
   }
 
   /** Whether elements of this type are kept (surface elements); counts the others. */
@@ -132,16 +158,17 @@ class MeshBuilder {
   }
 
   finish(): RawMesh {
-    const { warnings, nodeIndex } = this;
+    const { warnings } = this;
+    const lookup = this.nodeLookup();
     const positions = this.pos.toArray();
     const nTri = this.triPlace.length, nQuad = this.quadPlace.length;
     const nt = nTri + 2 * nQuad;
     const triangles = new Uint32Array(3 * nt);
     const phys = new Uint32Array(nt), entity = new Uint32Array(nt);
     const node = (tag: number, at: number): number => {
-      const v = nodeIndex.get(tag);
-      if (v === undefined) this.fail(`element refers to node ${tag}, which $Nodes does not define`, at);
-      return v as number;
+      const v = lookup(tag);
+      if (v < 0) this.fail(`element refers to node ${tag}, which $Nodes does not define`, at);
+      return v;
     };
     for (let t = 0; t < nTri; t++) {
       const at = this.triPlace.data[t];
@@ -625,9 +652,15 @@ function conductorGroups(
   let anyPhysical = false;
   for (let t = 0; t < nt; t++) if (phys[t] !== 0) { anyPhysical = true; break; }
   if (anyPhysical) {
+    // Elements come in runs of one entity: remember the last key's group.
+    let lastP = -1, lastE = -1, lastG = 0;
     for (let t = 0; t < nt; t++) {
-      const p = phys[t];
-      group[t] = p !== 0 ? use(`p${p}`, physicalNames.get(p) ?? `physical_${p}`) : use(`e${entity[t]}`, `surface_${entity[t]}`);
+      const p = phys[t], e = p !== 0 ? 0 : entity[t];
+      if (p !== lastP || e !== lastE) {
+        lastG = p !== 0 ? use(`p${p}`, physicalNames.get(p) ?? `physical_${p}`) : use(`e${e}`, `surface_${e}`);
+        lastP = p; lastE = e;
+      }
+      group[t] = lastG;
     }
     return { group, groupNames };
   }
@@ -638,8 +671,9 @@ function conductorGroups(
   for (let k = 0; k < parent.length; k++) parent[k] = k;
   const find = (a: number): number => { while (parent[a] !== a) { parent[a] = parent[parent[a]]; a = parent[a]; } return a; };
   const nodeOwner = new Int32Array(nodeCount).fill(-1);
+  let runTag = -1, e = 0;
   for (let t = 0; t < nt; t++) {
-    const e = entities.get(entity[t]) as number;
+    if (entity[t] !== runTag) { runTag = entity[t]; e = entities.get(runTag) as number; }
     for (let j = 0; j < 3; j++) {
       const v = triangles[3 * t + j];
       if (nodeOwner[v] < 0) nodeOwner[v] = e;
@@ -652,10 +686,14 @@ function conductorGroups(
     const l = lowest.get(r);
     if (l === undefined || tag < l) lowest.set(r, tag);
   }
+  let lastE = -1, lastG = 0;
   for (let t = 0; t < nt; t++) {
-    const r = find(entities.get(entity[t]) as number);
-    const tag = lowest.get(r) as number;
-    group[t] = use(`b${tag}`, `surface_${tag}`);
+    if (entity[t] !== lastE) {
+      lastE = entity[t];
+      const tag = lowest.get(find(entities.get(lastE) as number)) as number;
+      lastG = use(`b${tag}`, `surface_${tag}`);
+    }
+    group[t] = lastG;
   }
   if (entities.size > groupNames.length) {
     warnings.push(`no physical groups: ${entities.size} surface entities joined into ${groupNames.length} conductor(s) by shared nodes; define physical surfaces in Gmsh to choose conductors and their names`);
