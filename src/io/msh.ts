@@ -40,7 +40,7 @@ export function readMsh(input: string | Uint8Array, file: string): RawMesh {
   let p = 0;
   if (bytes[0] === 0xef && bytes[1] === 0xbb && bytes[2] === 0xbf) p = 3;
   // Header lines are text in every variant: find "$MeshFormat" and the format line.
-  let line = 1;
+  let line = 0;
   const readLine = (): string | undefined => {
     while (p < bytes.length) {
       let q = p;
@@ -52,7 +52,6 @@ export function readMsh(input: string | Uint8Array, file: string): RawMesh {
     }
     return undefined;
   };
-  line = 0;
   const first = readLine();
   if (first === undefined) throw new InputError("empty file", file);
   if (first !== "$MeshFormat") throw new InputError(`not a Gmsh MSH file: expected "$MeshFormat", found "${first.slice(0, 40)}"`, file, atLine(line));
@@ -408,6 +407,11 @@ function readMshBinary(bytes: Uint8Array, start: number, file: string, v: Versio
   const need = (k: number, what: string): void => {
     if (p + k > n) fail(`file ends inside ${section} while reading ${what} (${k} bytes needed, ${n - p} left)`, p);
   };
+  /** Move to byte `to`, which must lie inside the file. */
+  const seek = (to: number, what: string): void => {
+    if (to > n) fail(`file ends inside ${section} while reading ${what} (${to - p} bytes needed, ${n - p} left)`, p);
+    p = to;
+  };
   const i32 = (what: string): number => { need(4, what); const x = dv.getInt32(p, little); p += 4; return x; };
   /** An unsigned count or tag: size_t (4 or 8 bytes) in 4.1, int in 2.x. */
   const uint = (what: string): number => {
@@ -502,18 +506,17 @@ function readMshBinary(bytes: Uint8Array, start: number, file: string, v: Versio
       const np = count("number of points", 4 + 24 + (dataSize)), nc = count("number of curves", 4 + 48 + 2 * dataSize);
       const ns = count("number of surfaces", 4 + 48 + 2 * dataSize), nv = count("number of volumes", 4 + 48 + 2 * dataSize);
       for (let k = 0; k < np; k++) {
-        i32("point tag"); p += 24; need(0, "point coordinates");
+        i32("point tag"); seek(p + 24, "point coordinates");
         const m = count("number of physical tags", 4);
-        p += 4 * m;
+        seek(p + 4 * m, "physical tags");
       }
       const entity = (kind: string, keep: boolean): void => {
         const tag = i32(`${kind} tag`);
-        need(48, `${kind} bounding box`); p += 48;
+        seek(p + 48, `${kind} bounding box`);
         const m = count("number of physical tags", 4);
-        if (m > 0) { const ph = i32("physical tag"); if (keep) b.entityPhysical.set(tag, Math.abs(ph)); p += 4 * (m - 1); }
+        if (m > 0) { const ph = i32("physical tag"); if (keep) b.entityPhysical.set(tag, Math.abs(ph)); seek(p + 4 * (m - 1), "physical tags"); }
         const nb = count("number of bounding entities", 4);
-        p += 4 * nb;
-        need(0, "bounding entity tags");
+        seek(p + 4 * nb, "bounding entity tags");
       };
       for (let k = 0; k < nc; k++) entity("curve", false);
       for (let k = 0; k < ns; k++) entity("surface", true);
@@ -542,8 +545,8 @@ function readMshBinary(bytes: Uint8Array, start: number, file: string, v: Versio
             const x = f64("x coordinate"), y = f64("y coordinate"), z = f64("z coordinate");
             b.addNode(tag, x, y, z, at);
           }
-          p = coordsAt + m * 8 * (3 + extra);
-          need(0, "node coordinates");
+          p = coordsAt;
+          seek(coordsAt + m * 8 * (3 + extra), "node coordinates");
           seen += m;
         }
         if (seen !== total) b.warnings.push(`byte ${p}: $Nodes announces ${total} nodes, blocks hold ${seen}`);
@@ -575,7 +578,7 @@ function readMshBinary(bytes: Uint8Array, start: number, file: string, v: Versio
           if (nodes === undefined) fail(`element type ${type} unknown: its size is not known, so the rest cannot be read`, typeAt);
           const m = count("number of elements in block", dataSize * (1 + nodes));
           const phys = dim === 2 ? b.entityPhysical.get(entity) ?? 0 : 0;
-          if (!b.keeps(type, m)) { p += m * dataSize * (1 + nodes); continue; }
+          if (!b.keeps(type, m)) { seek(p + m * dataSize * (1 + nodes), "elements"); continue; }
           for (let j = 0; j < m; j++) {
             const at = p;
             uint("element tag");
