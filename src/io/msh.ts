@@ -22,7 +22,7 @@
  * tag (`surface_7`), with a warning.
  */
 import { InputError, atByte, atLine } from "./errors.js";
-import { GrowF64, GrowU32, type RawMesh } from "./raw.js";
+import { GrowF64, GrowU32, decodeText, decodeName, type RawMesh } from "./raw.js";
 
 /** Nodes per element type (Gmsh manual, "MSH file format", element types 1–31, 92, 93). */
 const NODES_PER_TYPE: Readonly<Record<number, number>> = {
@@ -209,8 +209,7 @@ function dist2(p: Float64Array, a: number, b: number): number {
 interface Cursor { lines: string[]; i: number }
 
 function readMshAscii(bytes: Uint8Array, file: string): RawMesh {
-  let src = new TextDecoder("utf-8").decode(bytes);
-  if (src.charCodeAt(0) === 0xfeff) src = src.slice(1);
+  const src = decodeText(bytes);
   const c: Cursor = { lines: src.split("\n"), i: 0 };
   const b = new MeshBuilder(file, atLine);
 
@@ -443,13 +442,13 @@ function readMshBinary(bytes: Uint8Array, start: number, file: string, v: Versio
     if (c * minBytes > n - p) fail(`${what} ${c} is more than the file can hold (${n - p} bytes left)`, at);
     return c;
   };
-  const utf8 = new TextDecoder("utf-8"), latin1 = new TextDecoder("latin1");
+  const latin1 = new TextDecoder("latin1");
   /** The next non-blank text line; names are UTF-8, section heads and counts ASCII. */
   const textLine = (names = false): string => {
     while (p < n && (bytes[p] === 10 || bytes[p] === 13 || bytes[p] === 32 || bytes[p] === 9)) p++;
     let q = p;
     while (q < n && bytes[q] !== 10) q++;
-    const s = (names ? utf8 : latin1).decode(bytes.subarray(p, q)).trim();
+    const s = (names ? decodeName(bytes.subarray(p, q)) : latin1.decode(bytes.subarray(p, q))).trim();
     p = Math.min(n, q + 1);
     return s;
   };

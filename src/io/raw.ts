@@ -66,10 +66,29 @@ export class GrowU32 {
   toArray(): Uint32Array { return this.data.slice(0, this.length); }
 }
 
-/** Decode file bytes as UTF-8 text (invalid sequences become U+FFFD; a byte-order mark is dropped). */
+/**
+ * Decode file bytes as text: UTF-8 when they are valid UTF-8, else Windows-1252 (what older
+ * CAD tools on Windows write names in; every byte decodes). A byte-order mark is dropped.
+ */
 export function decodeText(input: string | Uint8Array): string {
-  const s = typeof input === "string" ? input : new TextDecoder("utf-8").decode(input);
+  const s = typeof input === "string" ? input : decodeName(input);
   return s.charCodeAt(0) === 0xfeff ? s.slice(1) : s;
+}
+
+const UTF8 = new TextDecoder("utf-8", { fatal: true }), LATIN1 = new TextDecoder("latin1");
+/**
+ * Windows-1252 bytes 0x80–0x9F (the WHATWG Encoding Standard's index-windows-1252; Node's
+ * "windows-1252" decoder gives ISO-8859-1 there instead).
+ */
+const CP1252_80 = [
+  0x20ac, 0x81, 0x201a, 0x192, 0x201e, 0x2026, 0x2020, 0x2021, 0x2c6, 0x2030, 0x160, 0x2039, 0x152, 0x8d, 0x17d, 0x8f,
+  0x90, 0x2018, 0x2019, 0x201c, 0x201d, 0x2022, 0x2013, 0x2014, 0x2dc, 0x2122, 0x161, 0x203a, 0x153, 0x9d, 0x17e, 0x178,
+];
+/** UTF-8 if valid, else Windows-1252. */
+export function decodeName(bytes: Uint8Array): string {
+  try { return UTF8.decode(bytes); } catch {
+    return LATIN1.decode(bytes).replace(/[\x80-\x9f]/g, (c) => String.fromCharCode(CP1252_80[c.charCodeAt(0) - 0x80]));
+  }
 }
 
 /**

@@ -15,7 +15,7 @@
 import type { SurfaceMesh } from "../mesh/model.js";
 import { InputError, atByte, atLine } from "./errors.js";
 import { METRES_PER_UNIT } from "./units.js";
-import { GrowF64, GrowU32, TextSink, type RawMesh } from "./raw.js";
+import { GrowF64, GrowU32, TextSink, decodeName, type RawMesh } from "./raw.js";
 import { readDecimal, decimalEnd, tokenText } from "./decimal.js";
 
 const HEADER = 80;
@@ -133,7 +133,7 @@ function readStlAscii(bytes: Uint8Array, file: string): RawMesh {
   const restOfLine = (): string => {
     const s = p;
     while (p < end && bytes[p] !== 10 && bytes[p] !== 13) p++;
-    return new TextDecoder("utf-8").decode(bytes.subarray(s, p)).trim();
+    return decodeName(bytes.subarray(s, p)).trim();
   };
   const fail = (what: string): never => {
     const found = p < end ? `found "${tokenText(bytes, p, end)}"` : "found the end of the file";

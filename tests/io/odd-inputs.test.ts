@@ -2,6 +2,7 @@ import { describe, it, expect } from "vitest";
 import { parseMeshBytes } from "../../src/io/load.js";
 import { InputError } from "../../src/io/errors.js";
 import { conductorAreas } from "../../src/mesh/model.js";
+import { readMsh } from "../../src/io/msh.js";
 import { UNIT_TET_AREA } from "./helpers.js";
 
 // Odd but legal files that CAD and mesh tools write; each must load as the plain form would.
@@ -144,5 +145,23 @@ describe("nothing to load", () => {
     const t = "solid flat\nfacet normal 0 0 0\nouter loop\nvertex 0 0 0\nvertex 1 0 0\nvertex 2 0 0\nendloop\nendfacet\nendsolid\n";
     expect(err(() => load(t, "d.stl")).message).toMatch(/^d\.stl: .*no valid triangle left.*degenerate/);
     expect(err(() => load("v 0 0 0\nv 1 1 1\nf 1 2 2\nf 1 1 1\n", "d.obj")).message).toMatch(/^d\.obj: .*no valid triangle left|^d\.obj: .*no triangles/);
+  });
+});
+
+describe("names in Windows-1252", () => {
+  // Bytes that are not valid UTF-8 are read as Windows-1252 (0xC9 = É, 0xB5 = µ, 0x96 = en dash).
+  const latin = (s: string) => Uint8Array.from(s, (c) => ({ "É": 0xc9, "µ": 0xb5, "–": 0x96 } as Record<string, number>)[c] ?? c.charCodeAt(0));
+  it("STL solid names", () => {
+    const t = asciiStl({ name: "Électrode 5µm – A" });
+    expect(load(latin(t), "l.stl").mesh.names).toEqual(["l"]);
+    const two = asciiStl({ name: "Électrode 5µm – A" }) + asciiStl({ name: "B", shift: 5 });
+    expect(load(latin(two), "l.stl").mesh.names).toEqual(["Électrode 5µm – A", "B"]);
+  });
+  it("OBJ object names and MSH physical names", () => {
+    const obj = `o Électrode\n${V.map((v) => `v ${v.join(" ")}`).join("\n")}\n${F.map((f) => `f ${f.map((i) => i + 1).join(" ")}`).join("\n")}\no µ–pad\nv 5 0 0\nv 6 0 0\nv 5 1 0\nv 5 0 1\nf 5 7 6\nf 5 6 8\nf 5 8 7\nf 6 7 8\n`;
+    expect(load(latin(obj), "l.obj").mesh.names).toEqual(["Électrode", "µ–pad"]);
+    const msh = "$MeshFormat\n2.2 0 8\n$EndMeshFormat\n$PhysicalNames\n1\n2 1 \"Électrode\"\n$EndPhysicalNames\n$Nodes\n4\n" + V.map((v, k) => `${k + 1} ${v.join(" ")}`).join("\n")
+      + "\n$EndNodes\n$Elements\n4\n" + F.map((f, k) => `${k + 1} 2 2 1 1 ${f.map((i) => i + 1).join(" ")}`).join("\n") + "\n$EndElements\n";
+    expect(readMsh(latin(msh), "l.msh").groupNames).toEqual(["Électrode"]);
   });
 });
