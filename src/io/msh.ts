@@ -54,6 +54,8 @@ export function readMsh(input: string | Uint8Array, file: string): RawMesh {
   };
   const first = readLine();
   if (first === undefined) throw new InputError("empty file", file);
+  // Gmsh 1.0 files have no $MeshFormat and open with their node list.
+  if (first === "$NOD" || first === "$NOE") throw new InputError(`MSH version 1 ("${first}") not supported; re-export as MSH 4.1 or 2.2 (Gmsh: File > Export)`, file, atLine(line));
   if (first !== "$MeshFormat") throw new InputError(`not a Gmsh MSH file: expected "$MeshFormat", found "${first.slice(0, 40)}"`, file, atLine(line));
   const fmt = readLine();
   if (fmt === undefined || fmt.startsWith("$")) throw new InputError("$MeshFormat holds no version line", file, atLine(line));

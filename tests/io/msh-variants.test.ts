@@ -66,6 +66,9 @@ describe("binary MSH", () => {
     expect(e.place).toBe(`byte ${at}`);
     expect(e.fault).toMatch(/element type 77 unknown/);
   });
+  it("MSH 1 is refused naming its version", () => {
+    expect(err(() => readMsh("$NOD\n3\n1 0 0 0\n", "x.msh")).message).toBe('x.msh: line 1: MSH version 1 ("$NOD") not supported; re-export as MSH 4.1 or 2.2 (Gmsh: File > Export)');
+  });
   it("binary 4.0 is refused with what to do", () => {
     expect(err(() => readMsh("$MeshFormat\n4 1 8\n", "x.msh")).fault).toMatch(/binary MSH 4\.0 not supported; re-export as MSH 4\.1/);
   });
