@@ -71,11 +71,13 @@ describe("weldVertices", () => {
       expect(r.positions.length / 3).toBe((n + 1) * (n + 1));
       return dt;
     };
-    time(100);
-    const small = Math.max(time(100), 1);
-    const big = time(800); // 64x the vertices
-    // Quadratic behaviour would be 4096x; linear about 64x. Allow generous noise on a shared machine.
-    expect(big / small).toBeLessThan(400);
+    // Best of three of each size: a shared machine's pauses only ever add time.
+    const best = (n: number) => Math.min(time(n), time(n), time(n));
+    const small = Math.max(best(100), 1);
+    const big = best(800); // 64x the vertices
+    // Quadratic behaviour would be 4096x; linear about 64x (hash tables growing out of cache
+    // add a few times that). The bound sits between the two, far from both.
+    expect(big / small).toBeLessThan(1000);
   });
 });
 
