@@ -21,7 +21,8 @@ import { orientSurfaces, conductorTopology, buildEdgeTable } from "../mesh/topol
 import { signedVolume } from "../mesh/measure.js";
 import { triangleBoxes, buildBoxTree, forEachItemInBox, type BoxTree } from "../mesh/bvh.js";
 import { panelSet, type PanelSet } from "../bem/panels.js";
-import { sourceFrame, frameDistance, triangleSolidAngle, FRAME_SIZE } from "../bem/triangle-potential.js";
+import { sourceFrame, frameDistance, FRAME_SIZE } from "../bem/triangle-potential.js";
+import { surfaceIndex, windingNumber, type SurfaceIndex } from "../mesh/containment.js";
 import { normalFieldAt } from "../bem/interface.js";
 import { fieldAt } from "../bem/field.js";
 import type { AxisPlane, ImageSet } from "../bem/images.js";
@@ -120,37 +121,19 @@ export function prepareBodies(bodies: DielectricBody[], background: number): Pre
   });
 }
 
-/** Containment queries over the prepared bodies. */
+/** Containment queries over the prepared bodies (mesh/containment.ts: ray crossings through a BVH, ~log N per query). */
 class Media {
-  private readonly v: Float64Array[];
-  private readonly boxes: Float64Array;
+  private readonly index: SurfaceIndex[];
   constructor(private readonly bodies: PreparedBody[], private readonly background: number) {
-    this.v = bodies.map((b) => panelSet(b.mesh.positions, b.mesh.triangles).vertices);
-    this.boxes = new Float64Array(6 * bodies.length);
-    bodies.forEach((b, i) => {
-      const p = b.mesh.positions;
-      const o = 6 * i;
-      this.boxes.fill(Infinity, o, o + 3); this.boxes.fill(-Infinity, o + 3, o + 6);
-      for (let k = 0; k < p.length; k += 3) for (let a = 0; a < 3; a++) {
-        if (p[k + a] < this.boxes[o + a]) this.boxes[o + a] = p[k + a];
-        if (p[k + a] > this.boxes[o + 3 + a]) this.boxes[o + 3 + a] = p[k + a];
-      }
-    });
+    this.index = bodies.map((b) => surfaceIndex(b.mesh.positions, b.mesh.triangles));
   }
 
   /** Index of the innermost body containing the point, −1 for the background. */
   bodyAt(x: number, y: number, z: number): number {
     let best = -1, bestVolume = Infinity;
-    const B = this.boxes;
     for (let b = 0; b < this.bodies.length; b++) {
-      const o = 6 * b;
-      if (x < B[o] || y < B[o + 1] || z < B[o + 2] || x > B[o + 3] || y > B[o + 4] || z > B[o + 5]) continue;
       if (this.bodies[b].volume >= bestVolume) continue;
-      const v = this.v[b], nt = v.length / 9;
-      let w = 0;
-      for (let t = 0; t < nt; t++) w += triangleSolidAngle(v, 9 * t, x, y, z);
-      // Seen from inside, an outward surface shows its −n̂ side: solid angles sum to −4π.
-      if (w < -2 * Math.PI) { best = b; bestVolume = this.bodies[b].volume; }
+      if (windingNumber(this.index[b], x, y, z) >= 1) { best = b; bestVolume = this.bodies[b].volume; }
     }
     return best;
   }
@@ -163,6 +146,42 @@ class Media {
 
   name(b: number): string {
     return b < 0 ? "background" : this.bodies[b].name;
+  }
+}
+
+/**
+ * Kept interface panels hashed by centroid on a grid of cell `tol`, to find a coincident,
+ * parallel panel of another body among the 27 cells around a point (O(1) per query).
+ */
+class PanelGrid {
+  private readonly cells = new Map<string, number[]>();
+  private readonly data: number[] = [];
+  constructor(private readonly tol: number) {}
+
+  private key(i: number, j: number, k: number): string { return `${i},${j},${k}`; }
+
+  add(body: number, cx: number, cy: number, cz: number, nx: number, ny: number, nz: number): void {
+    const a = this.data.length;
+    this.data.push(body, cx, cy, cz, nx, ny, nz);
+    const t = this.tol, k = this.key(Math.floor(cx / t), Math.floor(cy / t), Math.floor(cz / t));
+    const list = this.cells.get(k);
+    if (list) list.push(a); else this.cells.set(k, [a]);
+  }
+
+  /** Whether a panel of another body lies within tol of the centroid and is parallel. */
+  has(body: number, cx: number, cy: number, cz: number, nx: number, ny: number, nz: number): boolean {
+    const t = this.tol, D = this.data, i0 = Math.floor(cx / t), j0 = Math.floor(cy / t), k0 = Math.floor(cz / t);
+    for (let i = i0 - 1; i <= i0 + 1; i++) for (let j = j0 - 1; j <= j0 + 1; j++) for (let k = k0 - 1; k <= k0 + 1; k++) {
+      const list = this.cells.get(this.key(i, j, k));
+      if (!list) continue;
+      for (const a of list) {
+        if (D[a] === body) continue;
+        const dx = D[a + 1] - cx, dy = D[a + 2] - cy, dz = D[a + 3] - cz;
+        if (dx * dx + dy * dy + dz * dz > t * t) continue;
+        if (Math.abs(D[a + 4] * nx + D[a + 5] * ny + D[a + 6] * nz) >= PARALLEL) return true;
+      }
+    }
+    return false;
   }
 }
 
@@ -187,9 +206,9 @@ export function dielectricModel(conductors: SurfaceMesh, bodies: PreparedBody[],
   const topo = conductorTopology(conductors);
   const openPanel = new Uint8Array(nc);
   for (let p = 0; p < nc; p++) openPanel[p] = topo[conductors.conductor[p]].closed ? 0 : 1;
-  const closedVertices: number[] = [];
-  for (let p = 0; p < nc; p++) if (!openPanel[p]) for (let a = 0; a < 9; a++) closedVertices.push(Pc.vertices[9 * p + a]);
-  const closedV = Float64Array.from(closedVertices);
+  const closedTriangles: number[] = [];
+  for (let p = 0; p < nc; p++) if (!openPanel[p]) closedTriangles.push(conductors.triangles[3 * p], conductors.triangles[3 * p + 1], conductors.triangles[3 * p + 2]);
+  const closedIndex = surfaceIndex(conductors.positions, Uint32Array.from(closedTriangles));
   const conductorTree = buildBoxTree(triangleBoxes(conductors.positions, conductors.triangles, new Float64Array(nc).fill(tol)));
 
   const axis = groundPlane ? (groundPlane.axis === "x" ? 0 : groundPlane.axis === "y" ? 1 : 2) : -1;
@@ -208,8 +227,7 @@ export function dielectricModel(conductors: SurfaceMesh, bodies: PreparedBody[],
 
   // Keep-or-drop per interface panel, in body order.
   const kept: { body: number; t: number }[] = [];
-  const keptCentroids: number[] = [];
-  const keptNormals: number[] = [];
+  const twins = new PanelGrid(tol);
   let removed = 0, merged = 0;
   for (const { body, panels: Q } of all) {
     for (let t = 0; t < Q.n; t++) {
@@ -218,20 +236,13 @@ export function dielectricModel(conductors: SurfaceMesh, bodies: PreparedBody[],
       if (Q.areas[t] === 0) { removed++; summaries[body].removed++; continue; }
       if (axis >= 0 && Math.abs(Q.vertices[9 * t + axis] - groundPlane!.offset) <= tol && Math.abs(Q.vertices[9 * t + 3 + axis] - groundPlane!.offset) <= tol
         && Math.abs(Q.vertices[9 * t + 6 + axis] - groundPlane!.offset) <= tol) { removed++; summaries[body].removed++; continue; }
-      if (coveredByConductor(conductorTree, Pc, cx, cy, cz, nx, ny, nz, tol) || insideClosed(closedV, cx, cy, cz)) {
+      if (coveredByConductor(conductorTree, Pc, cx, cy, cz, nx, ny, nz, tol) || windingNumber(closedIndex, cx, cy, cz) >= 1) {
         removed++; summaries[body].removed++; continue;
       }
-      let twin = false;
-      for (let a = 0; a < kept.length && !twin; a++) {
-        if (kept[a].body === body) continue;
-        const dx = keptCentroids[3 * a] - cx, dy = keptCentroids[3 * a + 1] - cy, dz = keptCentroids[3 * a + 2] - cz;
-        if (dx * dx + dy * dy + dz * dz > tol * tol) continue;
-        const dot = keptNormals[3 * a] * nx + keptNormals[3 * a + 1] * ny + keptNormals[3 * a + 2] * nz;
-        if (Math.abs(dot) >= PARALLEL) twin = true;
-      }
+      const twin = twins.has(body, cx, cy, cz, nx, ny, nz);
       if (twin) { merged++; summaries[body].merged++; continue; }
       kept.push({ body, t });
-      keptCentroids.push(cx, cy, cz); keptNormals.push(nx, ny, nz);
+      twins.add(body, cx, cy, cz, nx, ny, nz);
     }
   }
 
@@ -301,15 +312,6 @@ function coveredByConductor(tree: BoxTree, P: PanelSet, x: number, y: number, z:
   forEachItemInBox(tree, QUERY, coverVisit);
   coverP = undefined;
   return coverHit;
-}
-
-/** Winding number test against the closed conductors' panels (9 coordinates each). */
-function insideClosed(v: Float64Array, x: number, y: number, z: number): boolean {
-  const nt = v.length / 9;
-  if (nt === 0) return false;
-  let w = 0;
-  for (let t = 0; t < nt; t++) w += triangleSolidAngle(v, 9 * t, x, y, z);
-  return w < -2 * Math.PI;
 }
 
 /**
