@@ -17,7 +17,7 @@ import { galerkinEntry, RHO_FAR, RHO_QUADRUPOLE } from "./galerkin.js";
 import { collocationEntry, COLLOCATION_FAR } from "./collocation.js";
 import { sharedFloat64, sharedPool, type WorkerPool } from "../linalg/pool.js";
 import { hasImages, imageSet, type ImageSet, type KernelSpec } from "./images.js";
-import type { InterfaceTesting } from "./interface.js";
+import { interfaceRowEntry, type InterfaceTesting } from "./interface.js";
 
 export type Discretisation = "galerkin" | "collocation";
 
@@ -304,4 +304,31 @@ export async function assembleWithInterfaces(P: PanelSet, nConductor: number, la
   }
   await pool.map(url, "interfaceRowsTask", args);
   return out;
+}
+
+/**
+ * Entries of the matrix of assembleWithInterfaces for arbitrary index sets (the entry generator
+ * of the compressed solver with dielectric interfaces): out[a·cols.length + b] = M[rows[a], cols[b]].
+ * Rows below nConductor are the conductor rows of `method` (assembleBlock, images included),
+ * the others the interface rows of bem/interface.ts with λ = lambda[row − nConductor]; the
+ * entries equal the dense matrix's.
+ */
+export function assembleInterfaceBlock(P: PanelSet, nConductor: number, lambda: Float64Array, rows: Uint32Array, cols: Uint32Array,
+  out: Float64Array, method: Discretisation, testing: InterfaceTesting, images?: ImageSet): void {
+  const nc = cols.length;
+  if (out.length < rows.length * nc) throw new Error(`assembleInterfaceBlock: output holds ${out.length} entries, need ${rows.length * nc}`);
+  let a = 0;
+  while (a < rows.length) {
+    // Runs of conductor rows go through assembleBlock in one call.
+    if (rows[a] < nConductor) {
+      let e = a + 1;
+      while (e < rows.length && rows[e] < nConductor) e++;
+      assembleBlock(P, rows.subarray(a, e), cols, out.subarray(a * nc, e * nc), method, images);
+      a = e;
+      continue;
+    }
+    const i = rows[a], lam = lambda[i - nConductor], o = a * nc;
+    for (let b = 0; b < nc; b++) out[o + b] = interfaceRowEntry(P, i, cols[b], lam, testing, images);
+    a++;
+  }
 }

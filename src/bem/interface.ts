@@ -310,6 +310,23 @@ export function interfaceRows(P: PanelSet, rows: Uint32Array, lambda: Float64Arr
   }
 }
 
+/**
+ * One entry of an interface row, as interfaceRows writes it (the same operations in the same
+ * order, so blocks of the compressed solver equal the dense matrix): panel i with contrast λ.
+ */
+export function interfaceRowEntry(P: PanelSet, i: number, j: number, lambda: number, testing: InterfaceTesting, images?: ImageSet): number {
+  const A = P.areas, scale = Math.sqrt(A[i]) / (2 * Math.PI), sl = scale * lambda;
+  let x: number;
+  if (testing === "galerkin") x = sl * normalFieldGalerkinEntry(P, i, j);
+  else {
+    const c = P.centroids, nm = P.normals;
+    x = j === i ? 0 : sl * normalFieldAt(P, j, c[3 * i], c[3 * i + 1], c[3 * i + 2], nm[3 * i], nm[3 * i + 1], nm[3 * i + 2]);
+  }
+  if (images !== undefined) x += sl * normalFieldImageEntry(images, i, j, testing);
+  if (j === i) x += scale * 2 * Math.PI / A[i];
+  return x;
+}
+
 /** Worker task: interfaceRows over [a0, a1); returns the row count. */
 export function interfaceRowsTask(P: PanelSet, rows: Uint32Array, lambda: Float64Array, a0: number, a1: number, out: Float64Array,
   testing: InterfaceTesting, images?: ImageSet): number {
