@@ -319,9 +319,11 @@ function coveredByConductor(tree: BoxTree, P: PanelSet, x: number, y: number, z:
  * N×k row-major over all panels; only the first nc rows are returned, same scaling). Closed
  * panels: ε_out/ε0 times the total. Open sheets with different media on their faces: each face's
  * total charge is σ/2 ± ε0 E_pv·n̂ (excitation.ts), so free = (ε+ + ε−)/2 σ + (ε+ − ε−) ε0 E_pv·n̂,
- * with E_pv·n̂ from all panels (bem/interface.ts).
+ * with E_pv·n̂ from all panels (bem/interface.ts), or from `normalField` (nc×k, Σ_q K_pq x_q at the
+ * panels openFieldPanels flags; the compressed solver computes it, solve.ts) when given.
  */
-export function freeCharges(model: DielectricModel, P: PanelSet, x: Float64Array, k: number, images?: ImageSet): Float64Array {
+export function freeCharges(model: DielectricModel, P: PanelSet, x: Float64Array, k: number, images?: ImageSet,
+  normalField?: Float64Array): Float64Array {
   const nc = model.nc, N = P.n;
   const out = new Float64Array(nc * k);
   const en = new Float64Array(k);
@@ -329,6 +331,11 @@ export function freeCharges(model: DielectricModel, P: PanelSet, x: Float64Array
     const ep = model.conductorPlus[p], em = model.conductorMinus[p];
     if (!model.openPanel[p] || ep === em) {
       for (let j = 0; j < k; j++) out[p * k + j] = ep * x[p * k + j];
+      continue;
+    }
+    if (normalField !== undefined) {
+      const a4 = P.areas[p] / (4 * Math.PI);
+      for (let j = 0; j < k; j++) out[p * k + j] = 0.5 * (ep + em) * x[p * k + j] + (ep - em) * a4 * normalField[p * k + j];
       continue;
     }
     en.fill(0);
@@ -352,6 +359,13 @@ export function freeCharges(model: DielectricModel, P: PanelSet, x: Float64Array
   return out;
 }
 
+/** Conductor panels whose free charge needs E_pv·n̂: open sheets with different media on their faces (1; nc flags). */
+export function openFieldPanels(model: DielectricModel): Uint8Array {
+  const f = new Uint8Array(model.nc);
+  for (let p = 0; p < model.nc; p++) f[p] = model.openPanel[p] && model.conductorPlus[p] !== model.conductorMinus[p] ? 1 : 0;
+  return f;
+}
+
 export interface DielectricExcitation {
   excitation: PanelExcitation;
   /** Net force per conductor, 3 each; newtons. */
@@ -368,7 +382,7 @@ export interface DielectricExcitation {
  * the dielectric bodies themselves are not included).
  */
 export function dielectricExcitation(model: DielectricModel, P: PanelSet, x: Float64Array, k: number, potentials: ArrayLike<number>,
-  conductorOf: Uint32Array, nConductors: number, images?: ImageSet): DielectricExcitation {
+  conductorOf: Uint32Array, nConductors: number, images?: ImageSet, normalField?: Float64Array): DielectricExcitation {
   const nc = model.nc, N = P.n;
   const fourPiEps0 = 4 * Math.PI * EPSILON_0;
   const total = new Float64Array(N);
@@ -388,9 +402,16 @@ export function dielectricExcitation(model: DielectricModel, P: PanelSet, x: Flo
       const E = st / EPSILON_0;
       f = Math.abs(E); sf = ep * st; fn = 0.5 * ep * EPSILON_0 * E * E;
     } else {
-      point[0] = P.centroids[3 * p]; point[1] = P.centroids[3 * p + 1]; point[2] = P.centroids[3 * p + 2];
-      fieldAt(P, total, point, e, images);
-      const En = (e[0] * nx + e[1] * ny + e[2] * nz) / fourPiEps0;
+      let En: number;
+      if (normalField !== undefined && ep !== em) {
+        // Σ_q K_pq total_q/(4πε0) = Σ_j V_j Σ_q K_pq x_qj.
+        En = 0;
+        for (let j = 0; j < k; j++) En += normalField[p * k + j] * potentials[j];
+      } else {
+        point[0] = P.centroids[3 * p]; point[1] = P.centroids[3 * p + 1]; point[2] = P.centroids[3 * p + 2];
+        fieldAt(P, total, point, e, images);
+        En = (e[0] * nx + e[1] * ny + e[2] * nz) / fourPiEps0;
+      }
       const Ep = En + st / (2 * EPSILON_0), Em = En - st / (2 * EPSILON_0);
       f = Math.max(Math.abs(Ep), Math.abs(Em));
       sf = EPSILON_0 * (ep * Ep - em * Em);

@@ -31,7 +31,7 @@ import {
   edgeInSymmetryPlane, foldVectors, type AxisPlane, type KernelSpec, type ImageSet,
 } from "../bem/images.js";
 import { eliminateFloating, withFloatingPotentials } from "./floating.js";
-import { prepareBodies, dielectricModel, freeCharges, dielectricExcitation, type DielectricBody, type BodySummary, type DielectricModel } from "./dielectric.js";
+import { prepareBodies, dielectricModel, freeCharges, dielectricExcitation, openFieldPanels, type DielectricBody, type BodySummary, type DielectricModel } from "./dielectric.js";
 import { solveUnitPotentialsWithInterfaces } from "./solve.js";
 import { panelSet } from "../bem/panels.js";
 import type { InterfaceTesting } from "../bem/interface.js";
@@ -217,6 +217,7 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   let model: DielectricModel | undefined;
   let totalX: Float64Array | undefined;
   let allPanels: PanelSet | undefined;
+  let openNormalField: Float64Array | undefined;
 
   let removedInSymmetryPlane = 0;
   if (kernel) {
@@ -269,9 +270,10 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
       const dsol = await solveUnitPotentialsWithInterfaces(model.positions, model.triangles, mesh.conductor, k, model.lambda, testing, {
         method, solver: opts.solver ?? "auto", tolerance, pool, memoryLimit: opts.memoryLimit, kernel,
         progress: (phase, f) => opts.progress?.(phase, f, level, nLevels),
-      });
+      }, openFieldPanels(model));
       const images = kernel ? imageSet(dsol.panels, kernel) : undefined;
-      const xFree = freeCharges(model, dsol.panels, dsol.x, k, images);
+      const xFree = freeCharges(model, dsol.panels, dsol.x, k, images, dsol.normalField);
+      openNormalField = dsol.normalField;
       const qd = conductorCharges(xFree, mesh.conductor, k);
       for (let i = 0; i < qd.length; i++) qd[i] *= 4 * Math.PI * EPSILON_0 * copies;
       levels.push({ panels: dsol.panels.n, maxwell: qd, info: dsol.info });
@@ -329,7 +331,7 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   if (model && totalX && allPanels) {
     // Every charge radiates in vacuum: fields and forces from the total charges of all panels.
     const allImages = kernel ? imageSet(allPanels, kernel) : undefined;
-    const d = dielectricExcitation(model, allPanels, totalX, k, working, mesh.conductor, k, allImages);
+    const d = dielectricExcitation(model, allPanels, totalX, k, working, mesh.conductor, k, allImages, openNormalField);
     excitation = d.excitation; rawForce = d.force; complete = true;
     const totalCharge = new Float64Array(allPanels.n);
     totalCharge.set(scaleCopy(xAtWorking(totalX, k, working), 4 * Math.PI * EPSILON_0));

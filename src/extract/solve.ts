@@ -7,6 +7,7 @@
  */
 import { panelSetShared, type PanelSet } from "../bem/panels.js";
 import { assembleDense, assembleWithInterfaces, preparedImages, type Discretisation } from "../bem/assembly.js";
+import type { ImageSet } from "../bem/images.js";
 import type { InterfaceTesting } from "../bem/interface.js";
 import type { KernelSpec } from "../bem/images.js";
 import { choleskyFactor, choleskySolve, NotPositiveDefiniteError } from "../linalg/cholesky.js";
@@ -84,6 +85,8 @@ export interface UnitSolution {
   x: Float64Array;
   panels: PanelSet;
   info: SolveInfo;
+  /** Dielectric models, compressed solver: E_pv·n̂ in x units at the requested conductor panels, nc×k (solveUnitPotentialsWithInterfaces). */
+  normalField?: Float64Array;
 }
 
 /**
@@ -311,11 +314,13 @@ export type { HMatrix };
  * interface panels with contrasts `lambda`. Every conductor at 1 V in turn; interface rows have
  * right-hand side 0. The system is not symmetric: LU (direct) or GMRES with block-Jacobi LU
  * (iterative), or the compressed solver (solveCompressedWithInterfaces). x (N×k) holds total
- * charges, Q = 4π ε0 x, on all N panels.
+ * charges, Q = 4π ε0 x, on all N panels. `fieldPanels` (nc flags) asks the compressed solver for
+ * E_pv·n̂ at those conductor panels (UnitSolution.normalField), which a direct sum would cost
+ * O(flagged × N).
  */
 export async function solveUnitPotentialsWithInterfaces(
   positions: Float64Array, triangles: Uint32Array, conductorOf: Uint32Array, k: number, lambda: Float64Array,
-  testing: InterfaceTesting, opts: SolveOptions,
+  testing: InterfaceTesting, opts: SolveOptions, fieldPanels?: Uint8Array,
 ): Promise<UnitSolution> {
   const nc = conductorOf.length, N = triangles.length / 3;
   if (N - nc !== lambda.length) throw new Error(`solveUnitPotentialsWithInterfaces: ${N} panels, ${nc} conductor panels, ${lambda.length} contrasts`);
@@ -335,7 +340,7 @@ export async function solveUnitPotentialsWithInterfaces(
   } else if (opts.solver === "direct" || opts.solver === "iterative" || opts.solver === "compressed") {
     solver = opts.solver; choice = "requested";
   } else throw new RangeError(`unknown solver ${String(opts.solver)}`);
-  if (solver === "compressed") return solveCompressedWithInterfaces(positions, triangles, conductorOf, k, lambda, testing, opts, choice);
+  if (solver === "compressed") return solveCompressedWithInterfaces(positions, triangles, conductorOf, k, lambda, testing, opts, choice, fieldPanels);
   assertDenseFits(N, k, opts.memoryLimit);
   const progress = opts.progress ?? (() => {});
   const panels = panelSetShared(positions, triangles);
@@ -385,7 +390,7 @@ export const INTERFACE_COMPRESSED_CROSSOVER = 6000;
  * blocks taken from the hierarchical matrix.
  */
 async function solveCompressedWithInterfaces(positions: Float64Array, triangles: Uint32Array, conductorOf: Uint32Array, k: number,
-  lambda: Float64Array, testing: InterfaceTesting, opts: SolveOptions, choice: string): Promise<UnitSolution> {
+  lambda: Float64Array, testing: InterfaceTesting, opts: SolveOptions, choice: string, fieldPanels?: Uint8Array): Promise<UnitSolution> {
   const nc = conductorOf.length, N = triangles.length / 3;
   const leafSize = opts.leafSize ?? 32, eta = opts.eta ?? 2;
   const estimate = compressedBytes(N, k, leafSize);
