@@ -442,10 +442,40 @@ async function solveCompressedWithInterfaces(positions: Float64Array, triangles:
     info.residual = Math.max(...res.residuals);
     info.krylovTolerance = tol;
     info.solveSeconds = (performance.now() - t2) / 1e3;
-    info.peakResidentBytes = peakResidentBytes();
     progress("solve", 1);
-    return { x: res.X, panels, info };
+    const normalField = fieldPanels && fieldPanels.some((f) => f !== 0)
+      ? await openSheetNormalField(panels, nc, fieldPanels, res.X, k, images, hTol, leafSize, eta, opts)
+      : undefined;
+    info.peakResidentBytes = peakResidentBytes();
+    return { x: res.X, panels, info, normalField };
   } finally {
     await H.release();
+  }
+}
+
+/**
+ * E_pv·n̂ (in the units of x) at the flagged conductor panels, nc×k: a second, non-symmetric
+ * hierarchical matrix over all panels whose rows are the collocated normal field at the flagged
+ * panels (bem/assembly.ts normalFieldBlock; other rows 0), applied to x. The sum it replaces
+ * costs flagged × N kernel evaluations on one thread.
+ */
+async function openSheetNormalField(panels: PanelSet, nc: number, fieldPanels: Uint8Array, X: Float64Array, k: number,
+  images: ImageSet | undefined, hTol: number, leafSize: number, eta: number, opts: SolveOptions): Promise<Float64Array> {
+  const N = panels.n, progress = opts.progress ?? (() => {});
+  const flag = new Uint8Array(new SharedArrayBuffer(N));
+  flag.set(fieldPanels.subarray(0, nc));
+  const url = new URL(import.meta.url.endsWith(".ts") ? "../bem/assembly.ts" : "../bem/assembly.js", import.meta.url).href;
+  progress("fields", 0);
+  const F = await buildHMatrix(panels.centroids, { source: { module: url, name: "normalFieldBlock", before: [panels, flag], after: [images] } }, {
+    tolerance: hTol, leafSize, eta, symmetric: false, pad: panels.radii, pool: opts.pool,
+    progress: (_phase, f) => progress("fields", f),
+  });
+  try {
+    const Y = new Float64Array(N * k);
+    await F.apply(X, Y, k);
+    progress("fields", 1);
+    return Y.slice(0, nc * k);
+  } finally {
+    await F.release();
   }
 }
