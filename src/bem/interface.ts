@@ -113,9 +113,10 @@ export function normalFieldEntry(P: PanelSet, i: number, j: number): number {
  *                          the graded reference moves 1e-6 from 4⁴ to 4⁵ pieces), icosphere 1.9e-6
  *   ρ < NF_SPLIT1 (1.5)    the same on 4 pieces                               ≤ 7.6e-7
  *   ρ < NF_RULE (3)        the degree-6 rule on T_j (12 solid angles)          ≤ 3.9e-6
- *   ρ < NF_TAYLOR (10)     degree-4 rule on both panels, point field (36)      ≤ 5.7e-6
+ *   ρ < NF_DOUBLE3 (7)     degree-4 rule on both panels, point field (36)      ≤ 5.7e-6
+ *   ρ < NF_TAYLOR (10)     degree-3 rule on both panels (16)                   ≤ 8.0e-6
  *   ρ ≥ NF_TAYLOR          Taylor expansion about both centroids, third order  ≤ 4.8e-6
- * So entries with ρ ≥ NF_SPLIT2 are good to 6e-6 of the kernel's size; the touching pairs
+ * So entries with ρ ≥ NF_SPLIT2 are good to 1e-5 of the kernel's size; the touching pairs
  * are the accuracy limit, as for the single layer (galerkin.ts).
  */
 export function normalFieldGalerkinEntry(P: PanelSet, i: number, j: number, images?: { S: PanelSet; j: number }): number {
@@ -127,6 +128,7 @@ export function normalFieldGalerkinEntry(P: PanelSet, i: number, j: number, imag
   const rs = P.radii[i] + S.radii[js];
   const d2 = dx * dx + dy * dy + dz * dz, rs2 = rs * rs;
   if (d2 >= NF_TAYLOR * NF_TAYLOR * rs2) return taylorGalerkin(P, i, S, js, dx, dy, dz, nx, ny, nz);
+  if (d2 >= NF_DOUBLE3 * NF_DOUBLE3 * rs2) return doubleRule(P, i, S, js, nx, ny, nz, DOUBLE_RULE_FAR);
   if (d2 >= NF_RULE * NF_RULE * rs2) return doubleRule(P, i, S, js, nx, ny, nz, DOUBLE_RULE);
   if (coplanar(P, i, S, js)) return 0;
   const depth = d2 >= NF_SPLIT1 * NF_SPLIT1 * rs2 ? 0 : d2 >= NF_SPLIT2 * NF_SPLIT2 * rs2 ? 1 : 2;
@@ -137,11 +139,13 @@ export function normalFieldGalerkinEntry(P: PanelSet, i: number, j: number, imag
 export const NF_SPLIT2 = 1.2;
 export const NF_SPLIT1 = 1.5;
 export const NF_RULE = 3;
+export const NF_DOUBLE3 = 7;
 export const NF_TAYLOR = 10;
 const SOLID_RULE = dunavantRule(6);
 /** Extra levels of graded splitting next to T_i in the nearest rung. */
 export const NF_GRADE = 3;
 const DOUBLE_RULE = dunavantRule(4);
+const DOUBLE_RULE_FAR = dunavantRule(3);
 /** Vertices within this fraction of r_i of T_i's plane count as on it. */
 const COPLANAR = 1e-10;
 
@@ -215,24 +219,32 @@ function nearPanel(v: Float64Array, o: number, x: number, y: number, z: number, 
 /** Mean over x ∈ T_i and y ∈ T_j of (x − y)·n̂/|x − y|³ by the rule R on both panels. */
 export function doubleRule(P: PanelSet, i: number, S: PanelSet, j: number, nx: number, ny: number, nz: number, R: TriangleRule): number {
   const v = P.vertices, w = S.vertices, o = 9 * i, q = 9 * j;
-  const L1 = R.l1, L2 = R.l2, L3 = R.l3, W = R.w;
+  const L1 = R.l1, L2 = R.l2, L3 = R.l3, W = R.w, m = R.n, Y = SOURCE_POINTS;
+  // Source points once, as n̂-projections and coordinates: (x − y)·n̂ = x·n̂ − y·n̂.
+  for (let b = 0; b < m; b++) {
+    const yx = L1[b] * w[q] + L2[b] * w[q + 3] + L3[b] * w[q + 6];
+    const yy = L1[b] * w[q + 1] + L2[b] * w[q + 4] + L3[b] * w[q + 7];
+    const yz = L1[b] * w[q + 2] + L2[b] * w[q + 5] + L3[b] * w[q + 8];
+    Y[4 * b] = yx; Y[4 * b + 1] = yy; Y[4 * b + 2] = yz; Y[4 * b + 3] = yx * nx + yy * ny + yz * nz;
+  }
   let s = 0;
-  for (let a = 0; a < R.n; a++) {
+  for (let a = 0; a < m; a++) {
     const xx = L1[a] * v[o] + L2[a] * v[o + 3] + L3[a] * v[o + 6];
     const xy = L1[a] * v[o + 1] + L2[a] * v[o + 4] + L3[a] * v[o + 7];
     const xz = L1[a] * v[o + 2] + L2[a] * v[o + 5] + L3[a] * v[o + 8];
+    const xn = xx * nx + xy * ny + xz * nz;
     let t = 0;
-    for (let b = 0; b < R.n; b++) {
-      const rx = xx - (L1[b] * w[q] + L2[b] * w[q + 3] + L3[b] * w[q + 6]);
-      const ry = xy - (L1[b] * w[q + 1] + L2[b] * w[q + 4] + L3[b] * w[q + 7]);
-      const rz = xz - (L1[b] * w[q + 2] + L2[b] * w[q + 5] + L3[b] * w[q + 8]);
-      const ir = 1 / Math.sqrt(rx * rx + ry * ry + rz * rz);
-      t += W[b] * ir * ir * ir * (rx * nx + ry * ny + rz * nz);
+    for (let b = 0; b < m; b++) {
+      const rx = xx - Y[4 * b], ry = xy - Y[4 * b + 1], rz = xz - Y[4 * b + 2];
+      const r2 = rx * rx + ry * ry + rz * rz;
+      t += W[b] * (xn - Y[4 * b + 3]) / (r2 * Math.sqrt(r2));
     }
     s += W[a] * t;
   }
   return s;
 }
+/** Scratch for doubleRule: 4 numbers per source point (rules of up to 16 points). */
+const SOURCE_POINTS = new Float64Array(64);
 
 /**
  * Taylor expansion of the mean of f(x − y) = (x − y)·n̂/|x − y|³ about the centroids, to third
