@@ -376,9 +376,12 @@ export async function solveUnitPotentialsWithInterfaces(
  * Panels (conductor and interface) from which `auto` takes the compressed solver for models with
  * dielectric interfaces: the dense path pays LU (twice the Cholesky flops) and the costlier
  * interface rows, so the crossover sits below COMPRESSED_CROSSOVER. Measured by
- * tests/bench/dielectric.bench.mjs (pad-on-slab over ground, see DEVELOPERS.md).
+ * tests/bench/dielectric.bench.mjs (four open pads on a slab over ground, load average ~11 on
+ * the shared 2-core machine): 2048 panels dense LU 12.5 s wall / 4.1 s CPU, compressed 12.2 s /
+ * 5.4 s; 4896 panels dense 57.8 s / 20.9 s, compressed 27.0 s / 16.6 s. 4000 lies between the
+ * two measured sizes and is not itself measured.
  */
-export const INTERFACE_COMPRESSED_CROSSOVER = 6000;
+export const INTERFACE_COMPRESSED_CROSSOVER = 4000;
 
 /**
  * The compressed path with dielectric interfaces: the mixed matrix of assembleWithInterfaces as a
