@@ -24,7 +24,8 @@
  * Testing: collocation at the centroid (`normalFieldEntry`) or the mean over the test panel
  * near the source (`normalFieldGalerkinEntry`). Measured on the coated sphere (a = 1, b = 2,
  * εr = 4) against the exact series-capacitor value, relative error of C with 320 / 1280
- * interface panels: collocation +5.0e-2 / +3.3e-2, Galerkin test −1.1e-2 / −2.2e-3. Point
+ * interface panels: collocation +5.0e-2 / +3.3e-2, Galerkin test −1.1e-2 / −2.9e-3 (the earlier
+ * split-outer-rule entries gave −2.2e-3 at 1280). Point
  * matching at the centroid of a flat facet misses the tilt of its neighbours' field across the
  * facet; the Galerkin test converges like h² and is the default (extract.ts).
  */
