@@ -26,11 +26,11 @@ function padsOnSlab(pd, sd) {
   return { mesh: concatMeshes(pads), opts: { dielectrics: [{ name: "FR-4", mesh: slab, permittivity: 4.4 }], groundPlane: { axis: "z", offset: 0 } } };
 }
 
-async function run(label, model, solver) {
+async function run(label, model, solver, extra = {}) {
   const phases = {};
   let last = performance.now();
   const cpu0 = process.cpuUsage(), t0 = performance.now();
-  const r = await extract(model.mesh, { ...model.opts, solver, progress: (p) => { const now = performance.now(); phases[p] = (phases[p] ?? 0) + (now - last) / 1e3; last = now; } });
+  const r = await extract(model.mesh, { ...model.opts, ...extra, solver, progress: (p) => { const now = performance.now(); phases[p] = (phases[p] ?? 0) + (now - last) / 1e3; last = now; } });
   const wall = (performance.now() - t0) / 1e3, c = process.cpuUsage(cpu0), cpu = (c.user + c.system) / 1e6;
   const s = r.solver;
   const ph = Object.entries(phases).map(([k, v]) => `${k} ${v.toFixed(1)} s`).join(", ");
@@ -60,6 +60,9 @@ if (!quick) {
   const r = await run("auto", m, "auto");
   console.log(`            ${r.solver.choice}`);
   console.log(`            C(pad1) ${(r.maxwell[0] * 1e12).toFixed(5)} pF, C(pad1, pad2) ${(r.maxwell[1] * 1e12).toFixed(5)} pF; operator ${mb(r.solver.operatorBytes)}`);
+  console.log("\n3. the same with --tol 1e-3 (block tolerance 1e-4 instead of 1e-5)");
+  const loose = await run("tol 1e-3", m, "auto", { tolerance: 1e-3 });
+  console.log(`            against the default tolerance: max |ΔC| / max |C| = ${agreement(r.maxwell, loose.maxwell).toExponential(2)}`);
 }
 console.log(`\nload average at the end ${load()}`);
 await closeSharedPool();
