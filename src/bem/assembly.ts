@@ -17,7 +17,7 @@ import { galerkinEntry, RHO_FAR, RHO_QUADRUPOLE } from "./galerkin.js";
 import { collocationEntry, COLLOCATION_FAR } from "./collocation.js";
 import { sharedFloat64, sharedPool, type WorkerPool } from "../linalg/pool.js";
 import { hasImages, imageSet, type ImageSet, type KernelSpec } from "./images.js";
-import type { InterfaceTesting } from "./interface.js";
+import { interfaceRowEntry, normalFieldAt, type InterfaceTesting } from "./interface.js";
 
 export type Discretisation = "galerkin" | "collocation";
 
@@ -304,4 +304,58 @@ export async function assembleWithInterfaces(P: PanelSet, nConductor: number, la
   }
   await pool.map(url, "interfaceRowsTask", args);
   return out;
+}
+
+/**
+ * Entries of the matrix of assembleWithInterfaces for arbitrary index sets (the entry generator
+ * of the compressed solver with dielectric interfaces): out[a·cols.length + b] = M[rows[a], cols[b]].
+ * Rows below nConductor are the conductor rows of `method` (assembleBlock, images included),
+ * the others the interface rows of bem/interface.ts with λ = lambda[row − nConductor]; the
+ * entries equal the dense matrix's.
+ */
+export function assembleInterfaceBlock(P: PanelSet, nConductor: number, lambda: Float64Array, rows: Uint32Array, cols: Uint32Array,
+  out: Float64Array, method: Discretisation, testing: InterfaceTesting, images?: ImageSet): void {
+  const nc = cols.length;
+  if (out.length < rows.length * nc) throw new Error(`assembleInterfaceBlock: output holds ${out.length} entries, need ${rows.length * nc}`);
+  let a = 0;
+  while (a < rows.length) {
+    // Runs of conductor rows go through assembleBlock in one call.
+    if (rows[a] < nConductor) {
+      let e = a + 1;
+      while (e < rows.length && rows[e] < nConductor) e++;
+      assembleBlock(P, rows.subarray(a, e), cols, out.subarray(a * nc, e * nc), method, images);
+      a = e;
+      continue;
+    }
+    const i = rows[a], lam = lambda[i - nConductor], o = a * nc;
+    for (let b = 0; b < nc; b++) out[o + b] = interfaceRowEntry(P, i, cols[b], lam, testing, images);
+    a++;
+  }
+}
+
+/**
+ * The principal-value normal field at flagged panels (rows i with flag[i] = 1; other rows 0):
+ * out[a·cols.length + b] = K(rows[a], cols[b]) = −∇I_j(c_i)·n̂_i / A_j by collocation at the
+ * centroid (bem/interface.ts normalFieldAt; 0 for j = i), plus the images' Σ_e s_e K(i, image e
+ * of j). Times the scaled charges x it gives E_pv·n̂ in the units of x: the entry generator of
+ * the open-sheet fields (extract/dielectric.ts freeCharges) for the compressed solver.
+ */
+export function normalFieldBlock(P: PanelSet, flag: Uint8Array, rows: Uint32Array, cols: Uint32Array, out: Float64Array,
+  images?: ImageSet): void {
+  const nc = cols.length, c = P.centroids, nm = P.normals;
+  if (out.length < rows.length * nc) throw new Error(`normalFieldBlock: output holds ${out.length} entries, need ${rows.length * nc}`);
+  for (let a = 0; a < rows.length; a++) {
+    const i = rows[a], o = a * nc;
+    if (!flag[i]) { out.fill(0, o, o + nc); continue; }
+    const px = c[3 * i], py = c[3 * i + 1], pz = c[3 * i + 2], nx = nm[3 * i], ny = nm[3 * i + 1], nz = nm[3 * i + 2];
+    for (let b = 0; b < nc; b++) {
+      const j = cols[b];
+      let x = j === i ? 0 : normalFieldAt(P, j, px, py, pz, nx, ny, nz);
+      if (images !== undefined) {
+        const Q = images.panels, n = images.n;
+        for (let e = 0; e < images.count; e++) x += images.signs[e] * normalFieldAt(Q, n * (e + 1) + j, px, py, pz, nx, ny, nz);
+      }
+      out[o + b] = x;
+    }
+  }
 }

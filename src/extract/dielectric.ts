@@ -21,7 +21,8 @@ import { orientSurfaces, conductorTopology, buildEdgeTable } from "../mesh/topol
 import { signedVolume } from "../mesh/measure.js";
 import { triangleBoxes, buildBoxTree, forEachItemInBox, type BoxTree } from "../mesh/bvh.js";
 import { panelSet, type PanelSet } from "../bem/panels.js";
-import { sourceFrame, frameDistance, triangleSolidAngle, FRAME_SIZE } from "../bem/triangle-potential.js";
+import { sourceFrame, frameDistance, FRAME_SIZE } from "../bem/triangle-potential.js";
+import { surfaceIndex, windingNumber, type SurfaceIndex } from "../mesh/containment.js";
 import { normalFieldAt } from "../bem/interface.js";
 import { fieldAt } from "../bem/field.js";
 import type { AxisPlane, ImageSet } from "../bem/images.js";
@@ -123,37 +124,19 @@ export function prepareBodies(bodies: DielectricBody[], background: number): Pre
   });
 }
 
-/** Containment queries over the prepared bodies. */
+/** Containment queries over the prepared bodies (mesh/containment.ts: ray crossings through a BVH, ~log N per query). */
 class Media {
-  private readonly v: Float64Array[];
-  private readonly boxes: Float64Array;
+  private readonly index: SurfaceIndex[];
   constructor(private readonly bodies: PreparedBody[], private readonly background: number) {
-    this.v = bodies.map((b) => panelSet(b.mesh.positions, b.mesh.triangles).vertices);
-    this.boxes = new Float64Array(6 * bodies.length);
-    bodies.forEach((b, i) => {
-      const p = b.mesh.positions;
-      const o = 6 * i;
-      this.boxes.fill(Infinity, o, o + 3); this.boxes.fill(-Infinity, o + 3, o + 6);
-      for (let k = 0; k < p.length; k += 3) for (let a = 0; a < 3; a++) {
-        if (p[k + a] < this.boxes[o + a]) this.boxes[o + a] = p[k + a];
-        if (p[k + a] > this.boxes[o + 3 + a]) this.boxes[o + 3 + a] = p[k + a];
-      }
-    });
+    this.index = bodies.map((b) => surfaceIndex(b.mesh.positions, b.mesh.triangles));
   }
 
   /** Index of the innermost body containing the point, −1 for the background. */
   bodyAt(x: number, y: number, z: number): number {
     let best = -1, bestVolume = Infinity;
-    const B = this.boxes;
     for (let b = 0; b < this.bodies.length; b++) {
-      const o = 6 * b;
-      if (x < B[o] || y < B[o + 1] || z < B[o + 2] || x > B[o + 3] || y > B[o + 4] || z > B[o + 5]) continue;
       if (this.bodies[b].volume >= bestVolume) continue;
-      const v = this.v[b], nt = v.length / 9;
-      let w = 0;
-      for (let t = 0; t < nt; t++) w += triangleSolidAngle(v, 9 * t, x, y, z);
-      // Seen from inside, an outward surface shows its −n̂ side: solid angles sum to −4π.
-      if (w < -2 * Math.PI) { best = b; bestVolume = this.bodies[b].volume; }
+      if (windingNumber(this.index[b], x, y, z) >= 1) { best = b; bestVolume = this.bodies[b].volume; }
     }
     return best;
   }
@@ -166,6 +149,42 @@ class Media {
 
   name(b: number): string {
     return b < 0 ? "background" : this.bodies[b].name;
+  }
+}
+
+/**
+ * Kept interface panels hashed by centroid on a grid of cell `tol`, to find a coincident,
+ * parallel panel of another body among the 27 cells around a point (O(1) per query).
+ */
+class PanelGrid {
+  private readonly cells = new Map<string, number[]>();
+  private readonly data: number[] = [];
+  constructor(private readonly tol: number) {}
+
+  private key(i: number, j: number, k: number): string { return `${i},${j},${k}`; }
+
+  add(body: number, cx: number, cy: number, cz: number, nx: number, ny: number, nz: number): void {
+    const a = this.data.length;
+    this.data.push(body, cx, cy, cz, nx, ny, nz);
+    const t = this.tol, k = this.key(Math.floor(cx / t), Math.floor(cy / t), Math.floor(cz / t));
+    const list = this.cells.get(k);
+    if (list) list.push(a); else this.cells.set(k, [a]);
+  }
+
+  /** Whether a panel of another body lies within tol of the centroid and is parallel. */
+  has(body: number, cx: number, cy: number, cz: number, nx: number, ny: number, nz: number): boolean {
+    const t = this.tol, D = this.data, i0 = Math.floor(cx / t), j0 = Math.floor(cy / t), k0 = Math.floor(cz / t);
+    for (let i = i0 - 1; i <= i0 + 1; i++) for (let j = j0 - 1; j <= j0 + 1; j++) for (let k = k0 - 1; k <= k0 + 1; k++) {
+      const list = this.cells.get(this.key(i, j, k));
+      if (!list) continue;
+      for (const a of list) {
+        if (D[a] === body) continue;
+        const dx = D[a + 1] - cx, dy = D[a + 2] - cy, dz = D[a + 3] - cz;
+        if (dx * dx + dy * dy + dz * dz > t * t) continue;
+        if (Math.abs(D[a + 4] * nx + D[a + 5] * ny + D[a + 6] * nz) >= PARALLEL) return true;
+      }
+    }
+    return false;
   }
 }
 
@@ -190,9 +209,9 @@ export function dielectricModel(conductors: SurfaceMesh, bodies: PreparedBody[],
   const topo = conductorTopology(conductors);
   const openPanel = new Uint8Array(nc);
   for (let p = 0; p < nc; p++) openPanel[p] = topo[conductors.conductor[p]].closed ? 0 : 1;
-  const closedVertices: number[] = [];
-  for (let p = 0; p < nc; p++) if (!openPanel[p]) for (let a = 0; a < 9; a++) closedVertices.push(Pc.vertices[9 * p + a]);
-  const closedV = Float64Array.from(closedVertices);
+  const closedTriangles: number[] = [];
+  for (let p = 0; p < nc; p++) if (!openPanel[p]) closedTriangles.push(conductors.triangles[3 * p], conductors.triangles[3 * p + 1], conductors.triangles[3 * p + 2]);
+  const closedIndex = surfaceIndex(conductors.positions, Uint32Array.from(closedTriangles));
   const conductorTree = buildBoxTree(triangleBoxes(conductors.positions, conductors.triangles, new Float64Array(nc).fill(tol)));
 
   const axis = groundPlane ? (groundPlane.axis === "x" ? 0 : groundPlane.axis === "y" ? 1 : 2) : -1;
@@ -211,8 +230,7 @@ export function dielectricModel(conductors: SurfaceMesh, bodies: PreparedBody[],
 
   // Keep-or-drop per interface panel, in body order.
   const kept: { body: number; t: number }[] = [];
-  const keptCentroids: number[] = [];
-  const keptNormals: number[] = [];
+  const twins = new PanelGrid(tol);
   let removed = 0, merged = 0;
   for (const { body, panels: Q } of all) {
     for (let t = 0; t < Q.n; t++) {
@@ -221,20 +239,13 @@ export function dielectricModel(conductors: SurfaceMesh, bodies: PreparedBody[],
       if (Q.areas[t] === 0) { removed++; summaries[body].removed++; continue; }
       if (axis >= 0 && Math.abs(Q.vertices[9 * t + axis] - groundPlane!.offset) <= tol && Math.abs(Q.vertices[9 * t + 3 + axis] - groundPlane!.offset) <= tol
         && Math.abs(Q.vertices[9 * t + 6 + axis] - groundPlane!.offset) <= tol) { removed++; summaries[body].removed++; continue; }
-      if (coveredByConductor(conductorTree, Pc, cx, cy, cz, nx, ny, nz, tol) || insideClosed(closedV, cx, cy, cz)) {
+      if (coveredByConductor(conductorTree, Pc, cx, cy, cz, nx, ny, nz, tol) || windingNumber(closedIndex, cx, cy, cz) >= 1) {
         removed++; summaries[body].removed++; continue;
       }
-      let twin = false;
-      for (let a = 0; a < kept.length && !twin; a++) {
-        if (kept[a].body === body) continue;
-        const dx = keptCentroids[3 * a] - cx, dy = keptCentroids[3 * a + 1] - cy, dz = keptCentroids[3 * a + 2] - cz;
-        if (dx * dx + dy * dy + dz * dz > tol * tol) continue;
-        const dot = keptNormals[3 * a] * nx + keptNormals[3 * a + 1] * ny + keptNormals[3 * a + 2] * nz;
-        if (Math.abs(dot) >= PARALLEL) twin = true;
-      }
+      const twin = twins.has(body, cx, cy, cz, nx, ny, nz);
       if (twin) { merged++; summaries[body].merged++; continue; }
       kept.push({ body, t });
-      keptCentroids.push(cx, cy, cz); keptNormals.push(nx, ny, nz);
+      twins.add(body, cx, cy, cz, nx, ny, nz);
     }
   }
 
@@ -311,23 +322,16 @@ function coveredByConductor(tree: BoxTree, P: PanelSet, x: number, y: number, z:
   return coverHit;
 }
 
-/** Winding number test against the closed conductors' panels (9 coordinates each). */
-function insideClosed(v: Float64Array, x: number, y: number, z: number): boolean {
-  const nt = v.length / 9;
-  if (nt === 0) return false;
-  let w = 0;
-  for (let t = 0; t < nt; t++) w += triangleSolidAngle(v, 9 * t, x, y, z);
-  return w < -2 * Math.PI;
-}
-
 /**
  * Free charge per conductor panel from the total-charge solution (scaled unknowns x = q/(4πε0),
  * N×k row-major over all panels; only the first nc rows are returned, same scaling). Closed
  * panels: ε_out/ε0 times the total. Open sheets with different media on their faces: each face's
  * total charge is σ/2 ± ε0 E_pv·n̂ (excitation.ts), so free = (ε+ + ε−)/2 σ + (ε+ − ε−) ε0 E_pv·n̂,
- * with E_pv·n̂ from all panels (bem/interface.ts).
+ * with E_pv·n̂ from all panels (bem/interface.ts), or from `normalField` (nc×k, Σ_q K_pq x_q at the
+ * panels openFieldPanels flags; the compressed solver computes it, solve.ts) when given.
  */
-export function freeCharges(model: DielectricModel, P: PanelSet, x: Float64Array, k: number, images?: ImageSet): Float64Array {
+export function freeCharges(model: DielectricModel, P: PanelSet, x: Float64Array, k: number, images?: ImageSet,
+  normalField?: Float64Array): Float64Array {
   const nc = model.nc, N = P.n;
   const out = new Float64Array(nc * k);
   const en = new Float64Array(k);
@@ -335,6 +339,11 @@ export function freeCharges(model: DielectricModel, P: PanelSet, x: Float64Array
     const ep = model.conductorPlus[p], em = model.conductorMinus[p];
     if (!model.openPanel[p] || ep === em) {
       for (let j = 0; j < k; j++) out[p * k + j] = ep * x[p * k + j];
+      continue;
+    }
+    if (normalField !== undefined) {
+      const a4 = P.areas[p] / (4 * Math.PI);
+      for (let j = 0; j < k; j++) out[p * k + j] = 0.5 * (ep + em) * x[p * k + j] + (ep - em) * a4 * normalField[p * k + j];
       continue;
     }
     en.fill(0);
@@ -358,6 +367,13 @@ export function freeCharges(model: DielectricModel, P: PanelSet, x: Float64Array
   return out;
 }
 
+/** Conductor panels whose free charge needs E_pv·n̂: open sheets with different media on their faces (1; nc flags). */
+export function openFieldPanels(model: DielectricModel): Uint8Array {
+  const f = new Uint8Array(model.nc);
+  for (let p = 0; p < model.nc; p++) f[p] = model.openPanel[p] && model.conductorPlus[p] !== model.conductorMinus[p] ? 1 : 0;
+  return f;
+}
+
 export interface DielectricExcitation {
   excitation: PanelExcitation;
   /** Net force per conductor, 3 each; newtons. */
@@ -374,7 +390,7 @@ export interface DielectricExcitation {
  * the dielectric bodies themselves are not included).
  */
 export function dielectricExcitation(model: DielectricModel, P: PanelSet, x: Float64Array, k: number, potentials: ArrayLike<number>,
-  conductorOf: Uint32Array, nConductors: number, images?: ImageSet): DielectricExcitation {
+  conductorOf: Uint32Array, nConductors: number, images?: ImageSet, normalField?: Float64Array): DielectricExcitation {
   const nc = model.nc, N = P.n;
   const fourPiEps0 = 4 * Math.PI * EPSILON_0;
   const total = new Float64Array(N);
@@ -394,9 +410,16 @@ export function dielectricExcitation(model: DielectricModel, P: PanelSet, x: Flo
       const E = st / EPSILON_0;
       f = Math.abs(E); sf = ep * st; fn = 0.5 * ep * EPSILON_0 * E * E;
     } else {
-      point[0] = P.centroids[3 * p]; point[1] = P.centroids[3 * p + 1]; point[2] = P.centroids[3 * p + 2];
-      fieldAt(P, total, point, e, images);
-      const En = (e[0] * nx + e[1] * ny + e[2] * nz) / fourPiEps0;
+      let En: number;
+      if (normalField !== undefined && ep !== em) {
+        // Σ_q K_pq total_q/(4πε0) = Σ_j V_j Σ_q K_pq x_qj.
+        En = 0;
+        for (let j = 0; j < k; j++) En += normalField[p * k + j] * potentials[j];
+      } else {
+        point[0] = P.centroids[3 * p]; point[1] = P.centroids[3 * p + 1]; point[2] = P.centroids[3 * p + 2];
+        fieldAt(P, total, point, e, images);
+        En = (e[0] * nx + e[1] * ny + e[2] * nz) / fourPiEps0;
+      }
       const Ep = En + st / (2 * EPSILON_0), Em = En - st / (2 * EPSILON_0);
       f = Math.max(Math.abs(Ep), Math.abs(Em));
       sf = EPSILON_0 * (ep * Ep - em * Em);

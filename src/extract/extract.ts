@@ -39,7 +39,8 @@ import {
 } from "../bem/images.js";
 import { eliminateFloating, withFloatingPotentials } from "./floating.js";
 import {
-  prepareBodies, dielectricModel, freeCharges, dielectricExcitation, type DielectricBody, type BodySummary, type DielectricModel, type PreparedBody,
+  prepareBodies, dielectricModel, freeCharges, dielectricExcitation, openFieldPanels,
+  type DielectricBody, type BodySummary, type DielectricModel, type PreparedBody,
 } from "./dielectric.js";
 import { solveUnitPotentialsWithInterfaces } from "./solve.js";
 import { dielectricBodyForces } from "./dielectric-force.js";
@@ -284,6 +285,7 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   let model: DielectricModel | undefined;
   let totalX: Float64Array | undefined;
   let allPanels: PanelSet | undefined;
+  let openNormalField: Float64Array | undefined;
 
   let removedInSymmetryPlane = 0;
   let conductorSides: Int8Array | undefined;
@@ -352,8 +354,8 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
         dsol = await solveUnitPotentialsWithInterfaces(model.positions, model.triangles, mesh.conductor, k, model.lambda, testing, {
           method, solver: opts.solver ?? "auto", tolerance, pool, memoryLimit: opts.memoryLimit, kernel: ks,
           progress: (phase, f) => opts.progress?.(phase, f, level * nets + s, nLevels * nets),
-        });
-        const xFree = freeCharges(model, dsol.panels, dsol.x, k, ks ? imageSet(dsol.panels, ks) : undefined);
+        }, openFieldPanels(model));
+        const xFree = freeCharges(model, dsol.panels, dsol.x, k, ks ? imageSet(dsol.panels, ks) : undefined, dsol.normalField);
         const qd = conductorCharges(xFree, mesh.conductor, k);
         for (let i = 0; i < qd.length; i++) qd[i] *= 4 * Math.PI * EPSILON_0 * tied;
         perPattern.push(qd); xs.push(dsol.x);
@@ -361,6 +363,9 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
       }
       levels.push({ panels: dsol!.panels.n, maxwell: nets > 1 ? unfoldMatrix(perPattern, k, nets) : perPattern[0], info: dsol!.info });
       totalX = xs[0]; allPanels = dsol!.panels; lastPatterns = xs;
+      // The open sheets' normal field from the solver (compressed path) holds for the one
+      // pattern; unfolded both-plane models sum it directly.
+      openNormalField = nets === 1 ? dsol!.normalField : undefined;
       continue;
     }
     const perPattern: Float64Array[] = [], xs: Float64Array[] = [];
@@ -440,7 +445,7 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
   if (model && totalX && allPanels) {
     // Every charge radiates in vacuum: fields and forces from the total charges of all panels.
     const allImages = kernel ? imageSet(allPanels, kernel) : undefined;
-    const d = dielectricExcitation(model, allPanels, totalX, K, working, mesh.conductor, K, allImages);
+    const d = dielectricExcitation(model, allPanels, totalX, K, working, mesh.conductor, K, allImages, openNormalField);
     excitation = d.excitation; rawForce = d.force; complete = true;
     const totalCharge = new Float64Array(allPanels.n);
     totalCharge.set(scaleCopy(xAtWorking(totalX, K, working), 4 * Math.PI * EPSILON_0));

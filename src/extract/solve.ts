@@ -7,6 +7,7 @@
  */
 import { panelSetShared, type PanelSet } from "../bem/panels.js";
 import { assembleDense, assembleWithInterfaces, preparedImages, type Discretisation } from "../bem/assembly.js";
+import type { ImageSet } from "../bem/images.js";
 import type { InterfaceTesting } from "../bem/interface.js";
 import type { KernelSpec } from "../bem/images.js";
 import { choleskyFactor, choleskySolve, NotPositiveDefiniteError } from "../linalg/cholesky.js";
@@ -84,6 +85,8 @@ export interface UnitSolution {
   x: Float64Array;
   panels: PanelSet;
   info: SolveInfo;
+  /** Dielectric models, compressed solver: E_pv·n̂ in x units at the requested conductor panels, nc×k (solveUnitPotentialsWithInterfaces). */
+  normalField?: Float64Array;
 }
 
 /**
@@ -310,28 +313,34 @@ export type { HMatrix };
  * panels [0, nConductor) are conductor panels (conductorOf gives their conductor), the rest
  * interface panels with contrasts `lambda`. Every conductor at 1 V in turn; interface rows have
  * right-hand side 0. The system is not symmetric: LU (direct) or GMRES with block-Jacobi LU
- * (iterative). x (N×k) holds total charges, Q = 4π ε0 x, on all N panels. The compressed solver
- * does not take interfaces yet: a request for it runs the dense iterative solver, and says so.
+ * (iterative), or the compressed solver (solveCompressedWithInterfaces). x (N×k) holds total
+ * charges, Q = 4π ε0 x, on all N panels. `fieldPanels` (nc flags) asks the compressed solver for
+ * E_pv·n̂ at those conductor panels (UnitSolution.normalField), which a direct sum would cost
+ * O(flagged × N).
  */
 export async function solveUnitPotentialsWithInterfaces(
   positions: Float64Array, triangles: Uint32Array, conductorOf: Uint32Array, k: number, lambda: Float64Array,
-  testing: InterfaceTesting, opts: SolveOptions,
+  testing: InterfaceTesting, opts: SolveOptions, fieldPanels?: Uint8Array,
 ): Promise<UnitSolution> {
   const nc = conductorOf.length, N = triangles.length / 3;
   if (N - nc !== lambda.length) throw new Error(`solveUnitPotentialsWithInterfaces: ${N} panels, ${nc} conductor panels, ${lambda.length} contrasts`);
-  let solver: "direct" | "iterative";
+  let solver: "direct" | "iterative" | "compressed";
   let choice: string;
   if (opts.solver === "auto") {
-    const c = chooseSolver(N, k);
-    // LU costs twice the Cholesky flops the model counts.
-    const lu = chooseSolver(Math.round(N * Math.cbrt(2)), k);
-    solver = lu.solver === "direct" && c.solver === "direct" ? "direct" : "iterative";
-    choice = `auto (dielectric interfaces, non-symmetric): ${lu.reason}`;
-  } else if (opts.solver === "direct" || opts.solver === "iterative") {
+    if (N >= INTERFACE_COMPRESSED_CROSSOVER) {
+      solver = "compressed";
+      choice = `auto (dielectric interfaces): ${N} panels ≥ ${INTERFACE_COMPRESSED_CROSSOVER}, where the compressed solver overtakes the dense ones (tests/bench/dielectric.bench.mjs)`;
+    } else {
+      const c = chooseSolver(N, k);
+      // LU costs twice the Cholesky flops the model counts.
+      const lu = chooseSolver(Math.round(N * Math.cbrt(2)), k);
+      solver = lu.solver === "direct" && c.solver === "direct" ? "direct" : "iterative";
+      choice = `auto (dielectric interfaces, non-symmetric): ${lu.reason}`;
+    }
+  } else if (opts.solver === "direct" || opts.solver === "iterative" || opts.solver === "compressed") {
     solver = opts.solver; choice = "requested";
-  } else if (opts.solver === "compressed") {
-    solver = "iterative"; choice = "compressed requested, but it does not take dielectric interfaces yet: dense iterative";
   } else throw new RangeError(`unknown solver ${String(opts.solver)}`);
+  if (solver === "compressed") return solveCompressedWithInterfaces(positions, triangles, conductorOf, k, lambda, testing, opts, choice, fieldPanels);
   assertDenseFits(N, k, opts.memoryLimit);
   const progress = opts.progress ?? (() => {});
   const panels = panelSetShared(positions, triangles);
@@ -361,4 +370,115 @@ export async function solveUnitPotentialsWithInterfaces(
   info.solveSeconds = (performance.now() - t2) / 1e3;
   progress("solve", 1);
   return { x, panels, info };
+}
+
+/**
+ * Panels (conductor and interface) from which `auto` takes the compressed solver for models with
+ * dielectric interfaces: the dense path pays LU (twice the Cholesky flops) and the costlier
+ * interface rows, so the crossover sits below COMPRESSED_CROSSOVER. Measured by
+ * tests/bench/dielectric.bench.mjs (four open pads on a slab over ground, load average ~11 on
+ * the shared 2-core machine): 2048 panels dense LU 12.5 s wall / 4.1 s CPU, compressed 12.2 s /
+ * 5.4 s; 4896 panels dense 57.8 s / 20.9 s, compressed 27.0 s / 16.6 s. 4000 lies between the
+ * two measured sizes and is not itself measured.
+ */
+export const INTERFACE_COMPRESSED_CROSSOVER = 4000;
+
+/**
+ * The compressed path with dielectric interfaces: the mixed matrix of assembleWithInterfaces as a
+ * non-symmetric hierarchical matrix whose entries come from bem/assembly.ts assembleInterfaceBlock
+ * (in the workers; images included). The normal-field kernel n̂_i·(x − y)/|x − y|³ is
+ * asymptotically smooth like 1/|x − y|, so the admissibility of the single layer serves both
+ * kinds of rows, and the identity part of the interface rows lies in the diagonal (near) blocks.
+ * GMRES with block-Jacobi LU over clusters of up to `preconditionerCluster` panels, the diagonal
+ * blocks taken from the hierarchical matrix.
+ */
+async function solveCompressedWithInterfaces(positions: Float64Array, triangles: Uint32Array, conductorOf: Uint32Array, k: number,
+  lambda: Float64Array, testing: InterfaceTesting, opts: SolveOptions, choice: string, fieldPanels?: Uint8Array): Promise<UnitSolution> {
+  const nc = conductorOf.length, N = triangles.length / 3;
+  const leafSize = opts.leafSize ?? 32, eta = opts.eta ?? 2;
+  const estimate = compressedBytes(N, k, leafSize);
+  assertCompressedFits(N, k, leafSize, opts.memoryLimit);
+  const progress = opts.progress ?? (() => {});
+  const panels = panelSetShared(positions, triangles);
+  const lam = sharedFloat64(lambda.length);
+  lam.set(lambda);
+  const hTol = compressionTolerance(opts.tolerance);
+  const url = new URL(import.meta.url.endsWith(".ts") ? "../bem/assembly.ts" : "../bem/assembly.js", import.meta.url).href;
+
+  progress("compression", 0);
+  const t0 = performance.now();
+  const images = preparedImages(panels, opts.kernel, true);
+  const H = await buildHMatrix(panels.centroids, {
+    source: { module: url, name: "assembleInterfaceBlock", before: [panels, nc, lam], after: [opts.method, testing, images] },
+  }, {
+    tolerance: hTol, leafSize, eta, symmetric: false, pad: panels.radii, pool: opts.pool,
+    progress: (_phase, f) => progress("compression", f),
+  });
+  const t1 = performance.now();
+  progress("compression", 1);
+
+  const B = sharedFloat64(N * k);
+  for (let p = 0; p < nc; p++) B[p * k + conductorOf[p]] = 1;
+  const st = H.stats;
+  const info: SolveInfo = {
+    method: opts.method, solver: "compressed", choice, panels: N, rightHandSides: k,
+    assemblySeconds: (t1 - t0) / 1e3, solveSeconds: 0, entriesPerSecond: st.storedEntries / Math.max(1e-9, (t1 - t0) / 1e3),
+    compressionTolerance: hTol, compressionRatio: st.compressionRatio, maxRank: st.maxRank, meanRank: st.meanRank,
+    nearBlocks: st.nearBlocks, farBlocks: st.farBlocks, farBlocksDense: st.farDense, operatorBytes: st.bytes, estimatedBytes: estimate,
+  };
+  progress("solve", 0);
+  const t2 = performance.now();
+  try {
+    const cluster = opts.preconditionerCluster ?? PRECONDITIONER_CLUSTER;
+    const nodes = clusterCover(H.tree, Math.max(leafSize, cluster));
+    const sets = nodes.map((v) => H.tree.order.slice(H.tree.start[v], H.tree.end[v]));
+    const precondition = blockJacobiFromBlocks(H.diagonalBlocks(nodes), sets, N, { lu: true });
+    info.preconditionerCluster = cluster;
+    const tol = krylovTolerance(opts.tolerance);
+    const apply = (X: Float64Array, Y: Float64Array, kk: number) => H.apply(X, Y, kk);
+    const maxIter = Math.max(300, Math.ceil(4 * Math.sqrt(N)));
+    const res = await gmres(apply, precondition, B, k, { tol, maxIter, monitor: (it) => progress("solve", Math.min(0.99, it / 60)) });
+    if (!res.converged) {
+      throw new Error(`the compressed solver did not converge in ${res.iterations} iterations (residual ${Math.max(...res.residuals).toExponential(2)}); try a tighter --tol or --solver direct on a coarser mesh`);
+    }
+    info.iterations = res.iterations;
+    info.residual = Math.max(...res.residuals);
+    info.krylovTolerance = tol;
+    info.solveSeconds = (performance.now() - t2) / 1e3;
+    progress("solve", 1);
+    const normalField = fieldPanels && fieldPanels.some((f) => f !== 0)
+      ? await openSheetNormalField(panels, nc, fieldPanels, res.X, k, images, hTol, leafSize, eta, opts)
+      : undefined;
+    info.peakResidentBytes = peakResidentBytes();
+    return { x: res.X, panels, info, normalField };
+  } finally {
+    await H.release();
+  }
+}
+
+/**
+ * E_pv·n̂ (in the units of x) at the flagged conductor panels, nc×k: a second, non-symmetric
+ * hierarchical matrix over all panels whose rows are the collocated normal field at the flagged
+ * panels (bem/assembly.ts normalFieldBlock; other rows 0), applied to x. The sum it replaces
+ * costs flagged × N kernel evaluations on one thread.
+ */
+async function openSheetNormalField(panels: PanelSet, nc: number, fieldPanels: Uint8Array, X: Float64Array, k: number,
+  images: ImageSet | undefined, hTol: number, leafSize: number, eta: number, opts: SolveOptions): Promise<Float64Array> {
+  const N = panels.n, progress = opts.progress ?? (() => {});
+  const flag = new Uint8Array(new SharedArrayBuffer(N));
+  flag.set(fieldPanels.subarray(0, nc));
+  const url = new URL(import.meta.url.endsWith(".ts") ? "../bem/assembly.ts" : "../bem/assembly.js", import.meta.url).href;
+  progress("fields", 0);
+  const F = await buildHMatrix(panels.centroids, { source: { module: url, name: "normalFieldBlock", before: [panels, flag], after: [images] } }, {
+    tolerance: hTol, leafSize, eta, symmetric: false, pad: panels.radii, pool: opts.pool,
+    progress: (_phase, f) => progress("fields", f),
+  });
+  try {
+    const Y = new Float64Array(N * k);
+    await F.apply(X, Y, k);
+    progress("fields", 1);
+    return Y.slice(0, nc * k);
+  } finally {
+    await F.release();
+  }
 }
