@@ -11,6 +11,11 @@
  * has the same number of fields (shorter ones are padded). Numbers are written in SI units
  * named in the headers, with all the digits needed to read the same double back.
  *
+ * Text that a spreadsheet would take for a formula (a net named "+3V3", "-12V", "=A1" or
+ * "@x") is written with a leading apostrophe, the neutralisation MITRE's CWE-1236 ("Improper
+ * Neutralization of Formula Elements in a CSV File") lists: Excel, LibreOffice and Google
+ * Sheets show such a cell as text. Numbers, also negative ones given as text, are left alone.
+ *
  * Markdown tables are the GitHub Flavored Markdown table extension (GFM spec 0.29, section
  * 4.10 "Tables"); text is escaped with backslashes, which CommonMark allows before any ASCII
  * punctuation (CommonMark spec 0.30, section 2.4 "Backslash escapes").
@@ -136,10 +141,22 @@ export function reportData(value: unknown, file?: string): ReportData {
 
 // ---------- CSV ----------
 
-/** One CSV field (RFC 4180, section 2, rules 5-7). */
+/** A number as text: what a spreadsheet reads as a number, not a formula. */
+const NUMBER_TEXT = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d+)?$/;
+
+/**
+ * Text that spreadsheets would evaluate as a formula (first character = + - @, tab or CR;
+ * CWE-1236) with an apostrophe in front; other text, and numbers written as text, unchanged.
+ * Idempotent: the apostrophe is not itself a formula character.
+ */
+export function csvSafeText(s: string): string {
+  return /^[=+\-@\t\r]/.test(s) && !NUMBER_TEXT.test(s) ? `'${s}` : s;
+}
+
+/** One CSV field (RFC 4180, section 2, rules 5-7), text neutralised as by `csvSafeText`. */
 export function csvField(value: string | number | boolean | null | undefined): string {
   if (value === null || value === undefined) return "";
-  const s = typeof value === "number" ? csvNumber(value) : String(value);
+  const s = typeof value === "number" ? csvNumber(value) : csvSafeText(String(value));
   return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
 }
 

@@ -4,7 +4,7 @@
  */
 import { describe, it, expect, afterAll } from "vitest";
 import fc from "fast-check";
-import { csvField, csvText, parseCsv, csvReport, csvTables, markdownReport, markdownText, reportData, type ReportData } from "../../src/report/csv.js";
+import { csvField, csvSafeText, csvText, parseCsv, csvReport, csvTables, markdownReport, markdownText, reportData, type ReportData } from "../../src/report/csv.js";
 import { sphereMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes, type SurfaceMesh } from "../../src/mesh/model.js";
 import { extract } from "../../src/extract/extract.js";
@@ -37,9 +37,26 @@ describe("RFC 4180 fields", () => {
       const padded = recs.map((r) => [...r, ...Array(width - r.length).fill("")]);
       // a record of one empty field is written as an empty line; RFC 4180 leaves that case open
       if (width === 1 && padded.some((r) => r[0] === "")) return true;
-      expect(parseCsv(csvText(recs))).toEqual(padded);
+      // text a spreadsheet would run as a formula reads back with its neutralising apostrophe
+      expect(parseCsv(csvText(recs))).toEqual(padded.map((r) => r.map(csvSafeText)));
       return true;
     }), { seed: 4180, numRuns: 300 });
+  });
+  it("writes net names a spreadsheet would take for formulas as text (CWE-1236), numbers as numbers", () => {
+    expect(csvField("+3V3")).toBe("'+3V3");
+    expect(csvField("-12V")).toBe("'-12V");
+    expect(csvField("=HYPERLINK(\"x\")")).toBe("\"'=HYPERLINK(\"\"x\"\")\"");
+    expect(csvField("@sum")).toBe("'@sum");
+    expect(csvField("\tpad")).toBe("'\tpad");
+    expect(csvField("VCC-12")).toBe("VCC-12");
+    // numbers, also as text (the merged sweep table passes cells through as text), stay numbers
+    expect(csvField(-1.5e-13)).toBe("-1.5e-13");
+    expect(csvField("-1.5e-13")).toBe("-1.5e-13");
+    expect(csvField("+2")).toBe("+2");
+    expect(csvSafeText(csvSafeText("+3V3"))).toBe("'+3V3");
+    const text = csvText([["name", "charge (C)"], ["+3V3", -1e-12], ["-12V", 2e-12]]);
+    expect(parseCsv(text).map((r) => r[0])).toEqual(["name", "'+3V3", "'-12V"]);
+    expect(parseCsv(text).map((r) => r[1])).toEqual(["charge (C)", "-1e-12", "2e-12"]);
   });
   it("names the line of malformed quoting", () => {
     expect(() => parseCsv('a,"b\nc')).toThrow(/line 1: quoted field is not closed/);
