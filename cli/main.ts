@@ -1,6 +1,6 @@
 #!/usr/bin/env node
 /** sigmesh command-line entry: each command lives in its own file and only composes the library. */
-import { Command } from "commander";
+import { Command, Help, type Option } from "commander";
 import { createRequire } from "node:module";
 import { setDebug, reportFailure } from "./common.js";
 import { registerCheck } from "./check.js";
@@ -20,6 +20,17 @@ export function buildProgram(): Command {
     .description("Boundary-element capacitance, charge and surface-field extraction for 3D conductors given as triangle meshes.")
     .version(pkg.version)
     .option("--debug", "show stack traces and internal detail on failure")
+    // Set before the commands are added: commander copies it to each of them.
+    .configureHelp({
+      optionDescription(this: Help, option: Option): string {
+        // A repeatable option's empty list ("(default: [])") tells the reader nothing, and a
+        // description that already names its default must not get commander's second one.
+        const own = option.description ?? "";
+        const emptyList = Array.isArray(option.defaultValue) && option.defaultValue.length === 0;
+        if (emptyList || /\(default\b/.test(own)) return own;
+        return Help.prototype.optionDescription.call(this, option);
+      },
+    })
     // Usage errors are one line, like every other failure.
     .configureOutput({
       outputError: (text, write) => {

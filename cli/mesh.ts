@@ -9,6 +9,7 @@ import { parseUnit, metresPer, DEFAULT_UNIT } from "../src/io/units.js";
 import { encodeMesh, outputFormatFromPath, writeMeshFile } from "../src/io/write.js";
 import { generateShape, SHAPES, type ShapeParams } from "../src/mesh/primitives/index.js";
 import { surfaceArea } from "../src/mesh/measure.js";
+import { formatArea, unitLabel } from "../src/report/si.js";
 
 /** Option flag for a parameter name: panelSize -> --panel-size. */
 const flag = (param: string): string => "--" + param.replace(/[A-Z]/g, (c) => "-" + c.toLowerCase());
@@ -61,8 +62,8 @@ export function registerMesh(program: Command): void {
       }
       else writeMeshFile(output, mesh, format, unit);
       if (!opts.quiet) {
-        const area = surfaceArea(mesh) / metresPer(unit) ** 2;
-        process.stderr.write(`sigmesh: ${shape} "${mesh.names[0]}": ${mesh.triangles.length / 3} triangles, ${mesh.positions.length / 3} vertices, area ${area.toPrecision(6)} ${unit}^2, unit ${unit} -> ${output === "-" ? "stdout" : output}\n`);
+        // Area as `check` and `extract` print it (same digits, same unit notation).
+        process.stderr.write(`sigmesh: ${shape} "${mesh.names[0]}": ${mesh.triangles.length / 3} triangles, ${mesh.positions.length / 3} vertices, area ${formatArea(surfaceArea(mesh), unit)}, lengths in ${unitLabel(unit)} -> ${output === "-" ? "stdout" : output}\n`);
       }
     }));
 }

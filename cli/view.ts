@@ -101,7 +101,7 @@ export function registerView(program: Command): void {
     .command("view")
     .description("serve the 3D viewer for one result on 127.0.0.1 (a JSON report with panel data, or an HTML report)")
     .argument("<report>", "report.json written with --json-panels, or report.html written with --html")
-    .option("--port <N>", "port to listen on (default: a free one)", "0")
+    .option("--port <N>", "port to listen on; 0 lets the system pick a free one", "0")
     .action(action(async (path: string, opts: { port: string }) => {
       const port = parsePort(opts.port);
       const page = viewPage(path);

@@ -28,7 +28,12 @@ describe("sigmesh mesh", () => {
     const out = join(dir, "s.stl");
     const r = run(["mesh", "sphere", "--radius", "2", "--level", "2", "--unit", "mm", "-o", out]);
     expect(r.code).toBe(0);
-    expect(r.err).toMatch(/sphere.*320 triangles.*unit mm.*s\.stl/);
+    expect(r.err).toMatch(/sphere.*320 triangles.*lengths in mm.*s\.stl/);
+    // The area reads as `check` prints it: same digits, mm² rather than mm^2.
+    const printed = /area (\S+) mm², /.exec(r.err)?.[1];
+    expect(printed, r.err).toMatch(/^\d+\.\d{2}$/);
+    const checked = run(["check", out, "--unit", "mm"]);
+    expect(checked.out).toMatch(new RegExp(`^s +320 +${printed!.replace(".", "\\.")} `, "m"));
     const loaded = loadMeshFile(out, { unit: "mm" }).mesh;
     expect(loaded.triangles.length / 3).toBe(320);
     const area = surfaceArea(loaded);
