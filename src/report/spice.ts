@@ -101,6 +101,24 @@ export interface SpiceOptions {
   digits?: number;
 }
 
+/**
+ * `words` as one logical line of at most `width` columns per physical line, broken between
+ * words onto `+` continuation lines: Berkeley SPICE2 read 80 columns, and readers of its
+ * lineage (and people reading the netlist) still expect it. A word longer than the line
+ * stays whole.
+ */
+export function spiceLines(words: readonly string[], width = 80): string[] {
+  const lines: string[] = [];
+  let line = "";
+  for (const w of words) {
+    if (line === "") line = w;
+    else if (line.length + 1 + w.length <= width) line += " " + w;
+    else { lines.push(line); line = "+ " + w; }
+  }
+  if (line !== "") lines.push(line);
+  return lines;
+}
+
 /** Comment text: one physical line, no control characters. */
 function commentText(s: string): string {
   return s.replace(/[\u0000-\u001f\u007f]+/g, " ");
@@ -139,17 +157,23 @@ export function spiceSubcircuit(names: string[], mutual: Float64Array, opts: Spi
   const dropped = caps.length - kept.length;
 
   const out: string[] = [];
+  // Comments wrapped to 80 columns like the element lines; a chunk (a phrase with spaces)
+  // is never broken.
+  const comment = (chunks: string[]): void => {
+    out.push(...spiceLines(chunks, 78).map((l, n) => (n === 0 ? `* ${l}` : `*   ${l.slice(2)}`)));
+  };
+  const words = (text: string): string[] => text.split(" ");
   out.push(`* ${commentText(opts.title ?? "sigmesh capacitance network")}`);
-  out.push(`* ${k} conductor${k === 1 ? "" : "s"}; ports in order: ${[...nodes, refNode].join(" ")}`);
-  out.push(reference === "infinity"
-    ? `* reference port ${refNode}: the far surroundings (potential at infinity); tie it to 0 for an isolated system`
-    : `* reference port ${refNode}: the ground plane of the extraction; tie it to 0`);
+  comment([`${k} conductor${k === 1 ? "" : "s"}; ports in order:`, ...nodes, refNode]);
+  comment(words(reference === "infinity"
+    ? `reference port ${refNode}: the far surroundings (potential at infinity); tie it to 0 for an isolated system`
+    : `reference port ${refNode}: the ground plane of the extraction; tie it to 0`));
   out.push("* conductor names and their nodes:");
   for (let i = 0; i < k; i++) out.push(`*   ${nodes[i]} = ${commentText(names[i])}`);
-  out.push(`* values from the mutual capacitance matrix (F); capacitors below ${Number(threshold.toPrecision(3))} × the largest (${spiceNumber(largest, 4)}) dropped: ${dropped} of ${caps.length}`);
+  comment([...words(`values from the mutual capacitance matrix (F); capacitors below ${Number(threshold.toPrecision(3))} times the largest (${spiceNumber(largest, 4)})`), `dropped: ${dropped} of ${caps.length}`]);
   const negative = kept.filter((c) => c.value < 0);
-  if (negative.length > 0) out.push(`* ${negative.length} negative value(s) kept as computed (a shielded conductor's capacitance to the reference is near zero and within the error of the extraction)`);
-  out.push(`.SUBCKT ${subckt} ${[...nodes, refNode].join(" ")}`);
+  if (negative.length > 0) comment(words(`${negative.length} negative value(s) kept as computed (a shielded conductor's capacitance to the reference is near zero and within the error of the extraction)`));
+  out.push(...spiceLines([".SUBCKT", subckt, ...nodes, refNode]));
   for (const c of kept) out.push(`${c.name} ${c.a} ${c.b} ${spiceNumber(c.value, digits)}`);
   out.push(`.ENDS ${subckt}`);
   return out.join("\n") + "\n";

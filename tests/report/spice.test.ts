@@ -6,7 +6,7 @@
  */
 import { describe, it, expect, afterAll } from "vitest";
 import fc from "fast-check";
-import { spiceSubcircuit, parseSpiceCapacitors, mutualFromSpice, spiceNodeNames, spiceNumber, parseSpiceNumber } from "../../src/report/spice.js";
+import { spiceSubcircuit, parseSpiceCapacitors, mutualFromSpice, spiceNodeNames, spiceNumber, parseSpiceNumber, spiceLines } from "../../src/report/spice.js";
 import { mutualFromMaxwell } from "../../src/extract/capacitance.js";
 import { extract } from "../../src/extract/extract.js";
 import { sphereMesh } from "../../src/mesh/primitives/index.js";
@@ -137,6 +137,32 @@ describe("spiceSubcircuit", () => {
     for (let i = 0; i < 4; i++) expect(text).toContain(`${parsed.nodes[i]} = ${names[i]}`);
     // threshold 0 keeps all 10 capacitors of a dense 4-conductor network
     expect(parseSpiceCapacitors(spiceSubcircuit(names, mutual, { relativeThreshold: 0 })).caps.length).toBe(10);
+  });
+
+  it("keeps every line within 80 columns on many conductors: ports continue on + lines and read back in order", () => {
+    const k = 40;
+    const names = Array.from({ length: k }, (_, i) => `sense_electrode_row${Math.floor(i / 8)}_col${i % 8}`);
+    const mutual = mutualFromMaxwell(maxwellOf(k, 7), k);
+    const text = spiceSubcircuit(names, mutual, { relativeThreshold: 0 });
+    const lines = text.trimEnd().split("\n");
+    for (const l of lines) expect(l.length, l).toBeLessThanOrEqual(80);
+    // plain ASCII apart from the user's own names (older readers choke on other bytes)
+    expect(text).toMatch(/^[\x20-\x7e\n]*$/);
+    const start = lines.findIndex((l) => l.startsWith(".SUBCKT"));
+    expect(lines[start + 1]).toMatch(/^\+ /);
+    const parsed = parseSpiceCapacitors(text);
+    expect(parsed.nodes).toEqual([...spiceNodeNames(names, ["REF"]), "REF"]);
+    const back = mutualFromSpice(text, names);
+    for (let i = 0; i < k * k; i++) expect(Math.abs(back[i] - mutual[i])).toBeLessThanOrEqual(5e-6 * Math.abs(mutual[i]));
+    // the port list in the comments is wrapped too, as comment lines
+    const comment = lines.slice(0, start).filter((l) => l.startsWith("* 40 conductors") || l.startsWith("*   "));
+    expect(comment.join(" ")).toContain(names[k - 1]);
+  });
+
+  it("spiceLines breaks between words and leaves an over-long word whole", () => {
+    expect(spiceLines(["a", "b"], 80)).toEqual(["a b"]);
+    expect(spiceLines(["aaaa", "bbbb", "cccc"], 9)).toEqual(["aaaa bbbb", "+ cccc"]);
+    expect(spiceLines(["x".repeat(100)], 80)).toEqual(["x".repeat(100)]);
   });
 
   it("reads hand-written netlists: continuations, inline comments, unit suffixes, parallel capacitors", () => {
