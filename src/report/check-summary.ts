@@ -65,7 +65,7 @@ export function formatCheckSummary(report: CheckReport, opts: CheckSummaryOption
   const out: string[] = [];
   const files = opts.files && opts.files.length > 0 ? ` from ${opts.files.join(", ")}` : "";
   out.push(`mesh check: ${report.conductors.length} conductor${report.conductors.length === 1 ? "" : "s"}, ${report.triangles} triangles, ${report.vertices} vertices${files}`);
-  out.push(`unit: ${ul} (${opts.unitAssumed ? "assumed; set with --unit" : "set with --unit"})`);
+  out.push(`unit: ${ul} (${opts.unitAssumed ? "assumed; set with --unit" : "given with --unit"})`);
   out.push("");
   const header = ["conductor", "triangles", `area (${ul}²)`, `bbox x (${ul})`, `y (${ul})`, `z (${ul})`, "closed", "boundary", "non-manifold", "orientation", `edge (${ul})`, "worst aspect"];
   const rows = report.conductors.map((c) => {

@@ -63,7 +63,7 @@ describe("sigmesh check", () => {
     expect(j.inputUnit).toBe("cm");
     expect(j.ok).toBe(true);
     // The human summary moves to stderr so that stdout stays JSON.
-    expect(r.err).toContain("unit: cm (set with --unit)");
+    expect(r.err).toContain("unit: cm (given with --unit)");
   });
 
   it("fails with exit 2 on intersecting conductors, still writing the report", () => {
