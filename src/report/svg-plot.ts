@@ -112,11 +112,13 @@ interface AxisLayout {
   map: (v: number, a: number, b: number) => number;
 }
 
-function engineering(v: number, digits = 3): string {
+/** "3M", "470n": the mantissa rounded to `digits`, a carry to 1000 moving to the next prefix (999.9k → 1M). */
+function engineering(v: number, digits = 3, sep = ""): string {
   if (v === 0) return "0";
-  const e3 = Math.max(-18, Math.min(12, 3 * Math.floor(Math.log10(Math.abs(v)) / 3 + 1e-12)));
-  const m = Number((v / 10 ** e3).toPrecision(digits));
-  return `${m}${PREFIX[e3]}`;
+  let e3 = Math.max(-18, Math.min(12, 3 * Math.floor(Math.log10(Math.abs(v)) / 3 + 1e-12)));
+  let m = Number((v / 10 ** e3).toPrecision(digits));
+  if (Math.abs(m) >= 1000 && e3 < 12) { e3 += 3; m = Number((v / 10 ** e3).toPrecision(digits)); }
+  return `${m}${sep}${PREFIX[e3]}`;
 }
 
 function layoutAxis(axis: PlotAxis, values: number[]): AxisLayout {
@@ -270,7 +272,7 @@ export function fieldAlongLineSvg(distance: ArrayLike<number>, field: ArrayLike<
   const eb = opts.breakdownField;
   // Stretch the axis to the breakdown line only when the field comes within a factor 5 of it;
   // otherwise the curve would be squashed flat at the bottom.
-  const refs = eb !== undefined ? [{ value: eb, label: `breakdown field ${engineering(eb)}V/m`, inRange: peak >= 0.2 * eb }] : [];
+  const refs = eb !== undefined ? [{ value: eb, label: `breakdown field ${engineering(eb, 3, " ")}V/m`, inRange: peak >= 0.2 * eb }] : [];
   return linePlotSvg([{ label: opts.label ?? "|E|", x: distance, y: field }], {
     title: opts.title ?? "Field along the probe line",
     x: { label: "distance", unit: opts.lengthUnit, prefix: false },

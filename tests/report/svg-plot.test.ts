@@ -144,6 +144,12 @@ describe("convergence and field plots", () => {
     expect(b).toContain("(off scale)");
     expect(Math.max(...values(b, "y-labels"))).toBeLessThan(1e4);
   });
+  it("field plot: the breakdown field reads as a quantity, number and unit apart, rounding carried to the next prefix", () => {
+    const d = [0, 1, 2], e = [1e6, 2e6, 1e6];
+    expect(fieldAlongLineSvg(d, e, { lengthUnit: "mm", breakdownField: 3e6 })).toContain(">breakdown field 3 MV/m<");
+    expect(fieldAlongLineSvg(d, e, { lengthUnit: "mm", breakdownField: 999.9e3 })).toContain(">breakdown field 1 MV/m<");
+    expect(fieldAlongLineSvg(d, e, { lengthUnit: "mm", breakdownField: 2.5e5 })).toContain(">breakdown field 250 kV/m<");
+  });
   it("xmlText escapes markup and drops characters XML forbids", () => {
     expect(xmlText(`a<b>&"c'\u0001`)).toBe("a&lt;b&gt;&amp;&quot;c&apos;");
   });
