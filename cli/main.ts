@@ -31,18 +31,11 @@ export function buildProgram(): Command {
         return Help.prototype.optionDescription.call(this, option);
       },
     })
-    // Usage errors are one line, like every other failure.
-    .configureOutput({
-      outputError: (text, write) => {
-        const first = text.trim().split("\n")[0].replace(/^error: /, "");
-        write(`sigmesh: error: ${first} (see sigmesh --help)\n`);
-      },
-    })
     .hook("preAction", (cmd) => setDebug(Boolean(cmd.opts().debug)))
-    // Usage errors are bad input (exit 2); help and version are success.
+    // Usage errors are bad input (exit 2); help and version asked for are success, but help
+    // shown because no command was given is a usage error too (commander gives it exit code 1).
     .exitOverride((err) => {
-      if (err.code === "commander.helpDisplayed" || err.code === "commander.version" || err.code === "commander.help") process.exit(0);
-      process.exit(2);
+      process.exit(err.exitCode === 0 ? 0 : 2);
     });
   registerCheck(program);
   registerMesh(program);
@@ -50,6 +43,18 @@ export function buildProgram(): Command {
   registerDemo(program);
   registerView(program);
   registerSweep(program);
+  // Usage errors are one line, like every other failure, pointing at the help of the command
+  // that refused the line.
+  const oneLineErrors = (cmd: Command, path: string): void => {
+    cmd.configureOutput({
+      outputError: (text, write) => {
+        const first = text.trim().split("\n")[0].replace(/^error: /, "");
+        write(`sigmesh: error: ${first} (see ${path} --help)\n`);
+      },
+    });
+    for (const sub of cmd.commands) oneLineErrors(sub, `${path} ${sub.name()}`);
+  };
+  oneLineErrors(program, "sigmesh");
   return program;
 }
 

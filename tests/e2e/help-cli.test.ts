@@ -59,6 +59,35 @@ describe("--help", () => {
   });
 });
 
+function run(args: string[]): { code: number | null; out: string; err: string } {
+  const r = spawnSync(process.execPath, [cli, ...args], { encoding: "utf8" });
+  return { code: r.status, out: r.stdout, err: r.stderr };
+}
+
+describe("usage errors", () => {
+  it.each([
+    [["extract"], /^sigmesh: error: missing required argument 'inputs' \(see sigmesh extract --help\)\n$/],
+    [["check", "x.stl", "--bogus"], /^sigmesh: error: unknown option '--bogus' \(see sigmesh check --help\)\n$/],
+    [["sweep", "merge"], /^sigmesh: error: missing required argument 'tables' \(see sigmesh sweep merge --help\)\n$/],
+    [["nope"], /^sigmesh: error: unknown command 'nope' \(see sigmesh --help\)\n$/],
+  ])("%j: exit 2 and one line pointing at that command's help", (args, re) => {
+    const r = run(args as string[]);
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(re);
+    expect(r.out).toBe("");
+  });
+  it("no command at all is a usage error (help on stderr, exit 2); help and version asked for exit 0", () => {
+    const bare = run([]);
+    expect(bare.code).toBe(2);
+    expect(bare.err).toMatch(/Usage: sigmesh/);
+    expect(run(["help"]).code).toBe(0);
+    expect(run(["help", "extract"]).code).toBe(0);
+    const v = run(["--version"]);
+    expect(v.code).toBe(0);
+    expect(v.out.trim()).toMatch(/^\d+\.\d+\.\d+/);
+  });
+});
+
 describe("README command reference", () => {
   it.each(COMMANDS)("sigmesh %s: every option the README shows exists", (name) => {
     const section = readmeSection(name);
