@@ -25,11 +25,17 @@ export function viewPage(path: string): ViewPage {
     if (!found) throw new InputError("not a sigmesh HTML report (no embedded results)", path);
     return { html: text, reportJson: JSON.stringify(found.report, null, 2) };
   }
+  if (!/^\s*[{[]/.test(text)) {
+    throw new InputError("not a sigmesh report: give the .json written by `sigmesh extract --json FILE --json-panels` or the .html written by `--html`", path);
+  }
   let report: Record<string, unknown>;
   try {
     report = JSON.parse(text) as Record<string, unknown>;
   } catch (err) {
-    throw new InputError(`not valid JSON (${err instanceof Error ? err.message : String(err)})`, path);
+    const message = err instanceof Error ? err.message : String(err);
+    // V8 quotes a snippet of the text (line breaks and all) or names a position: keep one line.
+    const fault = message.replace(/, (?:\.\.\.)?"[\s\S]*" is not valid JSON$/, "").replace(/ in JSON at position \d+[\s\S]*$/, "").replace(/\s+/g, " ");
+    throw new InputError(`not valid JSON (${fault})`, path, jsonPlace(text, message));
   }
   if (typeof report !== "object" || report === null || typeof report.format !== "string" || !report.format.startsWith("sigmesh-extraction/")) {
     throw new InputError("not a sigmesh extraction report (no \"format\": \"sigmesh-extraction/…\")", path);
@@ -40,6 +46,17 @@ export function viewPage(path: string): ViewPage {
   }
   const { viewer: _omit, ...rest } = report;
   return { html: htmlReport(rest, viewer), reportJson: JSON.stringify(rest, null, 2) };
+}
+
+/** Line and column of the offset a JSON.parse message names ("... at position 17"). */
+function jsonPlace(text: string, message: string): string | undefined {
+  const m = /position (\d+)/.exec(message);
+  if (!m) return undefined;
+  let line = 1, column = 1;
+  for (let i = 0; i < Number(m[1]) && i < text.length; i++) {
+    if (text.charCodeAt(i) === 10) { line++; column = 1; } else column++;
+  }
+  return `line ${line}, column ${column}`;
 }
 
 /** Port number 0–65535 (0: the system picks a free one). */
