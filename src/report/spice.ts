@@ -99,6 +99,11 @@ export interface SpiceOptions {
   title?: string;
   /** Significant digits of the values; default 6. */
   digits?: number;
+  /**
+   * Floating conductors eliminated from `mutual` (they carry no net charge, so they are no
+   * ports); named in a comment so that a reader misses no conductor without being told.
+   */
+  eliminated?: readonly string[];
 }
 
 /**
@@ -168,6 +173,8 @@ export function spiceSubcircuit(names: string[], mutual: Float64Array, opts: Spi
   comment(words(reference === "infinity"
     ? `reference port ${refNode}: the far surroundings (potential at infinity); tie it to 0 for an isolated system`
     : `reference port ${refNode}: the ground plane of the extraction; tie it to 0`));
+  const eliminated = opts.eliminated ?? [];
+  if (eliminated.length > 0) comment([`floating conductor${eliminated.length === 1 ? "" : "s"} eliminated (no net charge, no port):`, ...eliminated.map(commentText)]);
   out.push("* conductor names and their nodes:");
   for (let i = 0; i < k; i++) out.push(`*   ${nodes[i]} = ${commentText(names[i])}`);
   comment([...words(`values from the mutual capacitance matrix (F); capacitors below ${Number(threshold.toPrecision(3))} times the largest (${spiceNumber(largest, 4)})`), `dropped: ${dropped} of ${caps.length}`]);

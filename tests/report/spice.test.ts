@@ -159,6 +159,14 @@ describe("spiceSubcircuit", () => {
     expect(comment.join(" ")).toContain(names[k - 1]);
   });
 
+  it("names the floating conductors that were eliminated and are no ports", () => {
+    const mutual = mutualFromMaxwell(maxwellOf(2, 5), 2);
+    const text = spiceSubcircuit(["pad", "trace"], mutual, { eliminated: ["can"] });
+    expect(text).toMatch(/^\* floating conductor eliminated \(no net charge, no port\): can$/m);
+    expect(parseSpiceCapacitors(text).nodes).toEqual(["pad", "trace", "REF"]);
+    expect(spiceSubcircuit(["pad", "trace"], mutual)).not.toMatch(/floating/);
+  });
+
   it("spiceLines breaks between words and leaves an over-long word whole", () => {
     expect(spiceLines(["a", "b"], 80)).toEqual(["a b"]);
     expect(spiceLines(["aaaa", "bbbb", "cccc"], 9)).toEqual(["aaaa bbbb", "+ cccc"]);
