@@ -82,11 +82,11 @@ export function formatPoint(metres: ArrayLike<number>, unit: LengthUnit, digits 
 }
 
 /**
- * A field strength given in V/m, always on V/m with an engineering prefix: 3.1e6 → "3.100 MV/m",
- * 12e3 → "12.00 kV/m". One unit family for every field in a table, a summary and the
- * field plots (MV/m = kV/mm, the unit breakdown strengths are often quoted in): mixing
- * kV/m and kV/mm in one column reads a factor of 1000 wrong at a glance.
+ * A field strength given in V/m, printed in kV/mm (= MV/m), the unit breakdown fields
+ * are quoted in: formatFieldStrength(3.1e6) → "3.100 kV/mm". Weaker fields keep the
+ * prefix scheme on V/m ("12.00 kV/m") so that small numbers stay readable.
  */
 export function formatFieldStrength(voltsPerMetre: number, digits = 4): string {
+  if (Number.isFinite(voltsPerMetre) && Math.abs(voltsPerMetre) >= 1e5) return `${formatNumber(voltsPerMetre / 1e6, digits)} kV/mm`;
   return formatSI(voltsPerMetre, "V/m", digits);
 }
