@@ -14,7 +14,7 @@ import { extract } from "../src/extract/extract.js";
 import { extractionReport } from "../src/report/json.js";
 import { extractionSummary } from "../src/report/extract-summary.js";
 import { closeSharedPool } from "../src/linalg/pool.js";
-import { action, printWarnings, writeOutput, collect } from "./common.js";
+import { action, printWarnings, collect } from "./common.js";
 import { progressBar } from "./progress.js";
 import { extractionOutputs } from "../src/report/outputs.js";
 import { viewerDataJson } from "../src/report/viewer-data.js";
@@ -121,6 +121,9 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
   const probes = (opts.probe ?? []).map((text, i) => parseProbeOption(text, "--probe", i + 1));
   const spiceThreshold = opts.spiceThreshold === undefined ? undefined : number(opts.spiceThreshold, "--spice-threshold", (x) => x >= 0 && x < 1, "a fraction between 0 and 1");
   if (opts.convergenceSvg && refine === 0) throw new InputError("--convergence-svg needs --refine 1 or more");
+  const toStdout = ([["--json", opts.json], ["--html", opts.html], ["--spice", opts.spice], ["--csv", opts.csv], ["--markdown", opts.markdown], ["--probe-csv", opts.probeCsv]] as const)
+    .filter(([, v]) => v === "-").map(([name]) => name);
+  if (toStdout.length > 1) throw new InputError(`${toStdout.join(" and ")} ask for standard output (-); only one output can go there`);
 
   const scene = loadScene(inputs, {
     unit: opts.unit === undefined ? undefined : parseUnit(opts.unit, "--unit"),
@@ -159,12 +162,14 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
     html: opts.html, spice: opts.spice, spiceThreshold, csv: opts.csv, markdown: opts.markdown,
     probes: [...scene.probes, ...probes], probeCsv: scene.probes.length + probes.length > 0 ? (opts.probeCsv ?? "probes.csv") : undefined, convergenceSvg: opts.convergenceSvg,
   }, scene.scene ?? scene.files.join(", "));
-  if (opts.json !== undefined && opts.json !== "-") files.push({ path: opts.json, data: toJson(report) + "\n" });
-  writeFilesAtomic(files);
-  if (opts.json === "-") writeOutput("-", toJson(report));
+  if (opts.json !== undefined) files.push({ path: opts.json, data: toJson(report) + "\n" });
+  // "-" is standard output (one output at most, checked above); the summary then goes to stderr.
+  const piped = files.find((f) => f.path === "-");
+  writeFilesAtomic(files.filter((f) => f.path !== "-"));
+  if (piped) process.stdout.write(piped.data);
   if (!opts.quiet) {
     const text = extractionSummary(result, { unit: scene.unit, unitAssumed: scene.unitAssumed, source: scene.scene ?? scene.files.join(", ") });
-    (opts.json === "-" ? process.stderr : process.stdout).write(text);
+    (piped ? process.stderr : process.stdout).write(text);
   } else {
     printWarnings(result.warnings.map((message) => ({ message })), false);
   }

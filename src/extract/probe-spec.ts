@@ -239,15 +239,19 @@ function num(x: number): string {
  * CSV (RFC 4180: CRLF records, quoted fields where needed) of one request's results:
  * probe name, point index, x, y, z in the user's `unit`, the distance along a line (lines)
  * or the grid indices i, j (grids), potential (V), Ex, Ey, Ez and |E| (V/m). `points` are the
- * metres from `probePoints`.
+ * metres from `probePoints`. `columns` forces the distance and grid-index columns on (left
+ * empty where they do not apply), so that the tables of several requests of different kinds
+ * share one header.
  */
-export function probeCsv(spec: ProbeSpec, points: Float64Array, result: ProbeResult, unit: LengthUnit): string {
+export function probeCsv(spec: ProbeSpec, points: Float64Array, result: ProbeResult, unit: LengthUnit,
+  columns?: { distance: boolean; grid: boolean }): string {
   const m = points.length / 3;
   if (result.potential.length !== m || result.field.length !== 3 * m) throw new RangeError(`probeCsv: ${m} points but ${result.potential.length} results`);
   const s = metresPer(unit), u = unit === "um" ? "µm" : unit;
+  const withDistance = columns?.distance ?? spec.kind === "line", withGrid = columns?.grid ?? spec.kind === "grid";
   const header = ["probe", "index", `x (${u})`, `y (${u})`, `z (${u})`];
-  if (spec.kind === "line") header.push(`distance (${u})`);
-  if (spec.kind === "grid") header.push("i", "j");
+  if (withDistance) header.push(`distance (${u})`);
+  if (withGrid) header.push("i", "j");
   header.push("potential (V)", "Ex (V/m)", "Ey (V/m)", "Ez (V/m)", "|E| (V/m)");
   const lines = [header.map(quoted).join(",")];
   const name = quoted(spec.name);
@@ -256,8 +260,8 @@ export function probeCsv(spec: ProbeSpec, points: Float64Array, result: ProbeRes
   const nu = spec.kind === "grid" ? spec.counts[0] : 1;
   for (let i = 0; i < m; i++) {
     const row = [name, String(i), num(points[3 * i] / s), num(points[3 * i + 1] / s), num(points[3 * i + 2] / s)];
-    if (d) row.push(num(d[i] / s));
-    if (spec.kind === "grid") row.push(String(i % nu), String(Math.floor(i / nu)));
+    if (withDistance) row.push(d ? num(d[i] / s) : "");
+    if (withGrid) row.push(...(spec.kind === "grid" ? [String(i % nu), String(Math.floor(i / nu))] : ["", ""]));
     row.push(num(result.potential[i]), num(result.field[3 * i]), num(result.field[3 * i + 1]), num(result.field[3 * i + 2]), num(e[i]));
     lines.push(row.join(","));
   }

@@ -4,7 +4,7 @@
  */
 import type { ExtractionResult } from "../extract/extract.js";
 import type { LengthUnit } from "../io/units.js";
-import { formatSI, formatNumber, formatArea, formatPoint, formatFieldStrength, formatLength, unitLabel } from "./si.js";
+import { formatSI, formatNumber, formatArea, formatPoint, formatFieldStrength, formatLength, unitLabel, digitsFor } from "./si.js";
 import { cautionsFor } from "./cautions.js";
 
 /** Lay out rows as columns; `right` marks right-aligned columns. */
@@ -26,6 +26,17 @@ export interface SummaryContext {
 export function extractionSummary(r: ExtractionResult, ctx: SummaryContext): string {
   const k = r.k;
   const out: string[] = [];
+  // Digits: capacitances, charges and energy carry as many as the Richardson estimate supports
+  // (per entry); without an estimate three, the accuracy a default mesh usually reaches.
+  const err = r.accuracy?.richardson.errorEstimate;
+  const cDigits = (v: number, e: number | undefined) => (err ? digitsFor(v, e) : 3);
+  const rowError = (i: number, weights?: ArrayLike<number>) => {
+    if (!err) return undefined;
+    let e = 0;
+    for (let j = 0; j < k; j++) e += err[i * k + j] * (weights ? Math.abs(weights[j]) : 1);
+    return e;
+  };
+  const potentialsAll = r.conductors.map((c) => c.potential);
   const unitNote = ctx.unitAssumed ? `${unitLabel(ctx.unit)} (assumed; set with --unit)` : unitLabel(ctx.unit);
   out.push(`sigmesh extract: ${ctx.source}`);
   out.push(`  ${k} conductor${k === 1 ? "" : "s"}, ${r.solver.panels} panels, length unit ${unitNote}, εr = ${formatNumber(r.relativePermittivity)}`);
@@ -53,42 +64,53 @@ export function extractionSummary(r: ExtractionResult, ctx: SummaryContext): str
   const rows = [["name", "triangles", "area", "closed", "potential", "charge", "peak |E|", "at", "E/Eb"]];
   for (const c of r.conductors) {
     rows.push([c.name, String(c.triangles), formatArea(c.area, ctx.unit), c.closed ? "yes" : "sheet", formatSI(c.potential, "V"),
-      c.floating ? "0 (floating)" : formatSI(c.charge, "C"), formatFieldStrength(c.peakField), formatPoint(c.peakFieldAt, ctx.unit, 3), formatNumber(c.fieldRatio, 3)]);
+      c.floating ? "0 (floating)" : formatSI(c.charge, "C", cDigits(c.charge, rowError(r.conductors.indexOf(c), potentialsAll))), formatFieldStrength(c.peakField), formatPoint(c.peakFieldAt, ctx.unit, 3), formatNumber(c.fieldRatio, 3)]);
   }
   out.push(...table(rows, [false, true, true, false, true, true, true, false, true]).map((l) => "  " + l));
   out.push("");
 
   out.push(`Maxwell capacitance matrix${r.accuracy ? " (extrapolated)" : ""}`);
   const mrows = [["", ...r.names]];
-  for (let i = 0; i < k; i++) mrows.push([r.names[i], ...Array.from({ length: k }, (_, j) => formatSI(r.maxwell[i * k + j], "F"))]);
+  for (let i = 0; i < k; i++) mrows.push([r.names[i], ...Array.from({ length: k }, (_, j) => formatSI(r.maxwell[i * k + j], "F", cDigits(r.maxwell[i * k + j], err?.[i * k + j])))]);
   out.push(...table(mrows, [false, ...r.names.map(() => true)]).map((l) => "  " + l));
   out.push("");
   out.push("Two-terminal capacitances (circuit values)");
   const crows: string[][] = [];
   const refName = r.reference === "ground plane" ? "ground plane" : "reference (infinity)";
-  for (let i = 0; i < k; i++) crows.push([`${r.names[i]} – ${refName}`, formatSI(r.mutual[i * k + i], "F")]);
-  for (let i = 0; i < k; i++) for (let j = i + 1; j < k; j++) crows.push([`${r.names[i]} – ${r.names[j]}`, formatSI(r.mutual[i * k + j], "F")]);
+  for (let i = 0; i < k; i++) crows.push([`${r.names[i]} – ${refName}`, formatSI(r.mutual[i * k + i], "F", cDigits(r.mutual[i * k + i], rowError(i)))]);
+  for (let i = 0; i < k; i++) for (let j = i + 1; j < k; j++) crows.push([`${r.names[i]} – ${r.names[j]}`, formatSI(r.mutual[i * k + j], "F", cDigits(r.mutual[i * k + j], err?.[i * k + j]))]);
   out.push(...table(crows, [false, true]).map((l) => "  " + l));
   out.push("");
   if (r.floatingNames.length > 0) {
     const m = r.reducedNames.length;
     out.push(`Maxwell matrix with the floating conductors (${r.floatingNames.join(", ")}) eliminated`);
     const rrows = [["", ...r.reducedNames]];
-    for (let i = 0; i < m; i++) rrows.push([r.reducedNames[i], ...Array.from({ length: m }, (_, j) => formatSI(r.reducedMaxwell[i * m + j], "F"))]);
+    for (let i = 0; i < m; i++) rrows.push([r.reducedNames[i], ...Array.from({ length: m }, (_, j) => formatSI(r.reducedMaxwell[i * m + j], "F", err ? digitsFor(r.reducedMaxwell[i * m + j], r.accuracy!.richardson.relativeError * Math.abs(r.reducedMaxwell[i * m + i])) : 3))]);
     out.push(...table(rrows, [false, ...r.reducedNames.map(() => true)]).map((l) => "  " + l));
     out.push("");
   }
-  out.push(`Stored energy at the working potentials: ${formatSI(r.energy, "J")}`);
+  let energyError: number | undefined;
+  if (err) {
+    energyError = 0;
+    for (let i = 0; i < k; i++) for (let j = 0; j < k; j++) energyError += 0.5 * err[i * k + j] * Math.abs(potentialsAll[i] * potentialsAll[j]);
+  }
+  out.push(`Stored energy at the working potentials: ${formatSI(r.energy, "J", cDigits(r.energy, energyError))}`);
+  // A net force far below energy / size is what is left of a sum of large, cancelling panel
+  // forces (an isolated sphere) after a solve to a relative residual of about 1e-6: not a
+  // force, and printed as such rather than as attonewtons.
+  const size = Math.sqrt(r.conductors.reduce((a, c) => a + c.area, 0));
+  const forceNoise = 1e-5 * Math.abs(r.energy) / Math.max(size, 1e-300);
   for (const c of r.conductors) {
     const f = Math.hypot(...c.force);
-    if (f > 0) out.push(`  force on ${c.name}: ${formatSI(f, "N")} along (${c.force.map((x) => formatNumber(x / f, 3)).join(", ")})`);
+    if (f > forceNoise) out.push(`  force on ${c.name}: ${formatSI(f, "N", 3)} along (${c.force.map((x) => formatNumber(x / f, 3)).join(", ")})`);
+    else if (r.energy !== 0) out.push(`  force on ${c.name}: none resolved (below ${formatSI(forceNoise, "N", 1)}, the resolution of the solve)`);
   }
   if (!r.forcesComplete) out.push("  (forces on open sheets are not included)");
   r.dielectric?.bodies.forEach((b, i) => {
     const f = r.dielectric!.forces[i];
     if (!f) return;
     const m = Math.hypot(...f);
-    if (m > 0) out.push(`  force on dielectric ${b.name}: ${formatSI(m, "N")} along (${f.map((x) => formatNumber(x / m, 3)).join(", ")})`);
+    if (m > forceNoise) out.push(`  force on dielectric ${b.name}: ${formatSI(m, "N", 3)} along (${f.map((x) => formatNumber(x / m, 3)).join(", ")})`);
   });
   out.push("");
 
@@ -96,9 +118,10 @@ export function extractionSummary(r: ExtractionResult, ctx: SummaryContext): str
     const a = r.accuracy;
     out.push(`Accuracy: estimated error ±${formatNumber(100 * a.richardson.relativeError, 2)} % of the largest entry in each row`);
     out.push(`  Richardson extrapolation over ${a.levels.map((l) => l.panels).join(" → ")} panels, order ${formatNumber(a.richardson.order, 3)} ${a.richardson.orderObserved ? "(observed)" : "(assumed; use --refine 2 to observe it)"}`);
-    if (r.solver.method === "galerkin") out.push(`  Galerkin values converge from below: the finest-mesh diagonal ${formatSI(a.levels[a.levels.length - 1].maxwell[0], "F")} is a lower bound for ${r.names[0]}`);
+    out.push("  capacitances, charges and energy are printed to the digits this estimate supports");
+    if (r.solver.method === "galerkin" && !r.dielectric) out.push(`  Galerkin values converge from below: the finest-mesh diagonal ${formatSI(a.levels[a.levels.length - 1].maxwell[0], "F")} is a lower bound for ${r.names[0]}`);
   } else {
-    out.push("Accuracy: not estimated (run with --refine 1 or more for a Richardson error estimate)");
+    out.push("Accuracy: not estimated (run with --refine 1 or more for a Richardson error estimate); values printed to 3 significant digits");
   }
   out.push("");
 

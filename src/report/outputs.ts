@@ -49,7 +49,11 @@ export function extractionOutputs(result: ExtractionResult, report: Record<strin
   const plots: Array<{ title: string; svg: string }> = [];
   if (req.spice) {
     // With floating conductors the circuit sees only the driven ones: the reduced matrix.
-    files.push({ path: req.spice, data: spiceSubcircuit(result.reducedNames, result.reducedMutual, { reference: result.reference, relativeThreshold: req.spiceThreshold, title }) });
+    files.push({ path: req.spice, data: spiceSubcircuit(result.reducedNames, result.reducedMutual, {
+      reference: result.reference, relativeThreshold: req.spiceThreshold, title, eliminated: result.floatingNames,
+      // Named after the file, so that several extracted netlists can be included in one deck.
+      subcktName: req.spice === "-" ? undefined : basename(req.spice, extname(req.spice)),
+    }) });
   }
   if (req.csv || req.markdown) {
     const data = reportData(JSON.parse(JSON.stringify(report, (_k, v) => (typeof v === "number" && !Number.isFinite(v) ? null : v))));
@@ -58,12 +62,14 @@ export function extractionOutputs(result: ExtractionResult, report: Record<strin
   }
   if (req.probes && req.probes.length > 0 && req.probeCsv) {
     const runs = runProbes(result, req.probes, unit);
+    // One header for all requests: the distance column when any is a line, i and j when any is a grid.
+    const columns = { distance: runs.some((r) => r.spec.kind === "line"), grid: runs.some((r) => r.spec.kind === "grid") };
     const parts = runs.map((r, i) => {
-      const text = probeCsv(r.spec, r.points, r.result, unit);
+      const text = probeCsv(r.spec, r.points, r.result, unit, columns);
       return i === 0 ? text : text.slice(text.indexOf("\n") + 1);
     });
     files.push({ path: req.probeCsv, data: parts.join("") });
-    const stem = join(dirname(req.probeCsv), basename(req.probeCsv, extname(req.probeCsv)));
+    const stem = req.probeCsv === "-" ? "probes" : join(dirname(req.probeCsv), basename(req.probeCsv, extname(req.probeCsv)));
     for (const r of runs) {
       if (r.spec.kind !== "line") continue;
       const d = distanceAlong(r.points), s = metresPer(unit);

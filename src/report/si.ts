@@ -40,7 +40,9 @@ export function formatSI(value: number, unit: string, digits = 4): string {
   const clamped = Math.min(hi, Math.max(lo, e3));
   const prefix = PREFIXES[(clamped - lo) / 3][1];
   const mant = value / 10 ** clamped;
-  const text = clamped === e3 ? mant.toPrecision(digits) : mant.toExponential(digits - 1);
+  let text = clamped === e3 ? mant.toPrecision(digits) : mant.toExponential(digits - 1);
+  // Fewer digits than the mantissa's integer part (157 to 1 digit): "200", not "2e+2".
+  if (clamped === e3 && text.includes("e")) text = String(Number(text));
   return `${text}${sep}${prefix}${unit}`;
 }
 
@@ -82,11 +84,22 @@ export function formatPoint(metres: ArrayLike<number>, unit: LengthUnit, digits 
 }
 
 /**
- * A field strength given in V/m, printed in kV/mm (= MV/m), the unit breakdown fields
- * are quoted in: formatFieldStrength(3.1e6) → "3.100 kV/mm". Weaker fields keep the
- * prefix scheme on V/m ("12.00 kV/m") so that small numbers stay readable.
+ * A field strength given in V/m, on V/m with an engineering prefix like every other SI value
+ * (formatFieldStrength(3.1e6) → "3.10 MV/m", 1 MV/m = 1 kV/mm, the unit breakdown fields are
+ * often quoted in). Three digits by default: a computed surface field is an estimate that
+ * depends on the mesh near edges, and more digits would claim what it does not know.
  */
-export function formatFieldStrength(voltsPerMetre: number, digits = 4): string {
-  if (Number.isFinite(voltsPerMetre) && Math.abs(voltsPerMetre) >= 1e5) return `${formatNumber(voltsPerMetre / 1e6, digits)} kV/mm`;
+export function formatFieldStrength(voltsPerMetre: number, digits = 3): string {
   return formatSI(voltsPerMetre, "V/m", digits);
+}
+
+/**
+ * Significant digits a value supports given its absolute error estimate: the last digit
+ * printed is the first uncertain one (digitsFor(352.4, 3.5) → 3, "352"). Clamped to [1, max];
+ * a zero or missing error gives `fallback`.
+ */
+export function digitsFor(value: number, absError: number | undefined, fallback = 3, max = 6): number {
+  if (absError === undefined || !Number.isFinite(absError) || absError <= 0 || !Number.isFinite(value) || value === 0) return fallback;
+  const d = Math.floor(Math.log10(Math.abs(value) / absError)) + 1;
+  return Math.min(max, Math.max(1, d));
 }

@@ -205,4 +205,41 @@ describe("sigmesh extract", () => {
       expect(readdirSync(dir).filter((f) => f.endsWith(".tmp"))).toEqual([]);
     });
   }
+
+  it("sends one output to standard output with -, the summary then to stderr; two are refused", () => {
+    const spice = run(["extract", join(dir, "anode.stl"), join(dir, "cathode.stl"), "--spice", "-"], dir);
+    expect(spice.code).toBe(0);
+    expect(spice.out).toMatch(/^\.SUBCKT /m);
+    expect(spice.err).toMatch(/Maxwell capacitance matrix/);
+    expect(existsSync(join(dir, "-"))).toBe(false);
+    const two = run(["extract", join(dir, "anode.stl"), "--spice", "-", "--csv", "-"], dir);
+    expect(two.code).toBe(2);
+    expect(two.err.trim().split("\n")).toHaveLength(1);
+    expect(two.err).toMatch(/--spice and --csv ask for standard output/);
+  });
+
+  it("names the subcircuit after the netlist file, so two netlists can share a deck", () => {
+    const out = join(dir, "decks");
+    const r = run(["extract", join(dir, "anode.stl"), join(dir, "cathode.stl"), "--spice", join(out, "pair-a.cir"), "--quiet"]);
+    expect(r.code).toBe(0);
+    expect(readFileSync(join(out, "pair-a.cir"), "utf8")).toMatch(/^\.SUBCKT pair_a /m);
+  });
+
+  it("probe requests of different kinds share one CSV header (distance, i, j empty where they do not apply)", () => {
+    const out = join(dir, "mixed");
+    const r = run(["extract", join(dir, "anode.stl"), join(dir, "cathode.stl"), "--potential", "anode=1",
+      "--probe", "gap=line:-2.5,0,0:2.5,0,0:3", "--probe", "top=point:0,0,10", "--probe", "plane=grid:-1,-1,8:2,0,0:0,2,0:2,2",
+      "--probe-csv", join(out, "p.csv"), "--quiet"]);
+    expect(r.code, r.err).toBe(0);
+    const rows = parseCsv(readFileSync(join(out, "p.csv"), "utf8"));
+    const h = rows[0];
+    expect(h).toContain("distance (mm)");
+    expect(h).toContain("i");
+    expect(rows.every((row) => row.length === h.length)).toBe(true);
+    const point = rows.find((row) => row[0] === "top")!;
+    expect(point[h.indexOf("distance (mm)")]).toBe("");
+    expect(Number(point[h.indexOf("z (mm)")])).toBe(10);
+    const grid = rows.filter((row) => row[0] === "plane");
+    expect(grid.map((row) => row[h.indexOf("j")])).toEqual(["0", "0", "1", "1"]);
+  });
 });

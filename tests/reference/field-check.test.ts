@@ -61,8 +61,8 @@ describe("field check per medium", () => {
       { name: "coat", relativePermittivity: er, breakdownField: 1e6 },
     ]);
     const text = extractionSummary(r, { unit: "m", unitAssumed: false, source: "test" });
-    expect(text).toMatch(/coated: peak .*; critical in coat \(1\.000 kV\/mm\)/);
-    expect(text).toMatch(/bare: peak .*; critical in background \(3\.000 kV\/mm\)/);
+    expect(text).toMatch(/coated: peak .*; critical in coat \(1\.00 MV\/m\)/);
+    expect(text).toMatch(/bare: peak .*; critical in background \(3\.00 MV\/m\)/);
     expect(text).toMatch(/Breakdown strengths of solid and liquid insulation/);
   });
 

@@ -1,11 +1,13 @@
 import { describe, it, expect } from "vitest";
-import { formatSI, formatLength, formatArea, formatPoint, formatFieldStrength, formatNumber } from "../../src/report/si.js";
+import { formatSI, formatLength, formatArea, formatPoint, formatFieldStrength, formatNumber, digitsFor } from "../../src/report/si.js";
 
 describe("formatSI", () => {
   it("uses engineering prefixes with significant digits", () => {
     expect(formatSI(12.345678e-12, "F")).toBe("12.35 pF");
     expect(formatSI(1e-12, "F")).toBe("1.000 pF");
     expect(formatSI(4.7e-9, "F", 2)).toBe("4.7 nF");
+    expect(formatSI(157e-18, "N", 1)).toBe("200 aN"); // never "2e+2 aN"
+    expect(formatSI(-352.4e-15, "F", 2)).toBe("-350 fF");
     expect(formatSI(3.3e6, "V/m")).toBe("3.300 MV/m");
     expect(formatSI(0.5, "C")).toBe("500.0 mC");
     expect(formatSI(1, "N")).toBe("1.000 N");
@@ -46,14 +48,27 @@ describe("lengths and fields in the user's unit", () => {
     expect(formatPoint([1e-3, -2e-3, 0], "mm")).toBe("(1.000, -2.000, 0.000) mm");
   });
 
-  it("formats field strengths in kV/mm", () => {
-    expect(formatFieldStrength(3.1e6)).toBe("3.100 kV/mm");
-    expect(formatFieldStrength(12e3)).toBe("12.00 kV/m");
+  it("formats field strengths on V/m with a prefix, three digits", () => {
+    expect(formatFieldStrength(3.1e6)).toBe("3.10 MV/m");
+    expect(formatFieldStrength(12.53e3)).toBe("12.5 kV/m");
+    expect(formatFieldStrength(999.9e3)).toBe("1.00 MV/m");
+    expect(formatFieldStrength(12e3)).toBe("12.0 kV/m");
   });
 
   it("switches to exponents for very large or small plain numbers", () => {
     expect(formatNumber(1.5e-7)).toBe("1.500e-7");
     expect(formatNumber(12345)).toBe("12350");
     expect(formatNumber(2.5e7)).toBe("2.500e+7");
+  });
+});
+
+describe("digits supported by an error estimate", () => {
+  it("print up to the first uncertain digit", () => {
+    expect(digitsFor(352.4, 3.5)).toBe(3);     // ±1 %: "352"
+    expect(digitsFor(352.4, 0.25)).toBe(4);    // ±0.07 %: "352.4"
+    expect(digitsFor(1.431e-16, 6e-14)).toBe(1); // error larger than the value: one digit at most
+    expect(digitsFor(1, 1e-12)).toBe(6);       // clamped
+    expect(digitsFor(5, undefined)).toBe(3);   // no estimate: the fallback
+    expect(digitsFor(5, 0, 4)).toBe(4);
   });
 });
