@@ -74,7 +74,7 @@ export function registerCheck(program: Command): void {
     .command("check")
     .description("check conductor meshes: closed or open, orientation, panel quality, and intersections, contacts and narrow gaps between conductors")
     .argument("<files...>", "mesh files (STL, OBJ, Gmsh MSH)")
-    .option("--unit <unit>", "length unit of the files: m, cm, mm, um, in, mil", DEFAULT_UNIT)
+    .option("--unit <unit>", "length unit of the files: m, cm, mm, um, in, mil (or spelled out: millimetre, micron, inch, thou, ...)", DEFAULT_UNIT)
     .option("--split", "make each connected component a conductor of its own")
     .option("--merge", "make all groups of a file one conductor")
     .option("--weld-tolerance <relative>", "weld vertices closer than this fraction of the bounding-box diagonal (default 1e-6)")

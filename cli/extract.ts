@@ -80,7 +80,7 @@ export function registerExtract(program: Command): void {
     .command("extract")
     .description("solve for the capacitance matrices, charges, surface fields, energy and forces of the conductors")
     .argument("<inputs...>", "a scene file (.json) or mesh files (STL, OBJ, Gmsh MSH) whose bodies are the conductors")
-    .option("--unit <unit>", "length unit of the mesh files: m, cm, mm, um, in, mil (default: the scene's, else mm)")
+    .option("--unit <unit>", "length unit of the mesh files: m, cm, mm, um, in, mil, or spelled out (default: the scene's, else mm)")
     .option("--potential <name=volts>", "working potential of a conductor (repeatable)", collect, [])
     .option("--method <method>", "discretisation: galerkin or collocation", "galerkin")
     .option("--solver <solver>", "auto, direct (dense factorisation), iterative (dense Krylov) or compressed (hierarchical low-rank + Krylov, for large models)", "auto")

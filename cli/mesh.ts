@@ -40,7 +40,7 @@ export function registerMesh(program: Command): void {
     .description("generate a boundary-element mesh of a simple conductor (closed shapes outward-oriented)");
   for (const [param, help] of PARAMETERS) cmd.option(`${flag(param)} <value>`, help);
   cmd
-    .option("--unit <unit>", "length unit of the parameters and the output file (m, cm, mm, um, in, mil)", DEFAULT_UNIT)
+    .option("--unit <unit>", "length unit of the parameters and the output file (m, cm, mm, um, in, mil, or spelled out)", DEFAULT_UNIT)
     .option("-o, --output <file>", "output mesh: .stl (binary), .obj, or - for ASCII STL on stdout")
     .option("--ascii", "write ASCII STL instead of binary")
     .option("-q, --quiet", "no summary line")
