@@ -226,14 +226,13 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
   const hTol = compressionTolerance(opts.tolerance);
   const url = new URL(import.meta.url.endsWith(".ts") ? "../bem/assembly.ts" : "../bem/assembly.js", import.meta.url).href;
 
-  progress("compression", 0);
   const t0 = performance.now();
   const H = await buildHMatrix(panels.centroids, { source: { module: url, name: "assembleBlock", before: [panels], after: [opts.method, preparedImages(panels, opts.kernel, true)] } }, {
     tolerance: hTol, leafSize, eta, symmetric: opts.method === "galerkin", pad: panels.radii, pool: opts.pool,
-    progress: (_phase, f) => progress("compression", f),
+    progress,
   });
   const t1 = performance.now();
-  progress("compression", 1);
+  progress("far field", 1);
 
   const B = sharedFloat64(n * k);
   for (let p = 0; p < n; p++) B[p * k + conductorOf[p]] = 1;
@@ -255,9 +254,15 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
     const tol = krylovTolerance(opts.tolerance);
     const apply = (X: Float64Array, Y: Float64Array, kk: number) => H.apply(X, Y, kk);
     const maxIter = Math.max(300, Math.ceil(4 * Math.sqrt(n)));
+    // Krylov residuals fall about geometrically: log(residual)/log(tol) advances steadily.
+    const monitor = (_it: number, res: Float64Array): void => {
+      let worst = 0;
+      for (let c = 0; c < res.length; c++) if (res[c] > worst) worst = res[c];
+      progress("solve", worst > 0 ? Math.min(0.99, Math.max(0, Math.log(worst) / Math.log(tol))) : 0.99);
+    };
     const res = opts.method === "galerkin"
-      ? await pcg(apply, precondition, B, k, { tol, maxIter, monitor: (it) => progress("solve", Math.min(0.99, it / 60)) })
-      : await gmres(apply, precondition, B, k, { tol, maxIter, monitor: (it) => progress("solve", Math.min(0.99, it / 60)) });
+      ? await pcg(apply, precondition, B, k, { tol, maxIter, monitor })
+      : await gmres(apply, precondition, B, k, { tol, maxIter, monitor });
     if (!res.converged) {
       throw new Error(`the compressed solver did not converge in ${res.iterations} iterations (residual ${Math.max(...res.residuals).toExponential(2)}); try a tighter --tol or --solver direct on a coarser mesh`);
     }

@@ -38,7 +38,8 @@ export interface HMatrixOptions {
   pad?: Float64Array;
   /** Worker pool for build and product; without one everything runs on this thread. */
   pool?: WorkerPool;
-  /** Called as chunks finish: phase "near field" / "far field", fraction done. */
+  /** Called as the work advances: phase "tree" (cluster and block trees), then "near field" and
+   *  "far field" (dense and low-rank blocks, as their chunks finish), fraction of the phase done. */
   progress?: (phase: string, fraction: number) => void;
 }
 
@@ -143,8 +144,8 @@ export class HMatrix {
           if (r < 0) x = data[off + i * nc + j];
           else {
             x = 0;
-            const uo = off + i * r, vo = off + m * r + j * r;
-            for (let q = 0; q < r; q++) x += data[uo + q] * data[vo + q];
+            const uo = off + i, vo = off + m * r + j;
+            for (let q = 0; q < r; q++) x += data[uo + q * m] * data[vo + q * nc];
           }
           D[(rs - s + i) * w + (cs - s + j)] = x;
           if (mirror) D[(cs - s + j) * w + (rs - s + i)] = x;
@@ -176,8 +177,10 @@ export async function buildHMatrix(points: Float64Array, entries: { source?: Ent
   const n = points.length / 3;
   const leafSize = opts.leafSize ?? 32, eta = opts.eta ?? 2;
   if (!(opts.tolerance > 0 && opts.tolerance < 1)) throw new RangeError(`compression tolerance must be in (0, 1), got ${opts.tolerance}`);
+  opts.progress?.("tree", 0);
   const tree = clusterPoints(points, leafSize);
   const bt = blockTree(tree, { eta, pad: opts.pad, symmetric: opts.symmetric });
+  opts.progress?.("tree", 1);
   const order = new Uint32Array(new SharedArrayBuffer(4 * Math.max(1, n)));
   order.set(tree.order);
 
@@ -198,16 +201,21 @@ export async function buildHMatrix(points: Float64Array, entries: { source?: Ent
   const chunks = splitJobs(cost, Math.max(1, Math.min(total, 24 * threads)));
 
   const built: BuiltChunk[] = new Array(chunks.length);
-  let doneCost = 0, allCost = 0;
-  for (let q = 0; q < total; q++) allCost += cost[q];
+  // Near jobs come first in the list and chunks are taken in order, so the near field
+  // finishes (nearly) before the far field starts: each phase reports its own fraction.
+  let doneNear = 0, doneFar = 0, nearCost = 0, farCost = 0;
+  for (let q = 0; q < nb; q++) nearCost += cost[q];
+  for (let q = nb; q < total; q++) farCost += cost[q];
   const chunkJobs = (c: number): Float64Array => {
     const list = chunks[c], j = new Float64Array(new SharedArrayBuffer(8 * Math.max(1, list.length * JOB_FIELDS)));
     for (let a = 0; a < list.length; a++) j.set(jobs.subarray(list[a] * JOB_FIELDS, (list[a] + 1) * JOB_FIELDS), a * JOB_FIELDS);
     return j.subarray(0, list.length * JOB_FIELDS);
   };
   const finished = (c: number): void => {
-    for (const q of chunks[c]) doneCost += cost[q];
-    opts.progress?.("compression", allCost > 0 ? doneCost / allCost : 1);
+    for (const q of chunks[c]) { if (q < nb) doneNear += cost[q]; else doneFar += cost[q]; }
+    if (!opts.progress) return;
+    if (doneNear < nearCost) opts.progress("near field", doneNear / nearCost);
+    else opts.progress("far field", farCost > 0 ? doneFar / farCost : 1);
   };
   if (opts.pool && entries.source) {
     const pool = opts.pool;
