@@ -19,7 +19,8 @@ import { clusterPoints, leafIndexSets } from "../linalg/cluster.js";
 import { denseMultiply } from "../linalg/dense.js";
 import { sharedFloat64, type WorkerPool } from "../linalg/pool.js";
 import { buildHMatrix, type HMatrix } from "../linalg/hmatrix.js";
-import { blockJacobiFromBlocks } from "../linalg/cluster-jacobi.js";
+import { parallelBlockJacobi, type AsyncBlockPreconditionerFn } from "../linalg/cluster-jacobi.js";
+import { twoLevelPreconditioner } from "../linalg/two-level.js";
 import type { ClusterTree } from "../linalg/cluster.js";
 import { assertDenseFits, assertCompressedFits, compressedBytes, peakResidentBytes } from "./memory.js";
 
@@ -36,6 +37,9 @@ export interface SolveOptions {
   memoryLimit?: number;
   /** Compressed solver: largest cluster of the block-Jacobi preconditioner (default PRECONDITIONER_CLUSTER). */
   preconditionerCluster?: number;
+  /** Compressed solver: aggregates of the two-level coarse correction, most panels each
+   *  (default COARSE_CLUSTER; 0 for one-level block-Jacobi only). */
+  coarseCluster?: number;
   /** Compressed solver: admissibility η (default 2) and leaf size (default 32). */
   eta?: number;
   leafSize?: number;
@@ -76,6 +80,10 @@ export interface SolveInfo {
   estimatedBytes?: number;
   /** Largest cluster of the block-Jacobi preconditioner. */
   preconditionerCluster?: number;
+  /** Aggregates of the two-level coarse correction (0: none). */
+  coarseAggregates?: number;
+  /** Seconds spent building the preconditioner (inside solveSeconds). */
+  preconditionerSeconds?: number;
   /** Peak resident memory of the process after the solve; bytes. */
   peakResidentBytes?: number;
 }
@@ -116,6 +124,13 @@ export const COMPRESSED_CROSSOVER = 8000;
 
 /** Largest cluster of the compressed solver's block-Jacobi preconditioner (measured: compressed bench). */
 export const PRECONDITIONER_CLUSTER = 256;
+/**
+ * Largest aggregate of the compressed solver's two-level coarse correction; 0 = off, the
+ * default. Measured on spheres (compressed bench, DEVELOPERS.md): aggregates of 32 panels
+ * save 2 of 17-22 iterations at 5k-80k panels but need an n/32 square coarse matrix (4096²
+ * and 8 s of setup at 80k, out of reach at 320k); aggregates of 256 save none.
+ */
+export const COARSE_CLUSTER = 0;
 
 /** Block accuracy of the compression for a requested accuracy of C (measured: compressed bench). */
 export function compressionTolerance(tolerance: number): number {
@@ -245,12 +260,30 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
   };
   progress("solve", 0);
   const t2 = performance.now();
+  let releaseJacobi: (() => Promise<void>) | undefined;
   try {
     const cluster = opts.preconditionerCluster ?? PRECONDITIONER_CLUSTER;
     const nodes = clusterCover(H.tree, Math.max(leafSize, cluster));
     const sets = nodes.map((v) => H.tree.order.slice(H.tree.start[v], H.tree.end[v]));
-    const precondition = blockJacobiFromBlocks(H.diagonalBlocks(nodes), sets, n, { lu: opts.method !== "galerkin" });
+    // Factored and applied on the workers: with many right-hand sides (a pad array) the
+    // block solves cost as much as the product with H.
+    const jacobi = await parallelBlockJacobi(H.diagonalBlocks(nodes), sets, n, opts.pool, { lu: opts.method !== "galerkin" });
+    releaseJacobi = jacobi.release;
+    let precondition: AsyncBlockPreconditionerFn = jacobi.apply;
     info.preconditionerCluster = cluster;
+    const coarseSize = opts.coarseCluster ?? COARSE_CLUSTER;
+    info.coarseAggregates = 0;
+    if (coarseSize > 0) {
+      const agg = clusterCover(H.tree, Math.max(leafSize, coarseSize));
+      // One aggregate is only a rescaling of the one-level method.
+      if (agg.length > 1) {
+        const aggregate = new Int32Array(n);
+        agg.forEach((v, a) => { for (let p = H.tree.start[v]; p < H.tree.end[v]; p++) aggregate[H.tree.order[p]] = a; });
+        precondition = await twoLevelPreconditioner(precondition, aggregate, agg.length, H.coarseMatrix(agg), { lu: opts.method !== "galerkin", pool: opts.pool });
+        info.coarseAggregates = agg.length;
+      }
+    }
+    info.preconditionerSeconds = (performance.now() - t2) / 1e3;
     const tol = krylovTolerance(opts.tolerance);
     const apply = (X: Float64Array, Y: Float64Array, kk: number) => H.apply(X, Y, kk);
     const maxIter = Math.max(300, Math.ceil(4 * Math.sqrt(n)));
@@ -274,6 +307,7 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
     progress("solve", 1);
     return { x: res.X, panels, info };
   } finally {
+    await releaseJacobi?.();
     await H.release();
   }
 }

@@ -154,6 +154,70 @@ export class HMatrix {
     return out;
   }
 
+  /**
+   * Galerkin coarse matrix Pᵀ·H·P for P the indicator columns of the given disjoint tree nodes
+   * covering all points (nc×nc row-major, nc = nodes.length): entry (a, b) is the sum of H over
+   * the rows of node a and the columns of node b. One pass over the stored blocks; a low-rank
+   * block contributes (1ᵀU)(Vᵀ1) per pair of nodes it spans.
+   */
+  coarseMatrix(nodes: ArrayLike<number>): Float64Array {
+    const t = this.tree, n = this.n, nc = nodes.length;
+    const owner = new Int32Array(n).fill(-1);
+    for (let a = 0; a < nc; a++) for (let p = t.start[nodes[a]]; p < t.end[nodes[a]]; p++) owner[p] = a;
+    for (let p = 0; p < n; p++) if (owner[p] < 0) throw new RangeError(`coarseMatrix: position ${p} is in none of the nodes`);
+    const C = new Float64Array(nc * nc);
+    const B = this.layout.blocks, bufs = this.layout.buffers, sym = this.blockTree.symmetric;
+    const maxRank = Math.max(1, this.layout.maxRank);
+    // Per block: the nodes its rows (columns) meet, in order, with their range ends.
+    let su = new Float64Array(16 * maxRank), sv = new Float64Array(16 * maxRank);
+    const rowNodes: number[] = [], colNodes: number[] = [];
+    const spans = (s0: number, e0: number, out: number[]): void => {
+      out.length = 0;
+      for (let p = s0; p < e0;) { const a = owner[p]; out.push(a); p = t.end[nodes[a]] < e0 ? t.end[nodes[a]] : e0; }
+    };
+    const add = (a: number, b: number, x: number, mirror: boolean): void => {
+      C[a * nc + b] += x;
+      if (mirror) C[b * nc + a] += x;
+    };
+    for (let blk = 0; blk < B.length / BLOCK_FIELDS; blk++) {
+      const o = blk * BLOCK_FIELDS;
+      const rs = B[o], re = B[o + 1], cs = B[o + 2], ce = B[o + 3], data = bufs[B[o + 4]], off = B[o + 5], r = B[o + 6];
+      const m = re - rs, w = ce - cs, mirror = sym && rs !== cs;
+      spans(rs, re, rowNodes); spans(cs, ce, colNodes);
+      if (r < 0) {
+        if (rowNodes.length === 1 && colNodes.length === 1) {
+          let x = 0;
+          for (let i = 0; i < m * w; i++) x += data[off + i];
+          add(rowNodes[0], colNodes[0], x, mirror);
+          continue;
+        }
+        for (let i = 0; i < m; i++) {
+          const a = owner[rs + i];
+          for (let j = 0; j < w; j++) add(a, owner[cs + j], data[off + i * w + j], mirror);
+        }
+        continue;
+      }
+      if (r === 0) continue;
+      const nr = rowNodes.length, ncl = colNodes.length;
+      if (su.length < nr * r) su = new Float64Array(nr * r);
+      if (sv.length < ncl * r) sv = new Float64Array(ncl * r);
+      su.fill(0, 0, nr * r); sv.fill(0, 0, ncl * r);
+      for (let q = 0; q < r; q++) {
+        let ai = 0;
+        for (let i = 0; i < m; i++) { if (owner[rs + i] !== rowNodes[ai]) ai++; su[ai * r + q] += data[off + q * m + i]; }
+        let bj = 0;
+        for (let j = 0; j < w; j++) { if (owner[cs + j] !== colNodes[bj]) bj++; sv[bj * r + q] += data[off + m * r + q * w + j]; }
+      }
+      for (let ai = 0; ai < nr; ai++)
+        for (let bj = 0; bj < ncl; bj++) {
+          let x = 0;
+          for (let q = 0; q < r; q++) x += su[ai * r + q] * sv[bj * r + q];
+          add(rowNodes[ai], colNodes[bj], x, mirror);
+        }
+    }
+    return C;
+  }
+
   /** Forget the copies installed in the workers (the shared data is freed with this object). */
   async release(): Promise<void> {
     if (!this.installed || !this.pool) return;
