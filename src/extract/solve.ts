@@ -234,8 +234,9 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
   opts: SolveOptions, choice: string): Promise<UnitSolution> {
   const n = conductorOf.length;
   const leafSize = opts.leafSize ?? 32, eta = opts.eta ?? 2;
-  const estimate = compressedBytes(n, k, leafSize);
-  assertCompressedFits(n, k, leafSize, opts.memoryLimit);
+  const pcCluster = Math.max(leafSize, opts.preconditionerCluster ?? PRECONDITIONER_CLUSTER);
+  const estimate = compressedBytes(n, k, leafSize, pcCluster);
+  assertCompressedFits(n, k, leafSize, opts.memoryLimit, pcCluster);
   const progress = opts.progress ?? (() => {});
   const panels = panelSetShared(positions, triangles);
   const hTol = compressionTolerance(opts.tolerance);
@@ -267,7 +268,7 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
     const sets = nodes.map((v) => H.tree.order.slice(H.tree.start[v], H.tree.end[v]));
     // Factored and applied on the workers: with many right-hand sides (a pad array) the
     // block solves cost as much as the product with H.
-    const jacobi = await parallelBlockJacobi(H.diagonalBlocks(nodes), sets, n, opts.pool, { lu: opts.method !== "galerkin" });
+    const jacobi = await parallelBlockJacobi((into) => { H.diagonalBlocks(nodes, into); }, sets, n, opts.pool, { lu: opts.method !== "galerkin" });
     releaseJacobi = jacobi.release;
     let precondition: AsyncBlockPreconditionerFn = jacobi.apply;
     info.preconditionerCluster = cluster;

@@ -82,20 +82,22 @@ function jacobiUrl(): string {
 
 /**
  * As blockJacobiFromBlocks, but the factorisation and every application run on `pool`'s
- * workers. `blocks` are copied into shared memory (they may be dropped afterwards). Call
- * `release` when done.
+ * workers. `blocks` are moved into shared memory (each entry of the list is replaced by an
+ * empty array once copied), or, given as a function, write each block straight into its
+ * place (`into[b]`, m_b² row-major), so no second copy is ever held. Call `release` when done.
  */
-export async function parallelBlockJacobi(blocks: Float64Array[], sets: Uint32Array[], n: number,
+export async function parallelBlockJacobi(blocks: Float64Array[] | ((into: Float64Array[]) => void), sets: Uint32Array[], n: number,
   pool: { size: number; runOn<T>(w: number, module: string, fn: string, args: unknown[]): Promise<T> },
   opts: { lu?: boolean } = {}): Promise<{ apply: AsyncBlockPreconditionerFn; release: () => Promise<void> }> {
-  const nb = blocks.length;
+  const nb = sets.length;
+  if (Array.isArray(blocks) && blocks.length !== nb) throw new RangeError(`${blocks.length} diagonal blocks for ${nb} index sets`);
   const offsets = new Float64Array(new SharedArrayBuffer(8 * (nb + 1)));
   const istart = new Float64Array(new SharedArrayBuffer(8 * (nb + 1)));
   const covered = new Uint8Array(n);
   let total = 0, count = 0;
   for (let b = 0; b < nb; b++) {
     const I = sets[b], m = I.length;
-    if (blocks[b].length < m * m) throw new RangeError(`diagonal block ${b} holds ${blocks[b].length} values, need ${m}×${m}`);
+    if (Array.isArray(blocks) && blocks[b].length < m * m) throw new RangeError(`diagonal block ${b} holds ${blocks[b].length} values, need ${m}×${m}`);
     for (let a = 0; a < m; a++) {
       if (I[a] >= n || covered[I[a]]) throw new RangeError(`index ${I[a]} of block ${b} is outside 0..${n - 1} or in two blocks`);
       covered[I[a]] = 1;
@@ -106,7 +108,11 @@ export async function parallelBlockJacobi(blocks: Float64Array[], sets: Uint32Ar
   offsets[nb] = total; istart[nb] = count;
   const factors = new Float64Array(new SharedArrayBuffer(8 * Math.max(1, total)));
   const index = new Uint32Array(new SharedArrayBuffer(4 * Math.max(1, count)));
-  for (let b = 0; b < nb; b++) { factors.set(blocks[b].subarray(0, sets[b].length ** 2), offsets[b]); index.set(sets[b], istart[b]); }
+  for (let b = 0; b < nb; b++) index.set(sets[b], istart[b]);
+  if (Array.isArray(blocks)) {
+    // Each block is dropped from the caller's list once copied, so the two copies never coexist whole.
+    for (let b = 0; b < nb; b++) { factors.set(blocks[b].subarray(0, sets[b].length ** 2), offsets[b]); blocks[b] = new Float64Array(0); }
+  } else blocks(Array.from({ length: nb }, (_, b) => factors.subarray(offsets[b], offsets[b + 1])));
   const pivots = new Int32Array(new SharedArrayBuffer(4 * Math.max(1, count)));
   const kind = new Uint8Array(new SharedArrayBuffer(Math.max(1, nb)));
   // Contiguous shares of about equal m² (the cost of both the solve and, as m³, roughly the factorisation).

@@ -118,16 +118,17 @@ export class HMatrix {
   /**
    * Dense diagonal blocks over the given disjoint tree nodes (each |node|² row-major, rows
    * and columns in tree order, i.e. original indices order[start..end)), expanded from the
-   * stored blocks that lie inside them.
+   * stored blocks that lie inside them; written into `into` when given (every entry is set).
    */
-  diagonalBlocks(nodes: ArrayLike<number>): Float64Array[] {
+  diagonalBlocks(nodes: ArrayLike<number>, into?: Float64Array[]): Float64Array[] {
     const t = this.tree, n = this.n;
     const owner = new Int32Array(n).fill(-1);
     const out: Float64Array[] = [];
     for (let a = 0; a < nodes.length; a++) {
-      const v = nodes[a], s = t.start[v], e = t.end[v];
+      const v = nodes[a], s = t.start[v], e = t.end[v], size = (e - s) * (e - s);
       for (let p = s; p < e; p++) owner[p] = a;
-      out.push(new Float64Array((e - s) * (e - s)));
+      if (into && into[a].length < size) throw new RangeError(`diagonalBlocks: output ${a} holds ${into[a].length} values, need ${size}`);
+      out.push(into ? into[a] : new Float64Array(size));
     }
     const B = this.layout.blocks, bufs = this.layout.buffers, sym = this.blockTree.symmetric;
     for (let b = 0; b < B.length / BLOCK_FIELDS; b++) {

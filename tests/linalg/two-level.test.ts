@@ -83,6 +83,12 @@ describe("block-Jacobi on the workers", () => {
       serial(R, Z1, k);
       await par.apply(R, Z2, k);
       for (let i = 0; i < n * k; i++) expect(Z2[i]).toBeCloseTo(Z1[i], 12);
+      // Blocks written in place by a callback: the same preconditioner.
+      const inPlace = await parallelBlockJacobi((into) => { blocks().forEach((D, b) => into[b].set(D)); }, sets, n, pool);
+      const Z3 = sharedFloat64(n * k);
+      await inPlace.apply(R, Z3, k);
+      for (let i = 0; i < n * k; i++) expect(Z3[i]).toBe(Z2[i]);
+      await inPlace.release();
       // Free unknowns pass through.
       expect(Z2[perm[n - 1] * k]).toBe(R[perm[n - 1] * k]);
       await par.release();
