@@ -5,8 +5,8 @@ import { pcg } from "../../src/linalg/cg.js";
 import { sharedFloat64 } from "../../src/linalg/pool.js";
 import { rng } from "./random.js";
 
-// A 1D model with the single layer's trouble: the SPD matrix A_ij = 1/(|x_i − x_j| + h) on n
-// points, a discrete 1/r kernel whose strong global coupling one-level block-Jacobi misses.
+// A 1D model of a single-layer matrix: A_ij = h/(|x_i − x_j| + h) on n points, a discrete 1/r
+// kernel, symmetric positive definite (the Galerkin structure the preconditioner is built for).
 function model(n: number): Float64Array {
   const A = new Float64Array(n * n), h = 1 / n;
   for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) A[i * n + j] = h / (Math.abs(i - j) * h + h);
