@@ -19,7 +19,7 @@ import { clusterPoints, leafIndexSets } from "../linalg/cluster.js";
 import { denseMultiply } from "../linalg/dense.js";
 import { sharedFloat64, type WorkerPool } from "../linalg/pool.js";
 import { buildHMatrix, type HMatrix } from "../linalg/hmatrix.js";
-import { parallelBlockJacobi, type AsyncBlockPreconditionerFn } from "../linalg/cluster-jacobi.js";
+import { blockJacobiFromBlocks, parallelBlockJacobi, type AsyncBlockPreconditionerFn } from "../linalg/cluster-jacobi.js";
 import { twoLevelPreconditioner } from "../linalg/two-level.js";
 import type { ClusterTree } from "../linalg/cluster.js";
 import { assertDenseFits, assertCompressedFits, compressedBytes, peakResidentBytes } from "./memory.js";
