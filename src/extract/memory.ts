@@ -32,16 +32,18 @@ export function peakResidentBytes(): number {
 }
 
 /**
- * Bytes the compressed path needs for n panels, k conductors and leaves of `leafSize`:
- * c·N log N for the operator (near field ~ N·leaf·NEAR_LEAVES/2 numbers for the symmetric
+ * Bytes the compressed path needs for n panels, k conductors, leaves of `leafSize` and
+ * block-Jacobi clusters of `cluster` panels: c·N log N for the operator (near field ~ N·leaf·NEAR_LEAVES/2 numbers for the symmetric
  * Galerkin matrix, far field ~ FAR_PER_LEVEL·N numbers per tree level), panel data, the
- * Krylov blocks (about 12 n×k) and the per-worker product copies. Constants measured on
+ * Krylov blocks (about 12 n×k), the per-worker product copies and the preconditioner's factors. Constants measured on
  * spheres and pad arrays by tests/bench/compressed.bench.mjs.
  */
-export function compressedBytes(n: number, k: number, leafSize = 32): number {
+export function compressedBytes(n: number, k: number, leafSize = 32, cluster = 256): number {
   const levels = Math.max(1, Math.log2(Math.max(2, n / leafSize)));
   const operator = 8 * n * (NEAR_PER_PANEL * leafSize + FAR_PER_LEVEL * levels);
-  return operator + 8 * n * 60 + 8 * n * k * 16;
+  // The block-Jacobi factors: one cluster² block per cluster, n·cluster numbers.
+  const preconditioner = 8 * n * Math.min(n, cluster);
+  return operator + preconditioner + 8 * n * 60 + 8 * n * k * 16;
 }
 /** Near-field numbers per panel per unit of leaf size (measured). */
 const NEAR_PER_PANEL = 12;
@@ -49,8 +51,8 @@ const NEAR_PER_PANEL = 12;
 const FAR_PER_LEVEL = 60;
 
 /** Stop before building when even the compressed operator cannot fit. */
-export function assertCompressedFits(n: number, k: number, leafSize = 32, limit = usableMemory()): void {
-  const need = compressedBytes(n, k, leafSize);
+export function assertCompressedFits(n: number, k: number, leafSize = 32, limit = usableMemory(), cluster = 256): void {
+  const need = compressedBytes(n, k, leafSize, cluster);
   if (need > limit) {
     throw new InputError(
       `the compressed operator for ${n} panels needs about ${(need / 2 ** 30).toFixed(1)} GiB but only ${(limit / 2 ** 30).toFixed(1)} GiB is free: use a coarser mesh (fewer panels)`,

@@ -19,7 +19,8 @@ import { clusterPoints, leafIndexSets } from "../linalg/cluster.js";
 import { denseMultiply } from "../linalg/dense.js";
 import { sharedFloat64, type WorkerPool } from "../linalg/pool.js";
 import { buildHMatrix, type HMatrix } from "../linalg/hmatrix.js";
-import { blockJacobiFromBlocks } from "../linalg/cluster-jacobi.js";
+import { blockJacobiFromBlocks, parallelBlockJacobi, type AsyncBlockPreconditionerFn } from "../linalg/cluster-jacobi.js";
+import { twoLevelPreconditioner } from "../linalg/two-level.js";
 import type { ClusterTree } from "../linalg/cluster.js";
 import { assertDenseFits, assertCompressedFits, compressedBytes, peakResidentBytes } from "./memory.js";
 
@@ -36,6 +37,9 @@ export interface SolveOptions {
   memoryLimit?: number;
   /** Compressed solver: largest cluster of the block-Jacobi preconditioner (default PRECONDITIONER_CLUSTER). */
   preconditionerCluster?: number;
+  /** Compressed solver: aggregates of the two-level coarse correction, most panels each
+   *  (default COARSE_CLUSTER; 0 for one-level block-Jacobi only). */
+  coarseCluster?: number;
   /** Compressed solver: admissibility η (default 2) and leaf size (default 32). */
   eta?: number;
   leafSize?: number;
@@ -76,6 +80,10 @@ export interface SolveInfo {
   estimatedBytes?: number;
   /** Largest cluster of the block-Jacobi preconditioner. */
   preconditionerCluster?: number;
+  /** Aggregates of the two-level coarse correction (0: none). */
+  coarseAggregates?: number;
+  /** Seconds spent building the preconditioner (inside solveSeconds). */
+  preconditionerSeconds?: number;
   /** Peak resident memory of the process after the solve; bytes. */
   peakResidentBytes?: number;
 }
@@ -116,6 +124,13 @@ export const COMPRESSED_CROSSOVER = 8000;
 
 /** Largest cluster of the compressed solver's block-Jacobi preconditioner (measured: compressed bench). */
 export const PRECONDITIONER_CLUSTER = 256;
+/**
+ * Largest aggregate of the compressed solver's two-level coarse correction; 0 = off, the
+ * default. Measured on spheres (compressed bench, DEVELOPERS.md): aggregates of 32 panels
+ * save 2 of 17-22 iterations at 5k-80k panels but need an n/32 square coarse matrix (4096²
+ * and 8 s of setup at 80k, out of reach at 320k); aggregates of 256 save none.
+ */
+export const COARSE_CLUSTER = 0;
 
 /** Block accuracy of the compression for a requested accuracy of C (measured: compressed bench). */
 export function compressionTolerance(tolerance: number): number {
@@ -219,21 +234,21 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
   opts: SolveOptions, choice: string): Promise<UnitSolution> {
   const n = conductorOf.length;
   const leafSize = opts.leafSize ?? 32, eta = opts.eta ?? 2;
-  const estimate = compressedBytes(n, k, leafSize);
-  assertCompressedFits(n, k, leafSize, opts.memoryLimit);
+  const pcCluster = Math.max(leafSize, opts.preconditionerCluster ?? PRECONDITIONER_CLUSTER);
+  const estimate = compressedBytes(n, k, leafSize, pcCluster);
+  assertCompressedFits(n, k, leafSize, opts.memoryLimit, pcCluster);
   const progress = opts.progress ?? (() => {});
   const panels = panelSetShared(positions, triangles);
   const hTol = compressionTolerance(opts.tolerance);
   const url = new URL(import.meta.url.endsWith(".ts") ? "../bem/assembly.ts" : "../bem/assembly.js", import.meta.url).href;
 
-  progress("compression", 0);
   const t0 = performance.now();
   const H = await buildHMatrix(panels.centroids, { source: { module: url, name: "assembleBlock", before: [panels], after: [opts.method, preparedImages(panels, opts.kernel, true)] } }, {
     tolerance: hTol, leafSize, eta, symmetric: opts.method === "galerkin", pad: panels.radii, pool: opts.pool,
-    progress: (_phase, f) => progress("compression", f),
+    progress,
   });
   const t1 = performance.now();
-  progress("compression", 1);
+  progress("far field", 1);
 
   const B = sharedFloat64(n * k);
   for (let p = 0; p < n; p++) B[p * k + conductorOf[p]] = 1;
@@ -246,18 +261,42 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
   };
   progress("solve", 0);
   const t2 = performance.now();
+  let releaseJacobi: (() => Promise<void>) | undefined;
   try {
     const cluster = opts.preconditionerCluster ?? PRECONDITIONER_CLUSTER;
     const nodes = clusterCover(H.tree, Math.max(leafSize, cluster));
     const sets = nodes.map((v) => H.tree.order.slice(H.tree.start[v], H.tree.end[v]));
-    const precondition = blockJacobiFromBlocks(H.diagonalBlocks(nodes), sets, n, { lu: opts.method !== "galerkin" });
+    // Factored and applied on the workers: with many right-hand sides (a pad array) the
+    // block solves cost as much as the product with H.
+    const jacobi = await parallelBlockJacobi((into) => { H.diagonalBlocks(nodes, into); }, sets, n, opts.pool, { lu: opts.method !== "galerkin" });
+    releaseJacobi = jacobi.release;
+    let precondition: AsyncBlockPreconditionerFn = jacobi.apply;
     info.preconditionerCluster = cluster;
+    const coarseSize = opts.coarseCluster ?? COARSE_CLUSTER;
+    info.coarseAggregates = 0;
+    if (coarseSize > 0) {
+      const agg = clusterCover(H.tree, Math.max(leafSize, coarseSize));
+      // One aggregate is only a rescaling of the one-level method.
+      if (agg.length > 1) {
+        const aggregate = new Int32Array(n);
+        agg.forEach((v, a) => { for (let p = H.tree.start[v]; p < H.tree.end[v]; p++) aggregate[H.tree.order[p]] = a; });
+        precondition = await twoLevelPreconditioner(precondition, aggregate, agg.length, H.coarseMatrix(agg), { lu: opts.method !== "galerkin", pool: opts.pool });
+        info.coarseAggregates = agg.length;
+      }
+    }
+    info.preconditionerSeconds = (performance.now() - t2) / 1e3;
     const tol = krylovTolerance(opts.tolerance);
     const apply = (X: Float64Array, Y: Float64Array, kk: number) => H.apply(X, Y, kk);
     const maxIter = Math.max(300, Math.ceil(4 * Math.sqrt(n)));
+    // Krylov residuals fall about geometrically: log(residual)/log(tol) advances steadily.
+    const monitor = (_it: number, res: Float64Array): void => {
+      let worst = 0;
+      for (let c = 0; c < res.length; c++) if (res[c] > worst) worst = res[c];
+      progress("solve", worst > 0 ? Math.min(0.99, Math.max(0, Math.log(worst) / Math.log(tol))) : 0.99);
+    };
     const res = opts.method === "galerkin"
-      ? await pcg(apply, precondition, B, k, { tol, maxIter, monitor: (it) => progress("solve", Math.min(0.99, it / 60)) })
-      : await gmres(apply, precondition, B, k, { tol, maxIter, monitor: (it) => progress("solve", Math.min(0.99, it / 60)) });
+      ? await pcg(apply, precondition, B, k, { tol, maxIter, monitor })
+      : await gmres(apply, precondition, B, k, { tol, maxIter, monitor });
     if (!res.converged) {
       throw new Error(`the compressed solver did not converge in ${res.iterations} iterations (residual ${Math.max(...res.residuals).toExponential(2)}); try a tighter --tol or --solver direct on a coarser mesh`);
     }
@@ -269,6 +308,7 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
     progress("solve", 1);
     return { x: res.X, panels, info };
   } finally {
+    await releaseJacobi?.();
     await H.release();
   }
 }

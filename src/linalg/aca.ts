@@ -15,7 +15,7 @@
  * block dense.
  */
 
-import { recompress } from "./low-rank.js";
+import { recompress, recompressFromGram, GRAM_TOLERANCE_FLOOR } from "./low-rank.js";
 
 /** Fill out[0..n) with row i (0..m) of the block. */
 export type BlockRow = (i: number, out: Float64Array) => void;
@@ -25,6 +25,23 @@ export type BlockColumn = (j: number, out: Float64Array) => void;
 // Scratch per thread, grown on demand.
 let refRow = new Float64Array(0), refCol = new Float64Array(0);
 let usedRow = new Uint8Array(0), usedCol = new Uint8Array(0);
+
+/**
+ * Gram matrices of the factors of the last `aca` call, packed lower triangle by rows
+ * (entry (q, p), p ≤ q, at q(q+1)/2 + p): gramU = UᵀU, gramV = VᵀV. The stopping rule needs
+ * these inner products anyway, so keeping them makes the recompression's orthogonalisation
+ * free (low-rank.ts recompressFromGram).
+ */
+export let gramU = new Float64Array(0), gramV = new Float64Array(0);
+
+function growGram(rank: number): void {
+  const need = ((rank + 1) * (rank + 2)) / 2;
+  if (gramU.length >= need) return;
+  const size = Math.max(need, 2 * gramU.length, 64);
+  const a = new Float64Array(size), b = new Float64Array(size);
+  a.set(gramU); b.set(gramV);
+  gramU = a; gramV = b;
+}
 
 /**
  * ACA+ of the m×n block to relative accuracy `tol`. Terms go to u (term q at q·m) and
@@ -102,12 +119,16 @@ export function aca(m: number, n: number, row: BlockRow, col: BlockColumn, tol: 
     for (let b = 0; b < n; b++) vn += v[vq + b] * v[vq + b];
     // ‖S_q‖² = ‖S_{q−1}‖² + 2 Σ_p (u_p·u_q)(v_p·v_q) + ‖u_q‖²‖v_q‖².
     let cross = 0;
+    growGram(rank);
+    const g0 = (rank * (rank + 1)) / 2;
     for (let p = 0; p < rank; p++) {
       let du = 0, dv = 0;
       for (let a = 0; a < m; a++) du += u[p * m + a] * u[uq + a];
       for (let b = 0; b < n; b++) dv += v[p * n + b] * v[vq + b];
+      gramU[g0 + p] = du; gramV[g0 + p] = dv;
       cross += du * dv;
     }
+    gramU[g0 + rank] = un; gramV[g0 + rank] = vn;
     frob2 += 2 * cross + un * vn;
     rank++;
     // Keep the references residual: subtract the new term.
@@ -151,7 +172,7 @@ export const RECOMPRESSION_SHARE = 0.5;
 
 /**
  * Low-rank approximation of an m×n block to relative Frobenius accuracy `tol`: ACA+ then
- * recompression. U (m×r row-major) then V (n×r row-major) are written to out at `off`;
+ * recompression. U (m×r) then V (n×r), column-major (term by term), are written to out at `off`;
  * u and v are scratch for maxRank terms. Returns r, or −1 when maxRank ACA terms did not
  * reach the tolerance (store the block dense).
  */
@@ -159,5 +180,9 @@ export function compressBlock(m: number, n: number, row: BlockRow, col: BlockCol
   u: Float64Array, v: Float64Array, out: Float64Array, off: number): number {
   const r = aca(m, n, row, col, ACA_SHARE * tol, maxRank, u, v);
   if (r < 0) return -1;
-  return recompress(u, v, m, n, r, RECOMPRESSION_SHARE * tol, out, off, out, -1);
+  const rtol = RECOMPRESSION_SHARE * tol;
+  if (r <= 1) return recompress(u, v, m, n, r, rtol, out, off, out, -1);
+  return rtol >= GRAM_TOLERANCE_FLOOR
+    ? recompressFromGram(u, v, m, n, r, gramU, gramV, rtol, out, off)
+    : recompress(u, v, m, n, r, rtol, out, off, out, -1);
 }

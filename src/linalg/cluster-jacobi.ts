@@ -49,3 +49,133 @@ export function blockJacobiFromBlocks(blocks: Float64Array[], sets: Uint32Array[
     }
   };
 }
+
+/** Z = M⁻¹·R for n×k row-major blocks in shared memory, possibly on the workers. */
+export type AsyncBlockPreconditionerFn = (R: Float64Array, Z: Float64Array, k: number) => Promise<void>;
+
+/**
+ * Block-Jacobi preconditioner stored in shared memory: every block's factor packed in one
+ * buffer, factored and applied on the pool's workers, each taking a contiguous share of the
+ * blocks of about equal m² (the sets are disjoint, so the workers write disjoint rows of Z).
+ */
+export interface SharedBlockJacobi {
+  /** Factors, block b at offsets[b] (m_b² numbers). */
+  factors: Float64Array;
+  offsets: Float64Array;
+  /** Unknowns of block b: index[istart[b] .. istart[b + 1]). */
+  index: Uint32Array;
+  istart: Float64Array;
+  /** LU pivots of block b at istart[b] (unused for Cholesky blocks); kind 1 = LU, 0 = Cholesky. */
+  pivots: Int32Array;
+  kind: Uint8Array;
+  /** Worker w applies blocks parts[w] .. parts[w + 1]. */
+  parts: Float64Array;
+  lu: boolean;
+}
+
+let nextJacobiId = 1;
+const installedJacobi = new Map<number, SharedBlockJacobi>();
+
+function jacobiUrl(): string {
+  return new URL(import.meta.url.endsWith(".ts") ? "./cluster-jacobi.ts" : "./cluster-jacobi.js", import.meta.url).href;
+}
+
+/**
+ * As blockJacobiFromBlocks, but the factorisation and every application run on `pool`'s
+ * workers. `blocks` are moved into shared memory (each entry of the list is replaced by an
+ * empty array once copied), or, given as a function, write each block straight into its
+ * place (`into[b]`, m_b² row-major), so no second copy is ever held. Call `release` when done.
+ */
+export async function parallelBlockJacobi(blocks: Float64Array[] | ((into: Float64Array[]) => void), sets: Uint32Array[], n: number,
+  pool: { size: number; runOn<T>(w: number, module: string, fn: string, args: unknown[]): Promise<T> },
+  opts: { lu?: boolean } = {}): Promise<{ apply: AsyncBlockPreconditionerFn; release: () => Promise<void> }> {
+  const nb = sets.length;
+  if (Array.isArray(blocks) && blocks.length !== nb) throw new RangeError(`${blocks.length} diagonal blocks for ${nb} index sets`);
+  const offsets = new Float64Array(new SharedArrayBuffer(8 * (nb + 1)));
+  const istart = new Float64Array(new SharedArrayBuffer(8 * (nb + 1)));
+  const covered = new Uint8Array(n);
+  let total = 0, count = 0;
+  for (let b = 0; b < nb; b++) {
+    const I = sets[b], m = I.length;
+    if (Array.isArray(blocks) && blocks[b].length < m * m) throw new RangeError(`diagonal block ${b} holds ${blocks[b].length} values, need ${m}×${m}`);
+    for (let a = 0; a < m; a++) {
+      if (I[a] >= n || covered[I[a]]) throw new RangeError(`index ${I[a]} of block ${b} is outside 0..${n - 1} or in two blocks`);
+      covered[I[a]] = 1;
+    }
+    offsets[b] = total; istart[b] = count;
+    total += m * m; count += m;
+  }
+  offsets[nb] = total; istart[nb] = count;
+  const factors = new Float64Array(new SharedArrayBuffer(8 * Math.max(1, total)));
+  const index = new Uint32Array(new SharedArrayBuffer(4 * Math.max(1, count)));
+  for (let b = 0; b < nb; b++) index.set(sets[b], istart[b]);
+  if (Array.isArray(blocks)) {
+    // Each block is dropped from the caller's list once copied, so the two copies never coexist whole.
+    for (let b = 0; b < nb; b++) { factors.set(blocks[b].subarray(0, sets[b].length ** 2), offsets[b]); blocks[b] = new Float64Array(0); }
+  } else blocks(Array.from({ length: nb }, (_, b) => factors.subarray(offsets[b], offsets[b + 1])));
+  const pivots = new Int32Array(new SharedArrayBuffer(4 * Math.max(1, count)));
+  const kind = new Uint8Array(new SharedArrayBuffer(Math.max(1, nb)));
+  // Contiguous shares of about equal m² (the cost of both the solve and, as m³, roughly the factorisation).
+  const threads = Math.max(1, pool.size);
+  const parts = new Float64Array(new SharedArrayBuffer(8 * (threads + 1)));
+  for (let w = 1, b = 0, acc = 0; w < threads; w++) {
+    while (b < nb && acc < (total * w) / threads) { acc += offsets[b + 1] - offsets[b]; b++; }
+    parts[w] = b;
+  }
+  parts[threads] = nb;
+  const layout: SharedBlockJacobi = { factors, offsets, index, istart, pivots, kind, parts, lu: !!opts.lu };
+  const id = nextJacobiId++, url = jacobiUrl();
+  await Promise.all(Array.from({ length: threads }, (_, w) => pool.runOn(w, url, "clusterJacobiInstallTask", [id, w, layout])));
+  const free: number[] = [];
+  for (let i = 0; i < n; i++) if (!covered[i]) free.push(i);
+  const freeRows = Uint32Array.from(free);
+  return {
+    apply: async (R, Z, k) => {
+      for (let a = 0; a < freeRows.length; a++) { const r = freeRows[a] * k; for (let c = 0; c < k; c++) Z[r + c] = R[r + c]; }
+      await Promise.all(Array.from({ length: threads }, (_, w) => pool.runOn(w, url, "clusterJacobiApplyTask", [id, w, R, Z, k])));
+    },
+    release: async () => {
+      await Promise.all(Array.from({ length: threads }, (_, w) => pool.runOn(w, url, "clusterJacobiReleaseTask", [id])));
+    },
+  };
+}
+
+/** Worker task: keep the layout and factor this worker's share of the blocks in place. */
+export function clusterJacobiInstallTask(id: number, part: number, L: SharedBlockJacobi): number {
+  installedJacobi.set(id, L);
+  const b0 = L.parts[part], b1 = L.parts[part + 1];
+  for (let b = b0; b < b1; b++) {
+    const o = L.offsets[b], m = L.istart[b + 1] - L.istart[b];
+    const D = L.factors.subarray(o, o + m * m);
+    if (!L.lu) {
+      const copy = D.slice();
+      try { choleskyFactorSerial(D, m); L.kind[b] = 0; continue; }
+      catch (e) { if (!(e instanceof NotPositiveDefiniteError)) throw e; D.set(copy); }
+    }
+    L.pivots.set(luFactorSerial(D, m), L.istart[b]);
+    L.kind[b] = 1;
+  }
+  return b1 - b0;
+}
+
+export function clusterJacobiReleaseTask(id: number): boolean {
+  return installedJacobi.delete(id);
+}
+
+let Wj = new Float64Array(0);
+
+/** Worker task: Z rows of this worker's blocks = D_b⁻¹·R rows. */
+export function clusterJacobiApplyTask(id: number, part: number, R: Float64Array, Z: Float64Array, k: number): number {
+  const L = installedJacobi.get(id);
+  if (!L) throw new Error(`block-Jacobi preconditioner ${id} is not installed in this worker`);
+  const b0 = L.parts[part], b1 = L.parts[part + 1];
+  for (let b = b0; b < b1; b++) {
+    const s = L.istart[b], m = L.istart[b + 1] - s, o = L.offsets[b];
+    if (Wj.length < m * k) Wj = new Float64Array(m * k);
+    for (let a = 0; a < m; a++) { const r = L.index[s + a] * k; for (let c = 0; c < k; c++) Wj[a * k + c] = R[r + c]; }
+    const D = L.factors.subarray(o, o + m * m);
+    if (L.kind[b] === 0) choleskySolve(D, m, Wj, k); else luSolve(D, L.pivots.subarray(s, s + m), m, Wj, k);
+    for (let a = 0; a < m; a++) { const r = L.index[s + a] * k; for (let c = 0; c < k; c++) Z[r + c] = Wj[a * k + c]; }
+  }
+  return b1 - b0;
+}

@@ -38,7 +38,8 @@ export interface HMatrixOptions {
   pad?: Float64Array;
   /** Worker pool for build and product; without one everything runs on this thread. */
   pool?: WorkerPool;
-  /** Called as chunks finish: phase "near field" / "far field", fraction done. */
+  /** Called as the work advances: phase "tree" (cluster and block trees), then "near field" and
+   *  "far field" (dense and low-rank blocks, as their chunks finish), fraction of the phase done. */
   progress?: (phase: string, fraction: number) => void;
 }
 
@@ -117,16 +118,17 @@ export class HMatrix {
   /**
    * Dense diagonal blocks over the given disjoint tree nodes (each |node|² row-major, rows
    * and columns in tree order, i.e. original indices order[start..end)), expanded from the
-   * stored blocks that lie inside them.
+   * stored blocks that lie inside them; written into `into` when given (every entry is set).
    */
-  diagonalBlocks(nodes: ArrayLike<number>): Float64Array[] {
+  diagonalBlocks(nodes: ArrayLike<number>, into?: Float64Array[]): Float64Array[] {
     const t = this.tree, n = this.n;
     const owner = new Int32Array(n).fill(-1);
     const out: Float64Array[] = [];
     for (let a = 0; a < nodes.length; a++) {
-      const v = nodes[a], s = t.start[v], e = t.end[v];
+      const v = nodes[a], s = t.start[v], e = t.end[v], size = (e - s) * (e - s);
       for (let p = s; p < e; p++) owner[p] = a;
-      out.push(new Float64Array((e - s) * (e - s)));
+      if (into && into[a].length < size) throw new RangeError(`diagonalBlocks: output ${a} holds ${into[a].length} values, need ${size}`);
+      out.push(into ? into[a] : new Float64Array(size));
     }
     const B = this.layout.blocks, bufs = this.layout.buffers, sym = this.blockTree.symmetric;
     for (let b = 0; b < B.length / BLOCK_FIELDS; b++) {
@@ -143,14 +145,78 @@ export class HMatrix {
           if (r < 0) x = data[off + i * nc + j];
           else {
             x = 0;
-            const uo = off + i * r, vo = off + m * r + j * r;
-            for (let q = 0; q < r; q++) x += data[uo + q] * data[vo + q];
+            const uo = off + i, vo = off + m * r + j;
+            for (let q = 0; q < r; q++) x += data[uo + q * m] * data[vo + q * nc];
           }
           D[(rs - s + i) * w + (cs - s + j)] = x;
           if (mirror) D[(cs - s + j) * w + (rs - s + i)] = x;
         }
     }
     return out;
+  }
+
+  /**
+   * Galerkin coarse matrix Pᵀ·H·P for P the indicator columns of the given disjoint tree nodes
+   * covering all points (nc×nc row-major, nc = nodes.length): entry (a, b) is the sum of H over
+   * the rows of node a and the columns of node b. One pass over the stored blocks; a low-rank
+   * block contributes (1ᵀU)(Vᵀ1) per pair of nodes it spans.
+   */
+  coarseMatrix(nodes: ArrayLike<number>): Float64Array {
+    const t = this.tree, n = this.n, nc = nodes.length;
+    const owner = new Int32Array(n).fill(-1);
+    for (let a = 0; a < nc; a++) for (let p = t.start[nodes[a]]; p < t.end[nodes[a]]; p++) owner[p] = a;
+    for (let p = 0; p < n; p++) if (owner[p] < 0) throw new RangeError(`coarseMatrix: position ${p} is in none of the nodes`);
+    const C = new Float64Array(nc * nc);
+    const B = this.layout.blocks, bufs = this.layout.buffers, sym = this.blockTree.symmetric;
+    const maxRank = Math.max(1, this.layout.maxRank);
+    // Per block: the nodes its rows (columns) meet, in order, with their range ends.
+    let su = new Float64Array(16 * maxRank), sv = new Float64Array(16 * maxRank);
+    const rowNodes: number[] = [], colNodes: number[] = [];
+    const spans = (s0: number, e0: number, out: number[]): void => {
+      out.length = 0;
+      for (let p = s0; p < e0;) { const a = owner[p]; out.push(a); p = t.end[nodes[a]] < e0 ? t.end[nodes[a]] : e0; }
+    };
+    const add = (a: number, b: number, x: number, mirror: boolean): void => {
+      C[a * nc + b] += x;
+      if (mirror) C[b * nc + a] += x;
+    };
+    for (let blk = 0; blk < B.length / BLOCK_FIELDS; blk++) {
+      const o = blk * BLOCK_FIELDS;
+      const rs = B[o], re = B[o + 1], cs = B[o + 2], ce = B[o + 3], data = bufs[B[o + 4]], off = B[o + 5], r = B[o + 6];
+      const m = re - rs, w = ce - cs, mirror = sym && rs !== cs;
+      spans(rs, re, rowNodes); spans(cs, ce, colNodes);
+      if (r < 0) {
+        if (rowNodes.length === 1 && colNodes.length === 1) {
+          let x = 0;
+          for (let i = 0; i < m * w; i++) x += data[off + i];
+          add(rowNodes[0], colNodes[0], x, mirror);
+          continue;
+        }
+        for (let i = 0; i < m; i++) {
+          const a = owner[rs + i];
+          for (let j = 0; j < w; j++) add(a, owner[cs + j], data[off + i * w + j], mirror);
+        }
+        continue;
+      }
+      if (r === 0) continue;
+      const nr = rowNodes.length, ncl = colNodes.length;
+      if (su.length < nr * r) su = new Float64Array(nr * r);
+      if (sv.length < ncl * r) sv = new Float64Array(ncl * r);
+      su.fill(0, 0, nr * r); sv.fill(0, 0, ncl * r);
+      for (let q = 0; q < r; q++) {
+        let ai = 0;
+        for (let i = 0; i < m; i++) { if (owner[rs + i] !== rowNodes[ai]) ai++; su[ai * r + q] += data[off + q * m + i]; }
+        let bj = 0;
+        for (let j = 0; j < w; j++) { if (owner[cs + j] !== colNodes[bj]) bj++; sv[bj * r + q] += data[off + m * r + q * w + j]; }
+      }
+      for (let ai = 0; ai < nr; ai++)
+        for (let bj = 0; bj < ncl; bj++) {
+          let x = 0;
+          for (let q = 0; q < r; q++) x += su[ai * r + q] * sv[bj * r + q];
+          add(rowNodes[ai], colNodes[bj], x, mirror);
+        }
+    }
+    return C;
   }
 
   /** Forget the copies installed in the workers (the shared data is freed with this object). */
@@ -176,8 +242,10 @@ export async function buildHMatrix(points: Float64Array, entries: { source?: Ent
   const n = points.length / 3;
   const leafSize = opts.leafSize ?? 32, eta = opts.eta ?? 2;
   if (!(opts.tolerance > 0 && opts.tolerance < 1)) throw new RangeError(`compression tolerance must be in (0, 1), got ${opts.tolerance}`);
+  opts.progress?.("tree", 0);
   const tree = clusterPoints(points, leafSize);
   const bt = blockTree(tree, { eta, pad: opts.pad, symmetric: opts.symmetric });
+  opts.progress?.("tree", 1);
   const order = new Uint32Array(new SharedArrayBuffer(4 * Math.max(1, n)));
   order.set(tree.order);
 
@@ -198,16 +266,21 @@ export async function buildHMatrix(points: Float64Array, entries: { source?: Ent
   const chunks = splitJobs(cost, Math.max(1, Math.min(total, 24 * threads)));
 
   const built: BuiltChunk[] = new Array(chunks.length);
-  let doneCost = 0, allCost = 0;
-  for (let q = 0; q < total; q++) allCost += cost[q];
+  // Near jobs come first in the list and chunks are taken in order, so the near field
+  // finishes (nearly) before the far field starts: each phase reports its own fraction.
+  let doneNear = 0, doneFar = 0, nearCost = 0, farCost = 0;
+  for (let q = 0; q < nb; q++) nearCost += cost[q];
+  for (let q = nb; q < total; q++) farCost += cost[q];
   const chunkJobs = (c: number): Float64Array => {
     const list = chunks[c], j = new Float64Array(new SharedArrayBuffer(8 * Math.max(1, list.length * JOB_FIELDS)));
     for (let a = 0; a < list.length; a++) j.set(jobs.subarray(list[a] * JOB_FIELDS, (list[a] + 1) * JOB_FIELDS), a * JOB_FIELDS);
     return j.subarray(0, list.length * JOB_FIELDS);
   };
   const finished = (c: number): void => {
-    for (const q of chunks[c]) doneCost += cost[q];
-    opts.progress?.("compression", allCost > 0 ? doneCost / allCost : 1);
+    for (const q of chunks[c]) { if (q < nb) doneNear += cost[q]; else doneFar += cost[q]; }
+    if (!opts.progress) return;
+    if (doneNear < nearCost) opts.progress("near field", doneNear / nearCost);
+    else opts.progress("far field", farCost > 0 ? doneFar / farCost : 1);
   };
   if (opts.pool && entries.source) {
     const pool = opts.pool;

@@ -1,6 +1,7 @@
 // Compressed solver benchmark: time and memory growth on spheres (5k, 20k, 80k[, 320k with
 // `full`]), accuracy against 4π ε0 R, the dense/compressed crossover, preconditioner cluster
-// sizes, and the 64-pad array. Figures are printed, not asserted.
+// sizes and the two-level coarse correction, and the 64-pad array (64 right-hand sides
+// solved together). Figures are printed, not asserted.
 //   node tests/bench/compressed.bench.mjs [quick|full]
 import { loadavg } from "node:os";
 import { sphereMesh, plateMesh } from "../../dist/src/mesh/primitives/index.js";
@@ -40,15 +41,17 @@ for (const level of quick ? [3, 4] : [3, 4, 5]) {
   }
 }
 
-console.log("\npreconditioner: block-Jacobi cluster size vs iterations (sphere levels 4 and 5)");
+console.log("\npreconditioner: block-Jacobi cluster size, and the two-level coarse correction (aggregates of `coarse` panels), vs iterations");
 const { solveUnitPotentials } = await import("../../dist/src/extract/solve.js");
 const { sharedPool } = await import("../../dist/src/linalg/pool.js");
-for (const level of [4, 5]) {
+const pcLevels = quick ? [4] : full ? [4, 5, 6] : [4, 5];
+for (const level of pcLevels) {
   const m = sphereMesh({ radius: 1, level });
-  for (const cluster of [32, 128, 256, 512]) {
+  const combos = [[128, 0], [256, 0], [512, 0], [1024, 0], [256, 64], [256, 32]];
+  for (const [cluster, coarse] of combos) {
     const t = performance.now();
-    const s = await solveUnitPotentials(m.positions, m.triangles, m.conductor, 1, { method: "galerkin", solver: "compressed", tolerance: 1e-4, pool: sharedPool(), preconditionerCluster: cluster });
-    console.log(`level ${level} (${s.info.panels} panels) cluster ${String(cluster).padStart(4)}: ${s.info.iterations} iterations, solve ${s.info.solveSeconds.toFixed(2)} s, total ${((performance.now() - t) / 1e3).toFixed(2)} s`);
+    const s = await solveUnitPotentials(m.positions, m.triangles, m.conductor, 1, { method: "galerkin", solver: "compressed", tolerance: 1e-4, pool: sharedPool(), preconditionerCluster: cluster, coarseCluster: coarse });
+    console.log(`level ${level} (${s.info.panels} panels) cluster ${String(cluster).padStart(4)} coarse ${String(coarse).padStart(3)} (${s.info.coarseAggregates} aggregates): ${s.info.iterations} iterations, setup ${s.info.preconditionerSeconds.toFixed(2)} s, solve ${s.info.solveSeconds.toFixed(2)} s, total ${((performance.now() - t) / 1e3).toFixed(2)} s, load ${loadavg()[0].toFixed(1)}`);
   }
 }
 
@@ -59,7 +62,7 @@ if (!quick) {
     parts.push({ ...plateMesh({ size: [0.008, 0.008], divisions: 25, center: [0.01 * i, 0.01 * j, 0] }), names: [`pad${i}${j}`] });
   const m = concatMeshes(parts);
   const t = performance.now();
-  const r = await extract(m, { solver: "compressed" });
+  const r = await extract(m, { solver: "compressed", progress: (phase, f) => { if (f === 1) console.log(`  ${phase} done at ${((performance.now() - t) / 1e3).toFixed(1)} s`); } });
   line("64 pads", r, (performance.now() - t) / 1e3);
 }
 await closeSharedPool();

@@ -1,6 +1,6 @@
 import { describe, it, expect } from "vitest";
-import { aca, compressBlock } from "../../src/linalg/aca.js";
-import { gramSchmidtQR, jacobiSVD } from "../../src/linalg/low-rank.js";
+import { aca, compressBlock, gramU, gramV } from "../../src/linalg/aca.js";
+import { gramSchmidtQR, jacobiSVD, recompress, recompressFromGram } from "../../src/linalg/low-rank.js";
 import { clusterPoints } from "../../src/linalg/cluster.js";
 import { blockTree } from "../../src/linalg/block-tree.js";
 import { rng } from "./random.js";
@@ -63,6 +63,38 @@ describe("small dense factorisations behind recompression", () => {
   });
 });
 
+describe("recompression from the Gram matrices ACA records", () => {
+  it("ACA's Gram matrices equal UᵀU and VᵀV, and the Gram route truncates like the QR route", () => {
+    const pts = spherePoints(600, 21);
+    const rows = Uint32Array.from({ length: 80 }, (_, i) => i), cols = Uint32Array.from({ length: 90 }, (_, j) => 300 + j);
+    // Two separated patches: shift the columns' points away.
+    const P = pts.slice();
+    for (const j of cols) P[3 * j] += 4;
+    const m = rows.length, n = cols.length, max = 60;
+    const u = new Float64Array(max * m), v = new Float64Array(max * n);
+    const r = aca(m, n, (i, o) => { for (let j = 0; j < n; j++) o[j] = kernel(P, rows[i], cols[j]); },
+      (j, o) => { for (let i = 0; i < m; i++) o[i] = kernel(P, rows[i], cols[j]); }, 1e-9, max, u, v);
+    expect(r).toBeGreaterThan(4);
+    for (let q = 0; q < r; q++) for (let p = 0; p <= q; p++) {
+      let du = 0, dv = 0;
+      for (let i = 0; i < m; i++) du += u[p * m + i] * u[q * m + i];
+      for (let j = 0; j < n; j++) dv += v[p * n + j] * v[q * n + j];
+      expect(gramU[(q * (q + 1)) / 2 + p]).toBeCloseTo(du, 12);
+      expect(gramV[(q * (q + 1)) / 2 + p]).toBeCloseTo(dv, 12);
+    }
+    const GU = gramU.slice(), GV = gramV.slice();
+    for (const tol of [1e-3, 1e-5, 1e-7]) {
+      const a = new Float64Array(r * (m + n)), b = new Float64Array(r * (m + n));
+      const kg = recompressFromGram(u, v, m, n, r, GU, GV, tol, a, 0);
+      const kq = recompress(u.slice(0, r * m), v.slice(0, r * n), m, n, r, tol, b, 0, b, -1);
+      expect(Math.abs(kg - kq)).toBeLessThanOrEqual(1);
+      const err = relFrob((i, j) => { let x = 0; for (let q = 0; q < kg; q++) x += a[q * m + i] * a[m * kg + q * n + j]; return x; },
+        (i, j) => kernel(P, rows[i], cols[j]), m, n);
+      expect(err).toBeLessThan(1.2 * tol + 1e-9);
+    }
+  });
+});
+
 describe("ACA+ with recompression on admissible blocks", () => {
   for (const tol of [1e-3, 1e-5, 1e-7]) {
     it(`every admissible block of a 1/r matrix on 3000 sphere points is within ${tol} (Frobenius, relative)`, () => {
@@ -83,7 +115,7 @@ describe("ACA+ with recompression on admissible blocks", () => {
           (j, out) => { for (let i = 0; i < m; i++) out[i] = kernel(pts, rows[i], cols[j]); },
           tol, maxRank, u, v, store, 0);
         expect(kept).toBeGreaterThan(0);
-        const err = relFrob((i, j) => { let x = 0; for (let q = 0; q < kept; q++) x += store[i * kept + q] * store[m * kept + j * kept + q]; return x; },
+        const err = relFrob((i, j) => { let x = 0; for (let q = 0; q < kept; q++) x += store[q * m + i] * store[m * kept + q * n + j]; return x; },
           (i, j) => kernel(pts, rows[i], cols[j]), m, n);
         worst = Math.max(worst, err); ranks += kept; blocks++;
       }

@@ -107,4 +107,22 @@ describe("hierarchical matrix of an inverse-multiquadric kernel (SPD: Wendland 2
     expect(worst).toBeLessThan(1e-6);
     await H.release();
   });
+
+  for (const symmetric of [true, false]) {
+    it(`coarse matrix PᵀHP over aggregates equals the dense sums of the kernel (${symmetric ? "symmetric" : "full"} storage)`, async () => {
+      const H = await buildHMatrix(pts, { source: { module: kernelModule, name: "entries", before: [pts, DELTA] } }, { tolerance: 1e-8, symmetric, pool });
+      // Aggregates larger than some admissible blocks and smaller than others.
+      const nodes = clusterCover(H.tree, 150);
+      const nc = nodes.length, agg = new Int32Array(n);
+      nodes.forEach((v, a) => { for (let p = H.tree.start[v]; p < H.tree.end[v]; p++) agg[H.tree.order[p]] = a; });
+      const want = new Float64Array(nc * nc);
+      for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) want[agg[i] * nc + agg[j]] += entry(pts, i, j);
+      const got = H.coarseMatrix(nodes);
+      let worst = 0, top = 0;
+      for (let i = 0; i < nc * nc; i++) { worst = Math.max(worst, Math.abs(got[i] - want[i])); top = Math.max(top, Math.abs(want[i])); }
+      expect(nc).toBeGreaterThan(8);
+      expect(worst / top).toBeLessThan(1e-7);
+      await H.release();
+    });
+  }
 });
