@@ -124,6 +124,12 @@ export function extractionReport(r: ExtractionResult, ctx: ReportContext): Recor
         operatorBytes: r.solver.operatorBytes ?? null,
         estimatedBytes: r.solver.estimatedBytes ?? null,
       },
+      preconditioner: r.solver.preconditionerCluster === undefined ? null : {
+        cluster: r.solver.preconditionerCluster,
+        coarseAggregates: r.solver.coarseAggregates ?? 0,
+        seconds: r.solver.preconditionerSeconds ?? null,
+      },
+      krylovTolerance: r.solver.krylovTolerance ?? null,
     },
     orientation: r.orientation,
     warnings: [...ctx.inputWarnings, ...r.warnings],

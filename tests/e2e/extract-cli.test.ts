@@ -242,4 +242,16 @@ describe("sigmesh extract", () => {
     const grid = rows.filter((row) => row[0] === "plane");
     expect(grid.map((row) => row[h.indexOf("j")])).toEqual(["0", "0", "1", "1"]);
   });
+
+  it("a compressed run reports its compression and preconditioner in the JSON report", () => {
+    const r = run(["extract", join(dir, "anode.stl"), join(dir, "cathode.stl"), "--solver", "compressed", "--json", "-", "--quiet"]);
+    expect(r.code, r.err).toBe(0);
+    const s = JSON.parse(r.out).solver;
+    expect(s.solver).toBe("compressed");
+    expect(s.compression.ratio).toBeGreaterThan(0);
+    expect(s.compression.ratio).toBeLessThanOrEqual(1);
+    expect(s.preconditioner.cluster).toBeGreaterThan(0);
+    expect(s.krylovTolerance).toBeGreaterThan(0);
+    expect(s.residual).toBeLessThanOrEqual(s.krylovTolerance);
+  });
 });
