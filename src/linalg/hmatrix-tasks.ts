@@ -38,6 +38,13 @@ let u = new Float64Array(0), v = new Float64Array(0);
 let store = new Float64Array(0);
 const one = new Uint32Array(1);
 
+/** Numbers of ACA scratch per far block (u and v together): 128 MB. */
+const ACA_SCRATCH = 16 * 2 ** 20;
+/** Least rank cap, above anything smooth kernels need at the tolerances used (ranks ≤ 50 measured). */
+const MIN_ACA_RANK = 200;
+/** Largest block stored dense when it does not compress (64 M numbers, 512 MB). */
+const DENSE_FALLBACK = 64 * 2 ** 20;
+
 /**
  * Build the blocks `jobs` (JOB_FIELDS per job) of the matrix whose entries `gen` yields, in
  * tree positions (original index = order[position]). Far blocks: ACA+ and recompression to
@@ -62,7 +69,9 @@ export function buildChunk(gen: EntryGenerator, order: Uint32Array, jobs: Float6
     if (kind === JOB_FAR) {
       // ACA may run past the rank where low rank stops paying (r·(m + n) ≥ m·n): its
       // tolerance is finer than the block's, and recompression takes most of that back.
-      const acaRank = Math.min(m, n);
+      // On large blocks the scratch for min(m, n) terms would not fit (an 80k × 80k block of a
+      // 1.3M-panel model asks for 51 GB): there the terms are capped at ACA_SCRATCH numbers.
+      const acaRank = Math.min(m, n, Math.max(MIN_ACA_RANK, Math.floor(ACA_SCRATCH / (m + n))));
       if (u.length < acaRank * m) u = new Float64Array(acaRank * m);
       if (v.length < acaRank * n) v = new Float64Array(acaRank * n);
       need(acaRank * (m + n));
@@ -75,6 +84,9 @@ export function buildChunk(gen: EntryGenerator, order: Uint32Array, jobs: Float6
         used += r * (m + n);
         continue;
       }
+    }
+    if (kind === JOB_FAR && m * n > DENSE_FALLBACK) {
+      throw new Error(`an admissible ${m} × ${n} block did not compress to rank ${Math.min(m, n, Math.max(MIN_ACA_RANK, Math.floor(ACA_SCRATCH / (m + n))))} at tolerance ${tol.toExponential(1)} and is too large to store dense; loosen --tol or check the mesh for coincident panels`);
     }
     need(m * n);
     gen(rows, cols, store.subarray(used, used + m * n));
