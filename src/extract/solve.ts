@@ -19,7 +19,7 @@ import { clusterPoints, leafIndexSets } from "../linalg/cluster.js";
 import { denseMultiply } from "../linalg/dense.js";
 import { sharedFloat64, type WorkerPool } from "../linalg/pool.js";
 import { buildHMatrix, type HMatrix } from "../linalg/hmatrix.js";
-import { blockJacobiFromBlocks, parallelBlockJacobi, type AsyncBlockPreconditionerFn } from "../linalg/cluster-jacobi.js";
+import { parallelBlockJacobi, type AsyncBlockPreconditionerFn } from "../linalg/cluster-jacobi.js";
 import { twoLevelPreconditioner } from "../linalg/two-level.js";
 import type { ClusterTree } from "../linalg/cluster.js";
 import { assertDenseFits, assertCompressedFits, compressedBytes, peakResidentBytes } from "./memory.js";
@@ -490,12 +490,17 @@ async function solveCompressedWithInterfaces(positions: Float64Array, triangles:
   };
   progress("solve", 0);
   const t2 = performance.now();
+  let releaseJacobi: (() => Promise<void>) | undefined;
   try {
     const cluster = opts.preconditionerCluster ?? PRECONDITIONER_CLUSTER;
     const nodes = clusterCover(H.tree, Math.max(leafSize, cluster));
     const sets = nodes.map((v) => H.tree.order.slice(H.tree.start[v], H.tree.end[v]));
-    const precondition = blockJacobiFromBlocks(H.diagonalBlocks(nodes), sets, N, { lu: true });
+    // LU factors and block solves on the workers, as in solveCompressed.
+    const jacobi = await parallelBlockJacobi((into) => { H.diagonalBlocks(nodes, into); }, sets, N, opts.pool, { lu: true });
+    releaseJacobi = jacobi.release;
+    const precondition = jacobi.apply;
     info.preconditionerCluster = cluster;
+    info.preconditionerSeconds = (performance.now() - t2) / 1e3;
     const tol = interfaceKrylovTolerance(opts.tolerance);
     const apply = (X: Float64Array, Y: Float64Array, kk: number) => H.apply(X, Y, kk);
     const maxIter = Math.max(300, Math.ceil(4 * Math.sqrt(N)));
@@ -514,6 +519,7 @@ async function solveCompressedWithInterfaces(positions: Float64Array, triangles:
     info.peakResidentBytes = peakResidentBytes();
     return { x: res.X, panels, info, normalField };
   } finally {
+    await releaseJacobi?.();
     await H.release();
   }
 }
