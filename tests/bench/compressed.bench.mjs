@@ -13,7 +13,7 @@ import { peakResidentBytes } from "../../dist/src/extract/memory.js";
 
 const quick = process.argv.includes("quick"), full = process.argv.includes("full");
 // `products` alone: just the H-matrix product section (JavaScript against SIMD at k = 64).
-const only = process.argv.includes("products");
+const only = process.argv.includes("products") || process.argv.some((a) => a.startsWith("pads="));
 const k4 = 4 * Math.PI * EPSILON_0;
 const mb = (b) => `${(b / 2 ** 20).toFixed(0)} MiB`;
 console.log(`load average ${loadavg().map((x) => x.toFixed(2)).join(" ")} (figures on a shared machine scale with it)`);
@@ -57,7 +57,7 @@ for (const level of only ? [] : pcLevels) {
   }
 }
 
-if (only || !quick) {
+if (process.argv.includes("products") || (!quick && !only)) {
   // Block products of the H-matrix at k = 64 (the pad array's right-hand sides): JavaScript
   // loops against the WebAssembly SIMD kernel, on the operator of a 16-pad array (~20k panels),
   // both workers. Flops: 2·m·n·k per dense block, 2·r·(m + n)·k per low-rank block, per use.
@@ -90,16 +90,36 @@ if (only || !quick) {
     console.log(`  ${kernel === "js" ? "JavaScript  " : "Wasm SIMD   "} ${s.toFixed(3)} s per product  ${(flops / s / 1e9).toFixed(2)} GFLOP/s (both cores)  load ${loadavg()[0].toFixed(2)}`);
   }
   await H.release();
+
+  // Open-sheet centroid fields (the E_pv sum of extract): serial against both workers, on
+  // 4,000 target panels of the same 16 pads.
+  const { centroidFields, centroidFieldsParallel } = await import("../../dist/src/extract/probe.js");
+  const q = new Float64Array(n);
+  for (let p = 0; p < n; p++) q[p] = 1e-15 * (1 + Math.sin(p));
+  const list = Uint32Array.from({ length: 4000 }, (_, a) => Math.floor((a * n) / 4000));
+  let t = performance.now();
+  const e1 = centroidFields(panels, q, 8.854e-12, list);
+  const serial = (performance.now() - t) / 1e3;
+  t = performance.now();
+  const e2 = await centroidFieldsParallel(panels, q, 8.854e-12, list, undefined, pool);
+  const parallel = (performance.now() - t) / 1e3;
+  let d = 0;
+  for (let i = 0; i < e1.length; i++) d = Math.max(d, Math.abs(e1[i] - e2[i]));
+  console.log(`centroid fields, ${list.length} targets × ${n} sources: serial ${serial.toFixed(2)} s, 2 workers ${parallel.toFixed(2)} s (${(serial / parallel).toFixed(2)}×, max difference ${d.toExponential(1)})  load ${loadavg()[0].toFixed(2)}`);
 }
 
-if (!quick && !only) {
-  console.log("\n64-pad array (8 × 8 pads, ~80k panels in all)");
+// `pads=16` (a square number): the pad-array section alone with that many pads, ~1,250 panels each.
+const padArg = process.argv.find((a) => a.startsWith("pads="));
+if ((!quick && !only) || padArg) {
+  const side = padArg ? Math.round(Math.sqrt(Number(padArg.slice(5)))) : 8;
+  console.log(`\n${side * side}-pad array (${side} × ${side} pads, ~${(1.25 * side * side).toFixed(0)}k panels in all)  load ${loadavg()[0].toFixed(2)}`);
   const parts = [];
-  for (let i = 0; i < 8; i++) for (let j = 0; j < 8; j++)
+  for (let i = 0; i < side; i++) for (let j = 0; j < side; j++)
     parts.push({ ...plateMesh({ size: [0.008, 0.008], divisions: 25, center: [0.01 * i, 0.01 * j, 0] }), names: [`pad${i}${j}`] });
   const m = concatMeshes(parts);
   const t = performance.now();
   const r = await extract(m, { solver: "compressed", progress: (phase, f) => { if (f === 1) console.log(`  ${phase} done at ${((performance.now() - t) / 1e3).toFixed(1)} s`); } });
-  line("64 pads", r, (performance.now() - t) / 1e3);
+  line(`${side * side} pads`, r, (performance.now() - t) / 1e3);
+  console.log(`  load ${loadavg()[0].toFixed(2)}`);
 }
 await closeSharedPool();
