@@ -29,7 +29,7 @@ import { conductorCharges, capacitanceMatrices, chargesAt, storedEnergy, mutualF
 import { richardson, type RichardsonResult } from "./accuracy.js";
 import { panelExcitation, peakFields, conductorForces, criticalFields, type PanelExcitation, type PeakField } from "./excitation.js";
 import { peakResidentBytes } from "./memory.js";
-import { centroidFields } from "./probe.js";
+import { centroidFieldsParallel } from "./probe.js";
 import type { PanelSet } from "../bem/panels.js";
 import { InputError } from "../io/errors.js";
 import {
@@ -472,7 +472,7 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
       opts.progress?.("fields", 0, refine, nLevels);
       const list = new Uint32Array(nOpen);
       for (let p = 0, a = 0; p < P.n; p++) if (openPanel[p]) list[a++] = p;
-      const e = centroidFields(P, excitation.charge, eps, list, images);
+      const e = await centroidFieldsParallel(P, excitation.charge, eps, list, images, pool);
       fieldPv = new Float64Array(3 * P.n);
       const normalPv = new Float64Array(P.n);
       for (let a = 0; a < nOpen; a++) {

@@ -9,6 +9,7 @@ import { EPSILON_0 } from "./constants.js";
 import { potentialAt, fieldAt } from "../bem/field.js";
 import type { PanelSet } from "../bem/panels.js";
 import type { ImageSet } from "../bem/images.js";
+import { sharedFloat64, type WorkerPool } from "../linalg/pool.js";
 
 export interface ProbeResult {
   /** Potential at each point; volts. */
@@ -44,6 +45,35 @@ export function centroidFields(panels: PanelSet, charge: Float64Array, permittiv
     pts[3 * a] = panels.centroids[3 * p]; pts[3 * a + 1] = panels.centroids[3 * p + 1]; pts[3 * a + 2] = panels.centroids[3 * p + 2];
   }
   return probeField(panels, charge, permittivity, pts, images).field;
+}
+
+/**
+ * centroidFields with the listed panels split over the workers of `pool` (each sums over all
+ * source panels for its share, the same arithmetic as the serial routine, so the result is the
+ * same to the last bit); serial without a pool or for short lists.
+ */
+export async function centroidFieldsParallel(panels: PanelSet, charge: Float64Array, permittivity: number, list: Uint32Array,
+  images: ImageSet | undefined, pool: WorkerPool | undefined): Promise<Float64Array> {
+  const parts = pool ? Math.min(pool.size, Math.floor(list.length / PARALLEL_MIN_TARGETS)) : 0;
+  if (!pool || parts < 2) return centroidFields(panels, charge, permittivity, list, images);
+  const out = sharedFloat64(3 * list.length);
+  const url = new URL(import.meta.url.endsWith(".ts") ? "./probe.ts" : "./probe.js", import.meta.url).href;
+  const step = Math.ceil(list.length / parts);
+  await Promise.all(Array.from({ length: parts }, (_, w) => {
+    const a0 = w * step, a1 = Math.min(list.length, a0 + step);
+    return pool.runOn(w, url, "centroidFieldsTask", [panels, charge, permittivity, list.subarray(a0, a1), images, out, 3 * a0]);
+  }));
+  return Float64Array.from(out);
+}
+
+/** Fewest target panels per worker worth a task (the panels are copied to the workers unless shared). */
+const PARALLEL_MIN_TARGETS = 64;
+
+/** Worker task: centroidFields for `list`, written into the shared `out` from `outOff`. */
+export function centroidFieldsTask(panels: PanelSet, charge: Float64Array, permittivity: number, list: Uint32Array,
+  images: ImageSet | undefined, out: Float64Array, outOff: number): number {
+  out.set(centroidFields(panels, charge, permittivity, list, images), outOff);
+  return list.length;
 }
 
 /** Probe an extraction's field at the working potentials (finest mesh). */

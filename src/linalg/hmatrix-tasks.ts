@@ -8,7 +8,10 @@
  * (rows, cols, out). The linear algebra never imports the module that defines it.
  */
 import { compressBlock } from "./aca.js";
-import { lowRankMultiplyAdd, denseBlockMultiplyAdd } from "./low-rank.js";
+import {
+  lowRankMultiplyAdd, denseBlockMultiplyAdd, lowRankMultiplyAddSimd, denseBlockMultiplyAddSimd, SIMD_MIN_RHS, SIMD_MIN_RANK,
+} from "./low-rank.js";
+import { simdAvailable } from "./wasm-kernel.js";
 import { compiledUrl } from "./pool.js";
 
 /** out[a·cols.length + b] = M[rows[a], cols[b]]: the entries of any block, row-major. */
@@ -141,16 +144,23 @@ export function hmatrixReleaseTask(id: number): boolean {
 }
 
 /** Worker task: Y = (part `part` of the blocks)·X, n×k row-major in tree positions. */
-export function hmatrixProductTask(id: number, part: number, X: Float64Array, Y: Float64Array, k: number): number {
+export function hmatrixProductTask(id: number, part: number, X: Float64Array, Y: Float64Array, k: number, kernel: ProductKernel = "auto"): number {
   const layout = installed.get(id);
   if (!layout) throw new Error(`hierarchical matrix ${id} is not installed in this worker`);
-  partProduct(layout, layout.uses[part], X, Y, k);
+  partProduct(layout, layout.uses[part], X, Y, k, kernel);
   return part;
 }
 
+/**
+ * Which code runs the block products: "js" (plain loops), or "auto" (the WebAssembly SIMD
+ * kernel of wasm-kernel.ts for k ≥ SIMD_MIN_RHS where this thread supports it).
+ */
+export type ProductKernel = "auto" | "js";
+
 /** Y = Σ over the uses of block·X (Y zeroed first). */
-export function partProduct(layout: HMatrixLayout, uses: Int32Array, X: Float64Array, Y: Float64Array, k: number): void {
+export function partProduct(layout: HMatrixLayout, uses: Int32Array, X: Float64Array, Y: Float64Array, k: number, kernel: ProductKernel = "auto"): void {
   Y.fill(0);
+  const simd = kernel === "auto" && k >= SIMD_MIN_RHS && simdAvailable();
   if (T.length < layout.maxRank * k) T = new Float64Array(Math.max(1, layout.maxRank * k));
   const B = layout.blocks, bufs = layout.buffers;
   for (let a = 0; a < uses.length; a++) {
@@ -158,9 +168,16 @@ export function partProduct(layout: HMatrixLayout, uses: Int32Array, X: Float64A
     const o = b * BLOCK_FIELDS;
     const rs = B[o], re = B[o + 1], cs = B[o + 2], ce = B[o + 3], data = bufs[B[o + 4]], off = B[o + 5], r = B[o + 6];
     const m = re - rs, n = ce - cs;
-    if (r < 0) { denseBlockMultiplyAdd(data, off, m, n, t, X, Y, rs, cs, k); continue; }
+    if (r < 0) {
+      if (simd) denseBlockMultiplyAddSimd(data, off, m, n, t, X, Y, rs, cs, k);
+      else denseBlockMultiplyAdd(data, off, m, n, t, X, Y, rs, cs, k);
+      continue;
+    }
     if (r === 0) continue;
-    if (!t) lowRankMultiplyAdd(data, off, off + m * r, m, n, r, X, cs, Y, rs, k, T);
+    if (simd && r >= SIMD_MIN_RANK) {
+      if (!t) lowRankMultiplyAddSimd(data, off, off + m * r, m, n, r, X, cs, Y, rs, k, T);
+      else lowRankMultiplyAddSimd(data, off + m * r, off, n, m, r, X, rs, Y, cs, k, T);
+    } else if (!t) lowRankMultiplyAdd(data, off, off + m * r, m, n, r, X, cs, Y, rs, k, T);
     else lowRankMultiplyAdd(data, off + m * r, off, n, m, r, X, rs, Y, cs, k, T);
   }
 }

@@ -20,7 +20,7 @@ import { blockTree, type BlockTree } from "./block-tree.js";
 import { sharedFloat64, type WorkerPool } from "./pool.js";
 import {
   BLOCK_FIELDS, JOB_FAR, JOB_FIELDS, JOB_NEAR, buildChunk, partProduct,
-  type BuiltChunk, type EntryGenerator, type EntrySource, type HMatrixLayout,
+  type BuiltChunk, type EntryGenerator, type EntrySource, type HMatrixLayout, type ProductKernel,
 } from "./hmatrix-tasks.js";
 
 export type { EntryGenerator, EntrySource } from "./hmatrix-tasks.js";
@@ -81,8 +81,11 @@ export class HMatrix {
     this.n = n; this.tree = tree; this.blockTree = bt; this.layout = layout; this.stats = stats; this.pool = pool;
   }
 
-  /** Y = H·X, n×k row-major in the caller's order (X and Y distinct). */
-  async apply(X: Float64Array, Y: Float64Array, k: number): Promise<void> {
+  /**
+   * Y = H·X, n×k row-major in the caller's order (X and Y distinct); `kernel` picks the block
+   * product code (hmatrix-tasks.ts ProductKernel: "js" only to check or time the SIMD path).
+   */
+  async apply(X: Float64Array, Y: Float64Array, k: number, kernel: ProductKernel = "auto"): Promise<void> {
     const n = this.n, nk = n * k, order = this.tree.order;
     const parts = this.layout.uses.length;
     if (this.Xp.length !== nk) {
@@ -101,9 +104,9 @@ export class HMatrix {
           this.pool!.runOn(w, tasksUrl(), "hmatrixInstallTask", [this.id, this.layout])));
         this.installed = true;
       }
-      await Promise.all(Yp.map((Yw, part) => this.pool!.runOn(part, tasksUrl(), "hmatrixProductTask", [this.id, part, Xp, Yw, k])));
+      await Promise.all(Yp.map((Yw, part) => this.pool!.runOn(part, tasksUrl(), "hmatrixProductTask", [this.id, part, Xp, Yw, k, kernel])));
     } else {
-      for (let part = 0; part < parts; part++) partProduct(this.layout, this.layout.uses[part], Xp, Yp[part], k);
+      for (let part = 0; part < parts; part++) partProduct(this.layout, this.layout.uses[part], Xp, Yp[part], k, kernel);
     }
     for (let p = 0; p < n; p++) {
       const dst = order[p] * k, src = p * k;

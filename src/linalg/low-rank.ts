@@ -24,6 +24,8 @@
  * rank; below GRAM_TOLERANCE_FLOOR the QR route is used.
  */
 
+import { gemmStridedSimd } from "./wasm-kernel.js";
+
 // Module-level scratch (each worker thread has its own copy), grown on demand.
 let ru = new Float64Array(0), rv = new Float64Array(0), core = new Float64Array(0), zmat = new Float64Array(0);
 let sig = new Float64Array(0), perm = new Int32Array(0);
@@ -387,4 +389,35 @@ export function denseBlockMultiplyAdd(data: Float64Array, off: number, m: number
       for (let c = 0; c < k; c++) Y[yo + c] += d * X[xo + c];
     }
   }
+}
+
+/**
+ * Fewest right-hand sides for which the block products go through the WebAssembly SIMD
+ * kernel (gemmStridedSimd): below it the packing copies cost more than the faster tiles.
+ */
+export const SIMD_MIN_RHS = 8;
+/** Smallest rank whose two factor products go through the SIMD kernel (see the bench). */
+export const SIMD_MIN_RANK = 4;
+
+/**
+ * denseBlockMultiplyAdd through the SIMD kernel, k ≥ 1 (same arguments, same result to
+ * rounding): Y[r0..] += D·X[c0..], or Y[c0..] += Dᵀ·X[r0..] when transposed; X is read as
+ * Xᵀ through strides, Dᵀ by columns of D.
+ */
+export function denseBlockMultiplyAddSimd(data: Float64Array, off: number, m: number, n: number, transposed: boolean,
+  X: Float64Array, Y: Float64Array, r0: number, c0: number, k: number): void {
+  if (!transposed) gemmStridedSimd(Y, r0 * k, k, data, off, n, 1, X, c0 * k, 1, k, m, k, n, 1);
+  else gemmStridedSimd(Y, c0 * k, k, data, off, 1, n, X, r0 * k, 1, k, n, k, m, 1);
+}
+
+/**
+ * lowRankMultiplyAdd through the SIMD kernel (same arguments): T = Vᵀ·X[c0..] (r×k), then
+ * Y[r0..] += U·T, both as strided products. T is scratch of at least r·k.
+ */
+export function lowRankMultiplyAddSimd(data: Float64Array, uOff: number, vOff: number, m: number, n: number, r: number,
+  X: Float64Array, c0: number, Y: Float64Array, r0: number, k: number, T: Float64Array): void {
+  const rk = r * k;
+  for (let i = 0; i < rk; i++) T[i] = 0;
+  gemmStridedSimd(T, 0, k, data, vOff, n, 1, X, c0 * k, 1, k, r, k, n, 1);
+  gemmStridedSimd(Y, r0 * k, k, data, uOff, 1, m, T, 0, 1, k, m, k, r, 1);
 }

@@ -332,3 +332,59 @@ function addTile(C: Float64Array, cOff: number, ldc: number, H: Float64Array, wB
     for (let j = 0; j < jEnd; j++) C[c + j] += alpha * H[w + j];
   }
 }
+
+/**
+ * C ← C + α·A·Bᵀ on the whole m×p block of C (row-major, rows `ldc` apart), where entry
+ * (i, t) of A is A[aOff + i·aRow + t·aCol] and entry (j, t) of B is B[bOff + j·bRow + t·bCol]
+ * (t < kc): any mix of row- and column-major operands, so the products of the hierarchical
+ * matrix (Dᵀ·X, Uᵀ stored by columns, X read as Xᵀ) need no transposed copy beyond the packing
+ * the kernel does anyway. Same micro-kernel and blocking as gemmNTSimd; throws when
+ * simdAvailable() is false.
+ */
+export function gemmStridedSimd(
+  C: Float64Array, cOff: number, ldc: number,
+  A: Float64Array, aOff: number, aRow: number, aCol: number,
+  B: Float64Array, bOff: number, bRow: number, bCol: number,
+  m: number, p: number, kc: number, alpha: number,
+): void {
+  if (!simdAvailable()) throw new Error("WebAssembly SIMD is not available in this runtime");
+  if (m <= 0 || p <= 0 || kc <= 0) return;
+  const run = tiles!;
+  const kStep = Math.min(kc, KC);
+  const ncMax = Math.min(NC, NR * Math.max(1, Math.floor(B_BLOCK_BYTES / (8 * NR * kStep))));
+  const bBase = 0, aBase = ncMax * kStep, wBase = aBase + MC * kStep;
+  const ldw = ncMax;
+  reserve(wBase + MC * ldw);
+  const H = heap;
+  for (let k0 = 0; k0 < kc; k0 += kStep) {
+    const kw = Math.min(kStep, kc - k0);
+    for (let jc = 0; jc < p; jc += ncMax) {
+      const nc = Math.min(ncMax, p - jc);
+      packStrided(H, bBase, B, bOff + jc * bRow + k0 * bCol, bRow, bCol, nc, Math.ceil(nc / NR) * NR, kw, NR);
+      for (let ic = 0; ic < m; ic += MC) {
+        const mc = Math.min(MC, m - ic);
+        const mPad = Math.ceil(mc / MR) * MR;
+        packStrided(H, aBase, A, aOff + ic * aRow + k0 * aCol, aRow, aCol, mc, mPad, kw, MR);
+        // diag = nc: every column of the tile (no triangle mask).
+        run(8 * aBase, 8 * bBase, 8 * wBase, mPad / MR, Math.ceil(nc / NR), kw, 8 * ldw, nc);
+        addTile(C, cOff + ic * ldc + jc, ldc, H, wBase, ldw, mc, nc, nc, alpha);
+      }
+    }
+  }
+}
+
+/**
+ * packPanels with strides: row r, depth t of the operand at xOff + r·sr + t·sc. The lanes of
+ * a panel are the innermost loop, so a column-major operand (sr = 1) is read in runs.
+ */
+function packStrided(H: Float64Array, base: number, X: Float64Array, xOff: number, sr: number, sc: number, rows: number, padded: number, kw: number, width: number): void {
+  for (let t0 = 0; t0 < padded; t0 += width) {
+    const d0 = base + t0 * kw;
+    const full = t0 + width <= rows;
+    for (let t = 0; t < kw; t++) {
+      const d = d0 + t * width, s = xOff + t * sc + t0 * sr;
+      if (full) for (let l = 0; l < width; l++) H[d + l] = X[s + l * sr];
+      else for (let l = 0; l < width; l++) H[d + l] = t0 + l < rows ? X[s + l * sr] : 0;
+    }
+  }
+}
