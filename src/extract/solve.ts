@@ -250,15 +250,8 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
   const t1 = performance.now();
   progress("far field", 1);
 
-  const B = sharedFloat64(n * k);
-  for (let p = 0; p < n; p++) B[p * k + conductorOf[p]] = 1;
-  const st = H.stats;
-  const info: SolveInfo = {
-    method: opts.method, solver: "compressed", choice, panels: n, rightHandSides: k,
-    assemblySeconds: (t1 - t0) / 1e3, solveSeconds: 0, entriesPerSecond: st.storedEntries / Math.max(1e-9, (t1 - t0) / 1e3),
-    compressionTolerance: hTol, compressionRatio: st.compressionRatio, maxRank: st.maxRank, meanRank: st.meanRank,
-    nearBlocks: st.nearBlocks, farBlocks: st.farBlocks, farBlocksDense: st.farDense, operatorBytes: st.bytes, estimatedBytes: estimate,
-  };
+  const B = unitRightHandSides(n, k, conductorOf);
+  const info = compressedSolveInfo(H, opts, choice, k, (t1 - t0) / 1e3, hTol, estimate);
   progress("solve", 0);
   const t2 = performance.now();
   let releaseJacobi: (() => Promise<void>) | undefined;
@@ -331,6 +324,25 @@ async function denseKrylov(A: Float64Array, n: number, B: Float64Array, k: numbe
   info.residual = Math.max(...res.residuals);
   info.krylovTolerance = tol;
   return res.X;
+}
+
+/** n×k right-hand sides: every conductor at 1 V in turn on its panels, 0 on the others (panels past conductorOf.length). */
+function unitRightHandSides(n: number, k: number, conductorOf: Uint32Array): Float64Array {
+  const B = sharedFloat64(n * k);
+  for (let p = 0; p < conductorOf.length; p++) B[p * k + conductorOf[p]] = 1;
+  return B;
+}
+
+/** The solve record of a compressed run, from its hierarchical matrix's statistics. */
+function compressedSolveInfo(H: HMatrix, opts: SolveOptions, choice: string, k: number, buildSeconds: number,
+  hTol: number, estimate: number): SolveInfo {
+  const st = H.stats;
+  return {
+    method: opts.method, solver: "compressed", choice, panels: H.n, rightHandSides: k,
+    assemblySeconds: buildSeconds, solveSeconds: 0, entriesPerSecond: st.storedEntries / Math.max(1e-9, buildSeconds),
+    compressionTolerance: hTol, compressionRatio: st.compressionRatio, maxRank: st.maxRank, meanRank: st.meanRank,
+    nearBlocks: st.nearBlocks, farBlocks: st.farBlocks, farBlocksDense: st.farDense, operatorBytes: st.bytes, estimatedBytes: estimate,
+  };
 }
 
 /** Disjoint tree nodes covering every point, each the largest node on its path of at most `size` points. */
@@ -467,27 +479,20 @@ async function solveCompressedWithInterfaces(positions: Float64Array, triangles:
   const hTol = interfaceCompressionTolerance(opts.tolerance);
   const url = new URL(import.meta.url.endsWith(".ts") ? "../bem/assembly.ts" : "../bem/assembly.js", import.meta.url).href;
 
-  progress("compression", 0);
   const t0 = performance.now();
   const images = preparedImages(panels, opts.kernel, true);
   const H = await buildHMatrix(panels.centroids, {
     source: { module: url, name: "assembleInterfaceBlock", before: [panels, nc, lam], after: [opts.method, testing, images] },
   }, {
     tolerance: hTol, leafSize, eta, symmetric: false, pad: panels.radii, pool: opts.pool,
-    progress: (_phase, f) => progress("compression", f),
+    progress,
   });
   const t1 = performance.now();
-  progress("compression", 1);
+  progress("far field", 1);
 
-  const B = sharedFloat64(N * k);
-  for (let p = 0; p < nc; p++) B[p * k + conductorOf[p]] = 1;
-  const st = H.stats;
-  const info: SolveInfo = {
-    method: opts.method, solver: "compressed", choice, panels: N, rightHandSides: k,
-    assemblySeconds: (t1 - t0) / 1e3, solveSeconds: 0, entriesPerSecond: st.storedEntries / Math.max(1e-9, (t1 - t0) / 1e3),
-    compressionTolerance: hTol, compressionRatio: st.compressionRatio, maxRank: st.maxRank, meanRank: st.meanRank,
-    nearBlocks: st.nearBlocks, farBlocks: st.farBlocks, farBlocksDense: st.farDense, operatorBytes: st.bytes, estimatedBytes: estimate,
-  };
+  // Interface rows (panels nc and up) have right-hand side 0.
+  const B = unitRightHandSides(N, k, conductorOf);
+  const info = compressedSolveInfo(H, opts, choice, k, (t1 - t0) / 1e3, hTol, estimate);
   progress("solve", 0);
   const t2 = performance.now();
   let releaseJacobi: (() => Promise<void>) | undefined;
