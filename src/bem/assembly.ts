@@ -18,6 +18,7 @@ import { collocationEntry, COLLOCATION_FAR } from "./collocation.js";
 import { sharedFloat64, sharedPool, type WorkerPool } from "../linalg/pool.js";
 import { hasImages, imageSet, type ImageSet, type KernelSpec } from "./images.js";
 import { interfaceRowEntry, normalFieldAt, type InterfaceTesting } from "./interface.js";
+import { unitField } from "./field.js";
 
 export type Discretisation = "galerkin" | "collocation";
 
@@ -359,3 +360,34 @@ export function normalFieldBlock(P: PanelSet, flag: Uint8Array, rows: Uint32Arra
     }
   }
 }
+
+/**
+ * The field of unit panel charges at panel centroids, three matrices at once (the entry
+ * generator of a vector kernel, linalg/hmatrix-apply.ts): out[(comp·m + a)·nc + b] = component
+ * comp of −∇I_j(c_i)/A_j (1/m², before 1/(4πε)), i = rows[a], j = cols[b], m = rows.length
+ * (field.ts unitField; the own panel's normal part is its principal value). With `images`,
+ * the mirror panels' fields are added with their signs.
+ */
+export function fieldBlock(P: PanelSet, rows: Uint32Array, cols: Uint32Array, out: Float64Array, images?: ImageSet): void {
+  const m = rows.length, nc = cols.length, c = P.centroids, e = fieldScratch;
+  if (out.length < 3 * m * nc) throw new Error(`fieldBlock: output holds ${out.length} entries, need ${3 * m * nc}`);
+  for (let a = 0; a < m; a++) {
+    const i = rows[a], px = c[3 * i], py = c[3 * i + 1], pz = c[3 * i + 2];
+    for (let b = 0; b < nc; b++) {
+      const j = cols[b];
+      unitField(P, j, px, py, pz, e, 0);
+      if (images !== undefined) {
+        const Q = images.panels, n = images.n;
+        for (let k = 0; k < images.count; k++) {
+          unitField(Q, n * (k + 1) + j, px, py, pz, e, 3);
+          const s = images.signs[k];
+          e[0] += s * e[3]; e[1] += s * e[4]; e[2] += s * e[5];
+        }
+      }
+      out[a * nc + b] = e[0];
+      out[(m + a) * nc + b] = e[1];
+      out[(2 * m + a) * nc + b] = e[2];
+    }
+  }
+}
+const fieldScratch = new Float64Array(6);

@@ -133,3 +133,64 @@ export function principalValueNormalField(P: PanelSet, q: Float64Array, out: Flo
     out[i] = e[0] * nm[3 * i] + e[1] * nm[3 * i + 1] + e[2] * nm[3 * i + 2];
   }
 }
+
+/**
+ * The point ladder of unitField, by distance from c_j in radii r_j (the same rungs and errors
+ * as interface.ts normalFieldAt, measured in tests/bem/interface-ladder.test.ts): the closed
+ * form below UNIT_FIELD_RULE, the degree-5 Dunavant rule below UNIT_FIELD_TAYLOR, the
+ * third-order Taylor expansion about c_j beyond (≤ 5e-6 of 1/|x − c_j|² at every rung).
+ */
+export const UNIT_FIELD_RULE = 5;
+export const UNIT_FIELD_TAYLOR = 14;
+
+/**
+ * out[o..o+2] = −∇I_j(x)/A_j for panel j of S (1/m²): the field of a unit charge spread over
+ * T_j, before 1/(4πε). On T_j's plane the normal part is the principal value.
+ */
+export function unitField(S: PanelSet, j: number, px: number, py: number, pz: number, out: Float64Array, o: number): void {
+  const c = S.centroids, v = S.vertices;
+  const dx = px - c[3 * j], dy = py - c[3 * j + 1], dz = pz - c[3 * j + 2];
+  const r2 = dx * dx + dy * dy + dz * dz, rj = S.radii[j];
+  if (r2 < UNIT_FIELD_RULE * UNIT_FIELD_RULE * rj * rj) {
+    trianglePotentialGradient(grad, 0, v, 9 * j, px, py, pz);
+    const ia = -1 / S.areas[j];
+    out[o] = ia * grad[0]; out[o + 1] = ia * grad[1]; out[o + 2] = ia * grad[2];
+    return;
+  }
+  if (r2 < UNIT_FIELD_TAYLOR * UNIT_FIELD_TAYLOR * rj * rj) {
+    const b = 9 * j;
+    const ax = v[b], ay = v[b + 1], az = v[b + 2], bx = v[b + 3], by = v[b + 4], bz = v[b + 5], cx = v[b + 6], cy = v[b + 7], cz = v[b + 8];
+    const R = FAR_RULE, L1 = R.l1, L2 = R.l2, L3 = R.l3, W = R.w;
+    let ex = 0, ey = 0, ez = 0;
+    for (let m = 0; m < R.n; m++) {
+      const rx = px - (L1[m] * ax + L2[m] * bx + L3[m] * cx);
+      const ry = py - (L1[m] * ay + L2[m] * by + L3[m] * cy);
+      const rz = pz - (L1[m] * az + L2[m] * bz + L3[m] * cz);
+      const ir = 1 / Math.sqrt(rx * rx + ry * ry + rz * rz);
+      const w = W[m] * ir * ir * ir;
+      ex += w * rx; ey += w * ry; ez += w * rz;
+    }
+    out[o] = ex; out[o + 1] = ey; out[o + 2] = ez;
+    return;
+  }
+  // interface.ts taylorGalerkin with a point target (S = M_j, U = −T_j, t = −traces of T_j),
+  // written for the whole vector: the expression there is n̂·F(d).
+  const M = S.moments2, T = S.moments3, V = S.traces3, oj = 6 * j, tj = 10 * j;
+  const sxx = M[oj], syy = M[oj + 1], szz = M[oj + 2], sxy = M[oj + 3], sxz = M[oj + 4], syz = M[oj + 5];
+  const u0 = -T[tj], u1 = -T[tj + 1], u2 = -T[tj + 2], u3 = -T[tj + 3], u4 = -T[tj + 4], u5 = -T[tj + 5], u6 = -T[tj + 6];
+  const u7 = -T[tj + 7], u8 = -T[tj + 8], u9 = -T[tj + 9];
+  const tx = -V[3 * j], ty = -V[3 * j + 1], tz = -V[3 * j + 2];
+  const inv2 = 1 / r2, inv = Math.sqrt(inv2), inv3 = inv * inv2;
+  const sdx = sxx * dx + sxy * dy + sxz * dz, sdy = sxy * dx + syy * dy + syz * dz, sdz = sxz * dx + syz * dy + szz * dz;
+  const q = dx * sdx + dy * sdy + dz * sdz, tr = sxx + syy + szz;
+  const gx = u0 * dx * dx + u5 * dy * dy + u7 * dz * dz + 2 * (u3 * dx * dy + u4 * dx * dz + u9 * dy * dz);
+  const gy = u3 * dx * dx + u1 * dy * dy + u8 * dz * dz + 2 * (u5 * dx * dy + u9 * dx * dz + u6 * dy * dz);
+  const gz = u4 * dx * dx + u6 * dy * dy + u2 * dz * dz + 2 * (u9 * dx * dy + u7 * dx * dz + u8 * dy * dz);
+  const uddd = gx * dx + gy * dy + gz * dz, td = tx * dx + ty * dy + tz * dz;
+  // F = d/r³ − (3 S·d + 1.5 tr S d + 1.5 t)/r⁵ + 7.5 (q d + g + (t·d) d)/r⁷ − 17.5 U(d,d,d) d/r⁹.
+  const kd = inv3 * (1 + inv2 * (-1.5 * tr + inv2 * (7.5 * q + 7.5 * td - 17.5 * uddd * inv2)));
+  const k1 = inv3 * inv2, k2 = 7.5 * inv3 * inv2 * inv2;
+  out[o] = kd * dx - k1 * (3 * sdx + 1.5 * tx) + k2 * gx;
+  out[o + 1] = kd * dy - k1 * (3 * sdy + 1.5 * ty) + k2 * gy;
+  out[o + 2] = kd * dz - k1 * (3 * sdz + 1.5 * tz) + k2 * gz;
+}

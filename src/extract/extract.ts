@@ -24,12 +24,12 @@ import { refineUniform, hasFeatureEdges } from "../mesh/refine.js";
 import type { Discretisation } from "../bem/assembly.js";
 import { sharedPool, type WorkerPool } from "../linalg/pool.js";
 import { EPSILON_0, AIR_BREAKDOWN_FIELD } from "./constants.js";
-import { solveUnitPotentials, type SolverChoice, type SolveInfo, type UnitSolution } from "./solve.js";
+import { compressionTolerance, solveUnitPotentials, type SolverChoice, type SolveInfo, type UnitSolution } from "./solve.js";
 import { conductorCharges, capacitanceMatrices, chargesAt, storedEnergy, mutualFromMaxwell } from "./capacitance.js";
 import { richardson, type RichardsonResult } from "./accuracy.js";
 import { panelExcitation, peakFields, conductorForces, criticalFields, type PanelExcitation, type PeakField } from "./excitation.js";
 import { peakResidentBytes } from "./memory.js";
-import { centroidFieldsParallel } from "./probe.js";
+import { centroidFieldsFast } from "./probe.js";
 import type { PanelSet } from "../bem/panels.js";
 import { InputError } from "../io/errors.js";
 import {
@@ -439,7 +439,8 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
 
   // Excitation on the finest mesh.
   const P = last.panels;
-  const images = kernel ? imageSet(P, kernel) : undefined;
+  // Shared, so the field workers read the mirror panels in place.
+  const images = kernel ? imageSet(P, kernel, { shared: true }) : undefined;
   let excitation: PanelExcitation, rawForce: Float64Array, complete: boolean;
   let dielectric: DielectricResult | undefined;
   if (model && totalX && allPanels) {
@@ -472,7 +473,7 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
       opts.progress?.("fields", 0, refine, nLevels);
       const list = new Uint32Array(nOpen);
       for (let p = 0, a = 0; p < P.n; p++) if (openPanel[p]) list[a++] = p;
-      const e = await centroidFieldsParallel(P, excitation.charge, eps, list, images, pool);
+      const e = await centroidFieldsFast(P, excitation.charge, eps, list, images, pool, compressionTolerance(tolerance));
       fieldPv = new Float64Array(3 * P.n);
       const normalPv = new Float64Array(P.n);
       for (let a = 0; a < nOpen; a++) {

@@ -10,6 +10,8 @@ import { potentialAt, fieldAt } from "../bem/field.js";
 import type { PanelSet } from "../bem/panels.js";
 import type { ImageSet } from "../bem/images.js";
 import { sharedFloat64, type WorkerPool } from "../linalg/pool.js";
+import { applyOnce } from "../linalg/hmatrix-apply.js";
+import { sharedPanels } from "../bem/assembly.js";
 
 export interface ProbeResult {
   /** Potential at each point; volts. */
@@ -65,6 +67,37 @@ export async function centroidFieldsParallel(panels: PanelSet, charge: Float64Ar
   }));
   return Float64Array.from(out);
 }
+
+/**
+ * E_pv at the centroids of the listed panels (3 per listed panel; V/m) in about N log N work:
+ * the field of all the panel charges, evaluated block by block over an H-matrix block tree
+ * without storing it (linalg/hmatrix-apply.ts; near blocks with the closed-form panel
+ * integrals, admissible blocks through ACA+ of the three field matrices stacked, to
+ * `tolerance` per block). Used where the all-pairs sum of centroidFields would cost minutes
+ * (an 80k-panel pad array: 6.4·10⁹ panel pairs); below FAST_FIELD_PAIRS target-source pairs it
+ * (or `minPairs`) is that exact sum. Measured against it in tests/extract/centroid-fields.test.ts.
+ */
+export async function centroidFieldsFast(panels: PanelSet, charge: Float64Array, permittivity: number, list: Uint32Array,
+  images: ImageSet | undefined, pool: WorkerPool | undefined, tolerance: number, minPairs = FAST_FIELD_PAIRS): Promise<Float64Array> {
+  const n = panels.n, sources = images ? n * (images.count + 1) : n;
+  if (list.length * sources < minPairs) return centroidFieldsParallel(panels, charge, permittivity, list, images, pool);
+  const S = sharedPanels(panels);
+  const wanted = new Uint8Array(n);
+  for (let a = 0; a < list.length; a++) wanted[list[a]] = 1;
+  const url = new URL(import.meta.url.endsWith(".ts") ? "../bem/assembly.ts" : "../bem/assembly.js", import.meta.url).href;
+  const y = await applyOnce(S.centroids, { source: { module: url, name: "fieldBlock", before: [S], after: [images] } }, charge, {
+    tolerance, components: 3, pad: S.radii, rows: wanted, pool,
+  });
+  const k = 1 / (4 * Math.PI * permittivity), out = new Float64Array(3 * list.length);
+  for (let a = 0; a < list.length; a++) {
+    const p = list[a];
+    out[3 * a] = k * y[3 * p]; out[3 * a + 1] = k * y[3 * p + 1]; out[3 * a + 2] = k * y[3 * p + 2];
+  }
+  return out;
+}
+
+/** Target × source panel pairs from which centroidFieldsFast compresses (an exact sum of about 2 s on 2 cores). */
+export const FAST_FIELD_PAIRS = 3e7;
 
 /** Fewest target panels per worker worth a task (the panels are copied to the workers unless shared). */
 const PARALLEL_MIN_TARGETS = 64;

@@ -12,6 +12,7 @@ import {
 } from "../../src/bem/interface.js";
 import { dunavantRule } from "../../src/bem/dunavant.js";
 import { trianglePotentialGradient } from "../../src/bem/triangle-potential.js";
+import { unitField, UNIT_FIELD_RULE, UNIT_FIELD_TAYLOR } from "../../src/bem/field.js";
 import { boxMesh } from "../../src/mesh/primitives/index.js";
 
 const R10 = dunavantRule(10);
@@ -112,6 +113,30 @@ describe("point normal-field ladder", () => {
         worst = Math.max(worst, Math.abs(normalFieldAt(P, 0, x[0], x[1], x[2], n[0], n[1], n[2]) - ref) * d * d);
       }
       expect(worst, `${rho} radii`).toBeLessThan(5e-6);
+    }
+  });
+});
+
+describe("point field ladder (field.ts unitField, all three components)", () => {
+  it("closed-form, degree-5 rule and Taylor rungs within 5e-6 of 1/d² of the analytic gradient on either side of each bound", () => {
+    const rnd = rng(17);
+    const g = new Float64Array(3), e = new Float64Array(3);
+    for (const rho of [0.5 * UNIT_FIELD_RULE, UNIT_FIELD_RULE, UNIT_FIELD_TAYLOR * 0.999, UNIT_FIELD_TAYLOR, 2 * UNIT_FIELD_TAYLOR, 6 * UNIT_FIELD_TAYLOR]) {
+      let worst = 0, size = 0;
+      for (let t = 0; t < 200; t++) {
+        const P = panelSet(randomTriangle(rnd), new Uint32Array([0, 1, 2]));
+        const u = unit(rnd), d = rho * 1.0001 * P.radii[0];
+        const x = [0, 1, 2].map((k) => P.centroids[k] + d * u[k]);
+        trianglePotentialGradient(g, 0, P.vertices, 0, x[0], x[1], x[2]);
+        unitField(P, 0, x[0], x[1], x[2], e, 0);
+        for (let k = 0; k < 3; k++) {
+          worst = Math.max(worst, Math.abs(e[k] + g[k] / P.areas[0]) * d * d);
+          size = Math.max(size, Math.abs(e[k]) * d * d);
+        }
+      }
+      expect(worst, `${rho} radii`).toBeLessThan(5e-6);
+      // The kernel's size is ~1/d² (a unit charge's field): the bound above is relative.
+      expect(size, `${rho} radii`).toBeGreaterThan(0.5);
     }
   });
 });
