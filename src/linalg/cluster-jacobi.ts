@@ -3,10 +3,13 @@
  * Sparse Linear Systems, 2nd ed., §10.2): Z = D⁻¹·R with D block diagonal over disjoint
  * index sets, each block given already gathered (e.g. the near-field diagonal blocks of a
  * hierarchical matrix, which never exists as a whole). Cholesky per block, LU with partial
- * pivoting when Cholesky fails or `lu` is asked for.
+ * pivoting when Cholesky fails or `lu` is asked for. The workers' version (parallelBlockJacobi)
+ * then replaces each factor by the block's explicit inverse, in the same m² numbers
+ * (block-inverse.ts), so an application is one SIMD product per block whatever k is.
  */
 import { choleskyFactorSerial, choleskySolve, NotPositiveDefiniteError } from "./cholesky.js";
 import { luFactorSerial, luSolve } from "./lu.js";
+import { applyInverse, blockInverseAvailable, choleskyInverseInPlace, luInverseInPlace } from "./block-inverse.js";
 
 export type BlockPreconditionerFn = (R: Float64Array, Z: Float64Array, k: number) => void;
 
@@ -59,19 +62,24 @@ export type AsyncBlockPreconditionerFn = (R: Float64Array, Z: Float64Array, k: n
  * blocks of about equal m² (the sets are disjoint, so the workers write disjoint rows of Z).
  */
 export interface SharedBlockJacobi {
-  /** Factors, block b at offsets[b] (m_b² numbers). */
+  /** Factors or inverses, block b at offsets[b] (m_b² numbers). */
   factors: Float64Array;
   offsets: Float64Array;
   /** Unknowns of block b: index[istart[b] .. istart[b + 1]). */
   index: Uint32Array;
   istart: Float64Array;
-  /** LU pivots of block b at istart[b] (unused for Cholesky blocks); kind 1 = LU, 0 = Cholesky. */
+  /** LU pivots of block b at istart[b] (LU blocks only); kind 0 = Cholesky factor, 1 = LU factor, 2 = explicit inverse. */
   pivots: Int32Array;
   kind: Uint8Array;
   /** Worker w applies blocks parts[w] .. parts[w + 1]. */
   parts: Float64Array;
   lu: boolean;
+  /** Replace the factors by the inverses (where this thread has the SIMD kernel). */
+  inverse: boolean;
 }
+
+/** Kind of a stored block. */
+export const BLOCK_CHOLESKY = 0, BLOCK_LU = 1, BLOCK_INVERSE = 2;
 
 let nextJacobiId = 1;
 const installedJacobi = new Map<number, SharedBlockJacobi>();
@@ -85,10 +93,12 @@ function jacobiUrl(): string {
  * workers. `blocks` are moved into shared memory (each entry of the list is replaced by an
  * empty array once copied), or, given as a function, write each block straight into its
  * place (`into[b]`, m_b² row-major), so no second copy is ever held. Call `release` when done.
+ * `inverse: false` keeps the factors and applies forward and back substitution (the
+ * reference, and what a thread without WebAssembly SIMD does anyway).
  */
 export async function parallelBlockJacobi(blocks: Float64Array[] | ((into: Float64Array[]) => void), sets: Uint32Array[], n: number,
   pool: { size: number; runOn<T>(w: number, module: string, fn: string, args: unknown[]): Promise<T> },
-  opts: { lu?: boolean } = {}): Promise<{ apply: AsyncBlockPreconditionerFn; release: () => Promise<void> }> {
+  opts: { lu?: boolean; inverse?: boolean } = {}): Promise<{ apply: AsyncBlockPreconditionerFn; release: () => Promise<void>; kind: Uint8Array }> {
   const nb = sets.length;
   if (Array.isArray(blocks) && blocks.length !== nb) throw new RangeError(`${blocks.length} diagonal blocks for ${nb} index sets`);
   const offsets = new Float64Array(new SharedArrayBuffer(8 * (nb + 1)));
@@ -123,7 +133,7 @@ export async function parallelBlockJacobi(blocks: Float64Array[] | ((into: Float
     parts[w] = b;
   }
   parts[threads] = nb;
-  const layout: SharedBlockJacobi = { factors, offsets, index, istart, pivots, kind, parts, lu: !!opts.lu };
+  const layout: SharedBlockJacobi = { factors, offsets, index, istart, pivots, kind, parts, lu: !!opts.lu, inverse: opts.inverse ?? true };
   const id = nextJacobiId++, url = jacobiUrl();
   await Promise.all(Array.from({ length: threads }, (_, w) => pool.runOn(w, url, "clusterJacobiInstallTask", [id, w, layout])));
   const free: number[] = [];
@@ -137,23 +147,32 @@ export async function parallelBlockJacobi(blocks: Float64Array[] | ((into: Float
     release: async () => {
       await Promise.all(Array.from({ length: threads }, (_, w) => pool.runOn(w, url, "clusterJacobiReleaseTask", [id])));
     },
+    kind,
   };
 }
 
-/** Worker task: keep the layout and factor this worker's share of the blocks in place. */
+/**
+ * Worker task: keep the layout and factor this worker's share of the blocks in place, then
+ * (L.inverse) overwrite each factor with the block's inverse.
+ */
 export function clusterJacobiInstallTask(id: number, part: number, L: SharedBlockJacobi): number {
   installedJacobi.set(id, L);
   const b0 = L.parts[part], b1 = L.parts[part + 1];
+  const invert = L.inverse && blockInverseAvailable();
   for (let b = b0; b < b1; b++) {
-    const o = L.offsets[b], m = L.istart[b + 1] - L.istart[b];
+    const o = L.offsets[b], s = L.istart[b], m = L.istart[b + 1] - s;
     const D = L.factors.subarray(o, o + m * m);
     if (!L.lu) {
       const copy = D.slice();
-      try { choleskyFactorSerial(D, m); L.kind[b] = 0; continue; }
-      catch (e) { if (!(e instanceof NotPositiveDefiniteError)) throw e; D.set(copy); }
+      try {
+        choleskyFactorSerial(D, m);
+        if (invert) { choleskyInverseInPlace(D, m); L.kind[b] = BLOCK_INVERSE; } else L.kind[b] = BLOCK_CHOLESKY;
+        continue;
+      } catch (e) { if (!(e instanceof NotPositiveDefiniteError)) throw e; D.set(copy); }
     }
-    L.pivots.set(luFactorSerial(D, m), L.istart[b]);
-    L.kind[b] = 1;
+    const piv = luFactorSerial(D, m);
+    if (invert) { luInverseInPlace(D, piv, m); L.kind[b] = BLOCK_INVERSE; }
+    else { L.pivots.set(piv, s); L.kind[b] = BLOCK_LU; }
   }
   return b1 - b0;
 }
@@ -162,7 +181,7 @@ export function clusterJacobiReleaseTask(id: number): boolean {
   return installedJacobi.delete(id);
 }
 
-let Wj = new Float64Array(0);
+let Wj = new Float64Array(0), Wz = new Float64Array(0);
 
 /** Worker task: Z rows of this worker's blocks = D_b⁻¹·R rows. */
 export function clusterJacobiApplyTask(id: number, part: number, R: Float64Array, Z: Float64Array, k: number): number {
@@ -171,11 +190,16 @@ export function clusterJacobiApplyTask(id: number, part: number, R: Float64Array
   const b0 = L.parts[part], b1 = L.parts[part + 1];
   for (let b = b0; b < b1; b++) {
     const s = L.istart[b], m = L.istart[b + 1] - s, o = L.offsets[b];
-    if (Wj.length < m * k) Wj = new Float64Array(m * k);
+    if (Wj.length < m * k) { Wj = new Float64Array(m * k); Wz = new Float64Array(m * k); }
     for (let a = 0; a < m; a++) { const r = L.index[s + a] * k; for (let c = 0; c < k; c++) Wj[a * k + c] = R[r + c]; }
-    const D = L.factors.subarray(o, o + m * m);
-    if (L.kind[b] === 0) choleskySolve(D, m, Wj, k); else luSolve(D, L.pivots.subarray(s, s + m), m, Wj, k);
-    for (let a = 0; a < m; a++) { const r = L.index[s + a] * k; for (let c = 0; c < k; c++) Z[r + c] = Wj[a * k + c]; }
+    const kind = L.kind[b];
+    let out = Wj;
+    if (kind === BLOCK_INVERSE) { applyInverse(L.factors, o, m, Wj, Wz, k); out = Wz; }
+    else {
+      const D = L.factors.subarray(o, o + m * m);
+      if (kind === BLOCK_CHOLESKY) choleskySolve(D, m, Wj, k); else luSolve(D, L.pivots.subarray(s, s + m), m, Wj, k);
+    }
+    for (let a = 0; a < m; a++) { const r = L.index[s + a] * k; for (let c = 0; c < k; c++) Z[r + c] = out[a * k + c]; }
   }
   return b1 - b0;
 }
