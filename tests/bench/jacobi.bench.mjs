@@ -29,10 +29,13 @@ function padMesh(count) {
   return { mesh: concatMeshes(parts), k: side * side };
 }
 
-// Best of `reps` (the machine is shared: the minimum is the least disturbed run).
+// Best wall time of `reps` (the machine is shared: the minimum is the least disturbed run),
+// and the mean CPU time per run of the whole process (all threads: getrusage RUSAGE_SELF).
 async function best(reps, f) {
   let t = Infinity;
+  const c0 = cpu();
   for (let r = 0; r < reps; r++) { const s = performance.now(); await f(); t = Math.min(t, (performance.now() - s) / 1e3); }
+  best.cpu = (cpu() - c0) / reps;
   return t;
 }
 
@@ -81,17 +84,17 @@ if (pads) {
     for (const inverse of [false, true]) {
       const w0 = performance.now(), c0 = cpu();
       J[inverse] = await parallelBlockJacobi((into) => { H.diagonalBlocks(nodes, into); }, sets, n, pool, { inverse });
-      console.log(`cluster ${cluster} (${sets.length} blocks), ${inverse ? "inverse     " : "substitution"}: setup ${((performance.now() - w0) / 1e3).toFixed(2)} s wall (main-thread CPU ${(cpu() - c0).toFixed(2)} s)  load ${load()}`);
+      console.log(`cluster ${cluster} (${sets.length} blocks), ${inverse ? "inverse     " : "substitution"}: setup ${((performance.now() - w0) / 1e3).toFixed(2)} s wall, ${(cpu() - c0).toFixed(2)} s CPU (all threads; the diagonal blocks are gathered on the main thread)  load ${load()}`);
     }
     for (const k of [1, 8, 36, 64]) {
       const X = sharedFloat64(n * k), Y = sharedFloat64(n * k), Z0 = sharedFloat64(n * k), Z1 = sharedFloat64(n * k);
       for (let i = 0; i < X.length; i++) X[i] = Math.sin(i);
-      const th = cluster === 256 ? await best(2, () => H.apply(X, Y, k)) : NaN;
-      const ts = await best(3, () => J[false].apply(X, Z0, k));
-      const ti = await best(3, () => J[true].apply(X, Z1, k));
+      const th = cluster === 256 ? await best(2, () => H.apply(X, Y, k)) : NaN, ch = best.cpu;
+      const ts = await best(5, () => J[false].apply(X, Z0, k)), cs = best.cpu;
+      const ti = await best(5, () => J[true].apply(X, Z1, k)), ci = best.cpu;
       let d = 0, s = 0;
       for (let i = 0; i < Z0.length; i++) { d = Math.max(d, Math.abs(Z1[i] - Z0[i])); s = Math.max(s, Math.abs(Z0[i])); }
-      console.log(`  k ${String(k).padStart(2)}: apply substitution ${ts.toFixed(3)} s, inverse ${ti.toFixed(3)} s (${(ts / ti).toFixed(1)}×)${cluster === 256 ? `, H.apply ${th.toFixed(3)} s` : ""}; max difference ${(d / s).toExponential(1)} relative  load ${load()}`);
+      console.log(`  k ${String(k).padStart(2)}: apply substitution ${ts.toFixed(3)} s (CPU ${cs.toFixed(3)} s), inverse ${ti.toFixed(3)} s (CPU ${ci.toFixed(3)} s), ×${(ts / ti).toFixed(1)} wall, ×${(cs / ci).toFixed(1)} CPU${cluster === 256 ? `; H.apply ${th.toFixed(3)} s (CPU ${ch.toFixed(3)} s)` : ""}; max difference ${(d / s).toExponential(1)} relative  load ${load()}`);
     }
     await J[false].release(); await J[true].release();
   }
@@ -108,9 +111,12 @@ if (cases.length) console.log("\ncompressed solves (Galerkin PCG, --tol 1e-4), b
 for (const [label, m, k] of cases) {
   for (const cluster of [256, 512]) {
     const t = performance.now(), c0 = cpu();
-    const s = await solveUnitPotentials(m.positions, m.triangles, m.conductor, k, { method: "galerkin", solver: "compressed", tolerance: 1e-4, pool: sharedPool(), preconditionerCluster: cluster, coarseCluster: 0 });
-    const i = s.info;
-    console.log(`${label} (${i.panels} panels, k ${k}) cluster ${cluster}: ${i.iterations} iterations, setup ${i.preconditionerSeconds.toFixed(2)} s, solve ${i.solveSeconds.toFixed(2)} s (incl. setup), total ${((performance.now() - t) / 1e3).toFixed(1)} s, main-thread CPU ${(cpu() - c0).toFixed(1)} s  load ${load()}`);
+    // CPU time of the solve phase (preconditioner setup + PCG), all threads: from progress("solve", 0) to the end.
+    let cs = NaN;
+    const progress = (phase, f) => { if (phase === "solve" && f === 0) cs = cpu(); };
+    const s = await solveUnitPotentials(m.positions, m.triangles, m.conductor, k, { method: "galerkin", solver: "compressed", tolerance: 1e-4, pool: sharedPool(), preconditionerCluster: cluster, coarseCluster: 0, progress });
+    const i = s.info, c1 = cpu();
+    console.log(`${label} (${i.panels} panels, k ${k}) cluster ${cluster}: ${i.iterations} iterations, setup ${i.preconditionerSeconds.toFixed(2)} s, solve ${i.solveSeconds.toFixed(2)} s wall (incl. setup), ${(c1 - cs).toFixed(1)} s CPU; whole call ${((performance.now() - t) / 1e3).toFixed(1)} s wall, ${(c1 - c0).toFixed(1)} s CPU (all threads)  load ${load()}`);
   }
 }
 await closeSharedPool();

@@ -1,4 +1,5 @@
 import { describe, it, expect, afterAll } from "vitest";
+import { execFileSync } from "node:child_process";
 import { blockJacobiFromBlocks, parallelBlockJacobi, BLOCK_INVERSE, BLOCK_CHOLESKY, BLOCK_LU } from "../../src/linalg/cluster-jacobi.js";
 import { buildHMatrix } from "../../src/linalg/hmatrix.js";
 import { pcg } from "../../src/linalg/cg.js";
@@ -45,6 +46,31 @@ describe("block-Jacobi with explicit block inverses", () => {
       } finally { await subst.release(); await inv.release(); }
     });
   }
+
+  it("without WebAssembly SIMD the workers keep the factors and apply by substitution", () => {
+    // A fresh process on the compiled modules (SIMD availability is decided once per thread).
+    const dist = new URL("../../dist/src/linalg/", import.meta.url).href;
+    const script = `(async () => {
+      const { parallelBlockJacobi, blockJacobiFromBlocks } = await import("${dist}cluster-jacobi.js");
+      const { WorkerPool, sharedFloat64 } = await import("${dist}pool.js");
+      const m = 40, n = 2 * m, k = 3;
+      const block = () => { const D = new Float64Array(m * m); for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) D[i * m + j] = 0.5 ** Math.abs(i - j) + (i === j ? 1 : 0); return D; };
+      const sets = [Uint32Array.from({ length: m }, (_, i) => 2 * i), Uint32Array.from({ length: m }, (_, i) => 2 * i + 1)];
+      const pool = new WorkerPool(2);
+      const J = await parallelBlockJacobi([block(), block()], sets, n, pool);
+      const R = sharedFloat64(n * k), Z = sharedFloat64(n * k), Zs = new Float64Array(n * k);
+      for (let i = 0; i < R.length; i++) R[i] = Math.sin(i);
+      await J.apply(R, Z, k);
+      blockJacobiFromBlocks([block(), block()], sets, n)(R, Zs, k);
+      let d = 0; for (let i = 0; i < Z.length; i++) d = Math.max(d, Math.abs(Z[i] - Zs[i]));
+      await J.release(); await pool.close();
+      console.log(JSON.stringify({ kind: [...J.kind], d }));
+    })();`;
+    const out = execFileSync(process.execPath, ["-e", script], { env: { ...process.env, SIGMESH_NO_WASM_SIMD: "1" }, encoding: "utf8" });
+    const r = JSON.parse(out.trim().split("\n").pop()!);
+    expect(r.kind).toEqual([BLOCK_CHOLESKY, BLOCK_CHOLESKY]);
+    expect(r.d).toBe(0);
+  });
 
   it("an indefinite block in the Cholesky path falls back to LU and is inverted too", async () => {
     const blocks = () => sets.map((I, b) => {
