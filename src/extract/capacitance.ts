@@ -23,16 +23,53 @@ export interface CapacitanceMatrices {
 /**
  * Sum panel charges per conductor.
  * `panelCharges` is n×k row-major (panel p, excitation j); charges in coulombs.
- * Returns the k×k matrix Q with Q[i*k + j] = Σ_{p on i} panelCharges[p*k + j].
+ * Returns the k×k matrix Q with Q[i*k + j] = Σ_{p on i} panelCharges[p*k + j], plus
+ * `correction[i*k + j]` when given (variationalCorrection, in the units of panelCharges).
  */
-export function conductorCharges(panelCharges: Float64Array, conductorOf: Uint32Array, k: number): Float64Array {
+export function conductorCharges(panelCharges: Float64Array, conductorOf: Uint32Array, k: number, correction?: Float64Array): Float64Array {
   const n = conductorOf.length;
   const q = new Float64Array(k * k);
   for (let p = 0; p < n; p++) {
     const i = conductorOf[p];
     for (let j = 0; j < k; j++) q[i * k + j] += panelCharges[p * k + j];
   }
+  if (correction) for (let a = 0; a < k * k; a++) q[a] += correction[a];
   return q;
+}
+
+/**
+ * Variational correction of the conductor charges from an approximate Galerkin solution.
+ * With A symmetric, b_j the right-hand side of conductor j (1 on its panels), x_j ≈ A⁻¹b_j and
+ * the true residual r_j = b_j − A·x_j, the estimate
+ *   C_ij ≈ b_iᵀx_j + x_iᵀr_j = b_iᵀx_j + x_iᵀb_j − x_iᵀA·x_j
+ * errs by exactly −e_iᵀA·e_j (e = A⁻¹b − x; two lines of algebra, checked to rounding in
+ * tests/extract/variational.test.ts): quadratic in the solution error where b_iᵀx_j alone is
+ * linear. It is the stationary (variational) form of the capacitance functional, 2⟨x, b⟩ −
+ * ⟨x, A·x⟩, whose maximiser over the discrete space is the Galerkin solution (from memory:
+ * R. F. Harrington, Field Computation by Moment Methods, 1968, on variational expressions).
+ * The diagonal can only fall: C_ii − e_iᵀA·e_i ≤ C_ii for A positive definite.
+ * Returns D = (XᵀR + RᵀX)/2, k×k row-major, to add to conductorCharges(X): symmetric, so the
+ * measured asymmetry of the raw matrix still reports the solver's.
+ * X and R are n×k row-major.
+ */
+export function variationalCorrection(X: Float64Array, R: Float64Array, n: number, k: number): Float64Array {
+  const d = new Float64Array(k * k);
+  for (let p = 0; p < n; p++) {
+    const o = p * k;
+    for (let i = 0; i < k; i++) {
+      const xi = X[o + i];
+      if (xi === 0) continue;
+      const row = i * k;
+      for (let j = 0; j < k; j++) d[row + j] += xi * R[o + j];
+    }
+  }
+  for (let i = 0; i < k; i++) {
+    for (let j = i + 1; j < k; j++) {
+      const m = 0.5 * (d[i * k + j] + d[j * k + i]);
+      d[i * k + j] = m; d[j * k + i] = m;
+    }
+  }
+  return d;
 }
 
 /** Symmetrise a raw Maxwell matrix, derive the mutual matrix and check the sign pattern. */

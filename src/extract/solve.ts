@@ -12,7 +12,8 @@ import type { InterfaceTesting } from "../bem/interface.js";
 import type { KernelSpec } from "../bem/images.js";
 import { choleskyFactor, choleskySolve, NotPositiveDefiniteError } from "../linalg/cholesky.js";
 import { luFactor, luSolve } from "../linalg/lu.js";
-import { pcg } from "../linalg/cg.js";
+import { pcg, type KrylovResult } from "../linalg/cg.js";
+import { variationalCorrection } from "./capacitance.js";
 import { gmres } from "../linalg/gmres.js";
 import { blockJacobi } from "../linalg/block-jacobi.js";
 import { clusterPoints, leafIndexSets } from "../linalg/cluster.js";
@@ -45,6 +46,8 @@ export interface SolveOptions {
   leafSize?: number;
   /** Mirror images (ground plane, symmetry planes; bem/images.ts); free space when absent. */
   kernel?: KernelSpec;
+  /** Relative residual of the Krylov solvers, overriding krylovTolerance(tolerance) (for measurements). */
+  krylovTolerance?: number;
 }
 
 export interface SolveInfo {
@@ -95,6 +98,12 @@ export interface UnitSolution {
   info: SolveInfo;
   /** Dielectric models, compressed solver: E_pv·n̂ in x units at the requested conductor panels, nc×k (solveUnitPotentialsWithInterfaces). */
   normalField?: Float64Array;
+  /**
+   * Galerkin Krylov paths (iterative, compressed): the variational correction of the conductor
+   * charges, k×k in x units, to add to conductorCharges(x) (capacitance.ts variationalCorrection).
+   * Absent where there is no residual (direct solver, collocation, dielectric interfaces).
+   */
+  chargeCorrection?: Float64Array;
 }
 
 /**
@@ -146,12 +155,22 @@ export function chooseSolver(n: number, k: number): { solver: "direct" | "iterat
   return { solver, reason: `estimated direct ${direct.toFixed(2)} s, iterative ${iterative.toFixed(2)} s` };
 }
 
-/** Krylov tolerance for a requested relative accuracy of C: the error of the charge functional
- *  falls faster than the residual, but a factor of 100 keeps solver error far below the
- *  discretisation error the tolerance refers to. */
+/**
+ * Krylov relative residual for a requested relative accuracy `tolerance` of C (conductor-only
+ * paths). Measured by tests/bench/krylov.bench.mjs (table in DEVELOPERS.md: sphere, sphere pair,
+ * 16-pad array, against a 1e-10 solve of the same operator): C itself needs little — with the
+ * variational correction (Galerkin Krylov paths, UnitSolution.chargeCorrection) a 1e-4 residual
+ * leaves C within 2e-7, without it within 4e-5 — but the panel charges, peak fields and forces
+ * come from the same solve and follow the residual linearly: at 1e-5 the sphere's peak field is
+ * off by 1.3e-3 (the third printed digit), at 1e-6 by 1.1e-4 (pair 1.8e-5, pads 5.9e-6). So
+ * tolerance/100 for C, and never looser than FIELD_KRYLOV_TOLERANCE for the fields.
+ */
 export function krylovTolerance(tolerance: number): number {
-  return Math.min(1e-4, Math.max(1e-12, tolerance * 1e-2));
+  return Math.min(FIELD_KRYLOV_TOLERANCE, Math.max(1e-12, tolerance * 1e-2));
 }
+
+/** Loosest Krylov residual that keeps the printed (3-digit) fields right: see krylovTolerance. */
+export const FIELD_KRYLOV_TOLERANCE = 1e-6;
 
 export async function solveUnitPotentials(
   positions: Float64Array, triangles: Uint32Array, conductorOf: Uint32Array, k: number, opts: SolveOptions,
@@ -193,6 +212,7 @@ export async function solveUnitPotentials(
   progress("solve", 0);
   const t2 = performance.now();
   let x: Float64Array;
+  let chargeCorrection: Float64Array | undefined;
   if (solver === "direct") {
     if (opts.method === "galerkin") {
       try {
@@ -214,12 +234,15 @@ export async function solveUnitPotentials(
     }
     x = B;
   } else {
-    const tol = krylovTolerance(opts.tolerance);
-    x = await denseKrylov(A, n, B, k, panels.centroids, opts.method === "galerkin", tol, opts.pool, info);
+    const tol = opts.krylovTolerance ?? krylovTolerance(opts.tolerance);
+    const spd = opts.method === "galerkin";
+    const res = await denseKrylov(A, n, B, k, panels.centroids, spd, tol, opts.pool, info);
+    x = res.X;
+    if (spd && res.residual) chargeCorrection = variationalCorrection(res.X, res.residual, n, k);
   }
   info.solveSeconds = (performance.now() - t2) / 1e3;
   progress("solve", 1);
-  return { x, panels, info };
+  return { x, panels, info, chargeCorrection };
 }
 
 /**
@@ -278,7 +301,7 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
       }
     }
     info.preconditionerSeconds = (performance.now() - t2) / 1e3;
-    const tol = krylovTolerance(opts.tolerance);
+    const tol = opts.krylovTolerance ?? krylovTolerance(opts.tolerance);
     const apply = (X: Float64Array, Y: Float64Array, kk: number) => H.apply(X, Y, kk);
     const maxIter = Math.max(300, Math.ceil(4 * Math.sqrt(n)));
     // Krylov residuals fall about geometrically: log(residual)/log(tol) advances steadily.
@@ -299,7 +322,8 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
     info.solveSeconds = (performance.now() - t2) / 1e3;
     info.peakResidentBytes = peakResidentBytes();
     progress("solve", 1);
-    return { x: res.X, panels, info };
+    const chargeCorrection = opts.method === "galerkin" && res.residual ? variationalCorrection(res.X, res.residual, n, k) : undefined;
+    return { x: res.X, panels, info, chargeCorrection };
   } finally {
     await releaseJacobi?.();
     await H.release();
@@ -311,7 +335,7 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
  * block-Jacobi over leaves of a cluster tree of the panel centroids (leaf size 64).
  */
 async function denseKrylov(A: Float64Array, n: number, B: Float64Array, k: number, centroids: Float64Array,
-  spd: boolean, tol: number, pool: WorkerPool, info: SolveInfo): Promise<Float64Array> {
+  spd: boolean, tol: number, pool: WorkerPool, info: SolveInfo): Promise<KrylovResult> {
   const tree = clusterPoints(centroids, 64);
   const precondition = blockJacobi(A, n, leafIndexSets(tree), { lu: !spd });
   const apply = (X: Float64Array, Y: Float64Array, kk: number) => denseMultiply(A, n, X, kk, Y, pool);
@@ -323,7 +347,7 @@ async function denseKrylov(A: Float64Array, n: number, B: Float64Array, k: numbe
   info.iterations = res.iterations;
   info.residual = Math.max(...res.residuals);
   info.krylovTolerance = tol;
-  return res.X;
+  return res;
 }
 
 /** n×k right-hand sides: every conductor at 1 V in turn on its panels, 0 on the others (panels past conductorOf.length). */
@@ -416,8 +440,8 @@ export async function solveUnitPotentialsWithInterfaces(
     luSolve(A, piv, N, B, k);
     x = B;
   } else {
-    const tol = krylovTolerance(opts.tolerance);
-    x = await denseKrylov(A, N, B, k, panels.centroids, false, tol, opts.pool, info);
+    const tol = opts.krylovTolerance ?? krylovTolerance(opts.tolerance);
+    x = (await denseKrylov(A, N, B, k, panels.centroids, false, tol, opts.pool, info)).X;
   }
   info.solveSeconds = (performance.now() - t2) / 1e3;
   progress("solve", 1);
@@ -506,7 +530,7 @@ async function solveCompressedWithInterfaces(positions: Float64Array, triangles:
     const precondition = jacobi.apply;
     info.preconditionerCluster = cluster;
     info.preconditionerSeconds = (performance.now() - t2) / 1e3;
-    const tol = interfaceKrylovTolerance(opts.tolerance);
+    const tol = opts.krylovTolerance ?? interfaceKrylovTolerance(opts.tolerance);
     const apply = (X: Float64Array, Y: Float64Array, kk: number) => H.apply(X, Y, kk);
     const maxIter = Math.max(300, Math.ceil(4 * Math.sqrt(N)));
     const res = await gmres(apply, precondition, B, k, { tol, maxIter, monitor: (it) => progress("solve", Math.min(0.99, it / 60)) });

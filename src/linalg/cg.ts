@@ -28,6 +28,8 @@ export interface KrylovOptions {
    * residual estimate (the solver's own recurrence; the array is reused, copy to keep it).
    */
   monitor?: (iteration: number, residuals: Float64Array) => void;
+  /** pcg: drop converged columns from the block (default true; false keeps the full width, for measurements). */
+  compact?: boolean;
 }
 
 export interface KrylovResult {
@@ -75,6 +77,8 @@ export async function pcg(apply: BlockOperator, precondition: BlockPreconditione
   };
   const rz = new Float64Array(k), alpha = new Float64Array(k), beta = new Float64Array(k), rw = new Float64Array(k);
   const tolc = new Float64Array(k), keep = new Int32Array(k);
+  // With compact: false, the stopped columns stay in the block with p = 0.
+  const done = new Uint8Array(k);
   for (let c = 0; c < k; c++) tolc[c] = opts.tol * bnorm[c];
   // X unchanged since Qk last took its true residual.
   let fresh = false;
@@ -93,6 +97,7 @@ export async function pcg(apply: BlockOperator, precondition: BlockPreconditione
     for (let c = 0; c < k; c++) if (bnorm[c] > 0 && rr[c] > tolc[c]) cols[w++] = c;
     if (w === 0) return false;
     view(w);
+    done.fill(0);
     gatherColumns(Qk, k, R, w, cols, n);
     await precondition(R, Z, w);
     columnDots(R, Z, n, w, rz);
@@ -109,7 +114,7 @@ export async function pcg(apply: BlockOperator, precondition: BlockPreconditione
     columnDots(P, Q, n, w, alpha);
     // α = (r, z)/(p, A·p). A column with (p, A·p) ≤ 0 or (r, z) ≤ 0 has met a matrix or
     // preconditioner that is not SPD and stops (takes no step).
-    for (let c = 0; c < w; c++) alpha[c] = alpha[c] > 0 && rz[c] > 0 ? rz[c] / alpha[c] : 0;
+    for (let c = 0; c < w; c++) alpha[c] = !done[c] && alpha[c] > 0 && rz[c] > 0 ? rz[c] / alpha[c] : 0;
     // x += α p, r −= α q and ‖r‖² in one pass.
     rw.fill(0, 0, w);
     if (w === k) {
@@ -138,30 +143,40 @@ export async function pcg(apply: BlockOperator, precondition: BlockPreconditione
     }
     let still = 0;
     for (let c = 0; c < w; c++) {
+      if (done[c]) continue;
       rr[cols[c]] = Math.sqrt(rw[c]);
       if (alpha[c] > 0 && rr[cols[c]] > tolc[cols[c]]) still++;
+      else done[c] = 1;
     }
     if (opts.monitor) {
       for (let c = 0; c < k; c++) est[c] = bnorm[c] > 0 ? rr[c] / bnorm[c] : 0;
       opts.monitor(iterations, est);
     }
     if (still === 0) { moving = await restart(); continue; }
-    if (still < w) {
+    if (still < w && opts.compact !== false) {
       // Drop the stopped columns: R and P close up in place into n×still blocks (row i's
       // entries move to lower or equal offsets, so a forward pass reads each before it is overwritten).
-      for (let c = 0, a = 0; c < w; c++) if (alpha[c] > 0 && rr[cols[c]] > tolc[cols[c]]) keep[a++] = c;
+      for (let c = 0, a = 0; c < w; c++) if (!done[c]) keep[a++] = c;
       gatherColumns(R, w, R, still, keep, n);
       gatherColumns(P, w, P, still, keep, n);
       for (let a = 0; a < still; a++) { rz[a] = rz[keep[a]]; cols[a] = cols[keep[a]]; }
       w = still;
       view(w);
+      done.fill(0);
     }
     await precondition(R, Z, w);
     columnDots(R, Z, n, w, beta);
     for (let c = 0; c < w; c++) { const next = beta[c]; beta[c] = rz[c] !== 0 ? next / rz[c] : 0; rz[c] = next; }
-    for (let i = 0; i < n; i++) {
-      const o = i * w;
-      for (let c = 0; c < w; c++) P[o + c] = Z[o + c] + beta[c] * P[o + c];
+    if (still < w) {
+      for (let i = 0; i < n; i++) {
+        const o = i * w;
+        for (let c = 0; c < w; c++) P[o + c] = done[c] ? 0 : Z[o + c] + beta[c] * P[o + c];
+      }
+    } else {
+      for (let i = 0; i < n; i++) {
+        const o = i * w;
+        for (let c = 0; c < w; c++) P[o + c] = Z[o + c] + beta[c] * P[o + c];
+      }
     }
   }
   // Out of iterations: the true residual of the last iterate.

@@ -74,6 +74,39 @@ describe("preconditioned conjugate gradients", () => {
     expect(again.converged).toBe(true);
   });
 
+  it("drops converged columns from the products and agrees with the full-width iteration", async () => {
+    // Column 0 starts at the answer, column 1 is a smooth right-hand side (few iterations),
+    // column 2 a rough one (many): the operator sees widths 2 then 1.
+    const k = 3, B = randomBlock(n, k, 9), M = blockJacobi(A, n, blocks);
+    const L = A.slice();
+    choleskyFactorSerial(L, n);
+    const x0 = new Float64Array(n * k);
+    for (let i = 0; i < n; i++) { B[i * k + 1] = 1; x0[i * k] = B[i * k]; }
+    const one = column(B, n, k, 0);
+    choleskySolve(L, n, one, 1);
+    for (let i = 0; i < n; i++) x0[i * k] = one[i];
+    const widths: number[] = [];
+    const counted = (X: Float64Array, Y: Float64Array, kk: number) => { widths.push(kk); apply(X, Y, kk); };
+    const compact = await pcg(counted, M, B, k, { tol: 1e-9, maxIter: 3000, x0 });
+    const full = await pcg(apply, M, B, k, { tol: 1e-9, maxIter: 3000, x0, compact: false });
+    expect(compact.converged && full.converged).toBe(true);
+    // First product: the true residual of all 3; last: the final check of all 3; between, at most 2 and at the end 1.
+    expect(widths[0]).toBe(3);
+    expect(widths[widths.length - 1]).toBe(3);
+    const inner = widths.slice(1, -1).filter((w) => w !== 3);
+    expect(Math.max(...inner)).toBe(2);
+    expect(inner).toContain(1);
+    for (let a = 1; a < inner.length; a++) expect(inner[a]).toBeLessThanOrEqual(inner[a - 1]);
+    expect(compact.iterations).toBe(full.iterations);
+    // Same recurrences on the same numbers, only gathered: the same iterates to rounding.
+    expect(relDiff(compact.X, full.X)).toBeLessThan(1e-12);
+    // The returned residual block is B − A·X.
+    const R = new Float64Array(n * k);
+    apply(compact.X, R, k);
+    for (let i = 0; i < n * k; i++) R[i] = B[i] - R[i];
+    expect(relDiff(compact.residual!, R)).toBeLessThan(1e-12);
+  });
+
   it("says so when it runs out of iterations", async () => {
     const r = await pcg(apply, identityPreconditioner, randomBlock(n, 1, 8), 1, { tol: 1e-12, maxIter: 5 });
     expect(r.converged).toBe(false);
