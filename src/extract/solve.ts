@@ -160,7 +160,7 @@ export function chooseSolver(n: number, k: number): { solver: "direct" | "iterat
  * paths). Measured by tests/bench/krylov.bench.mjs (table in DEVELOPERS.md: sphere, sphere pair,
  * 16-pad array, against a 1e-10 solve of the same operator): C itself needs little — with the
  * variational correction (Galerkin Krylov paths, UnitSolution.chargeCorrection) a 1e-4 residual
- * leaves C within 2e-7, without it within 4e-5 — but the panel charges, peak fields and forces
+ * leaves C within 2e-7, without it the pads' small mutual entries are off by 1e-3 — but the panel charges, peak fields and forces
  * come from the same solve and follow the residual linearly: at 1e-5 the sphere's peak field is
  * off by 1.3e-3 (the third printed digit), at 1e-6 by 1.1e-4 (pair 1.8e-5, pads 5.9e-6). So
  * tolerance/100 for C, and never looser than FIELD_KRYLOV_TOLERANCE for the fields.
