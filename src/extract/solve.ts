@@ -157,7 +157,7 @@ export function chooseSolver(n: number, k: number): { solver: "direct" | "iterat
 
 /**
  * Krylov relative residual for a requested relative accuracy `tolerance` of C (conductor-only
- * paths). Measured by tests/bench/krylov.bench.mjs (table in DEVELOPERS.md: sphere, sphere pair,
+ * paths). Measured by tests/bench/krylov.bench.mjs (table in DEVELOPERS.md: sphere, sphere pair, crossing bars,
  * 16-pad array, against a 1e-10 solve of the same operator): C itself needs little — with the
  * variational correction (Galerkin Krylov paths, UnitSolution.chargeCorrection) a 1e-4 residual
  * leaves C within 2e-7, without it the pads' small mutual entries are off by 1e-3 — but the panel charges, peak fields and forces
