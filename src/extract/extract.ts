@@ -374,7 +374,7 @@ export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Pr
         method, solver: opts.solver ?? "auto", tolerance, pool, memoryLimit: opts.memoryLimit, kernel: kernelFor(s),
         progress: (phase, f) => opts.progress?.(phase, f, level * nets + s, nLevels * nets),
       });
-      const q = conductorCharges(sol.x, mesh.conductor, k);
+      const q = conductorCharges(sol.x, mesh.conductor, k, sol.chargeCorrection);
       const scale = 4 * Math.PI * eps * tied;
       for (let i = 0; i < q.length; i++) q[i] *= scale;
       perPattern.push(q); xs.push(sol.x);
