@@ -12,7 +12,8 @@ import type { InterfaceTesting } from "../bem/interface.js";
 import type { KernelSpec } from "../bem/images.js";
 import { choleskyFactor, choleskySolve, NotPositiveDefiniteError } from "../linalg/cholesky.js";
 import { luFactor, luSolve } from "../linalg/lu.js";
-import { pcg, type KrylovResult } from "../linalg/cg.js";
+import { pcg, type KrylovResult, type BlockOperator, type BlockPreconditioner } from "../linalg/cg.js";
+import { blockPcg, type BlockKrylovOptions } from "../linalg/block-cg.js";
 import { variationalCorrection } from "./capacitance.js";
 import { gmres } from "../linalg/gmres.js";
 import { blockJacobi } from "../linalg/block-jacobi.js";
@@ -48,6 +49,8 @@ export interface SolveOptions {
   kernel?: KernelSpec;
   /** Relative residual of the Krylov solvers, overriding krylovTolerance(tolerance) (for measurements). */
   krylovTolerance?: number;
+  /** Galerkin Krylov paths: block PCG (true) or column-wise PCG (false) instead of choosing by BLOCK_CG_MIN_RHS (for measurements). */
+  blockKrylov?: boolean;
 }
 
 export interface SolveInfo {
@@ -236,7 +239,7 @@ export async function solveUnitPotentials(
   } else {
     const tol = opts.krylovTolerance ?? krylovTolerance(opts.tolerance);
     const spd = opts.method === "galerkin";
-    const res = await denseKrylov(A, n, B, k, panels.centroids, spd, tol, opts.pool, info);
+    const res = await denseKrylov(A, n, B, k, panels.centroids, spd, tol, opts.pool, info, opts.blockKrylov);
     x = res.X;
     if (spd && res.residual) chargeCorrection = variationalCorrection(res.X, res.residual, n, k);
   }
@@ -311,7 +314,7 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
       progress("solve", worst > 0 ? Math.min(0.99, Math.max(0, Math.log(worst) / Math.log(tol))) : 0.99);
     };
     const res = opts.method === "galerkin"
-      ? await pcg(apply, precondition, B, k, { tol, maxIter, monitor })
+      ? await spdKrylov(apply, precondition, B, k, { tol, maxIter, monitor, pool: opts.pool }, opts.blockKrylov)
       : await gmres(apply, precondition, B, k, { tol, maxIter, monitor });
     if (!res.converged) {
       throw new Error(`the compressed solver did not converge in ${res.iterations} iterations (residual ${Math.max(...res.residuals).toExponential(2)}); try a tighter --tol or --solver direct on a coarser mesh`);
@@ -331,16 +334,27 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
 }
 
 /**
+ * Right-hand sides from which the SPD (Galerkin) Krylov paths run block PCG (linalg/block-cg.ts)
+ * instead of column-wise PCG: measured in DEVELOPERS.md ("Block PCG").
+ */
+export const BLOCK_CG_MIN_RHS = 4;
+
+/** The SPD solve: block PCG from BLOCK_CG_MIN_RHS columns (or as `block` says), else column-wise PCG. */
+function spdKrylov(apply: BlockOperator, precondition: BlockPreconditioner, B: Float64Array, k: number, o: BlockKrylovOptions, block?: boolean): Promise<KrylovResult> {
+  return (block ?? k >= BLOCK_CG_MIN_RHS) ? blockPcg(apply, precondition, B, k, o) : pcg(apply, precondition, B, k, o);
+}
+
+/**
  * Krylov solve on a dense shared matrix: PCG when symmetric positive definite, else GMRES,
  * block-Jacobi over leaves of a cluster tree of the panel centroids (leaf size 64).
  */
 async function denseKrylov(A: Float64Array, n: number, B: Float64Array, k: number, centroids: Float64Array,
-  spd: boolean, tol: number, pool: WorkerPool, info: SolveInfo): Promise<KrylovResult> {
+  spd: boolean, tol: number, pool: WorkerPool, info: SolveInfo, block?: boolean): Promise<KrylovResult> {
   const tree = clusterPoints(centroids, 64);
   const precondition = blockJacobi(A, n, leafIndexSets(tree), { lu: !spd });
   const apply = (X: Float64Array, Y: Float64Array, kk: number) => denseMultiply(A, n, X, kk, Y, pool);
   const maxIter = Math.max(200, Math.ceil(4 * Math.sqrt(n)));
-  const res = spd ? await pcg(apply, precondition, B, k, { tol, maxIter }) : await gmres(apply, precondition, B, k, { tol, maxIter });
+  const res = spd ? await spdKrylov(apply, precondition, B, k, { tol, maxIter, pool }, block) : await gmres(apply, precondition, B, k, { tol, maxIter });
   if (!res.converged) {
     throw new Error(`the iterative solver did not converge in ${res.iterations} iterations (residual ${Math.max(...res.residuals).toExponential(2)}); try --solver direct`);
   }

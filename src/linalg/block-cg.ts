@@ -27,7 +27,7 @@
  * `precondition` with width w. Internally the columns of X sit in "slots" so that the moving
  * ones are the leading w columns of the n×k array (the product writes them with stride k).
  */
-import { sharedFloat64 } from "./pool.js";
+import { sharedFloat64, type WorkerPool } from "./pool.js";
 import { gemmStridedSimd, simdAvailable } from "./wasm-kernel.js";
 import { columnNorms, type BlockOperator, type BlockPreconditioner, type KrylovOptions, type KrylovResult } from "./cg.js";
 
@@ -37,8 +37,22 @@ import { columnNorms, type BlockOperator, type BlockPreconditioner, type KrylovO
  */
 export const DEPENDENCE = 1e-12;
 
-/** C ← C + α·A·Bᵀ with strided operands (gemmStridedSimd's arguments), SIMD where available. */
-function gemm(C: Float64Array, cOff: number, ldc: number,
+/** blockPcg's options: pcg's, and the pool that shares the block products. */
+export interface BlockKrylovOptions extends KrylovOptions {
+  /** Workers for the n×s·s×w and s×n·n×w products (the main thread takes one share); serial when absent. */
+  pool?: WorkerPool;
+  /** Smallest product (n·s·w multiply-adds) split over the pool (default PARALLEL_MIN_WORK). */
+  parallelMinWork?: number;
+}
+
+/**
+ * Smallest block product split over the pool: below it the message to the worker (about
+ * 0.1 ms) costs more than half the product (at ~6 GFLOP/s, 2·10⁶ multiply-adds take ~0.7 ms).
+ */
+export const PARALLEL_MIN_WORK = 2e6;
+
+/** C ← C + α·A·Bᵀ with strided operands (gemmStridedSimd's arguments), SIMD where available; also the pool task. */
+export function gemm(C: Float64Array, cOff: number, ldc: number,
   A: Float64Array, aOff: number, aRow: number, aCol: number,
   B: Float64Array, bOff: number, bRow: number, bCol: number,
   m: number, p: number, kc: number, alpha: number): void {
@@ -52,6 +66,52 @@ function gemm(C: Float64Array, cOff: number, ldc: number,
       for (let t = 0; t < kc; t++) s += A[a0 + t * aCol] * B[b0 + t * bCol];
       C[c0 + j] += alpha * s;
     }
+  }
+}
+
+/** Splits the block products over the main thread and the pool's workers. */
+class Products {
+  private readonly parts: number;
+  private scratch: Float64Array[] = [];
+  private readonly url = import.meta.url;
+  constructor(private readonly pool: WorkerPool | undefined, private readonly minWork: number, k: number) {
+    this.parts = pool ? Math.max(1, pool.size) : 1;
+    // Partial sums of the depth-split products, one k×k per worker share.
+    if (this.parts > 1) for (let q = 1; q < this.parts; q++) this.scratch.push(sharedFloat64(k * k));
+  }
+
+  /** C(m×p) += α·A·Bᵀ split by rows of C (for the n-row products). */
+  async rows(C: Float64Array, ldc: number, A: Float64Array, aRow: number, aCol: number, B: Float64Array, bRow: number, bCol: number,
+    m: number, p: number, kc: number, alpha: number): Promise<void> {
+    const parts = this.parts;
+    if (parts === 1 || m * p * kc < this.minWork) { gemm(C, 0, ldc, A, 0, aRow, aCol, B, 0, bRow, bCol, m, p, kc, alpha); return; }
+    const step = Math.ceil(m / parts), jobs: Promise<unknown>[] = [];
+    for (let q = 1; q < parts; q++) {
+      const r0 = q * step, rows = Math.min(m, r0 + step) - r0;
+      if (rows > 0) jobs.push(this.pool!.runOn(q - 1, this.url, "gemm", [C, r0 * ldc, ldc, A, r0 * aRow, aRow, aCol, B, 0, bRow, bCol, rows, p, kc, alpha]));
+    }
+    gemm(C, 0, ldc, A, 0, aRow, aCol, B, 0, bRow, bCol, Math.min(m, step), p, kc, alpha);
+    await Promise.all(jobs);
+  }
+
+  /** C(m×p, row stride p) = A·Bᵀ over depth kc split between the threads (C overwritten). */
+  async depth(C: Float64Array, A: Float64Array, aRow: number, aCol: number, B: Float64Array, bRow: number, bCol: number,
+    m: number, p: number, kc: number): Promise<void> {
+    const parts = this.parts;
+    C.fill(0, 0, m * p);
+    if (parts === 1 || m * p * kc < this.minWork) { gemm(C, 0, p, A, 0, aRow, aCol, B, 0, bRow, bCol, m, p, kc, 1); return; }
+    const step = Math.ceil(kc / parts), jobs: Promise<unknown>[] = [], used: Float64Array[] = [];
+    for (let q = 1; q < parts; q++) {
+      const t0 = q * step, depth = Math.min(kc, t0 + step) - t0;
+      if (depth <= 0) continue;
+      const S = this.scratch[q - 1];
+      S.fill(0, 0, m * p);
+      used.push(S);
+      jobs.push(this.pool!.runOn(q - 1, this.url, "gemm", [S, 0, p, A, t0 * aCol, aRow, aCol, B, t0 * bCol, bRow, bCol, m, p, depth, 1]));
+    }
+    gemm(C, 0, p, A, 0, aRow, aCol, B, 0, bRow, bCol, m, p, Math.min(kc, step), 1);
+    await Promise.all(jobs);
+    for (const S of used) for (let i = 0; i < m * p; i++) C[i] += S[i];
   }
 }
 
@@ -101,11 +161,10 @@ interface OrthSpace { G: Float64Array; T: Float64Array; Li: Float64Array; piv: I
  * P (n×s, leading n·s entries) ← an orthonormal basis of the columns of W (n×w) with the
  * near-dependent and zero ones dropped; returns s. W is not changed; P must not alias W.
  */
-export function orthonormalBasis(W: Float64Array, n: number, w: number, P: Float64Array, ws?: OrthSpace): number {
-  const sp = ws ?? orthSpace(w);
+export async function orthonormalBasis(W: Float64Array, n: number, w: number, P: Float64Array, ws?: OrthSpace, products?: Products): Promise<number> {
+  const sp = ws ?? orthSpace(w), mul = products ?? new Products(undefined, 0, w);
   const { G, T, Li, piv, d } = sp;
-  G.fill(0, 0, w * w);
-  gemm(G, 0, w, W, 0, 1, w, W, 0, 1, w, w, w, n, 1);
+  await mul.depth(G, W, 1, w, W, 1, w, w, w, n);
   for (let j = 0; j < w; j++) { d[j] = Math.sqrt(G[j * w + j]); piv[j] = j; }
   // Column-normalised Gram matrix (zero columns: zero rows and columns, never chosen).
   for (let i = 0; i < w; i++)
@@ -148,12 +207,12 @@ export function orthonormalBasis(W: Float64Array, n: number, w: number, P: Float
     for (let b = a; b < s; b++) T[row + b] = Li[b * s + a] * inv;
   }
   P.fill(0, 0, n * s);
-  gemm(P, 0, s, W, 0, w, 1, T, 0, 1, s, n, s, w, 1);
+  await mul.rows(P, s, W, w, 1, T, 1, s, n, s, w, 1);
   return s;
 }
 
 function orthSpace(k: number): OrthSpace {
-  return { G: new Float64Array(k * k), T: new Float64Array(k * k), Li: new Float64Array(k * k), piv: new Int32Array(k), d: new Float64Array(k) };
+  return { G: sharedFloat64(k * k), T: sharedFloat64(k * k), Li: new Float64Array(k * k), piv: new Int32Array(k), d: new Float64Array(k) };
 }
 
 /**
@@ -162,7 +221,7 @@ function orthSpace(k: number): OrthSpace {
  * `compact: false` keeps converged columns in the block (they keep moving, harmlessly) instead
  * of dropping them. A non-positive PᵀAP (A or M not SPD) stops the iteration.
  */
-export async function blockPcg(apply: BlockOperator, precondition: BlockPreconditioner, B: Float64Array, k: number, opts: KrylovOptions): Promise<KrylovResult> {
+export async function blockPcg(apply: BlockOperator, precondition: BlockPreconditioner, B: Float64Array, k: number, opts: BlockKrylovOptions): Promise<KrylovResult> {
   if (!Number.isInteger(k) || k < 1) throw new RangeError(`number of right-hand sides ${k} is not a positive integer`);
   const n = B.length / k;
   if (!Number.isInteger(n)) throw new RangeError(`right-hand sides hold ${B.length} values, not a multiple of k=${k}`);
@@ -172,8 +231,8 @@ export async function blockPcg(apply: BlockOperator, precondition: BlockPrecondi
   const bnorm = new Float64Array(k), rr = new Float64Array(k), est = new Float64Array(k), tolc = new Float64Array(k);
   const rn = new Float64Array(k), tmp = new Float64Array(k);
   const slot = new Int32Array(k), order = new Int32Array(k), keep = new Int32Array(k);
-  const C = new Float64Array(k * k), F = new Float64Array(k * k);
-  const ws = orthSpace(k);
+  const C = sharedFloat64(k * k), F = sharedFloat64(k * k);
+  const ws = orthSpace(k), mul = new Products(opts.pool, opts.parallelMinWork ?? PARALLEL_MIN_WORK, k);
   if (opts.x0) X.set(opts.x0.subarray(0, n * k));
   columnNorms(B, n, k, bnorm);
   for (let c = 0; c < k; c++) {
@@ -221,7 +280,7 @@ export async function blockPcg(apply: BlockOperator, precondition: BlockPrecondi
       for (let j = 0; j < w; j++) R[d + j] = E[o + j];
     }
     await precondition(R.subarray(0, n * w), Z.subarray(0, n * w), w);
-    s = orthonormalBasis(Z, n, w, P, ws);
+    s = await orthonormalBasis(Z, n, w, P, ws, mul);
     return s > 0;
   };
 
@@ -231,16 +290,14 @@ export async function blockPcg(apply: BlockOperator, precondition: BlockPrecondi
     iterations++;
     fresh = false;
     // C = PᵀQ, symmetrised (the product's rounding is not symmetric), then its Cholesky.
-    C.fill(0, 0, s * s);
-    gemm(C, 0, s, P, 0, 1, s, Q, 0, 1, s, s, s, n, 1);
+    await mul.depth(C, P, 1, s, Q, 1, s, s, s, n);
     for (let i = 0; i < s; i++) for (let j = 0; j < i; j++) { const v = 0.5 * (C[i * s + j] + C[j * s + i]); C[i * s + j] = v; C[j * s + i] = v; }
     if (!cholesky(C, s)) break;
     // α = C⁻¹·PᵀR; X += P·α (leading w slots, stride k); R −= Q·α.
-    F.fill(0, 0, s * w);
-    gemm(F, 0, w, P, 0, 1, s, R, 0, 1, w, s, w, n, 1);
+    await mul.depth(F, P, 1, s, R, 1, w, s, w, n);
     choleskySolveSmall(C, s, F, w);
-    gemm(X, 0, k, P, 0, s, 1, F, 0, 1, w, n, w, s, 1);
-    gemm(R, 0, w, Q, 0, s, 1, F, 0, 1, w, n, w, s, -1);
+    await mul.rows(X, k, P, s, 1, F, 1, w, n, w, s, 1);
+    await mul.rows(R, w, Q, s, 1, F, 1, w, n, w, s, -1);
     columnNorms(R, n, w, rn);
     let still = 0;
     for (let j = 0; j < w; j++) {
@@ -267,11 +324,10 @@ export async function blockPcg(apply: BlockOperator, precondition: BlockPrecondi
     }
     await precondition(R.subarray(0, n * w), Z.subarray(0, n * w), w);
     // W = Z − P·C⁻¹·QᵀZ (in Z), A-orthogonal to P; then P = orth(W).
-    F.fill(0, 0, s * w);
-    gemm(F, 0, w, Q, 0, 1, s, Z, 0, 1, w, s, w, n, 1);
+    await mul.depth(F, Q, 1, s, Z, 1, w, s, w, n);
     choleskySolveSmall(C, s, F, w);
-    gemm(Z, 0, w, P, 0, s, 1, F, 0, 1, w, n, w, s, -1);
-    s = orthonormalBasis(Z, n, w, P, ws);
+    await mul.rows(Z, w, P, s, 1, F, 1, w, n, w, s, -1);
+    s = await orthonormalBasis(Z, n, w, P, ws, mul);
     if (s === 0) moving = await restart();
   }
   if (!fresh) await trueResidual();
