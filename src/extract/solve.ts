@@ -337,7 +337,7 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
  * Right-hand sides from which the SPD (Galerkin) Krylov paths run block PCG (linalg/block-cg.ts)
  * instead of column-wise PCG: measured in DEVELOPERS.md ("Block PCG").
  */
-export const BLOCK_CG_MIN_RHS = 4;
+export const BLOCK_CG_MIN_RHS = 2;
 
 /** The SPD solve: block PCG from BLOCK_CG_MIN_RHS columns (or as `block` says), else column-wise PCG. */
 function spdKrylov(apply: BlockOperator, precondition: BlockPreconditioner, B: Float64Array, k: number, o: BlockKrylovOptions, block?: boolean): Promise<KrylovResult> {

@@ -3,7 +3,7 @@
 // preconditioner, same tolerance; and the solvers' own dense work per iteration at a given n, k
 // (a diagonal operator, so the product costs nothing). Figures are printed, not asserted; the
 // table in DEVELOPERS.md ("Block PCG") comes from here.
-//   node tests/bench/blockcg.bench.mjs [pads=16] [pads=36] [sphere=6] [vector=80000x64]
+//   node tests/bench/blockcg.bench.mjs [pads=16] [pads=36] [row=2] [sphere=6] [vector=80000x64]   (pads: a square array, row: 1 × N; dense: the dense iterative solver instead of the compressed one)
 import { loadavg } from "node:os";
 import { sphereMesh, plateMesh } from "../../dist/src/mesh/primitives/index.js";
 import { concatMeshes } from "../../dist/src/mesh/model.js";
@@ -18,10 +18,10 @@ const load = () => loadavg().map((x) => x.toFixed(2)).join(" ");
 console.log(`load average ${load()} (figures on a shared machine scale with it)`);
 const cpu = () => { const u = process.cpuUsage(); return (u.user + u.system) / 1e6; };
 
-function padArray(side) {
+function padArray(side, cols = side) {
   const parts = [];
   for (let i = 0; i < side; i++)
-    for (let j = 0; j < side; j++)
+    for (let j = 0; j < cols; j++)
       parts.push({ ...plateMesh({ size: [0.008, 0.008], divisions: 25, center: [0.01 * i, 0.01 * j, 0] }), names: [`pad${i}${j}`] });
   return concatMeshes(parts);
 }
@@ -33,12 +33,13 @@ function charges(x, conductor, k) {
   return Cm;
 }
 
+const solver = args.includes("dense") ? "iterative" : "compressed";
 async function compare(label, mesh, k) {
-  console.log(`\n${label}: ${mesh.conductor.length} panels, k = ${k}  load ${load()}`);
+  console.log(`\n${label}: ${mesh.conductor.length} panels, k = ${k}, --solver ${solver}  load ${load()}`);
   let ref;
   for (const block of [false, true]) {
     const c0 = cpu(), t0 = performance.now();
-    const sol = await solveUnitPotentials(mesh.positions, mesh.triangles, mesh.conductor, k, { method: "galerkin", solver: "compressed", tolerance: 1e-4, pool, blockKrylov: block });
+    const sol = await solveUnitPotentials(mesh.positions, mesh.triangles, mesh.conductor, k, { method: "galerkin", solver, tolerance: 1e-4, pool, blockKrylov: block });
     const wall = (performance.now() - t0) / 1e3, mainCpu = cpu() - c0, s = sol.info;
     const Cm = charges(sol.x, mesh.conductor, k);
     let diff = 0, scale = 0;
@@ -68,7 +69,9 @@ async function vector(n, k, its) {
 
 for (const a of args.length ? args : ["vector=80000x64", "pads=16", "sphere=6", "pads=36"]) {
   const [key, val] = a.split("=");
+  if (key === "dense") continue;
   if (key === "pads") { const side = Math.round(Math.sqrt(Number(val))); await compare(`${side * side} pads`, padArray(side), side * side); }
+  else if (key === "row") await compare(`row of ${val} pads`, padArray(1, Number(val)), Number(val));
   else if (key === "sphere") await compare(`sphere level ${val}`, sphereMesh({ radius: 1, level: Number(val) }), 1);
   else if (key === "vector") { const [n, k] = val.split("x").map(Number); await vector(n, k, 10); }
   else throw new Error(`unknown argument ${a}`);
