@@ -1,13 +1,14 @@
 /**
  * Block preconditioned conjugate gradients for SPD systems A·X = B with k right-hand sides:
  * one Krylov space shared by all columns (O'Leary, "The block conjugate gradient algorithm
- * and related methods", Linear Algebra Appl. 29, 1980), where `pcg` (cg.ts) runs k separate
+ * and related methods", Linear Algebra Appl. 29, 293–322, 1980), where `pcg` (cg.ts) runs k separate
  * recurrences over shared products. Each step minimises the A-norm error of every column over
  * the whole block of search directions, so a column profits from the directions the others
  * found; on the pad arrays this takes fewer products with A than k separate recurrences.
  *
- * Variant: the breakdown-free block CG of Ji & Li (BIT Numer. Math. 57, 2017; recurrence as
- * recalled from memory): the new search block is an orthonormal basis of Z − P·(PᵀAP)⁻¹·(AP)ᵀZ
+ * Variant: the breakdown-free block CG of Ji & Li ("A breakdown-free block conjugate gradient
+ * method", BIT Numer. Math., doi:10.1007/s10543-016-0631-z; title and the orth(·) of the search
+ * space checked against the abstract, volume 57 (2017) and the recurrence below from memory): the new search block is an orthonormal basis of Z − P·(PᵀAP)⁻¹·(AP)ᵀZ
  * (Z = M⁻¹R) with the near-dependent directions dropped, so duplicate, dependent or converged
  * columns shrink the block instead of making PᵀAP singular (the breakdown of O'Leary's form).
  * Per step, with P n×s (s ≤ w), Q = A·P, R the n×w residuals of the w columns still moving:
