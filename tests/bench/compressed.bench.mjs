@@ -127,9 +127,10 @@ if ((!quick && !only) || padArg) {
   for (let i = 0; i < side; i++) for (let j = 0; j < side; j++)
     parts.push({ ...plateMesh({ size: [0.008, 0.008], divisions: 25, center: [0.01 * i, 0.01 * j, 0] }), names: [`pad${i}${j}`] });
   const m = concatMeshes(parts);
-  const t = performance.now();
+  const t = performance.now(), cpu0 = process.cpuUsage();
   const r = await extract(m, { solver: "compressed", progress: (phase, f) => { if (f === 1) console.log(`  ${phase} done at ${((performance.now() - t) / 1e3).toFixed(1)} s`); } });
   line(`${side * side} pads`, r, (performance.now() - t) / 1e3);
-  console.log(`  load ${loadavg()[0].toFixed(2)}`);
+  const cpu = process.cpuUsage(cpu0);
+  console.log(`  process CPU ${((cpu.user + cpu.system) / 1e6).toFixed(1)} s (all threads)  load ${loadavg()[0].toFixed(2)}`);
 }
 await closeSharedPool();
