@@ -6,6 +6,7 @@ import { pcg } from "../../src/linalg/cg.js";
 import { WorkerPool, sharedFloat64 } from "../../src/linalg/pool.js";
 import { clusterCover } from "../../src/extract/solve.js";
 import { randomSpd, randomGeneral, rng, relDiff } from "./random.js";
+import { inverseMultiquadricModule } from "./kernel-matrix.js";
 
 const pool = new WorkerPool(2);
 afterAll(async () => { await pool.close(); });
@@ -94,18 +95,7 @@ describe("block-Jacobi with explicit block inverses", () => {
 // multiquadric kernel 1/√(r² + δ²) on a point cloud (positive definite: Wendland, Scattered
 // Data Approximation, 2005, Thm 8.15). Linalg tests may not import bem, so the generator is a
 // data: URL module the workers import.
-const kernelModule = "data:text/javascript," + encodeURIComponent(`
-export function entries(pts, delta, rows, cols, out) {
-  const nc = cols.length;
-  for (let a = 0; a < rows.length; a++) {
-    const i = 3 * rows[a];
-    for (let b = 0; b < nc; b++) {
-      const j = 3 * cols[b];
-      const dx = pts[i] - pts[j], dy = pts[i + 1] - pts[j + 1], dz = pts[i + 2] - pts[j + 2];
-      out[a * nc + b] = 1 / Math.sqrt(dx * dx + dy * dy + dz * dz + delta * delta);
-    }
-  }
-}`);
+const kernelModule = inverseMultiquadricModule;
 
 describe("block-Jacobi inverses on H-matrix diagonal blocks", () => {
   it("same application to 1e-12 and the same PCG iterations as the substitution, 2 cluster sizes", async () => {

@@ -3,21 +3,11 @@ import { buildHMatrix } from "../../src/linalg/hmatrix.js";
 import { WorkerPool, sharedFloat64 } from "../../src/linalg/pool.js";
 import { clusterCover } from "../../src/extract/solve.js";
 import { rng } from "./random.js";
+import { inverseMultiquadricModule } from "./kernel-matrix.js";
 
 // A generic kernel: linalg tests may not import bem. The generator lives in a compiled
 // module the workers can import, so the test builds it as a data: URL module.
-const kernelModule = "data:text/javascript," + encodeURIComponent(`
-export function entries(pts, delta, rows, cols, out) {
-  const nc = cols.length;
-  for (let a = 0; a < rows.length; a++) {
-    const i = 3 * rows[a];
-    for (let b = 0; b < nc; b++) {
-      const j = 3 * cols[b];
-      const dx = pts[i] - pts[j], dy = pts[i + 1] - pts[j + 1], dz = pts[i + 2] - pts[j + 2];
-      out[a * nc + b] = 1 / Math.sqrt(dx * dx + dy * dy + dz * dz + delta * delta);
-    }
-  }
-}`);
+const kernelModule = inverseMultiquadricModule;
 
 function spherePoints(n: number, seed: number): Float64Array {
   // z and φ uniform give an area-uniform sphere (Archimedes' hat-box theorem).

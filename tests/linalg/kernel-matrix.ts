@@ -28,3 +28,20 @@ export function inverseMultiquadricMatrix(pts: Float64Array, delta: number): Flo
     }
   return A;
 }
+
+/**
+ * The inverse multiquadric entries as an H-matrix entry generator in a data: URL module
+ * (`entries(pts, delta, rows, cols, out)`), so worker threads can import it.
+ */
+export const inverseMultiquadricModule = "data:text/javascript," + encodeURIComponent(`
+export function entries(pts, delta, rows, cols, out) {
+  const nc = cols.length;
+  for (let a = 0; a < rows.length; a++) {
+    const i = 3 * rows[a];
+    for (let b = 0; b < nc; b++) {
+      const j = 3 * cols[b];
+      const dx = pts[i] - pts[j], dy = pts[i + 1] - pts[j + 1], dz = pts[i + 2] - pts[j + 2];
+      out[a * nc + b] = 1 / Math.sqrt(dx * dx + dy * dy + dz * dz + delta * delta);
+    }
+  }
+}`);
