@@ -10,7 +10,7 @@ import { parseUnit } from "../src/io/units.js";
 import { InputError } from "../src/io/errors.js";
 import { checkMesh } from "../src/mesh/check.js";
 import { pairSentence } from "../src/report/check-summary.js";
-import { extract } from "../src/extract/extract.js";
+import { extractMesh } from "../src/extract/extract-mesh.js";
 import { extractionReport } from "../src/report/json.js";
 import { extractionSummary } from "../src/report/extract-summary.js";
 import { closeSharedPool } from "../src/linalg/pool.js";
@@ -141,7 +141,7 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
   const bar = progressBar(!opts.quiet);
   let result;
   try {
-    result = await extract(scene.mesh, {
+    result = await extractMesh(scene.mesh, {
       permittivity: permittivity ?? scene.permittivity,
       method, solver, refine, tolerance, potentials: scene.potentials,
       breakdownField: breakdown ?? scene.breakdownField,

@@ -18,7 +18,7 @@ export { refineUniform } from "./mesh/refine.js";
 export { surfaceArea, signedVolume } from "./mesh/measure.js";
 export * from "./mesh/primitives/index.js";
 export { probeField, probeExtraction, type ProbeResult } from "./extract/probe.js";
-export { extract, type ExtractOptions, type ExtractionResult, type ConductorResult } from "./extract/extract.js";
+export { extractMesh, type MeshExtractOptions, type ExtractionResult, type ConductorResult } from "./extract/extract-mesh.js";
 export { EPSILON_0, AIR_BREAKDOWN_FIELD } from "./extract/constants.js";
 export { extractionReport } from "./report/json.js";
 export { extractionSummary } from "./report/extract-summary.js";

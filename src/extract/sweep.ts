@@ -26,7 +26,7 @@ import { pairSentence } from "../report/check-summary.js";
 import { csvText, parseCsv } from "../report/csv.js";
 import { linePlotSvg, type PlotSeries } from "../report/svg-plot.js";
 import { compiledUrl } from "../linalg/pool.js";
-import { extract, type ExtractOptions } from "./extract.js";
+import { extractMesh, type MeshExtractOptions } from "./extract-mesh.js";
 import { fileURLToPath } from "node:url";
 
 /** One swept parameter and its values, in the order they are run. */
@@ -184,13 +184,13 @@ export async function extractPoint(scene: string, point: Record<string, number>,
     const s = loadScene(scene, { parameters: point });
     const errors = checkMesh(s.mesh).pairs.filter((p) => p.severity === "error");
     if (errors.length > 0) throw new InputError(pairSentence(errors[0], s.unit), scene);
-    const options: ExtractOptions = {
+    const options: MeshExtractOptions = {
       permittivity: s.permittivity, breakdownField: s.breakdownField, potentials: s.potentials,
       groundPlane: s.groundPlane, symmetry: s.symmetry, floating: s.floating,
       dielectrics: s.dielectrics.length > 0 ? s.dielectrics : undefined,
       method: opts.method ?? "galerkin", solver: opts.solver ?? "auto", tolerance: opts.tolerance ?? 1e-4, refine: opts.refine ?? 0,
     };
-    const r = await extract(s.mesh, options);
+    const r = await extractMesh(s.mesh, options);
     return { names: r.names, maxwell: r.maxwell, mutual: r.mutual };
   } catch (err) {
     if (err instanceof InputError) throw new InputError(err.fault, err.file ?? scene, [describePoint(k, point), err.place].filter(Boolean).join(", "));

@@ -6,7 +6,7 @@
 import { loadavg } from "node:os";
 import { sphereMesh, plateMesh } from "../../dist/src/mesh/primitives/index.js";
 import { concatMeshes } from "../../dist/src/mesh/model.js";
-import { extract } from "../../dist/src/extract/extract.js";
+import { extractMesh } from "../../dist/src/extract/extract-mesh.js";
 import { closeSharedPool } from "../../dist/src/linalg/pool.js";
 import { EPSILON_0 } from "../../dist/src/extract/constants.js";
 import { peakResidentBytes } from "../../dist/src/extract/memory.js";
@@ -28,7 +28,7 @@ console.log("\nspheres, R = 1 m, --tol 1e-4 (default)");
 const levels = quick ? [4, 5] : full ? [4, 5, 6, 7] : [4, 5, 6];
 for (const level of only ? [] : levels) {
   const t = performance.now();
-  const r = await extract(sphereMesh({ radius: 1, level }), { solver: "compressed" });
+  const r = await extractMesh(sphereMesh({ radius: 1, level }), { solver: "compressed" });
   line("compressed", r, (performance.now() - t) / 1e3, k4);
 }
 
@@ -38,7 +38,7 @@ for (const level of only ? [] : quick ? [3, 4] : [3, 4, 5]) {
   for (const solver of ["direct", "iterative", "compressed"]) {
     if (level >= 5 && solver !== "compressed" && solver !== "direct") continue;
     const t = performance.now();
-    const r = await extract(m, { solver });
+    const r = await extractMesh(m, { solver });
     line(solver, r, (performance.now() - t) / 1e3, k4);
   }
 }
@@ -128,7 +128,7 @@ if ((!quick && !only) || padArg) {
     parts.push({ ...plateMesh({ size: [0.008, 0.008], divisions: 25, center: [0.01 * i, 0.01 * j, 0] }), names: [`pad${i}${j}`] });
   const m = concatMeshes(parts);
   const t = performance.now(), cpu0 = process.cpuUsage();
-  const r = await extract(m, { solver: "compressed", progress: (phase, f) => { if (f === 1) console.log(`  ${phase} done at ${((performance.now() - t) / 1e3).toFixed(1)} s`); } });
+  const r = await extractMesh(m, { solver: "compressed", progress: (phase, f) => { if (f === 1) console.log(`  ${phase} done at ${((performance.now() - t) / 1e3).toFixed(1)} s`); } });
   line(`${side * side} pads`, r, (performance.now() - t) / 1e3);
   const cpu = process.cpuUsage(cpu0);
   console.log(`  process CPU ${((cpu.user + cpu.system) / 1e6).toFixed(1)} s (all threads)  load ${loadavg()[0].toFixed(2)}`);

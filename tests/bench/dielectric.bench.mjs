@@ -1,5 +1,5 @@
 // Dielectric benchmark: four touch pads (open sheets, 10 mm) on an FR-4-like slab (εr 4.4,
-// 40 × 40 × 1.6 mm) lying on a ground plane; whole extract() time, process CPU time (all threads:
+// 40 × 40 × 1.6 mm) lying on a ground plane; whole extractMesh() time, process CPU time (all threads:
 // on a shared machine wall time scales with the load, CPU time much less), phases and peak RSS.
 //   1. dense (direct LU) against compressed at small sizes: time and agreement of the Maxwell matrix;
 //   2. about 20k panels in all on the compressed solver (target: under 30 s on the 2-core machine),
@@ -8,7 +8,7 @@
 import { loadavg } from "node:os";
 import { boxMesh, plateMesh } from "../../dist/src/mesh/primitives/index.js";
 import { concatMeshes } from "../../dist/src/mesh/model.js";
-import { extract } from "../../dist/src/extract/extract.js";
+import { extractMesh } from "../../dist/src/extract/extract-mesh.js";
 import { closeSharedPool } from "../../dist/src/linalg/pool.js";
 import { peakResidentBytes } from "../../dist/src/extract/memory.js";
 
@@ -31,7 +31,7 @@ async function run(label, model, solver, extra = {}) {
   const phases = {};
   let last = performance.now();
   const cpu0 = process.cpuUsage(), t0 = performance.now();
-  const r = await extract(model.mesh, { ...model.opts, ...extra, solver, progress: (p) => { const now = performance.now(); phases[p] = (phases[p] ?? 0) + (now - last) / 1e3; last = now; } });
+  const r = await extractMesh(model.mesh, { ...model.opts, ...extra, solver, progress: (p) => { const now = performance.now(); phases[p] = (phases[p] ?? 0) + (now - last) / 1e3; last = now; } });
   const wall = (performance.now() - t0) / 1e3, c = process.cpuUsage(cpu0), cpu = (c.user + c.system) / 1e6;
   const s = r.solver;
   const ph = Object.entries(phases).map(([k, v]) => `${k} ${v.toFixed(1)} s`).join(", ");

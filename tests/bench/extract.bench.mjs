@@ -8,7 +8,7 @@ import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { sphereMesh, boxMesh, plateMesh, diskMesh } from "../../dist/src/mesh/primitives/index.js";
 import { writeMeshFile } from "../../dist/src/io/write.js";
-import { extract } from "../../dist/src/extract/extract.js";
+import { extractMesh } from "../../dist/src/extract/extract-mesh.js";
 import { closeSharedPool } from "../../dist/src/linalg/pool.js";
 import { EPSILON_0 } from "../../dist/src/extract/constants.js";
 
@@ -30,14 +30,14 @@ const cases = [
 console.log("\ncase                        panels   C/C_ref     error      target   time");
 for (const c of cases) {
   const t = performance.now();
-  const r = await extract(c.mesh, {});
+  const r = await extractMesh(c.mesh, {});
   const s = (performance.now() - t) / 1e3;
   const err = r.maxwell[0] / c.exact - 1;
   console.log(`${c.name.padEnd(26)} ${String(r.solver.panels).padStart(7)}  ${(r.maxwell[0] / c.exact).toFixed(6)}  ${pct(err).padStart(10)}  ${pct(c.target).padStart(9)}  ${s.toFixed(2)} s  (${c.source})`);
 }
 {
   const t = performance.now();
-  const r = await extract(sphereMesh({ radius: 1, level: 3 }), { refine: 1 });
+  const r = await extractMesh(sphereMesh({ radius: 1, level: 3 }), { refine: 1 });
   const s = (performance.now() - t) / 1e3;
   const err = r.maxwell[0] / k4 - 1;
   console.log(`sphere 1280 --refine 1: extrapolated error ${pct(err)} (target 0.02 %), estimate ±${pct(r.accuracy.richardson.relativeError)} ${Math.abs(err) <= r.accuracy.richardson.relativeError ? "brackets" : "DOES NOT bracket"} the true error; ${s.toFixed(2)} s`);
@@ -64,8 +64,8 @@ for (const n of sizes) {
     for (let i = 0; i < k; i++) parts.push({ ...sphereMesh({ radius: 1, level: lvl, center: [3 * i, 0, 0] }), names: [`s${i}`] });
     const { concatMeshes } = await import("../../dist/src/mesh/model.js");
     const m = concatMeshes(parts);
-    const d = await extract(m, { solver: "direct" });
-    const it = await extract(m, { solver: "iterative" });
+    const d = await extractMesh(m, { solver: "direct" });
+    const it = await extractMesh(m, { solver: "iterative" });
     console.log(`${String(d.solver.panels).padStart(6)} ${String(k).padStart(2)}  ${d.solver.solveSeconds.toFixed(3).padStart(8)}  ${(d.solver.factorGflops ?? 0).toFixed(2).padStart(7)}  ${it.solver.solveSeconds.toFixed(3).padStart(11)}  ${String(it.solver.iterations).padStart(10)}  ${(d.solver.entriesPerSecond / 1e6).toFixed(1)} M`);
   }
 }

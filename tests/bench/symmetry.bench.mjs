@@ -5,7 +5,7 @@
 import { loadavg } from "node:os";
 import { sphereMesh } from "../../dist/src/mesh/primitives/index.js";
 import { concatMeshes } from "../../dist/src/mesh/model.js";
-import { extract } from "../../dist/src/extract/extract.js";
+import { extractMesh } from "../../dist/src/extract/extract-mesh.js";
 import { reflectSurface } from "../../dist/src/bem/images.js";
 import { closeSharedPool } from "../../dist/src/linalg/pool.js";
 
@@ -14,7 +14,7 @@ console.log(`load average ${loadavg().map((x) => x.toFixed(2)).join(" ")} (figur
 
 async function timed(mesh, opts) {
   const t = performance.now();
-  const r = await extract(mesh, opts);
+  const r = await extractMesh(mesh, opts);
   return { r, s: (performance.now() - t) / 1e3 };
 }
 

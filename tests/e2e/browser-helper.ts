@@ -5,7 +5,7 @@ import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { sphereMesh, boxMesh, plateMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes } from "../../src/mesh/model.js";
-import { extract, type ExtractionResult } from "../../src/extract/extract.js";
+import { extractMesh, type ExtractionResult } from "../../src/extract/extract-mesh.js";
 import { extractionReport } from "../../src/report/json.js";
 import { htmlReport } from "../../src/report/html.js";
 import { viewerData } from "../../src/report/viewer-data.js";
@@ -36,7 +36,7 @@ export async function sampleExtraction(): Promise<{ result: ExtractionResult; re
     boxMesh({ size: [6e-3, 6e-3, 6e-3], divisions: 3, center: [6e-3, 0, 0], name: "ground box" }),
     plateMesh({ size: [10e-3, 10e-3], divisions: 6, center: [0, 0, -9e-3], name: MARKUP_NAME }),
   ]);
-  const result = await extract(mesh, { potentials: [2000, 0, 0] });
+  const result = await extractMesh(mesh, { potentials: [2000, 0, 0] });
   const report = extractionReport(result, { version: "test", files: ["generated <scene>.json"], unit: "mm", inputWarnings: [] });
   return { result, report };
 }

@@ -7,7 +7,7 @@
 import { describe, it, expect, afterAll } from "vitest";
 import { sphereMesh, plateMesh, boxMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes } from "../../src/mesh/model.js";
-import { extract } from "../../src/extract/extract.js";
+import { extractMesh } from "../../src/extract/extract-mesh.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
 import { panelSet } from "../../src/bem/panels.js";
 import { assembleWithInterfaces, assembleInterfaceBlock } from "../../src/bem/assembly.js";
@@ -37,8 +37,8 @@ function padsOnSlab() {
 describe("compressed solver with dielectric interfaces", () => {
   it("coated sphere: compressed and dense LU agree to 0.1 % of C, the compressed run says so", async () => {
     const opts = { dielectrics: [{ name: "coat", mesh: sphereMesh({ radius: 2, level: 2 }), permittivity: 4 }] };
-    const d = await extract(sphereMesh({ radius: 1, level: 2 }), { ...opts, solver: "direct" });
-    const c = await extract(sphereMesh({ radius: 1, level: 2 }), { ...opts, solver: "compressed" });
+    const d = await extractMesh(sphereMesh({ radius: 1, level: 2 }), { ...opts, solver: "direct" });
+    const c = await extractMesh(sphereMesh({ radius: 1, level: 2 }), { ...opts, solver: "compressed" });
     expect(c.solver.solver).toBe("compressed");
     expect(d.solver.solver).toBe("direct");
     expect(c.solver.iterations).toBeGreaterThan(0);
@@ -48,8 +48,8 @@ describe("compressed solver with dielectric interfaces", () => {
   it("pads (open sheets) on a slab over a ground plane: Maxwell matrix, free charges and peak field agree with the dense solve", async () => {
     const m = padsOnSlab();
     const o = { dielectrics: m.dielectrics, groundPlane: m.groundPlane };
-    const d = await extract(m.mesh, { ...o, solver: "direct" });
-    const c = await extract(m.mesh, { ...o, solver: "compressed" });
+    const d = await extractMesh(m.mesh, { ...o, solver: "direct" });
+    const c = await extractMesh(m.mesh, { ...o, solver: "compressed" });
     expect(c.solver.solver).toBe("compressed");
     expect(worstOfLargest(d.maxwell, c.maxwell)).toBeLessThan(1e-3);
     // The interface path's tolerance policy (solve.ts interfaceCompressionTolerance/KrylovTolerance)
@@ -61,7 +61,7 @@ describe("compressed solver with dielectric interfaces", () => {
     // Open-sheet fields from the normal-field H-matrix against the direct sums of the dense path.
     expect(Math.abs(c.conductors[0].peakField / d.conductors[0].peakField - 1)).toBeLessThan(1e-3);
     // The slab raises C well above the same pads in vacuum over the ground (sanity: εr 4.4 below the pads).
-    const vac = await extract(m.mesh, { groundPlane: m.groundPlane, solver: "direct" });
+    const vac = await extractMesh(m.mesh, { groundPlane: m.groundPlane, solver: "direct" });
     expect(d.maxwell[0] / vac.maxwell[0]).toBeGreaterThan(2);
   });
 

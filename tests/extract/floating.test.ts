@@ -6,7 +6,7 @@
 import { describe, it, expect, afterAll } from "vitest";
 import { Matrix, inverse } from "ml-matrix";
 import { eliminateFloating, withFloatingPotentials } from "../../src/extract/floating.js";
-import { extract } from "../../src/extract/extract.js";
+import { extractMesh } from "../../src/extract/extract-mesh.js";
 import { sphereMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes } from "../../src/mesh/model.js";
 import { EPSILON_0 } from "../../src/extract/constants.js";
@@ -71,8 +71,8 @@ describe("floating shell between two conductors", () => {
       { ...sphereMesh({ radius: b, level: 3 }), names: ["shield"] },
       { ...sphereMesh({ radius: c, level: 3 }), names: ["outer"] },
     ]);
-    const full = await extract(m, {});
-    const r = await extract(m, { floating: [false, true, false], potentials: [1, 0, 0] });
+    const full = await extractMesh(m, {});
+    const r = await extractMesh(m, { floating: [false, true, false], potentials: [1, 0, 0] });
     expect(r.reducedNames).toEqual(["inner", "outer"]);
     expect(r.floatingNames).toEqual(["shield"]);
     // Hand elimination of conductor 1 from the 3×3 matrix.

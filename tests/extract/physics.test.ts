@@ -6,7 +6,7 @@
 import { describe, it, expect, afterAll } from "vitest";
 import { sphereMesh, torusMesh, plateMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes, type SurfaceMesh } from "../../src/mesh/model.js";
-import { extract } from "../../src/extract/extract.js";
+import { extractMesh } from "../../src/extract/extract-mesh.js";
 import { probeExtraction } from "../../src/extract/probe.js";
 import { EPSILON_0 } from "../../src/extract/constants.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
@@ -24,7 +24,7 @@ function shifted(m: SurfaceMesh, dx: number, dy: number, dz: number, name: strin
 describe("probes", () => {
   it("outside a sphere at V the potential is V·R/r and the field radial V·R/r² (exterior of a charged sphere: Gauss's law)", async () => {
     const R = 0.5, V = 7;
-    const r = await extract(sphereMesh({ radius: R, level: 3 }), { potentials: [V] });
+    const r = await extractMesh(sphereMesh({ radius: R, level: 3 }), { potentials: [V] });
     const pts = new Float64Array([1.0, 0, 0, 0, 2.0, 0, 0.6, 0.6, 0.6]);
     const pr = probeExtraction(r, pts);
     // Use the solved charge: φ = kQ/r exactly for any spherically symmetric charge.
@@ -42,7 +42,7 @@ describe("probes", () => {
 
   it("on the axis of a thin charged ring: φ = kQ/√(R² + z²), E_z = kQz/(R² + z²)^{3/2} (e.g. Griffiths, Introduction to Electrodynamics, ring of charge)", async () => {
     const R = 1, a = 0.02;
-    const r = await extract(torusMesh({ majorRadius: R, minorRadius: a, divisions: [96, 8] }), { potentials: [1] });
+    const r = await extractMesh(torusMesh({ majorRadius: R, minorRadius: a, divisions: [96, 8] }), { potentials: [1] });
     const Q = r.conductors[0].charge;
     for (const z of [0.3, 1, 2.5]) {
       const pr = probeExtraction(r, new Float64Array([0, 0, z]));
@@ -62,7 +62,7 @@ describe("identities", () => {
   ]);
 
   it("energy ½ VᵀCV equals ½ QᵀV with Q summed from the panel charges", async () => {
-    const r = await extract(pair(), { potentials: [3, -2] });
+    const r = await extractMesh(pair(), { potentials: [3, -2] });
     const q = new Float64Array(2);
     for (let p = 0; p < r.excitation.charge.length; p++) q[r.panelConductor[p]] += r.excitation.charge[p];
     // Q = C·V uses the symmetrised matrix, the panel sums the raw solution: they differ by
@@ -74,10 +74,10 @@ describe("identities", () => {
   });
 
   it("direct and iterative solvers agree; collocation agrees with Galerkin to the discretisation error", async () => {
-    const d = await extract(pair(), { solver: "direct" });
-    const it = await extract(pair(), { solver: "iterative", tolerance: 1e-6 });
+    const d = await extractMesh(pair(), { solver: "direct" });
+    const it = await extractMesh(pair(), { solver: "iterative", tolerance: 1e-6 });
     for (let e = 0; e < 4; e++) expect(Math.abs(it.maxwell[e] - d.maxwell[e]) / d.maxwell[0]).toBeLessThan(1e-6);
-    const c = await extract(pair(), { method: "collocation" });
+    const c = await extractMesh(pair(), { method: "collocation" });
     for (let e = 0; e < 4; e++) expect(Math.abs(c.maxwell[e] - d.maxwell[e]) / d.maxwell[0]).toBeLessThan(2e-2);
     expect(c.asymmetry).toBeGreaterThan(0); // collocation is not symmetric; the report measures it
     expect(d.asymmetry).toBeLessThan(1e-12);
@@ -92,7 +92,7 @@ describe("forces", () => {
       shifted(sphereMesh({ radius: 1, level: 3 }), -1 - gap / 2, 0, 0, "left"),
       shifted(sphereMesh({ radius: 1, level: 3 }), 1 + gap / 2, 0, 0, "right"),
     ]);
-    const r = await extract(m, { potentials: [1, -1], solver: "direct" });
+    const r = await extractMesh(m, { potentials: [1, -1], solver: "direct" });
     return { w: r.energy, fx: r.conductors[1].force[0] };
   }
 
@@ -107,7 +107,7 @@ describe("forces", () => {
   it("parallel sheets: the force on an open plate matches virtual work too (σ·E_pv on sheets)", async () => {
     const plate = plateMesh({ size: [1, 1], divisions: 10, grading: 2 });
     const at = async (d: number) => {
-      const r = await extract(concatMeshes([shifted(plate, 0, 0, 0, "lower"), shifted(plate, 0, 0, d, "upper")]), { potentials: [0, 1], solver: "direct" });
+      const r = await extractMesh(concatMeshes([shifted(plate, 0, 0, 0, "lower"), shifted(plate, 0, 0, d, "upper")]), { potentials: [0, 1], solver: "direct" });
       return r;
     };
     const d = 0.2, h = 0.01;

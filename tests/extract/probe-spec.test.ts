@@ -5,7 +5,7 @@
 import { describe, it, expect, afterAll } from "vitest";
 import { parseProbeOption, parseSceneProbes, probePoints, probeCsv, probePointCount, distanceAlong, fieldMagnitude, type ProbeSpec } from "../../src/extract/probe-spec.js";
 import { probeExtraction } from "../../src/extract/probe.js";
-import { extract } from "../../src/extract/extract.js";
+import { extractMesh } from "../../src/extract/extract-mesh.js";
 import { sphereMesh, torusMesh } from "../../src/mesh/primitives/index.js";
 import { EPSILON_0 } from "../../src/extract/constants.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
@@ -91,7 +91,7 @@ describe("points", () => {
 
 describe("probes against closed forms", async () => {
   const R = 2, V = 100; // a 2 mm sphere at 100 V, probed in millimetres
-  const sphere = await extract(sphereMesh({ radius: R * 1e-3, level: 2 }), { potentials: [V] });
+  const sphere = await extractMesh(sphereMesh({ radius: R * 1e-3, level: 2 }), { potentials: [V] });
   const Q = sphere.conductors[0].charge;
 
   it("along a radial line outside a charged sphere: φ = kQ/r, E = kQ/r² radial (Gauss's law; point-charge field)", () => {
@@ -137,7 +137,7 @@ describe("probes against closed forms", async () => {
 
   it("on the axis of a thin charged ring: E_z = kQz/(R² + z²)^{3/2}, φ = kQ/√(R² + z²) (Griffiths, Introduction to Electrodynamics, ring of charge)", async () => {
     const Rr = 1, a = 0.02;
-    const ring = await extract(torusMesh({ majorRadius: Rr, minorRadius: a, divisions: [48, 6] }), { potentials: [1] });
+    const ring = await extractMesh(torusMesh({ majorRadius: Rr, minorRadius: a, divisions: [48, 6] }), { potentials: [1] });
     const Qr = ring.conductors[0].charge;
     const spec = parseProbeOption("axis=line:0,0,0.25:0,0,3:12");
     const pts = probePoints(spec, 1);

@@ -8,7 +8,7 @@ import { join } from "node:path";
 import { tmpdir } from "node:os";
 import { parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, extractPoint, mergeSweepCsv, sweepCsv } from "../../src/extract/sweep.js";
 import { loadScene } from "../../src/io/inputs.js";
-import { extract } from "../../src/extract/extract.js";
+import { extractMesh } from "../../src/extract/extract-mesh.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
 
 const dir = mkdtempSync(join(tmpdir(), "sigmesh-sweep-"));
@@ -69,7 +69,7 @@ describe("sweep points", () => {
         { name: "lid", shape: { plate: { size: [4, 4], divisions: 3 } }, place: { rotate: { axis: [0, 0, 1], degrees: 15 * gap }, translate: [0, 0, gap + 0.25] } }] }));
       const swept = await extractPoint(join(dir, "p.json"), { gap });
       const s = loadScene(join(dir, `h${gap}.json`));
-      const byHand = await extract(s.mesh, { potentials: s.potentials });
+      const byHand = await extractMesh(s.mesh, { potentials: s.potentials });
       expect(Array.from(swept.maxwell)).toEqual(Array.from(byHand.maxwell));
       expect(Array.from(swept.mutual)).toEqual(Array.from(byHand.mutual));
     }

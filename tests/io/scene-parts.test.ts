@@ -16,7 +16,7 @@ import { boundingBox } from "../../src/mesh/model.js";
 import { parseScene, loadSceneMesh } from "../../src/io/scene.js";
 import { loadScene } from "../../src/io/inputs.js";
 import { writeMeshFile } from "../../src/io/write.js";
-import { extract } from "../../src/extract/extract.js";
+import { extractMesh } from "../../src/extract/extract-mesh.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
 
 const dir = mkdtempSync(join(tmpdir(), "sigmesh-parts-"));
@@ -38,8 +38,8 @@ describe("multi-part conductors", () => {
     const two = loadScene(sceneFile("two.json", { unit: "mm", conductors: [{ name: "a", ...plate }, { name: "b", ...pin }] }));
     expect(net.mesh.names).toEqual(["net"]);
     expect(net.mesh.triangles.length).toBe(two.mesh.triangles.length);
-    const rn = await extract(net.mesh, { solver: "direct" });
-    const r2 = await extract(two.mesh, { solver: "direct" });
+    const rn = await extractMesh(net.mesh, { solver: "direct" });
+    const r2 = await extractMesh(two.mesh, { solver: "direct" });
     const sum = r2.maxwell[0] + r2.maxwell[1] + r2.maxwell[2] + r2.maxwell[3];
     expect(rn.maxwell[0]).toBeGreaterThan(0);
     expect(Math.abs(rn.maxwell[0] / sum - 1)).toBeLessThan(1e-9);

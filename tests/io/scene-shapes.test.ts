@@ -13,7 +13,7 @@ import { boxMesh, generateShape } from "../../src/mesh/primitives/index.js";
 import { signedVolume, surfaceArea } from "../../src/mesh/measure.js";
 import { loadScene } from "../../src/io/inputs.js";
 import { writeMeshFile } from "../../src/io/write.js";
-import { extract } from "../../src/extract/extract.js";
+import { extractMesh } from "../../src/extract/extract-mesh.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
 import type { SurfaceMesh } from "../../src/mesh/model.js";
 
@@ -84,7 +84,7 @@ describe("shapes in scenes", () => {
     expect(b.files).toEqual([]);
     expect(b.mesh.triangles.length).toBe(a.mesh.triangles.length);
     expect(triangleKeys(b.mesh)).toEqual(triangleKeys(a.mesh));
-    const ra = await extract(a.mesh, { potentials: a.potentials }), rb = await extract(b.mesh, { potentials: b.potentials });
+    const ra = await extractMesh(a.mesh, { potentials: a.potentials }), rb = await extractMesh(b.mesh, { potentials: b.potentials });
     // Not bit for bit: the file holds coordinates to its printed digits, in mm, and the lid is
     // moved by a placement instead of generated at its centre; both round at the 1e-12 level.
     for (let i = 0; i < 4; i++) expect(Math.abs(rb.maxwell[i] / ra.maxwell[i] - 1)).toBeLessThan(1e-8);

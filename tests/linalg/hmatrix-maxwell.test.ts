@@ -1,5 +1,5 @@
 import { describe, it, expect } from "vitest";
-import { extract } from "../../src/extract/extract.js";
+import { extractMesh } from "../../src/extract/extract-mesh.js";
 import { sphereMesh, barMesh, plateMesh, boxMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes, type SurfaceMesh } from "../../src/mesh/model.js";
 import { EPSILON_0 } from "../../src/extract/constants.js";
@@ -9,8 +9,8 @@ import { EPSILON_0 } from "../../src/extract/constants.js";
 function named(m: SurfaceMesh, name: string): SurfaceMesh { return { ...m, names: [name] }; }
 
 async function compare(mesh: SurfaceMesh, method: "galerkin" | "collocation" = "galerkin") {
-  const dense = await extract(mesh, { solver: "direct", method });
-  const comp = await extract(mesh, { solver: "compressed", method });
+  const dense = await extractMesh(mesh, { solver: "direct", method });
+  const comp = await extractMesh(mesh, { solver: "compressed", method });
   const k = dense.k;
   let big = 0, worst = 0;
   for (let i = 0; i < k * k; i++) big = Math.max(big, Math.abs(dense.maxwell[i]));
@@ -51,7 +51,7 @@ describe("compressed solver against the dense solver", () => {
   it("unit cube (16 divisions per side) near Hwang & Mascagni's 0.66068·4πε0a", async () => {
     // Hwang & Mascagni, J. Appl. Phys. 95, 2004: C = 0.66067813(1)·4πε0 for the unit cube; the
     // 16×16 mesh is 0.3 % low by its discretisation (tests/bench/extract.bench.mjs target).
-    const r = await extract(boxMesh({ size: [1, 1, 1], divisions: 16 }), { solver: "compressed" });
+    const r = await extractMesh(boxMesh({ size: [1, 1, 1], divisions: 16 }), { solver: "compressed" });
     const ref = 4 * Math.PI * EPSILON_0 * 0.66067813;
     expect(Math.abs(r.maxwell[0] / ref - 1)).toBeLessThan(0.003);
   });

@@ -6,7 +6,7 @@
 import { describe, it, expect, afterAll } from "vitest";
 import { sphereMesh, boxMesh, plateMesh, diskMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes, type SurfaceMesh } from "../../src/mesh/model.js";
-import { extract } from "../../src/extract/extract.js";
+import { extractMesh } from "../../src/extract/extract-mesh.js";
 import { EPSILON_0 } from "../../src/extract/constants.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
 
@@ -20,7 +20,7 @@ function named(m: SurfaceMesh, name: string): SurfaceMesh {
 describe("isolated conductors", () => {
   it("sphere: C = 4π ε0 R (exact), approached from below", async () => {
     const R = 0.01;
-    const r = await extract(sphereMesh({ radius: R, level: 3 }), { solver: "direct" });
+    const r = await extractMesh(sphereMesh({ radius: R, level: 3 }), { solver: "direct" });
     const ratio = r.maxwell[0] / (FOUR_PI_EPS0 * R);
     // Galerkin on the inscribed faceted sphere: a lower bound, within 0.5 % at 1280 panels.
     expect(ratio).toBeLessThan(1);
@@ -29,7 +29,7 @@ describe("isolated conductors", () => {
 
   it("sphere with --refine 1 from 1280 panels extrapolates to 0.02 % and the estimate brackets the true error", async () => {
     const R = 2;
-    const r = await extract(sphereMesh({ radius: R, level: 3 }), { refine: 1 });
+    const r = await extractMesh(sphereMesh({ radius: R, level: 3 }), { refine: 1 });
     const exact = FOUR_PI_EPS0 * R;
     const err = Math.abs(r.maxwell[0] - exact) / exact;
     expect(err).toBeLessThan(2e-4);
@@ -40,7 +40,7 @@ describe("isolated conductors", () => {
 
   it("thin circular disk: C = 8 ε0 R (exact; Jackson, Classical Electrodynamics, 3rd ed., §3.12)", async () => {
     const R = 0.05;
-    const r = await extract(diskMesh({ radius: R, divisions: 12, grading: 4 }), {});
+    const r = await extractMesh(diskMesh({ radius: R, divisions: 12, grading: 4 }), {});
     const ratio = r.maxwell[0] / (8 * EPSILON_0 * R);
     expect(ratio).toBeLessThan(1);
     expect(ratio).toBeGreaterThan(0.99);
@@ -48,14 +48,14 @@ describe("isolated conductors", () => {
   });
 
   it("unit cube: C/(4π ε0 a) = 0.66068 (Hwang & Mascagni, J. Appl. Phys. 95, 2004)", async () => {
-    const r = await extract(boxMesh({ size: [1, 1, 1], divisions: 10 }), {});
+    const r = await extractMesh(boxMesh({ size: [1, 1, 1], divisions: 10 }), {});
     const ratio = r.maxwell[0] / FOUR_PI_EPS0 / 0.66068;
     expect(ratio).toBeLessThan(1);
     expect(ratio).toBeGreaterThan(0.997);
   });
 
   it("thin square plate: C/(4π ε0 a) ≈ 0.3668 (boundary-element extrapolations in the literature; value from memory)", async () => {
-    const r = await extract(plateMesh({ size: [1, 1], divisions: 12 }), { refine: 2 });
+    const r = await extractMesh(plateMesh({ size: [1, 1], divisions: 12 }), { refine: 2 });
     const ratio = r.maxwell[0] / FOUR_PI_EPS0 / 0.36679;
     expect(Math.abs(ratio - 1)).toBeLessThan(1e-3);
     // Edges make the convergence slower than on smooth bodies: the observed order is near 1.
@@ -65,14 +65,14 @@ describe("isolated conductors", () => {
   });
 
   it("observed order on the sphere is about 2 (flat facets on a smooth body)", async () => {
-    const r = await extract(sphereMesh({ radius: 1, level: 1 }), { refine: 2 });
+    const r = await extractMesh(sphereMesh({ radius: 1, level: 1 }), { refine: 2 });
     expect(r.accuracy!.richardson.orderObserved).toBe(true);
     expect(r.accuracy!.richardson.order).toBeGreaterThan(1.7);
     expect(r.accuracy!.richardson.order).toBeLessThan(2.5);
   });
 
   it("observed order on the cube is between 1 and 2 (σ is singular at its edges and corners)", async () => {
-    const r = await extract(boxMesh({ size: [1, 1, 1], divisions: 4 }), { refine: 2 });
+    const r = await extractMesh(boxMesh({ size: [1, 1, 1], divisions: 4 }), { refine: 2 });
     expect(r.accuracy!.richardson.orderObserved).toBe(true);
     expect(r.accuracy!.richardson.order).toBeGreaterThan(1.0);
     expect(r.accuracy!.richardson.order).toBeLessThan(2.0);
@@ -82,8 +82,8 @@ describe("isolated conductors", () => {
 
   it("uniform medium: C scales with εr (Gauss's law in a linear homogeneous dielectric)", async () => {
     const m = sphereMesh({ radius: 1, level: 2 });
-    const a = await extract(m, {});
-    const b = await extract(m, { permittivity: 4.5 });
+    const a = await extractMesh(m, {});
+    const b = await extractMesh(m, { permittivity: 4.5 });
     expect(b.maxwell[0] / a.maxwell[0]).toBeCloseTo(4.5, 10);
   });
 });
@@ -94,7 +94,7 @@ describe("pairs and enclosures", () => {
     // C_aa = −C_ab = 4π ε0 ab/(b − a), C_bb = 4π ε0 ab/(b − a) + 4π ε0 b.
     const a = 1, b = 2;
     const m = concatMeshes([named(sphereMesh({ radius: a, level: 3 }), "inner"), named(sphereMesh({ radius: b, level: 3 }), "shell")]);
-    const r = await extract(m, { refine: 1 });
+    const r = await extractMesh(m, { refine: 1 });
     const cab = FOUR_PI_EPS0 * a * b / (b - a);
     const C = r.maxwell;
     const scale = cab + FOUR_PI_EPS0 * b;
@@ -118,7 +118,7 @@ describe("pairs and enclosures", () => {
       named(sphereMesh({ radius: a, level: 3, center: [-d / 2, 0, 0] }), "left"),
       named(sphereMesh({ radius: a, level: 3, center: [d / 2, 0, 0] }), "right"),
     ]);
-    const r = await extract(m, { refine: 1 });
+    const r = await extractMesh(m, { refine: 1 });
     expect(Math.abs(r.maxwell[0] - c11) / c11).toBeLessThan(5e-4);
     expect(Math.abs(r.maxwell[1] - c12) / c11).toBeLessThan(5e-4);
     expect(Math.abs(r.maxwell[3] - c11) / c11).toBeLessThan(5e-4);
@@ -139,7 +139,7 @@ describe("pairs and enclosures", () => {
       return { ...m, positions: p, names: [name] };
     };
     const m = concatMeshes([lift(disk, -d / 2, "bottom"), lift(disk, d / 2, "top")]);
-    const r = await extract(m, { refine: 1 });
+    const r = await extractMesh(m, { refine: 1 });
     const kirchhoff = EPSILON_0 * Math.PI * R * R / d + EPSILON_0 * R * (Math.log(16 * Math.PI * R / d) - 1);
     const pair = (r.maxwell[0] - r.maxwell[1]) / 2;
     expect(Math.abs(pair - kirchhoff) / kirchhoff).toBeLessThan(1e-2);
@@ -155,7 +155,7 @@ describe("pairs and enclosures", () => {
         for (let i = 2; i < p.length; i += 3) p[i] += z;
         return { ...plate, positions: p, names: [name] };
       };
-      const r = await extract(concatMeshes([lift(0, "lower"), lift(d, "upper")]), {});
+      const r = await extractMesh(concatMeshes([lift(0, "lower"), lift(d, "upper")]), {});
       ratios.push(r.mutual[1] / (EPSILON_0 * a * a / d));
     }
     // Fringing adds capacitance: every ratio above 1, shrinking toward 1 with the gap.

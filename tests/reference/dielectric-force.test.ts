@@ -8,7 +8,7 @@
 import { describe, it, expect, afterAll } from "vitest";
 import { sphereMesh, boxMesh, plateMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes, type SurfaceMesh } from "../../src/mesh/model.js";
-import { extract } from "../../src/extract/extract.js";
+import { extractMesh } from "../../src/extract/extract-mesh.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
 import { EPSILON_0 } from "../../src/extract/constants.js";
 
@@ -24,7 +24,7 @@ describe("force on a dielectric body", () => {
     const ball = { ...sphereMesh({ radius: 1, level: 2 }), names: ["ball"] };
     const bead = (x: number) => sphereMesh({ radius: 0.8, level: 2, center: [x, 0, 0] });
     const V = 100, x0 = 2.6, h = 0.02;
-    const run = (x: number) => extract(ball, { potentials: [V], solver: "direct", dielectrics: [{ name: "bead", mesh: bead(x), permittivity: 4 }] });
+    const run = (x: number) => extractMesh(ball, { potentials: [V], solver: "direct", dielectrics: [{ name: "bead", mesh: bead(x), permittivity: 4 }] });
     const r = await run(x0);
     const f = r.dielectric!.forces[0]!;
     const [cp, cm] = [(await run(x0 + h)).maxwell[0], (await run(x0 - h)).maxwell[0]];
@@ -40,7 +40,7 @@ describe("force on a dielectric body", () => {
     const plates = concatMeshes([plate(0.15, "top"), plate(-0.15, "bottom")]);
     const slab = boxMesh({ size: [2, 1, 0.2], divisions: [10, 5, 2] });
     const x0 = 1.0, h = 0.05; // the slab's centre at x0: half of it between the plates
-    const run = (x: number) => extract(plates, { potentials: [1, 0], solver: "direct", dielectrics: [{ name: "slab", mesh: shiftX(slab, x), permittivity: 3 }] });
+    const run = (x: number) => extractMesh(plates, { potentials: [1, 0], solver: "direct", dielectrics: [{ name: "slab", mesh: shiftX(slab, x), permittivity: 3 }] });
     const r = await run(x0);
     const f = r.dielectric!.forces[0]!;
     const [cp, cm] = [(await run(x0 + h)).maxwell[0], (await run(x0 - h)).maxwell[0]];
@@ -55,7 +55,7 @@ describe("force on a dielectric body", () => {
   });
 
   it("a body touching a conductor gets no force (a contact force is not an electrostatic result)", async () => {
-    const r = await extract({ ...sphereMesh({ radius: 1, level: 1 }), names: ["ball"] }, { dielectrics: [{ name: "coat", mesh: sphereMesh({ radius: 2, level: 1 }), permittivity: 4 }] });
+    const r = await extractMesh({ ...sphereMesh({ radius: 1, level: 1 }), names: ["ball"] }, { dielectrics: [{ name: "coat", mesh: sphereMesh({ radius: 2, level: 1 }), permittivity: 4 }] });
     expect(r.dielectric!.forces[0]).toBeNull();
   });
 });

@@ -6,7 +6,7 @@
 import { describe, it, expect, afterAll } from "vitest";
 import { sphereMesh, boxMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes, type SurfaceMesh } from "../../src/mesh/model.js";
-import { extract } from "../../src/extract/extract.js";
+import { extractMesh } from "../../src/extract/extract-mesh.js";
 import { reflectSurface } from "../../src/bem/images.js";
 import { probeExtraction } from "../../src/extract/probe.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
@@ -30,15 +30,15 @@ describe("dielectric bodies with symmetry planes", () => {
 
   it("a coated cube by half and by a quarter (conductor and coat cut by even planes) equals the whole model", async () => {
     const opts = { solver: "direct" as const, potentials: [1] };
-    const full = await extract(cube, { ...opts, dielectrics: [{ name: "coat", mesh: coat, permittivity: 4 }] });
-    const half = await extract(part(cube, (x) => x > 0), { ...opts, symmetry: [{ axis: "x", offset: 0 }],
+    const full = await extractMesh(cube, { ...opts, dielectrics: [{ name: "coat", mesh: coat, permittivity: 4 }] });
+    const half = await extractMesh(part(cube, (x) => x > 0), { ...opts, symmetry: [{ axis: "x", offset: 0 }],
       dielectrics: [{ name: "coat", mesh: part(coat, (x) => x > 0), permittivity: 4 }] });
-    const quarter = await extract(part(cube, (x, y) => x > 0 && y > 0), { ...opts, symmetry: [{ axis: "x", offset: 0 }, { axis: "y", offset: 0 }],
+    const quarter = await extractMesh(part(cube, (x, y) => x > 0 && y > 0), { ...opts, symmetry: [{ axis: "x", offset: 0 }, { axis: "y", offset: 0 }],
       dielectrics: [{ name: "coat", mesh: part(coat, (x, y) => x > 0 && y > 0), permittivity: 4 }] });
     expect(rel(half.maxwell[0], full.maxwell[0])).toBeLessThan(1e-6);
     expect(rel(quarter.maxwell[0], full.maxwell[0])).toBeLessThan(1e-6);
     // The coat raises C well above the bare cube's (so the interface rows and their images matter).
-    const bare = await extract(cube, opts);
+    const bare = await extractMesh(cube, opts);
     expect(full.maxwell[0] / bare.maxwell[0]).toBeGreaterThan(1.3);
     expect(half.dielectric!.interfacePanels).toBe(full.dielectric!.interfacePanels / 2);
     expect(rel(half.conductors[0].peakField, full.conductors[0].peakField)).toBeLessThan(1e-5);
@@ -54,15 +54,15 @@ describe("dielectric bodies with symmetry planes", () => {
     const shell = sphereMesh({ radius: 1.4, level: 1, center: [2, 0, 0] });
     const mirror = (m: SurfaceMesh, name: string) => { const r = reflectSurface(m.positions, m.triangles, 1, [0, 0, 0]); return { ...m, ...r, names: [name] }; };
     const opts = { solver: "direct" as const };
-    const full = await extract(concatMeshes([ball, mirror(ball, "n")]), { ...opts,
+    const full = await extractMesh(concatMeshes([ball, mirror(ball, "n")]), { ...opts,
       dielectrics: [{ name: "coat p", mesh: shell, permittivity: 3 }, { name: "coat n", mesh: mirror(shell, "coat n"), permittivity: 3 }] });
-    const odd = await extract(ball, { ...opts, symmetry: [{ axis: "x", offset: 0, images: "odd" }], dielectrics: [{ name: "coat p", mesh: shell, permittivity: 3 }] });
-    const even = await extract(ball, { ...opts, symmetry: [{ axis: "x", offset: 0 }], dielectrics: [{ name: "coat p", mesh: shell, permittivity: 3 }] });
+    const odd = await extractMesh(ball, { ...opts, symmetry: [{ axis: "x", offset: 0, images: "odd" }], dielectrics: [{ name: "coat p", mesh: shell, permittivity: 3 }] });
+    const even = await extractMesh(ball, { ...opts, symmetry: [{ axis: "x", offset: 0 }], dielectrics: [{ name: "coat p", mesh: shell, permittivity: 3 }] });
     const [c11, c12] = [full.maxwell[0], full.maxwell[1]];
     expect(rel(odd.maxwell[0], c11 - c12)).toBeLessThan(1e-6);
     expect(rel(even.maxwell[0], 2 * (c11 + c12))).toBeLessThan(1e-6);
     // Images both: the whole pair's matrix and its working point (p at 1 V, its mirror at 0 V) from the half.
-    const both = await extract(ball, { ...opts, potentials: [1, 0], symmetry: [{ axis: "x", offset: 0, images: "both" }], dielectrics: [{ name: "coat p", mesh: shell, permittivity: 3 }] });
+    const both = await extractMesh(ball, { ...opts, potentials: [1, 0], symmetry: [{ axis: "x", offset: 0, images: "both" }], dielectrics: [{ name: "coat p", mesh: shell, permittivity: 3 }] });
     expect(both.names).toEqual(["p", "p~x"]);
     for (let i = 0; i < 4; i++) expect(rel(both.maxwell[i], full.maxwell[i])).toBeLessThan(1e-6);
     expect(rel(both.conductors[1].peakField, full.conductors[1].peakField)).toBeLessThan(1e-5);
@@ -74,7 +74,7 @@ describe("dielectric bodies with symmetry planes", () => {
   });
 
   it("a body reaching across a symmetry plane is refused by name", async () => {
-    await expect(extract(part(cube, (x) => x > 0), { symmetry: [{ axis: "x", offset: 0 }],
+    await expect(extractMesh(part(cube, (x) => x > 0), { symmetry: [{ axis: "x", offset: 0 }],
       dielectrics: [{ name: "coat", mesh: coat, permittivity: 4 }] })).rejects.toThrow(/dielectric coat reaches across the symmetry plane x = 0 m/);
   });
 });

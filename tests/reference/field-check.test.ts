@@ -7,7 +7,7 @@
 import { describe, it, expect, afterAll } from "vitest";
 import { sphereMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes } from "../../src/mesh/model.js";
-import { extract } from "../../src/extract/extract.js";
+import { extractMesh } from "../../src/extract/extract-mesh.js";
 import { extractionReport } from "../../src/report/json.js";
 import { extractionSummary } from "../../src/report/extract-summary.js";
 import { EPSILON_0 } from "../../src/extract/constants.js";
@@ -23,7 +23,7 @@ const E = (C * V) / (FOUR_PI_EPS0 * er * a * a);
 describe("field check per medium", () => {
   it("coated sphere: the field in the coat is Q/(4π ε0 εr a²) and is checked against the coat's own strength", async () => {
     const coatStrength = 20e6;
-    const r = await extract({ ...sphereMesh({ radius: a, level: 2 }), names: ["ball"] }, {
+    const r = await extractMesh({ ...sphereMesh({ radius: a, level: 2 }), names: ["ball"] }, {
       potentials: [V], solver: "direct",
       dielectrics: [{ name: "coat", mesh: sphereMesh({ radius: b, level: 2 }), permittivity: er, breakdownField: coatStrength }],
     });
@@ -43,7 +43,7 @@ describe("field check per medium", () => {
   it("a bare and a coated conductor: each is checked in its own medium; a weak coat is the critical one", async () => {
     const bare = { ...sphereMesh({ radius: a, level: 2, center: [6, 0, 0] }), names: ["bare"] };
     const coated = { ...sphereMesh({ radius: a, level: 2 }), names: ["coated"] };
-    const r = await extract(concatMeshes([coated, bare]), {
+    const r = await extractMesh(concatMeshes([coated, bare]), {
       potentials: [V, V], solver: "direct", breakdownField: 3e6,
       dielectrics: [{ name: "coat", mesh: sphereMesh({ radius: b, level: 1 }), permittivity: er, breakdownField: 1e6 }],
     });
@@ -67,7 +67,7 @@ describe("field check per medium", () => {
   });
 
   it("a bad body strength is refused naming the body", async () => {
-    await expect(extract({ ...sphereMesh({ radius: a, level: 1 }), names: ["ball"] }, {
+    await expect(extractMesh({ ...sphereMesh({ radius: a, level: 1 }), names: ["ball"] }, {
       dielectrics: [{ name: "coat", mesh: sphereMesh({ radius: b, level: 1 }), permittivity: er, breakdownField: -1 }],
     })).rejects.toThrow(/dielectric coat: breakdown field must be a positive number/);
   });

@@ -5,7 +5,7 @@
 import { describe, it, expect, afterAll } from "vitest";
 import { sphereMesh, boxMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes, type SurfaceMesh } from "../../src/mesh/model.js";
-import { extract } from "../../src/extract/extract.js";
+import { extractMesh } from "../../src/extract/extract-mesh.js";
 import { probeExtraction } from "../../src/extract/probe.js";
 import { EPSILON_0 } from "../../src/extract/constants.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
@@ -71,7 +71,7 @@ describe("sphere above a grounded plane", () => {
   });
 
   it("extraction with --refine 1 from 320 panels lands within 1e-3 of the series, inside its own error estimate", async () => {
-    const r = await extract(sphereMesh({ radius: a, level: 2, center: [0, 0, h] }), { groundPlane: ground, refine: 1 });
+    const r = await extractMesh(sphereMesh({ radius: a, level: 2, center: [0, 0, h] }), { groundPlane: ground, refine: 1 });
     const exact = spherePlane(a, h);
     const err = Math.abs(r.maxwell[0] / exact - 1);
     expect(err).toBeLessThan(1e-3);
@@ -83,14 +83,14 @@ describe("sphere above a grounded plane", () => {
 
   it("equals the free-space solve of the sphere and its mirror at ±1 V on the same mesh (to 1e-7)", async () => {
     const up = { ...sphereMesh({ radius: a, level: 2, center: [0, 0, h] }), names: ["up"] };
-    const img = await extract(up, { groundPlane: ground });
-    const pair = await extract(concatMeshes([up, mirrorZ(up, "down")]), {});
+    const img = await extractMesh(up, { groundPlane: ground });
+    const pair = await extractMesh(concatMeshes([up, mirrorZ(up, "down")]), {});
     const c = pair.maxwell[0] - pair.maxwell[1];
     expect(Math.abs(img.maxwell[0] / c - 1)).toBeLessThan(1e-7);
   });
 
   it("force on the sphere at 1 V equals the virtual work ½V² dC/dh of the series (attraction, within 2 %)", async () => {
-    const r = await extract(sphereMesh({ radius: a, level: 3, center: [0, 0, h] }), { groundPlane: ground });
+    const r = await extractMesh(sphereMesh({ radius: a, level: 3, center: [0, 0, h] }), { groundPlane: ground });
     const dh = 1e-4;
     const dCdh = (spherePlane(a, h + dh) - spherePlane(a, h - dh)) / (2 * dh);
     const expected = 0.5 * dCdh; // V = 1 V; negative: pulled toward the plane
@@ -100,7 +100,7 @@ describe("sphere above a grounded plane", () => {
   });
 
   it("probes include the images: 0 V on the plane, the working potential on the sphere", async () => {
-    const r = await extract(sphereMesh({ radius: a, level: 3, center: [0, 0, h] }), { groundPlane: ground });
+    const r = await extractMesh(sphereMesh({ radius: a, level: 3, center: [0, 0, h] }), { groundPlane: ground });
     const pr = probeExtraction(r, Float64Array.from([0, 0, 0, 1.5, -0.5, 0, 0, 0, h + 0.2, 0, 0, h - 0.99]));
     expect(Math.abs(pr.potential[0])).toBeLessThan(1e-12);
     expect(Math.abs(pr.potential[1])).toBeLessThan(1e-12);
@@ -111,10 +111,10 @@ describe("sphere above a grounded plane", () => {
 
   it("a conductor below or touching the plane is refused with its name and the side", async () => {
     const low = { ...sphereMesh({ radius: a, level: 1, center: [0, 0, 0.5] }), names: ["ball"] };
-    await expect(extract(low, { groundPlane: ground })).rejects.toThrow(/conductor ball crosses the ground plane z = 0 m/);
+    await expect(extractMesh(low, { groundPlane: ground })).rejects.toThrow(/conductor ball crosses the ground plane z = 0 m/);
     const two = concatMeshes([{ ...sphereMesh({ radius: a, level: 1, center: [0, 0, 3] }), names: ["top"] },
       { ...sphereMesh({ radius: a, level: 1, center: [0, 0, -3] }), names: ["bottom"] }]);
-    await expect(extract(two, { groundPlane: ground })).rejects.toThrow(/conductor bottom crosses .*strictly above/);
+    await expect(extractMesh(two, { groundPlane: ground })).rejects.toThrow(/conductor bottom crosses .*strictly above/);
   });
 });
 
@@ -125,8 +125,8 @@ describe("symmetry planes", () => {
     const left = moved(right, "left", (p) => { for (let i = 0; i < p.length; i += 3) p[i] = -p[i]; });
     const tl = left.triangles.slice();
     for (let i = 0; i < tl.length; i += 3) { const x = tl[i + 1]; tl[i + 1] = tl[i + 2]; tl[i + 2] = x; }
-    const full = await extract(concatMeshes([right, { ...left, triangles: tl }]), {});
-    const half = await extract(right, { symmetry: [{ axis: "x", offset: 0 }] });
+    const full = await extractMesh(concatMeshes([right, { ...left, triangles: tl }]), {});
+    const half = await extractMesh(right, { symmetry: [{ axis: "x", offset: 0 }] });
     // Both spheres at 1 V: the pair's total charge is the sum of the whole Maxwell matrix.
     const tied = full.maxwell[0] + full.maxwell[1] + full.maxwell[2] + full.maxwell[3];
     expect(Math.abs(half.maxwell[0] / tied - 1)).toBeLessThan(1e-7);
@@ -140,10 +140,10 @@ describe("symmetry planes", () => {
 
   it("a box meshed by half and by a quarter (it meets its planes) gives the full box's C; the cut surfaces count as closed", async () => {
     const box = boxMesh({ size: [1, 1, 1], divisions: 6 });
-    const full = await extract(box, {});
+    const full = await extractMesh(box, {});
     const halfMesh = part(box, (x) => x > 0);
-    const half = await extract(halfMesh, { symmetry: [{ axis: "x", offset: 0 }] });
-    const quarter = await extract(part(box, (x, y) => x > 0 && y > 0), { symmetry: [{ axis: "x", offset: 0 }, { axis: "y", offset: 0 }] });
+    const half = await extractMesh(halfMesh, { symmetry: [{ axis: "x", offset: 0 }] });
+    const quarter = await extractMesh(part(box, (x, y) => x > 0 && y > 0), { symmetry: [{ axis: "x", offset: 0 }, { axis: "y", offset: 0 }] });
     expect(Math.abs(half.maxwell[0] / full.maxwell[0] - 1)).toBeLessThan(1e-7);
     expect(Math.abs(quarter.maxwell[0] / full.maxwell[0] - 1)).toBeLessThan(1e-7);
     expect(half.conductors[0].closed).toBe(true);
@@ -157,20 +157,20 @@ describe("symmetry planes", () => {
     const box = boxMesh({ size: [1, 1, 1], divisions: 4 });
     // The face of a box x in [0, 1] lying on x = 0 is the cut face of the full box x in [−1, 1].
     const shifted = moved(box, "bar", (p) => { for (let i = 0; i < p.length; i += 3) p[i] += 0.5; });
-    const r = await extract(shifted, { symmetry: [{ axis: "x", offset: 0 }] });
+    const r = await extractMesh(shifted, { symmetry: [{ axis: "x", offset: 0 }] });
     expect(r.removedInSymmetryPlane).toBe(32);
     expect(r.warnings.some((w) => /symmetry plane were removed/.test(w))).toBe(true);
-    const open = await extract(part(shifted, (x) => x > 1e-9), { symmetry: [{ axis: "x", offset: 0 }] });
+    const open = await extractMesh(part(shifted, (x) => x > 1e-9), { symmetry: [{ axis: "x", offset: 0 }] });
     expect(r.maxwell[0]).toBe(open.maxwell[0]);
     // The 2×1×1 bar meshed whole (its diagonals run differently, so only to discretisation level).
-    const full = await extract(boxMesh({ size: [2, 1, 1], divisions: [8, 4, 4] }), {});
+    const full = await extractMesh(boxMesh({ size: [2, 1, 1], divisions: [8, 4, 4] }), {});
     expect(Math.abs(r.maxwell[0] / full.maxwell[0] - 1)).toBeLessThan(2e-4);
   });
 
   it("ground plane with a symmetry plane: half a box above the plane equals the full box above it", async () => {
     const box = moved(boxMesh({ size: [1, 1, 1], divisions: 4 }), "box", (p) => { for (let i = 2; i < p.length; i += 3) p[i] += 0.8; });
-    const full = await extract(box, { groundPlane: ground });
-    const half = await extract(part(box, (x) => x > 0), { groundPlane: ground, symmetry: [{ axis: "x", offset: 0 }] });
+    const full = await extractMesh(box, { groundPlane: ground });
+    const half = await extractMesh(part(box, (x) => x > 0), { groundPlane: ground, symmetry: [{ axis: "x", offset: 0 }] });
     expect(Math.abs(half.maxwell[0] / full.maxwell[0] - 1)).toBeLessThan(1e-7);
     // The half's force: the z part (attraction) doubled, the x part cancelled.
     expect(Math.abs(half.conductors[0].force[2] / full.conductors[0].force[2] - 1)).toBeLessThan(1e-6);

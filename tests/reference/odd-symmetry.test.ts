@@ -7,7 +7,7 @@
 import { describe, it, expect, afterAll } from "vitest";
 import { sphereMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes, type SurfaceMesh } from "../../src/mesh/model.js";
-import { extract, unfoldMatrix } from "../../src/extract/extract.js";
+import { extractMesh, unfoldMatrix } from "../../src/extract/extract-mesh.js";
 import { reflectSurface } from "../../src/bem/images.js";
 import { probeExtraction } from "../../src/extract/probe.js";
 import { EPSILON_0 } from "../../src/extract/constants.js";
@@ -39,8 +39,8 @@ const X = { axis: "x" as const, offset: 0 };
 
 describe("odd symmetry plane", () => {
   it("half model with an odd plane equals C11 − C12 of the full pair solve (to 1e-7), and the series (2 %)", async () => {
-    const full = await extract(concatMeshes([right, left]), {});
-    const half = await extract(right, { symmetry: [{ ...X, images: "odd" }] });
+    const full = await extractMesh(concatMeshes([right, left]), {});
+    const half = await extractMesh(right, { symmetry: [{ ...X, images: "odd" }] });
     expect(rel(half.maxwell[0], full.maxwell[0] - full.maxwell[1])).toBeLessThan(1e-7);
     const s = spherePair(a, d);
     expect(rel(half.maxwell[0], s.c11 - s.c12)).toBeLessThan(2e-2);
@@ -50,8 +50,8 @@ describe("odd symmetry plane", () => {
   });
 
   it("force on the sphere at +1 V with its odd mirror at −1 V is the full model's (attraction toward the plane)", async () => {
-    const full = await extract(concatMeshes([right, left]), { potentials: [1, -1] });
-    const half = await extract(right, { symmetry: [{ ...X, images: "odd" }], potentials: [1] });
+    const full = await extractMesh(concatMeshes([right, left]), { potentials: [1, -1] });
+    const half = await extractMesh(right, { symmetry: [{ ...X, images: "odd" }], potentials: [1] });
     expect(half.conductors[0].force[0]).toBeLessThan(0);
     expect(rel(half.conductors[0].force[0], full.conductors[0].force[0])).toBeLessThan(1e-6);
     // Energy of the full model: ½ Σ QV over both spheres.
@@ -61,28 +61,28 @@ describe("odd symmetry plane", () => {
 
   it("the compressed solver takes the odd kernel too (agrees with dense to the compression tolerance)", async () => {
     const fine = { ...sphereMesh({ radius: a, level: 3, center: [d / 2, 0, 0] }), names: ["p"] };
-    const dense = await extract(fine, { symmetry: [{ ...X, images: "odd" }], solver: "direct" });
-    const comp = await extract(fine, { symmetry: [{ ...X, images: "odd" }], solver: "compressed" });
+    const dense = await extractMesh(fine, { symmetry: [{ ...X, images: "odd" }], solver: "direct" });
+    const comp = await extractMesh(fine, { symmetry: [{ ...X, images: "odd" }], solver: "compressed" });
     expect(comp.solver.solver).toBe("compressed");
     expect(rel(comp.maxwell[0], dense.maxwell[0])).toBeLessThan(1e-4);
   });
 
   it("a conductor touching or crossing an odd plane is refused, naming it and the 0 V plane", async () => {
     const touching = { ...sphereMesh({ radius: a, level: 1, center: [a, 0, 0] }), names: ["ball"] };
-    await expect(extract(touching, { symmetry: [{ ...X, images: "odd" }] })).rejects.toThrow(/conductor ball touches the odd symmetry plane x = 0 m.*odd plane is at 0 V/);
-    await expect(extract(touching, { symmetry: [{ ...X, images: "both" }] })).rejects.toThrow(/conductor ball touches the symmetry plane with both images x = 0 m/);
+    await expect(extractMesh(touching, { symmetry: [{ ...X, images: "odd" }] })).rejects.toThrow(/conductor ball touches the odd symmetry plane x = 0 m.*odd plane is at 0 V/);
+    await expect(extractMesh(touching, { symmetry: [{ ...X, images: "both" }] })).rejects.toThrow(/conductor ball touches the symmetry plane with both images x = 0 m/);
   });
 
   it("bad images and mirrored values are refused by the plane", async () => {
-    await expect(extract(right, { symmetry: [{ ...X, images: "twin" as never }] })).rejects.toThrow(/symmetry plane x = 0 m: images must be even, odd or both/);
-    await expect(extract(right, { symmetry: [{ ...X, images: "odd", mirrored: "opposite" }] })).rejects.toThrow(/needs images "both"/);
+    await expect(extractMesh(right, { symmetry: [{ ...X, images: "twin" as never }] })).rejects.toThrow(/symmetry plane x = 0 m: images must be even, odd or both/);
+    await expect(extractMesh(right, { symmetry: [{ ...X, images: "odd", mirrored: "opposite" }] })).rejects.toThrow(/needs images "both"/);
   });
 });
 
 describe("even and odd solves rebuild the full model (images both)", () => {
   it("one plane: the half mesh gives the full pair's 2×2 Maxwell matrix (to 1e-7), mirror named p~x", async () => {
-    const full = await extract(concatMeshes([right, { ...left, names: ["p~x"] }]), { potentials: [1, -1] });
-    const r = await extract(right, { symmetry: [{ ...X, images: "both", mirrored: "opposite" }] });
+    const full = await extractMesh(concatMeshes([right, { ...left, names: ["p~x"] }]), { potentials: [1, -1] });
+    const r = await extractMesh(right, { symmetry: [{ ...X, images: "both", mirrored: "opposite" }] });
     expect(r.names).toEqual(["p", "p~x"]);
     expect(r.k).toBe(2);
     for (let i = 0; i < 4; i++) expect(rel(r.maxwell[i], full.maxwell[i])).toBeLessThan(1e-7);
@@ -112,14 +112,14 @@ describe("even and odd solves rebuild the full model (images both)", () => {
   it("a quarter model mixing even (x) and odd (y) planes equals the four-sphere full solve", async () => {
     const q = { ...sphereMesh({ radius: a, level: 2, center: [1.5, 1.2, 0] }), names: ["q"] };
     const all = concatMeshes([q, mirrored(q, 1, "qx"), mirrored(q, 2, "qy"), mirrored(q, 3, "qxy")]);
-    const full = await extract(all, {});
+    const full = await extractMesh(all, {});
     // Even in x ties q and qx; odd in y puts qy, qxy at the opposite potential.
     const row = (i: number) => full.maxwell[4 * i] + full.maxwell[4 * i + 1] - full.maxwell[4 * i + 2] - full.maxwell[4 * i + 3];
-    const mixed = await extract(q, { symmetry: [{ axis: "x", offset: 0 }, { axis: "y", offset: 0, images: "odd" }] });
+    const mixed = await extractMesh(q, { symmetry: [{ axis: "x", offset: 0 }, { axis: "y", offset: 0, images: "odd" }] });
     expect(rel(mixed.maxwell[0], row(0) + row(1))).toBeLessThan(1e-7);
     expect(rel(mixed.conductors[0].area, 2 * full.conductors[0].area)).toBeLessThan(1e-12);
     // Both planes unfolded: the whole 4×4 matrix from one quarter, mirrors named by their axes.
-    const both = await extract(q, { symmetry: [{ axis: "x", offset: 0, images: "both" }, { axis: "y", offset: 0, images: "both" }] });
+    const both = await extractMesh(q, { symmetry: [{ axis: "x", offset: 0, images: "both" }, { axis: "y", offset: 0, images: "both" }] });
     expect(both.names).toEqual(["q", "q~x", "q~y", "q~xy"]);
     for (let i = 0; i < 16; i++) expect(rel(both.maxwell[i], full.maxwell[i])).toBeLessThan(1e-7);
   });

@@ -7,7 +7,7 @@ import fc from "fast-check";
 import { csvField, csvSafeText, csvText, parseCsv, csvReport, csvTables, markdownReport, markdownText, reportData, type ReportData } from "../../src/report/csv.js";
 import { sphereMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes, type SurfaceMesh } from "../../src/mesh/model.js";
-import { extract } from "../../src/extract/extract.js";
+import { extractMesh } from "../../src/extract/extract-mesh.js";
 import { extractionReport } from "../../src/report/json.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
 import { InputError } from "../../src/io/errors.js";
@@ -66,7 +66,7 @@ describe("RFC 4180 fields", () => {
 
 describe("report tables", async () => {
   const mesh = concatMeshes([shifted(sphereMesh({ radius: 1e-3, level: 1 }), -2e-3, 'pad "A", left'), shifted(sphereMesh({ radius: 1e-3, level: 1 }), 2e-3, "guard|<b>")]);
-  const result = await extract(mesh, { potentials: [5, 0], refine: 1 });
+  const result = await extractMesh(mesh, { potentials: [5, 0], refine: 1 });
   const json = JSON.parse(JSON.stringify(extractionReport(result, { version: "test", files: ["x.stl"], unit: "mm", inputWarnings: ["a warning, with a comma"] })));
   const data = reportData(json);
 

@@ -7,7 +7,7 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { sphereMesh, boxMesh, plateMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes } from "../../src/mesh/model.js";
-import { extract, type ExtractionResult } from "../../src/extract/extract.js";
+import { extractMesh, type ExtractionResult } from "../../src/extract/extract-mesh.js";
 import { extractionReport } from "../../src/report/json.js";
 import { EPSILON_0 } from "../../src/extract/constants.js";
 import { htmlReport, scriptSafeJson, embeddedResults, writeHtmlReport, type ViewerBundle } from "../../src/report/html.js";
@@ -33,7 +33,7 @@ beforeAll(async () => {
     sphereMesh({ radius: 4e-3, level: 2, center: [-8e-3, 0, 0], name: MARKUP }),
     boxMesh({ size: [6e-3, 6e-3, 6e-3], divisions: 3, center: [6e-3, 0, 0], name: "box" }),
   ]);
-  pair = await extract(mesh, { potentials: [300, -50] });
+  pair = await extractMesh(mesh, { potentials: [300, -50] });
   report = extractionReport(pair, { version: "test", files: [`${MARKUP}.stl`], unit: "mm", inputWarnings: [] });
 });
 
@@ -111,7 +111,7 @@ describe("viewerData", () => {
   it("an isolated sphere at 1 V carries σ = ε/a and |E| = 1/a (closed form)", async () => {
     // Isolated sphere of radius a at potential V: Q = 4πεaV spread uniformly, so σ = εV/a and E = V/a at the surface.
     const a = 0.01;
-    const r = await extract(sphereMesh({ radius: a, level: 3, name: "ball" }));
+    const r = await extractMesh(sphereMesh({ radius: a, level: 3, name: "ball" }));
     const e = viewerData(r).excitations[1];
     let mean = 0;
     for (let p = 0; p < e.field.length; p++) mean += e.field[p] / e.field.length;
@@ -120,7 +120,7 @@ describe("viewerData", () => {
   });
 
   it("open sheets get the two-sided field per unit excitation, or the flagged bound beyond the budget", async () => {
-    const r = await extract(plateMesh({ size: [0.01, 0.01], divisions: 6, name: "sheet" }));
+    const r = await extractMesh(plateMesh({ size: [0.01, 0.01], divisions: 6, name: "sheet" }));
     const exact = viewerData(r);
     // One conductor at 1 V: the unit excitation is the scene, whose sheet field extract computed.
     for (let p = 0; p < r.panels.n; p++) expect(exact.excitations[1].field[p]).toBeCloseTo(exact.excitations[0].field[p], -Math.log10(exact.excitations[0].fieldRange[1]) + 4);

@@ -8,7 +8,7 @@ import { describe, it, expect, afterAll } from "vitest";
 import fc from "fast-check";
 import { spiceSubcircuit, parseSpiceCapacitors, mutualFromSpice, spiceNodeNames, spiceNumber, parseSpiceNumber, spiceLines } from "../../src/report/spice.js";
 import { mutualFromMaxwell } from "../../src/extract/capacitance.js";
-import { extract } from "../../src/extract/extract.js";
+import { extractMesh } from "../../src/extract/extract-mesh.js";
 import { sphereMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes } from "../../src/mesh/model.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
@@ -194,7 +194,7 @@ describe("spiceSubcircuit", () => {
 
   it("round-trips the mutual matrix of a real extraction; the charges from the rebuilt network match Q = C·V", async () => {
     const ball = (x: number, r: number, name: string) => { const m = sphereMesh({ radius: r, level: 1, center: [x, 0, 0] }); return { ...m, names: [name] }; };
-    const res = await extract(concatMeshes([ball(-0.02, 0.01, "HV electrode"), ball(0.02, 0.01, "plate 1"), ball(0.5, 0.002, "far probe")]), { potentials: [1, 0, 0] });
+    const res = await extractMesh(concatMeshes([ball(-0.02, 0.01, "HV electrode"), ball(0.02, 0.01, "plate 1"), ball(0.5, 0.002, "far probe")]), { potentials: [1, 0, 0] });
     const names = res.names;
     const back = mutualFromSpice(spiceSubcircuit(names, res.mutual), names);
     let largest = 0;

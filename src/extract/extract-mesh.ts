@@ -47,7 +47,7 @@ import { dielectricBodyForces } from "./dielectric-force.js";
 import { panelSet } from "../bem/panels.js";
 import type { InterfaceTesting } from "../bem/interface.js";
 
-export interface ExtractOptions {
+export interface MeshExtractOptions {
   /** Relative permittivity of the uniform medium (default 1). */
   permittivity?: number;
   method?: Discretisation;
@@ -216,7 +216,7 @@ export function assumedOrder(hasSharpFeatures: boolean): number {
   return hasSharpFeatures ? 1 : 2;
 }
 
-export async function extract(input: SurfaceMesh, opts: ExtractOptions = {}): Promise<ExtractionResult> {
+export async function extractMesh(input: SurfaceMesh, opts: MeshExtractOptions = {}): Promise<ExtractionResult> {
   const t0 = performance.now();
   const k = input.names.length;
   if (k === 0 || triangleCount(input) === 0) throw new InputError("nothing to extract: no conductor with triangles");
