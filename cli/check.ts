@@ -6,45 +6,17 @@
  * intersect or touch (the check failed; the report is still
  * printed and written); 1 internal error.
  *
- * JSON report (`--json <path|->`, written atomically; every quantity in SI units:
- * lengths m, areas m², volumes m³; numbers that are undefined are null):
- *   tool            "sigmesh"
- *   command         "check"
- *   version         sigmesh version
- *   files           input files, as given
- *   inputUnit       unit the files were read in ("mm", ...); unitAssumed: true when it was the default
- *   ok              true when no pair is an error
- *   triangles, vertices        totals after welding and dropping degenerate triangles
- *   welded          vertices merged by welding; dropped: degenerate triangles removed on loading
- *   warnings        [{ file, message }] from loading
- *   conductors      one entry per conductor:
- *     name, triangles, area (m²),
- *     bbox          [minx, miny, minz, maxx, maxy, maxz] (m)
- *     closed        every edge shared by exactly two of its triangles (open sheets are legal)
- *     components    connected pieces
- *     boundaryEdges, nonManifoldEdges, inconsistentEdges (windings disagreeing across an edge, as given)
- *     orientation   "outward" | "inward-flipped" (was inward; reversed) | "repaired" (some triangles reversed)
- *                   | "open" | "inconsistent" (cannot be made consistent) | "non-manifold" | "empty"
- *     flippedTriangles  windings the orientation step reverses
- *     volume        enclosed volume (m³) after orientation, null unless closed and orientable
- *     edgeLength    { min, max } (m)
- *     worstAspect   largest radius ratio R/(2r), 1 = equilateral; null if a triangle is degenerate
- *     worstAspectAt centroid of that triangle (m)
- *     degenerateTriangles
- *   pairs           findings between conductors, worst first:
- *     kind          "intersect" | "touch" (errors) | "inside" (warning: inside the closed surface of b, taken as a shell) | "gap" (warning: narrower than the local panel size)
- *     severity      "error" | "warning"
- *     a, b          conductor names (for inside: a lies inside b)
- *     distance      smallest distance found (m); position: where (m)
- *     panelSize     local panel size there (m), null for inside
+ * The JSON report's fields are listed in src/report/check-report.ts.
  */
 import type { Command } from "commander";
-import { createRequire } from "node:module";
 import { loadMeshFiles } from "../src/io/load.js";
 import { parseUnit, DEFAULT_UNIT } from "../src/io/units.js";
 import { InputError } from "../src/io/errors.js";
 import { checkMeshParallel } from "../src/mesh/check.js";
-import { formatCheckSummary, pairSentence } from "../src/report/check-summary.js";
+import { formatCheckSummary } from "../src/report/check-summary.js";
+import { pairSentence } from "../src/extract/scene-check.js";
+import { checkReport } from "../src/report/check-report.js";
+import { jsonText } from "../src/report/outputs.js";
 import { action, printWarnings, writeOutput, EXIT_BAD_INPUT } from "./common.js";
 
 interface CheckCliOptions {
@@ -54,19 +26,6 @@ interface CheckCliOptions {
   weldTolerance?: string;
   json?: string;
   quiet?: boolean;
-}
-
-function version(): string {
-  try {
-    return (createRequire(import.meta.url)("../../package.json") as { version: string }).version;
-  } catch {
-    return "unknown";
-  }
-}
-
-/** JSON with non-finite numbers as null (JSON has no NaN or Infinity). */
-function toJson(value: unknown): string {
-  return JSON.stringify(value, (_k, v) => (typeof v === "number" && !Number.isFinite(v) ? null : v), 2);
 }
 
 export function registerCheck(program: Command): void {
@@ -96,13 +55,7 @@ export function registerCheck(program: Command): void {
       const report = await checkMeshParallel(loaded.mesh);
       const summary = formatCheckSummary(report, { unit, unitAssumed, files: loaded.files });
       if (opts.json !== undefined) {
-        writeOutput(opts.json, toJson({
-          tool: "sigmesh", command: "check", version: version(),
-          files: loaded.files, inputUnit: unit, unitAssumed,
-          ok: !report.failed, triangles: report.triangles, vertices: report.vertices,
-          welded: loaded.welded, dropped: loaded.dropped, warnings: loaded.warnings,
-          conductors: report.conductors, pairs: report.pairs,
-        }));
+        writeOutput(opts.json, jsonText(checkReport(loaded, report, unit, unitAssumed)));
       }
       if (!opts.quiet) (opts.json === "-" ? process.stderr : process.stdout).write(summary);
       else for (const p of report.pairs) if (p.severity === "error") process.stderr.write(`sigmesh: FAILED: ${pairSentence(p, unit)}\n`);

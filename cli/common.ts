@@ -54,8 +54,3 @@ export function writeOutput(path: string, text: string): void {
   if (path === "-") process.stdout.write(text.endsWith("\n") ? text : text + "\n");
   else writeFileAtomic(path, text.endsWith("\n") ? text : text + "\n");
 }
-
-/** Collect a repeatable option into an array (commander helper). */
-export function collect(value: string, previous: string[] = []): string[] {
-  return [...previous, value];
-}

@@ -1,8 +1,8 @@
 #!/usr/bin/env node
 /** sigmesh command-line entry: each command lives in its own file and only composes the library. */
 import { Command, Help, type Option } from "commander";
-import { createRequire } from "node:module";
 import { setDebug, reportFailure } from "./common.js";
+import { version } from "../src/version.js";
 import { registerCheck } from "./check.js";
 import { registerMesh } from "./mesh.js";
 import { registerExtract } from "./extract.js";
@@ -10,15 +10,13 @@ import { registerDemo } from "./demo.js";
 import { registerView } from "./view.js";
 import { registerSweep } from "./sweep.js";
 
-const require = createRequire(import.meta.url);
-const pkg = require("../../package.json") as { version: string };
 
 export function buildProgram(): Command {
   const program = new Command();
   program
     .name("sigmesh")
     .description("Boundary-element capacitance, charge and surface-field extraction for 3D conductors given as triangle meshes.")
-    .version(pkg.version)
+    .version(version())
     .option("--debug", "show stack traces and internal detail on failure")
     // Set before the commands are added: commander copies it to each of them.
     .configureHelp({

@@ -9,7 +9,7 @@ import { parseUnit, metresPer, DEFAULT_UNIT } from "../src/io/units.js";
 import { encodeMesh, outputFormatFromPath, writeMeshFile } from "../src/io/write.js";
 import { generateShape, SHAPES, type ShapeParams } from "../src/mesh/primitives/index.js";
 import { surfaceArea } from "../src/mesh/measure.js";
-import { formatArea, unitLabel } from "../src/report/si.js";
+import { formatArea, unitLabel } from "../src/io/si.js";
 
 /** Option flag for a parameter name: panelSize -> --panel-size. */
 const flag = (param: string): string => "--" + param.replace(/[A-Z]/g, (c) => "-" + c.toLowerCase());

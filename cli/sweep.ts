@@ -5,19 +5,20 @@
  */
 import type { Command } from "commander";
 import { readFileSync, existsSync } from "node:fs";
-import { createRequire } from "node:module";
 import { extname } from "node:path";
 import { InputError } from "../src/io/errors.js";
+import { version } from "../src/version.js";
 import { writeFilesAtomic } from "../src/io/atomic.js";
 import { closeSharedPool } from "../src/linalg/pool.js";
 import { journalPath, readJournal, removeJournal, SweepJournal, type JournalEntry } from "../src/io/sweep-journal.js";
 import {
   parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, sceneConductorNames,
-  runSweepPoints, isPointFailure, sweepPointKey, sweepCsv, sweepSvg, mergeSweepCsv, type PointMatrices,
+  runSweepPoints, isPointFailure, sweepPointKey, type PointMatrices,
 } from "../src/extract/sweep.js";
-import { collect, action, printWarnings, reportFailure } from "./common.js";
+import { sweepCsv, sweepSvg, mergeSweepCsv } from "../src/report/sweep-table.js";
+import { action, printWarnings, reportFailure } from "./common.js";
+import { collect, countOption, solveSettings } from "./options.js";
 
-const version = (): string => (createRequire(import.meta.url)("../../package.json") as { version: string }).version;
 
 export interface SweepCliOptions {
   vary: string[];
@@ -34,21 +35,11 @@ export interface SweepCliOptions {
   quiet?: boolean;
 }
 
-function count(text: string, option: string, max: number): number {
-  if (!/^\s*\d+\s*$/.test(text) || Number(text) > max) throw new InputError(`${option} "${text}": expected a whole number from 0 to ${max}`);
-  return Number(text);
-}
-
 export async function runSweepCommand(scene: string, opts: SweepCliOptions): Promise<void> {
   if (extname(scene).toLowerCase() !== ".json") throw new InputError("a sweep takes a scene file (.json) with parameters", scene);
   if (opts.vary.length === 0) throw new InputError("--vary NAME=START:STOP:COUNT is required (e.g. --vary gap=1:5:9)");
-  const method = opts.method, solver = opts.solver;
-  if (method !== "galerkin" && method !== "collocation") throw new InputError(`--method "${method}": use galerkin or collocation`);
-  if (solver !== "auto" && solver !== "direct" && solver !== "iterative" && solver !== "compressed") throw new InputError(`--solver "${solver}": use auto, direct, iterative or compressed`);
-  const tolerance = Number(opts.tol);
-  if (opts.tol.trim() === "" || !(tolerance > 0 && tolerance < 1)) throw new InputError(`--tol "${opts.tol}": expected a number between 0 and 1, e.g. 1e-4`);
-  const refine = count(opts.refine, "--refine", 4);
-  const processes = opts.processes === undefined ? 0 : count(opts.processes, "--processes", 256);
+  const { method, solver, tolerance, refine } = solveSettings(opts);
+  const processes = opts.processes === undefined ? 0 : countOption(opts.processes, "--processes", 256);
   const axes = opts.vary.map(parseVary);
   const points = sweepGrid(axes);
   const shard = opts.shard === undefined ? undefined : parseShard(opts.shard);

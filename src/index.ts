@@ -1,31 +1,51 @@
 /**
  * The sigmesh library API. The command-line tool is built on these functions and nothing else.
  *
- *   import { loadScene, extract } from "sigmesh";
- *   const scene = loadScene("board.json");
- *   const result = await extract(scene.mesh, { potentials: scene.potentials, permittivity: scene.permittivity });
+ *   import { loadScene, extract, writeOutputs } from "sigmesh";
+ *   const scene = loadScene("board.json");                 // a scene file, or mesh files
+ *   const result = await extract(scene, { refine: 1 });    // everything the scene holds
+ *   writeOutputs(result, { json: "board.report.json", html: "board.html", spice: "board.cir" });
+ *
+ * The worker threads are shared between calls and let the process exit when idle.
  */
-export type { SurfaceMesh } from "./mesh/model.js";
-export { concatMeshes, conductorSubmesh, conductorAreas, boundingBox, triangleCount } from "./mesh/model.js";
-export { loadScene, type LoadedScene, type InputOptions } from "./io/inputs.js";
+// Reading
+export { loadScene, parsePlane, parseSymmetryPlane, type LoadedScene, type InputOptions } from "./io/inputs.js";
 export { loadSceneFile, parseScene, loadSceneMesh, type Scene, type SceneConductor } from "./io/scene.js";
 export { loadMeshFile, loadMeshFiles, parseMeshBytes, type LoadOptions, type LoadedMesh } from "./io/load.js";
 export { encodeMesh, writeMeshFile, outputFormatFromPath, type OutputFormat } from "./io/write.js";
 export { InputError, type Warning } from "./io/errors.js";
 export { parseUnit, metresPer, DEFAULT_UNIT, type LengthUnit } from "./io/units.js";
-export { checkMesh, type CheckReport } from "./mesh/check.js";
+export { formatSI } from "./io/si.js";
+export { parseProbeOption, type ProbeSpec } from "./extract/probe-spec.js";
+
+// Meshes
+export type { SurfaceMesh } from "./mesh/model.js";
+export { concatMeshes, conductorSubmesh, conductorAreas, boundingBox, triangleCount } from "./mesh/model.js";
+export { checkMesh, checkMeshParallel, type CheckReport } from "./mesh/check.js";
 export { refineUniform } from "./mesh/refine.js";
 export { surfaceArea, signedVolume } from "./mesh/measure.js";
 export * from "./mesh/primitives/index.js";
-export { probeField, probeExtraction, type ProbeResult } from "./extract/probe.js";
+
+// Extraction
+export { extract, runProbes, type ExtractSettings, type SceneExtraction, type ExtractionInput, type ProbeRun } from "./extract/extract.js";
 export { extractMesh, type MeshExtractOptions, type ExtractionResult, type ConductorResult } from "./extract/extract-mesh.js";
+export { probeField, probeExtraction, type ProbeResult } from "./extract/probe.js";
 export { EPSILON_0, AIR_BREAKDOWN_FIELD } from "./extract/constants.js";
-export { extractionReport } from "./report/json.js";
-export { extractionSummary } from "./report/extract-summary.js";
-export { formatSI } from "./report/si.js";
-export { closeSharedPool } from "./linalg/pool.js";
 export {
-  parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, entryValue, entryLabel,
-  extractPoint, runSweep, runSweepPoints, isPointFailure, sweepCsv, mergeSweepCsv,
+  parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, entryValue, entryLabel, sceneConductorNames,
+  extractPoint, runSweep, runSweepPoints, isPointFailure, sweepPointKey,
   type SweepAxis, type Shard, type MatrixEntry, type PointMatrices, type SweepRunOptions, type SweepPointsOptions, type PointFailure,
 } from "./extract/sweep.js";
+
+// Outputs
+export { writeOutputs, extractionFiles, checkOutputTargets, sceneReport, jsonText, type OutputTargets, type OutputFile, type WrittenOutputs } from "./report/outputs.js";
+export { extractionReport } from "./report/json.js";
+export { extractionSummary } from "./report/extract-summary.js";
+export { checkReport, type CheckReportJson } from "./report/check-report.js";
+export { formatCheckSummary } from "./report/check-summary.js";
+export { sweepCsv, sweepSvg, mergeSweepCsv } from "./report/sweep-table.js";
+export { viewPage, serveViewPage, type ViewPage } from "./report/view-server.js";
+export { version } from "./version.js";
+
+// Threads
+export { closeSharedPool } from "./linalg/pool.js";

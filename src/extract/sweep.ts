@@ -10,8 +10,9 @@
  * Each point is an independent extraction of the scene with its parameters replaced
  * (`loadScene(..., { parameters })`, the same reading as a scene written by hand with those
  * numbers). They run either one after another in this process, each using every core
- * through the worker pool, or as child processes (`sigmesh extract --json -`) with one
- * thread each, several at once.
+ * through the worker pool, or as child processes (src/extract/sweep-point.ts, the library's
+ * `extract` on one point) with one thread each, several at once. Both go through `extract`
+ * (extract.ts), as `sigmesh extract` does. The tables and plots are src/report/sweep-table.ts.
  */
 import { spawn } from "node:child_process";
 import { createHash } from "node:crypto";
@@ -21,12 +22,9 @@ import { join, dirname, resolve, isAbsolute } from "node:path";
 import { InputError } from "../io/errors.js";
 import { loadScene } from "../io/inputs.js";
 import { substituteScene, loadSceneFile } from "../io/scene.js";
-import { checkMesh } from "../mesh/check.js";
-import { pairSentence } from "../report/check-summary.js";
-import { csvText, parseCsv } from "../report/csv.js";
-import { linePlotSvg, type PlotSeries } from "../report/svg-plot.js";
 import { compiledUrl } from "../linalg/pool.js";
-import { extractMesh, type MeshExtractOptions } from "./extract-mesh.js";
+import { extract } from "./extract.js";
+import type { PointSettings } from "./sweep-point.js";
 import { fileURLToPath } from "node:url";
 
 /** One swept parameter and its values, in the order they are run. */
@@ -178,29 +176,31 @@ export interface SweepRunOptions {
 const describePoint = (k: number, p: Record<string, number>): string =>
   `sweep point ${k} (${Object.entries(p).map(([n, v]) => `${n}=${v}`).join(", ")})`;
 
-/** One point in this process: the same steps as `sigmesh extract` (load, refuse touching conductors, extract). */
+/** The settings every point is extracted with. */
+function pointSettings(opts: SweepRunOptions): Required<PointSettings> {
+  return { method: opts.method ?? "galerkin", solver: opts.solver ?? "auto", tolerance: opts.tolerance ?? 1e-4, refine: opts.refine ?? 0 };
+}
+
+/** An InputError of point `k` attributed to the scene and the point. */
+function atPoint(err: InputError, scene: string, k: number, point: Record<string, number>): InputError {
+  return new InputError(err.fault, err.file ?? scene, [describePoint(k, point), err.place].filter(Boolean).join(", "));
+}
+
+/** One point in this process: the scene read with the point's parameters, then `extract`, as `sigmesh extract` does. */
 export async function extractPoint(scene: string, point: Record<string, number>, opts: SweepRunOptions = {}, k = 0): Promise<PointMatrices> {
   try {
-    const s = loadScene(scene, { parameters: point });
-    const errors = checkMesh(s.mesh).pairs.filter((p) => p.severity === "error");
-    if (errors.length > 0) throw new InputError(pairSentence(errors[0], s.unit), scene);
-    const options: MeshExtractOptions = {
-      permittivity: s.permittivity, breakdownField: s.breakdownField, potentials: s.potentials,
-      groundPlane: s.groundPlane, symmetry: s.symmetry, floating: s.floating,
-      dielectrics: s.dielectrics.length > 0 ? s.dielectrics : undefined,
-      method: opts.method ?? "galerkin", solver: opts.solver ?? "auto", tolerance: opts.tolerance ?? 1e-4, refine: opts.refine ?? 0,
-    };
-    const r = await extractMesh(s.mesh, options);
+    const r = await extract(loadScene(scene, { parameters: point }), pointSettings(opts));
     return { names: r.names, maxwell: r.maxwell, mutual: r.mutual };
   } catch (err) {
-    if (err instanceof InputError) throw new InputError(err.fault, err.file ?? scene, [describePoint(k, point), err.place].filter(Boolean).join(", "));
+    if (err instanceof InputError) throw atPoint(err, scene, k, point);
     throw err;
   }
 }
 
-function cliPath(): string {
+/** The child process's script (compiled JavaScript, also under the test runner). */
+function pointScript(): string {
   const here = import.meta.url;
-  return fileURLToPath(here.endsWith(".ts") ? compiledUrl(new URL("../../cli/main.ts", here).href) : new URL("../../cli/main.js", here).href);
+  return fileURLToPath(here.endsWith(".ts") ? compiledUrl(new URL("./sweep-point.ts", here).href) : new URL("./sweep-point.js", here).href);
 }
 
 /** The substituted scene with mesh paths made absolute, so it can be read from anywhere. */
@@ -226,6 +226,18 @@ function runChild(args: string[], env: NodeJS.ProcessEnv, signal?: AbortSignal):
     child.on("error", (e) => { if ((e as Error).name === "AbortError") done({ code: null, out: "", err: "" }); else fail(e); });
     child.on("close", (code) => done({ code, out: Buffer.concat(out).toString("utf8"), err: Buffer.concat(err).toString("utf8") }));
   });
+}
+
+/** A child's answer as the point's matrices; its failure as an error naming the scene (not the temporary copy) and the point. */
+function childResult(r: { code: number | null; out: string; err: string }, file: string, scene: string, k: number, point: Record<string, number>): PointMatrices {
+  const own = (text: string | null): string | undefined => (text === null ? undefined : text.split(file).join(scene));
+  if (r.code === 0 || r.code === 2) {
+    const answer = JSON.parse(r.out) as PointMatrices & { inputError?: { fault: string; file: string | null; place: string | null } };
+    const e = answer.inputError;
+    if (!e) return { names: answer.names, maxwell: answer.maxwell, mutual: answer.mutual };
+    throw atPoint(new InputError(own(e.fault)!, own(e.file) ?? scene, own(e.place)), scene, k, point);
+  }
+  throw new Error(`${describePoint(k, point)}: ${r.err.trim().split("\n")[0] || `the point's process ended with code ${r.code}`}`);
 }
 
 /** A point that could not be extracted: its number and the error (an InputError naming the point for bad input). */
@@ -271,10 +283,10 @@ export async function runSweepPoints(scene: string, points: ReadonlyArray<Record
     }
     return out;
   }
-  const cli = cliPath();
+  const script = pointScript();
   const dir = mkdtempSync(join(tmpdir(), "sigmesh-sweep-"));
   const env = { ...process.env, SIGMESH_THREADS: "1" };
-  const flags = ["--method", opts.method ?? "galerkin", "--solver", opts.solver ?? "auto", "--tol", String(opts.tolerance ?? 1e-4), "--refine", String(opts.refine ?? 0)];
+  const settings = JSON.stringify(pointSettings(opts));
   let next = 0;
   const worker = async (): Promise<void> => {
     while (next < indices.length && !signal?.aborted) {
@@ -283,20 +295,13 @@ export async function runSweepPoints(scene: string, points: ReadonlyArray<Record
       try {
         const file = join(dir, `point-${k}.json`);
         writeFileSync(file, standaloneSceneText(scene, point));
-        const r = await runChild([cli, "extract", file, "--json", "-", "--quiet", ...flags], env, signal);
+        const r = await runChild([script, file, settings], env, signal);
         if (signal?.aborted) return;
-        if (r.code !== 0) {
-          const line = (r.err.split("\n").find((l) => l.startsWith("sigmesh: error:") || l.startsWith("sigmesh: internal error:")) ?? r.err.trim())
-            .replace(/^sigmesh: (internal )?error: /, "").split(file).join(scene);
-          if (r.code === 2) throw new InputError(line.startsWith(`${scene}: `) ? line.slice(scene.length + 2) : line, scene, describePoint(k, point));
-          throw new Error(`${describePoint(k, point)}: ${line}`);
-        }
-        const report = JSON.parse(r.out) as { conductors: Array<{ name: string }>; capacitance: { maxwell: number[][]; mutual: number[][] } };
-        settle(q, { names: report.conductors.map((c) => c.name), maxwell: report.capacitance.maxwell.flat(), mutual: report.capacitance.mutual.flat() });
+        settle(q, childResult(r, file, scene, k, point));
       } catch (error) {
         if (signal?.aborted) return;
         // A point that cannot even be written out (bad scene text) fails like one whose extraction fails.
-        settle(q, { point: k, error: error instanceof InputError && !error.place ? new InputError(error.fault, error.file ?? scene, describePoint(k, point)) : error });
+        settle(q, { point: k, error: error instanceof InputError && !error.place ? atPoint(error, scene, k, point) : error });
       }
     }
   };
@@ -358,91 +363,4 @@ export function sweepPointKey(scene: string, point: Record<string, number>, opts
 /** Conductor names of the scene at a point, without meshing it (for checking `--entries` before running). */
 export function sceneConductorNames(scene: string, point: Record<string, number>): string[] {
   return loadSceneFile(scene, { parameters: point }).conductors.map((c) => c.name);
-}
-
-const pointHeader = (total: number): string => `point (of ${total})`;
-
-/**
- * The sweep table as CSV (RFC 4180, via `csvText`): a header, then one record per point
- * run: its number, the varied parameters' values, then the entries in farads.
- */
-export function sweepCsv(axes: readonly SweepAxis[], entries: readonly MatrixEntry[], total: number,
-  indices: readonly number[], points: ReadonlyArray<Record<string, number>>, results: readonly PointMatrices[]): string {
-  const records: Array<Array<string | number>> = [[pointHeader(total), ...axes.map((a) => a.name), ...entries.map((e) => `${entryLabel(e)} (F)`)]];
-  indices.forEach((k, q) => {
-    const r = results[q];
-    records.push([k, ...axes.map((a) => points[k][a.name]), ...entries.map((e) => entryValue(e, r.names, r.maxwell, r.mutual))]);
-  });
-  return csvText(records);
-}
-
-/**
- * Join slices' CSV tables into the table of the whole sweep, points in order. Headers must
- * be identical and no point may appear twice; missing points are listed (not an error, so
- * a partial table can be looked at; the caller says so).
- */
-export function mergeSweepCsv(files: ReadonlyArray<{ file: string; text: string }>): { text: string; total: number; missing: number[] } {
-  if (files.length === 0) throw new InputError("sweep merge: no CSV files given");
-  let header: string[] | undefined;
-  let headerFile = "";
-  let total = 0;
-  const rows = new Map<number, { file: string; line: number; cells: string[] }>();
-  for (const { file, text } of files) {
-    let records: string[][];
-    try { records = parseCsv(text); } catch (err) {
-      const m = /^line (\d+): (.*)$/.exec((err as Error).message);
-      throw new InputError(m ? m[2] : (err as Error).message, file, m ? `line ${m[1]}` : undefined);
-    }
-    if (records.length === 0) throw new InputError("empty file (expected a sweep table)", file);
-    const head = records[0];
-    const t = /^point \(of (\d+)\)$/.exec(head[0] ?? "");
-    if (!t) throw new InputError(`the first column is "${head[0] ?? ""}", not "point (of N)": not a sigmesh sweep table`, file, "line 1");
-    if (header === undefined) { header = head; headerFile = file; total = Number(t[1]); }
-    else if (head.length !== header.length || head.some((h, i) => h !== header![i])) {
-      throw new InputError(`header differs from ${headerFile}'s (${head.join(",")} against ${header.join(",")}): the slices are of different sweeps`, file, "line 1");
-    }
-    records.slice(1).forEach((cells, i) => {
-      const line = i + 2;
-      if (cells.length === 1 && cells[0] === "") return;
-      if (cells.length !== header!.length) throw new InputError(`expected ${header!.length} fields, got ${cells.length}`, file, `line ${line}`);
-      if (!/^\d+$/.test(cells[0]) || Number(cells[0]) >= total) throw new InputError(`point "${cells[0]}" is not a point number from 0 to ${total - 1}`, file, `line ${line}`);
-      const k = Number(cells[0]);
-      const seen = rows.get(k);
-      if (seen) throw new InputError(`point ${k} is already in ${seen.file}, line ${seen.line}`, file, `line ${line}`);
-      rows.set(k, { file, line, cells });
-    });
-  }
-  const order = [...rows.keys()].sort((a, b) => a - b);
-  const missing: number[] = [];
-  for (let k = 0; k < total; k++) if (!rows.has(k)) missing.push(k);
-  return { text: csvText([header!, ...order.map((k) => rows.get(k)!.cells)]), total, missing };
-}
-
-/**
- * The chosen entries against the first parameter as an SVG line plot; with more than one
- * parameter, one line per combination of the others' values.
- */
-export function sweepSvg(axes: readonly SweepAxis[], entries: readonly MatrixEntry[], indices: readonly number[],
-  points: ReadonlyArray<Record<string, number>>, results: readonly PointMatrices[], title: string): string {
-  const first = axes[0];
-  const others = axes.slice(1);
-  const groups = new Map<string, number[]>();
-  indices.forEach((k, q) => {
-    const key = others.map((a) => `${a.name}=${points[k][a.name]}`).join(", ");
-    const g = groups.get(key) ?? [];
-    g.push(q);
-    groups.set(key, g);
-  });
-  const series: PlotSeries[] = [];
-  for (const e of entries) {
-    for (const [key, qs] of groups) {
-      const sorted = [...qs].sort((a, b) => points[indices[a]][first.name] - points[indices[b]][first.name]);
-      series.push({
-        label: key ? `${entryLabel(e)}, ${key}` : entryLabel(e),
-        x: sorted.map((q) => points[indices[q]][first.name]),
-        y: sorted.map((q) => { const r = results[q]; return entryValue(e, r.names, r.maxwell, r.mutual); }),
-      });
-    }
-  }
-  return linePlotSvg(series, { title, x: { label: first.name, log: first.log, prefix: false }, y: { label: "capacitance", unit: "F" } });
 }

@@ -58,6 +58,10 @@ export interface InputOptions {
   floating?: string[];
   /** Values replacing a scene's named parameters (a sweep point); each must be a parameter of the scene. */
   parameters?: Readonly<Record<string, number>>;
+  /** Relative permittivity of the background medium; replaces the scene's. */
+  permittivity?: number;
+  /** Breakdown strength of the background medium for the field check, V/m; replaces the scene's. */
+  breakdownField?: number;
 }
 
 /** `AXIS=POSITION` (`z=0`, `x=-2.5`) in `unit`, as a plane in metres; `what` names the option in errors. */
@@ -123,6 +127,14 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
       mesh: lm.mesh, potentials: resolvePotentials(lm.mesh.names, given, baseOverrides, floating), unit, unitAssumed: opts.unit === undefined, permittivity: 1,
       symmetry: [], floating, files: lm.files, warnings: lm.warnings, dropped: lm.dropped, probes: [], dielectrics: [], parameters: {},
     };
+  }
+  if (opts.permittivity !== undefined) {
+    if (!(opts.permittivity >= 1) || !Number.isFinite(opts.permittivity)) throw new InputError(`relative permittivity must be a number of at least 1, got ${opts.permittivity}`);
+    out.permittivity = opts.permittivity;
+  }
+  if (opts.breakdownField !== undefined) {
+    if (!(opts.breakdownField > 0) || !Number.isFinite(opts.breakdownField)) throw new InputError(`breakdown field must be a positive number of V/m, got ${opts.breakdownField}`);
+    out.breakdownField = opts.breakdownField;
   }
   if (opts.groundPlane !== undefined) out.groundPlane = parsePlane(opts.groundPlane, out.unit, "ground plane");
   if (opts.symmetry !== undefined) out.symmetry = opts.symmetry.map((t) => parseSymmetryPlane(t, out.unit));

@@ -6,7 +6,10 @@
 import { type LengthUnit, metresPer } from "../io/units.js";
 import type { CheckReport, ConductorCheck, PairCheck } from "../mesh/check.js";
 import { THIN_ASPECT } from "../mesh/check.js";
-import { formatNumber, formatLength, formatPoint, lengthValue, unitLabel } from "./si.js";
+import { formatNumber, formatLength, formatPoint, lengthValue, unitLabel } from "../io/si.js";
+import { pairSentence } from "../extract/scene-check.js";
+
+export { pairSentence };
 
 export interface CheckSummaryOptions {
   unit: LengthUnit;
@@ -50,16 +53,6 @@ function conductorNotes(c: ConductorCheck, unit: LengthUnit): string[] {
 }
 
 /** The sentence for one finding between conductors. */
-export function pairSentence(p: PairCheck, unit: LengthUnit): string {
-  const at = formatPoint(p.position, unit);
-  switch (p.kind) {
-    case "intersect": return `conductors ${p.a} and ${p.b} intersect at ${at}`;
-    case "touch": return `conductors ${p.a} and ${p.b} touch at ${at}${p.distance > 0 ? ` (gap ${formatLength(p.distance, unit)}, within the contact tolerance)` : ""}; touching conductors are one net: merge them or separate them`;
-    case "inside": return `conductor ${p.a} lies inside the closed surface of conductor ${p.b} (at ${at}): ${p.b} is taken as a zero-thickness shell around a cavity; if ${p.b} is solid there, the model is wrong`;
-    case "gap": return `conductors ${p.a} and ${p.b} are only ${formatLength(p.distance, unit)} apart at ${at}, less than the local panel size ${formatLength(p.panelSize ?? NaN, unit)}; the boundary-element answer loses accuracy there: refine the mesh near the gap`;
-  }
-}
-
 export function formatCheckSummary(report: CheckReport, opts: CheckSummaryOptions): string {
   const u = opts.unit, ul = unitLabel(u);
   const out: string[] = [];

@@ -22,7 +22,7 @@
  */
 import { InputError } from "../io/errors.js";
 import type { LengthUnit } from "../io/units.js";
-import { formatSI, formatNumber, formatFieldStrength, formatPoint, formatArea, unitLabel } from "./si.js";
+import { formatSI, formatNumber, formatFieldStrength, formatPoint, formatArea, unitLabel } from "../io/si.js";
 
 export interface ReportConductor {
   name: string;

@@ -3,8 +3,9 @@
  * the field check with margins, the accuracy estimate and the cautions.
  */
 import type { ExtractionResult } from "../extract/extract-mesh.js";
+import type { SceneExtraction } from "../extract/extract.js";
 import type { LengthUnit } from "../io/units.js";
-import { formatSI, formatNumber, formatArea, formatPoint, formatFieldStrength, formatLength, unitLabel, digitsFor } from "./si.js";
+import { formatSI, formatNumber, formatArea, formatPoint, formatFieldStrength, formatLength, unitLabel, digitsFor } from "../io/si.js";
 import { cautionsFor } from "./cautions.js";
 
 /** Lay out rows as columns; `right` marks right-aligned columns. */
@@ -23,7 +24,14 @@ export interface SummaryContext {
   source: string;
 }
 
-export function extractionSummary(r: ExtractionResult, ctx: SummaryContext): string {
+/**
+ * The terminal summary of an extraction. A scene's extraction (`extract`) names its own input
+ * and unit; a bare mesh's (`extractMesh`) needs them given.
+ */
+export function extractionSummary(r: SceneExtraction, ctx?: SummaryContext): string;
+export function extractionSummary(r: ExtractionResult, ctx: SummaryContext): string;
+export function extractionSummary(r: ExtractionResult | SceneExtraction, given?: SummaryContext): string {
+  const ctx = given ?? (r as SceneExtraction).input;
   const k = r.k;
   const out: string[] = [];
   // Digits: capacitances, charges and energy carry as many as the Richardson estimate supports

@@ -1,50 +1,106 @@
 /**
- * The files an extraction writes besides the terminal summary, built in memory first so that
- * the CLI can write them all or none (src/io/atomic.ts `writeFilesAtomic`).
+ * The outputs of an extraction, written as one set: the JSON report, the HTML report with the 3D
+ * view, the SPICE subcircuit, CSV and Markdown tables, the probe table with a field plot per
+ * probe line, and the convergence plot. Every file is built in memory first and then written all
+ * or none (src/io/atomic.ts `writeFilesAtomic`); `-` sends one of them to the caller instead
+ * (the CLI prints it on standard output).
  */
-import { basename, dirname, extname, join } from "node:path";
-import type { ExtractionResult } from "../extract/extract-mesh.js";
-import { probeExtraction, type ProbeResult } from "../extract/probe.js";
-import { probePoints, probeCsv, distanceAlong, fieldMagnitude, type ProbeSpec } from "../extract/probe-spec.js";
-import { metresPer, type LengthUnit } from "../io/units.js";
+import { basename, dirname, extname, join, resolve } from "node:path";
+import type { SceneExtraction } from "../extract/extract.js";
+import { probeCsv, distanceAlong, fieldMagnitude } from "../extract/probe-spec.js";
+import { metresPer } from "../io/units.js";
+import { InputError } from "../io/errors.js";
+import { writeFilesAtomic } from "../io/atomic.js";
+import { version } from "../version.js";
 import { spiceSubcircuit } from "./spice.js";
 import { csvReport, markdownReport, reportData } from "./csv.js";
 import { fieldAlongLineSvg, convergencePlotSvg } from "./svg-plot.js";
-import { unitLabel } from "./si.js";
+import { unitLabel } from "../io/si.js";
 import { htmlReport } from "./html.js";
-import { viewerData } from "./viewer-data.js";
+import { viewerData, viewerDataJson } from "./viewer-data.js";
+import { extractionReport } from "./json.js";
 
 export interface OutputFile { path: string; data: string | Uint8Array }
 
-export interface OutputRequest {
+/** Where each output goes: a path, `-` for the caller (at most one), or nothing. */
+export interface OutputTargets {
+  /** The JSON report. */
+  json?: string;
+  /** Include the panel geometry, charges and fields in the JSON report (for `sigmesh view`). */
+  jsonPanels?: boolean;
   /** Self-contained HTML report with the 3D viewer. */
   html?: string;
+  /** SPICE subcircuit of the two-terminal capacitances, named after the file. */
   spice?: string;
+  /** Capacitors below this fraction of the largest are left out of the netlist (default 1e-4). */
   spiceThreshold?: number;
   csv?: string;
   markdown?: string;
   /** CSV of all probes; a field plot per line probe is written beside it (`<stem>-<name>.svg`). */
   probeCsv?: string;
-  probes?: ProbeSpec[];
-  /** Convergence plot of the first Maxwell diagonal entry (needs --refine). */
+  /** Convergence plot of the first Maxwell diagonal entry (needs a refined run). */
   convergenceSvg?: string;
 }
 
-export interface ProbeRun { spec: ProbeSpec; points: Float64Array; result: ProbeResult }
+const TARGET_OPTIONS: Array<[keyof OutputTargets, string]> = [
+  ["json", "--json"], ["html", "--html"], ["spice", "--spice"], ["csv", "--csv"], ["markdown", "--markdown"], ["probeCsv", "--probe-csv"], ["convergenceSvg", "--convergence-svg"],
+];
 
-/** Evaluate probe requests on an extraction (points in the user's unit). */
-export function runProbes(result: ExtractionResult, specs: ProbeSpec[], unit: LengthUnit): ProbeRun[] {
-  return specs.map((spec) => {
-    const points = probePoints(spec, metresPer(unit));
-    return { spec, points, result: probeExtraction(result, points) };
+/**
+ * Refuse targets that cannot all be written, before any work: two outputs to the caller (`-`),
+ * one path given twice, a convergence plot without refinement (`refine` = the run's refinements).
+ */
+export function checkOutputTargets(targets: OutputTargets, refine?: number): void {
+  const given = TARGET_OPTIONS.filter(([key]) => typeof targets[key] === "string") as Array<[keyof OutputTargets, string]>;
+  const piped = given.filter(([key]) => targets[key] === "-").map(([, option]) => option);
+  if (piped.length > 1) throw new InputError(`${piped.join(" and ")} ask for standard output (-); only one output can go there`);
+  const seen = new Map<string, string>();
+  for (const [key, option] of given) {
+    const path = targets[key] as string;
+    if (path === "-") continue;
+    const full = resolve(path);
+    const other = seen.get(full);
+    if (other) throw new InputError(`${other} and ${option} both name ${path}: give each output its own file`);
+    seen.set(full, option);
+  }
+  if (targets.convergenceSvg && refine !== undefined && refine === 0) throw new InputError("--convergence-svg needs --refine 1 or more");
+}
+
+/** The JSON report of an extraction as an object (SI units; fields documented in README.md). */
+export function sceneReport(result: SceneExtraction, opts: { panels?: boolean } = {}): Record<string, unknown> {
+  const report = extractionReport(result, {
+    version: version(), files: result.input.files, scene: result.input.scene, unit: result.input.unit, inputWarnings: result.input.warnings,
   });
+  if (opts.panels) report.viewer = viewerDataJson(result);
+  return report;
+}
+
+/** JSON text with non-finite numbers as null (JSON has no NaN or Infinity). */
+export function jsonText(value: unknown): string {
+  return JSON.stringify(value, (_k, v) => (typeof v === "number" && !Number.isFinite(v) ? null : v), 2) + "\n";
+}
+
+/** What `writeOutputs` did: the files written, and the text of the output sent to `-`, if any. */
+export interface WrittenOutputs { written: string[]; piped?: string }
+
+/** Write a result's outputs as one set, all or none. */
+export function writeOutputs(result: SceneExtraction, targets: OutputTargets): WrittenOutputs {
+  checkOutputTargets(targets, result.accuracy ? result.accuracy.levels.length - 1 : 0);
+  const files = extractionFiles(result, targets);
+  const piped = files.find((f) => f.path === "-");
+  const written = files.filter((f) => f.path !== "-");
+  writeFilesAtomic(written);
+  return { written: written.map((f) => f.path), piped: piped ? (typeof piped.data === "string" ? piped.data : Buffer.from(piped.data).toString("utf8")) : undefined };
 }
 
 function safeStem(name: string): string {
   return name.replace(/[^A-Za-z0-9._-]+/g, "_").replace(/^_+|_+$/g, "") || "probe";
 }
 
-export function extractionOutputs(result: ExtractionResult, report: Record<string, unknown>, unit: LengthUnit, req: OutputRequest, title?: string): OutputFile[] {
+/** Every file of the set, in memory (paths as given; `-` for the caller). */
+export function extractionFiles(result: SceneExtraction, req: OutputTargets): OutputFile[] {
+  const unit = result.input.unit, title = result.input.source;
+  const report = sceneReport(result, { panels: req.jsonPanels });
   const files: OutputFile[] = [];
   const plots: Array<{ title: string; svg: string }> = [];
   if (req.spice) {
@@ -60,8 +116,8 @@ export function extractionOutputs(result: ExtractionResult, report: Record<strin
     if (req.csv) files.push({ path: req.csv, data: csvReport(data) });
     if (req.markdown) files.push({ path: req.markdown, data: markdownReport(data, { title }) });
   }
-  if (req.probes && req.probes.length > 0 && req.probeCsv) {
-    const runs = runProbes(result, req.probes, unit);
+  if (result.probes.length > 0 && req.probeCsv) {
+    const runs = result.probes;
     // One header for all requests: the distance column when any is a line, i and j when any is a grid.
     const columns = { distance: runs.some((r) => r.spec.kind === "line"), grid: runs.some((r) => r.spec.kind === "grid") };
     const parts = runs.map((r, i) => {
@@ -85,5 +141,6 @@ export function extractionOutputs(result: ExtractionResult, report: Record<strin
     plots.push({ title: `Convergence of C(${result.names[0]}) under refinement`, svg });
   }
   if (req.html) files.push({ path: req.html, data: htmlReport(report, viewerData(result), undefined, plots) });
+  if (req.json !== undefined) files.push({ path: req.json, data: jsonText(report) });
   return files;
 }

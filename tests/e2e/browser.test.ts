@@ -11,7 +11,7 @@ import type { Browser, Page } from "playwright-core";
 import { chromiumMissing, launchChromium, sampleExtraction, writeSampleHtml, ARTIFACTS, MARKUP_NAME } from "./browser-helper.js";
 import type { ExtractionResult } from "../../src/extract/extract-mesh.js";
 import { viewerData, viewerDataJson, hotSpots, type ViewerData } from "../../src/report/viewer-data.js";
-import { formatSI } from "../../src/report/si.js";
+import { formatSI } from "../../src/io/si.js";
 import { htmlReport } from "../../src/report/html.js";
 import { sphereMesh, boxMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes, boundingBox } from "../../src/mesh/model.js";

@@ -13,7 +13,8 @@ import { EPSILON_0 } from "../../src/extract/constants.js";
 import { htmlReport, scriptSafeJson, embeddedResults, writeHtmlReport, type ViewerBundle } from "../../src/report/html.js";
 import { viewerData, viewerDataJson, packViewerData, hotSpots, type PackedArray } from "../../src/report/viewer-data.js";
 import { coolWarmTable, viridisTable, divergingColor, COOL, WARM } from "../../viewer/src/colormap.js";
-import { viewPage, parsePort } from "../../cli/view.js";
+import { viewPage } from "../../src/report/view-server.js";
+import { parsePort } from "../../cli/view.js";
 import { InputError } from "../../src/io/errors.js";
 
 const MARKUP = "<img src=x onerror=alert(1)></script><script>alert(2)</script>";

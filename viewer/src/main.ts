@@ -15,7 +15,7 @@ import { readPageData, type PageData, type Excitation, type HotSpot } from "./da
 import { coolWarmTable, viridisTable, LUT_SIZE } from "./colormap.js";
 import { clusterProxy, proxyPlan } from "./proxy.js";
 import { panelMaterial, type PanelMaterial } from "./panel-material.js";
-import { formatSI, formatPoint, formatNumber, formatArea } from "../../src/report/si.js";
+import { formatSI, formatPoint, formatNumber, formatArea } from "../../src/io/si.js";
 import type { LengthUnit } from "../../src/io/units.js";
 import "./style.css";
 

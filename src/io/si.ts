@@ -4,7 +4,7 @@
  * same everywhere. Prefixes are those of the SI Brochure (BIPM, 9th ed., 2019, with the
  * 2022 additions ronna/quetta and ronto/quecto).
  */
-import { type LengthUnit, metresPer } from "../io/units.js";
+import { type LengthUnit, metresPer } from "./units.js";
 
 const PREFIXES: ReadonlyArray<[number, string]> = [
   [-30, "q"], [-27, "r"], [-24, "y"], [-21, "z"], [-18, "a"], [-15, "f"], [-12, "p"], [-9, "n"], [-6, "µ"], [-3, "m"],

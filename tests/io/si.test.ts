@@ -1,5 +1,5 @@
 import { describe, it, expect } from "vitest";
-import { formatSI, formatLength, formatArea, formatPoint, formatFieldStrength, formatNumber, digitsFor } from "../../src/report/si.js";
+import { formatSI, formatLength, formatArea, formatPoint, formatFieldStrength, formatNumber, digitsFor } from "../../src/io/si.js";
 
 describe("formatSI", () => {
   it("uses engineering prefixes with significant digits", () => {

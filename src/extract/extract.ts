@@ -1,0 +1,127 @@
+/**
+ * The extraction pipeline of the library: a scene as `loadScene` returns it in, everything the
+ * scene asks for out — capacitance matrices, charges, fields, forces, the field check, the error
+ * estimate and the probes. `sigmesh extract`, `sigmesh sweep` (in process and in its child
+ * processes) and library scripts all go through `extract`; the files of a run are then written
+ * by `writeOutputs` (src/report/write-outputs.ts).
+ *
+ *   const scene = loadScene("board.json");
+ *   const result = await extract(scene, { refine: 1 });
+ *
+ * The steps: check the conductors (touching or intersecting ones are refused, narrow gaps
+ * warned of), solve on the scene's mesh with all its surroundings (`extractMesh`), evaluate the
+ * probes. `extractMesh` stays available for a bare mesh with loose options.
+ */
+import type { LoadedScene } from "../io/inputs.js";
+import type { LengthUnit } from "../io/units.js";
+import { metresPer } from "../io/units.js";
+import type { Discretisation } from "../bem/assembly.js";
+import type { InterfaceTesting } from "../bem/interface.js";
+import type { WorkerPool } from "../linalg/pool.js";
+import { probePoints, type ProbeSpec } from "./probe-spec.js";
+import { probeExtraction, type ProbeResult } from "./probe.js";
+import type { SolverChoice } from "./solve.js";
+import { extractMesh, type ExtractionResult } from "./extract-mesh.js";
+import { checkConductors } from "./scene-check.js";
+
+/** What a run adds to the scene: how to solve it, and how to follow and stop it. */
+export interface ExtractSettings {
+  /** Discretisation (default galerkin). */
+  method?: Discretisation;
+  /** Solver (default auto: by a cost model). */
+  solver?: SolverChoice;
+  /** Requested relative accuracy of C (default 1e-4): sets the solver tolerances. */
+  tolerance?: number;
+  /** Uniform refinements for the Richardson error estimate (0 to 4; default 0). */
+  refine?: number;
+  /** Convergence order assumed when only two meshes are solved (default: by the geometry). */
+  assumedOrder?: number;
+  /** Probe requests added to the scene's own (coordinates in the scene's unit). */
+  probes?: ProbeSpec[];
+  /** Progress: phase ("tree", "near field", "far field", "solve", "fields", ...), its fraction done, the solve's index and count. */
+  progress?: (phase: string, fraction: number, level: number, levels: number) => void;
+  /** Called once for each warning about the input (narrow gaps, cavities) as soon as it is found, before the solve. */
+  warn?: (message: string) => void;
+  /** Cancels the run: it rejects with the signal's reason (an AbortError) at the next progress step. */
+  signal?: AbortSignal;
+  /** Largest memory the run may plan for, bytes (default: what the machine has). */
+  memoryLimit?: number;
+  /** Worker pool (default: the shared pool of every core). */
+  pool?: WorkerPool;
+  /** Testing of the dielectric interface rows (default galerkin). */
+  interfaceTesting?: InterfaceTesting;
+}
+
+/** A probe request with its points (metres) and the potential and field there. */
+export interface ProbeRun { spec: ProbeSpec; points: Float64Array; result: ProbeResult }
+
+/** What was read: enough to name the input in every output. */
+export interface ExtractionInput {
+  files: string[];
+  /** The scene file, when the input was one. */
+  scene?: string;
+  /** How the input is named in messages and reports: the scene file, else the mesh files. */
+  source: string;
+  /** The length unit of the input and of every length in the summaries. */
+  unit: LengthUnit;
+  /** True when no scene or option chose the unit (mm assumed). */
+  unitAssumed: boolean;
+  /** The scene's named parameters with the values used. */
+  parameters: Record<string, number>;
+  /** Warnings from loading and checking, before the solve. */
+  warnings: string[];
+}
+
+/** An extraction of a scene: the solve's results, the input it came from and the probes. */
+export interface SceneExtraction extends ExtractionResult {
+  input: ExtractionInput;
+  probes: ProbeRun[];
+}
+
+/** Extract everything the scene holds. Bad input is an InputError naming the file and the fault. */
+export async function extract(scene: LoadedScene, settings: ExtractSettings = {}): Promise<SceneExtraction> {
+  const signal = settings.signal;
+  signal?.throwIfAborted();
+  const source = scene.scene ?? scene.files.join(", ");
+  const warnings = scene.warnings.map((w) => (w.file ? `${w.file}: ` : "") + w.message);
+  const found = checkConductors(scene.mesh, scene.unit, source);
+  for (const w of found) settings.warn?.(w);
+  warnings.push(...found);
+  signal?.throwIfAborted();
+  const result = await extractMesh(scene.mesh, {
+    permittivity: scene.permittivity,
+    breakdownField: scene.breakdownField,
+    potentials: scene.potentials,
+    groundPlane: scene.groundPlane,
+    symmetry: scene.symmetry,
+    floating: scene.floating,
+    dielectrics: scene.dielectrics.length > 0 ? scene.dielectrics : undefined,
+    method: settings.method,
+    solver: settings.solver,
+    tolerance: settings.tolerance,
+    refine: settings.refine,
+    assumedOrder: settings.assumedOrder,
+    memoryLimit: settings.memoryLimit,
+    pool: settings.pool,
+    interfaceTesting: settings.interfaceTesting,
+    progress: (phase, fraction, level, levels) => {
+      signal?.throwIfAborted();
+      settings.progress?.(phase, fraction, level, levels);
+    },
+  });
+  signal?.throwIfAborted();
+  const probes = runProbes(result, [...scene.probes, ...(settings.probes ?? [])], scene.unit);
+  return {
+    ...result,
+    input: { files: scene.files, scene: scene.scene, source, unit: scene.unit, unitAssumed: scene.unitAssumed, parameters: { ...scene.parameters }, warnings },
+    probes,
+  };
+}
+
+/** Evaluate probe requests on an extraction (request coordinates in `unit`). */
+export function runProbes(result: ExtractionResult, specs: readonly ProbeSpec[], unit: LengthUnit): ProbeRun[] {
+  return specs.map((spec) => {
+    const points = probePoints(spec, metresPer(unit));
+    return { spec, points, result: probeExtraction(result, points) };
+  });
+}

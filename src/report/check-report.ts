@@ -1,0 +1,68 @@
+/**
+ * The JSON report of a mesh check (`sigmesh check --json`).
+ *
+ * JSON report (`--json <path|->`, written atomically; every quantity in SI units:
+ * lengths m, areas m², volumes m³; numbers that are undefined are null):
+ *   tool            "sigmesh"
+ *   command         "check"
+ *   version         sigmesh version
+ *   files           input files, as given
+ *   inputUnit       unit the files were read in ("mm", ...); unitAssumed: true when it was the default
+ *   ok              true when no pair is an error
+ *   triangles, vertices        totals after welding and dropping degenerate triangles
+ *   welded          vertices merged by welding; dropped: degenerate triangles removed on loading
+ *   warnings        [{ file, message }] from loading
+ *   conductors      one entry per conductor:
+ *     name, triangles, area (m²),
+ *     bbox          [minx, miny, minz, maxx, maxy, maxz] (m)
+ *     closed        every edge shared by exactly two of its triangles (open sheets are legal)
+ *     components    connected pieces
+ *     boundaryEdges, nonManifoldEdges, inconsistentEdges (windings disagreeing across an edge, as given)
+ *     orientation   "outward" | "inward-flipped" (was inward; reversed) | "repaired" (some triangles reversed)
+ *                   | "open" | "inconsistent" (cannot be made consistent) | "non-manifold" | "empty"
+ *     flippedTriangles  windings the orientation step reverses
+ *     volume        enclosed volume (m³) after orientation, null unless closed and orientable
+ *     edgeLength    { min, max } (m)
+ *     worstAspect   largest radius ratio R/(2r), 1 = equilateral; null if a triangle is degenerate
+ *     worstAspectAt centroid of that triangle (m)
+ *     degenerateTriangles
+ *   pairs           findings between conductors, worst first:
+ *     kind          "intersect" | "touch" (errors) | "inside" (warning: inside the closed surface of b, taken as a shell) | "gap" (warning: narrower than the local panel size)
+ *     severity      "error" | "warning"
+ *     a, b          conductor names (for inside: a lies inside b)
+ *     distance      smallest distance found (m); position: where (m)
+ *     panelSize     local panel size there (m), null for inside
+ */
+import type { LoadedMesh } from "../io/load.js";
+import type { LengthUnit } from "../io/units.js";
+import type { CheckReport } from "../mesh/check.js";
+import { version } from "../version.js";
+
+/** The check report as written to JSON (SI units; field list above). */
+export interface CheckReportJson {
+  tool: "sigmesh";
+  command: "check";
+  version: string;
+  files: string[];
+  inputUnit: LengthUnit;
+  unitAssumed: boolean;
+  ok: boolean;
+  triangles: number;
+  vertices: number;
+  welded: number;
+  dropped: number;
+  warnings: LoadedMesh["warnings"];
+  conductors: CheckReport["conductors"];
+  pairs: CheckReport["pairs"];
+}
+
+/** The JSON report of `report`, the check of the mesh `loaded` read in `unit`. */
+export function checkReport(loaded: LoadedMesh, report: CheckReport, unit: LengthUnit, unitAssumed: boolean): CheckReportJson {
+  return {
+    tool: "sigmesh", command: "check", version: version(),
+    files: loaded.files, inputUnit: unit, unitAssumed,
+    ok: !report.failed, triangles: report.triangles, vertices: report.vertices,
+    welded: loaded.welded, dropped: loaded.dropped, warnings: loaded.warnings,
+    conductors: report.conductors, pairs: report.pairs,
+  };
+}
