@@ -84,7 +84,7 @@ describe("README library section", () => {
     const block = blocks.find((b) => /runSweep\(/.test(b))!;
     const r = runScript("sweep", block, root);
     expect(r.status, r.stderr).toBe(0);
-    const lines = r.stdout.trim().split("\n");
+    const lines = r.stdout.trim().split(/\r?\n/); // RFC 4180 records end in CRLF
     expect(lines[0]).toBe("point (of 2),fingerGap,\"C(key2,key2) (F)\",\"Cm(key2,finger) (F)\"");
     const rows = lines.slice(1).map((l) => l.split(",").map(Number));
     expect(rows.map((row) => row[1])).toEqual([3, 6]);
