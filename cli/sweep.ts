@@ -4,18 +4,14 @@
  * joins the tables of `--shard` slices. A thin shell over src/extract/sweep.ts.
  */
 import type { Command } from "commander";
-import { readFileSync, existsSync } from "node:fs";
+import { readFileSync } from "node:fs";
 import { extname } from "node:path";
 import { InputError } from "../src/io/errors.js";
-import { version } from "../src/version.js";
 import { writeFilesAtomic } from "../src/io/atomic.js";
 import { closeSharedPool } from "../src/linalg/pool.js";
-import { journalPath, readJournal, removeJournal, SweepJournal, type JournalEntry } from "../src/io/sweep-journal.js";
-import {
-  parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, sceneConductorNames,
-  runSweepPoints, isPointFailure, sweepPointKey, type PointMatrices,
-} from "../src/extract/sweep.js";
-import { sweepCsv, sweepSvg, mergeSweepCsv } from "../src/report/sweep-table.js";
+import { parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, sceneConductorNames } from "../src/extract/sweep.js";
+import { planResume, runResumable, finishResumable } from "../src/extract/sweep-resume.js";
+import { sweepFiles, mergeSweepCsv } from "../src/report/sweep-table.js";
 import { action, printWarnings, reportFailure } from "./common.js";
 import { collect, countOption, solveSettings } from "./options.js";
 
@@ -48,35 +44,16 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
   const names = sceneConductorNames(scene, points[0]);
   const entries = opts.entries === undefined ? defaultEntries(names) : parseEntries(opts.entries, names);
   // The journal keeps finished points across a failed or interrupted run; --resume reuses them.
-  const journalFile = journalPath(opts.csv);
-  let kept = new Map<string, JournalEntry>();
-  if (existsSync(journalFile)) {
-    const prior = readJournal(journalFile);
-    if (!opts.resume) {
-      throw new InputError(`holds ${prior.entries.size} point${prior.entries.size === 1 ? "" : "s"} of an earlier run of this table that did not finish: add --resume to keep them (only the other points run), or delete it to start over`, journalFile);
-    }
-    kept = prior.entries;
-  }
   const runOpts = { method, solver, tolerance, refine, processes } as const;
-  const digests = new Map<string, string>();
-  const keys = new Map<number, string>();
-  for (const k of indices) {
-    // A point whose scene cannot even be written out gets no key: it runs, and fails with its own message.
-    try { keys.set(k, sweepPointKey(scene, points[k], runOpts, version(), digests)); } catch { /* no key */ }
-  }
-  const results = new Map<number, PointMatrices>();
-  for (const k of indices) {
-    const e = keys.has(k) ? kept.get(keys.get(k)!) : undefined;
-    if (e) results.set(k, { names: e.names, maxwell: e.maxwell, mutual: e.mutual });
-  }
-  const toRun = indices.filter((k) => !results.has(k));
+  const plan = planResume(scene, points, indices, runOpts, opts.csv, Boolean(opts.resume));
+  const { journalFile, toRun } = plan;
+  const kept = plan.kept.size;
   if (!opts.quiet) {
     process.stderr.write(`sigmesh: sweep of ${scene}: ${points.length} point${points.length === 1 ? "" : "s"}${shard ? `, slice ${shard.index}/${shard.count}: ${indices.length} of them` : ""}`
-      + `${results.size > 0 ? `, ${results.size} kept from ${journalFile}, ${toRun.length} to run` : ""}, ${processes > 0 ? `${processes} processes at a time` : "one at a time on every core"}\n`);
+      + `${kept > 0 ? `, ${kept} kept from ${journalFile}, ${toRun.length} to run` : ""}, ${processes > 0 ? `${processes} processes at a time` : "one at a time on every core"}\n`);
   }
   const start = Date.now();
   let shown = 0;
-  const journal = toRun.length > 0 ? new SweepJournal(journalFile, scene) : undefined;
   const controller = new AbortController();
   const interrupted = (signal: NodeJS.Signals): void => {
     controller.abort();
@@ -90,9 +67,8 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
   process.once("SIGTERM", interrupted);
   let outcome;
   try {
-    outcome = await runSweepPoints(scene, points, toRun, {
+    outcome = await runResumable(scene, points, plan, {
       ...runOpts, signal: controller.signal,
-      onResult: (k, r) => journal!.append({ point: k, key: keys.get(k) ?? "", parameters: points[k], names: r.names, maxwell: Array.from(r.maxwell), mutual: Array.from(r.mutual) }),
       // A live counter only on a terminal; logs get the closing line alone.
       onPoint: opts.quiet || !process.stderr.isTTY ? undefined : (done, total) => { shown = done; process.stderr.write(`\rsigmesh: ${done}/${total} points`); },
     });
@@ -105,8 +81,7 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
     if (shown > 0 && !controller.signal.aborted) process.stderr.write("\n");
     await closeSharedPool();
   }
-  const failures = outcome.filter(isPointFailure);
-  outcome.forEach((r, q) => { if (!isPointFailure(r)) results.set(toRun[q], r); });
+  const { results, failures } = outcome;
   if (failures.length > 0) {
     let code = 0;
     for (const f of failures) code = Math.max(code, reportFailure(f.error));
@@ -114,11 +89,9 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
     process.exitCode = code;
     return;
   }
-  const ordered = indices.map((k) => results.get(k)!);
-  const files = [{ path: opts.csv, data: sweepCsv(axes, entries, points.length, indices, points, ordered) }];
-  if (opts.svg) files.push({ path: opts.svg, data: sweepSvg(axes, entries, indices, points, ordered, `sweep of ${scene}`) });
+  const files = sweepFiles(axes, entries, points, indices, results, { csv: opts.csv, svg: opts.svg, title: `sweep of ${scene}` });
   writeFilesAtomic(files);
-  removeJournal(journalFile);
+  finishResumable(plan);
   if (!opts.quiet) process.stderr.write(`sigmesh: ${indices.length} points (${toRun.length} run) in ${((Date.now() - start) / 1000).toFixed(1)} s -> ${files.map((f) => f.path).join(", ")}\n`);
 }
 

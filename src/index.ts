@@ -43,7 +43,8 @@ export { extractionReport } from "./report/json.js";
 export { extractionSummary } from "./report/extract-summary.js";
 export { checkReport, type CheckReportJson } from "./report/check-report.js";
 export { formatCheckSummary } from "./report/check-summary.js";
-export { sweepCsv, sweepSvg, mergeSweepCsv } from "./report/sweep-table.js";
+export { sweepCsv, sweepSvg, sweepFiles, mergeSweepCsv } from "./report/sweep-table.js";
+export { planResume, runResumable, finishResumable, type ResumePlan } from "./extract/sweep-resume.js";
 export { viewPage, serveViewPage, type ViewPage } from "./report/view-server.js";
 export { version } from "./version.js";
 

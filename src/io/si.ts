@@ -23,11 +23,11 @@ function nonFinite(value: number, unit: string): string {
  * next prefix). Zero prints as "0.000 F"; NaN and infinities as "NaN F", "inf F".
  * Outside the prefix range the mantissa takes an exponent instead.
  */
-export function formatSI(value: number, unit: string, digits = 4): string {
-  if (!Number.isFinite(value)) return nonFinite(value, unit);
-  const sep = unit ? " " : "";
-  if (value === 0) return `${(0).toPrecision(digits)}${sep}${unit}`;
-  const mag = Math.abs(value);
+/**
+ * The multiple of 3 to write a magnitude with, so that its mantissa rounded to `digits`
+ * significant digits lies in [1, 1000).
+ */
+export function engineeringExponent(mag: number, digits: number): number {
   let e3 = 3 * Math.floor(Math.log10(mag) / 3);
   // log10 can miss an exact power of ten by one ulp, and rounding can carry the mantissa to 1000.
   for (let guard = 0; guard < 3; guard++) {
@@ -36,6 +36,15 @@ export function formatSI(value: number, unit: string, digits = 4): string {
     else if (m < 1) e3 -= 3;
     else break;
   }
+  return e3;
+}
+
+export function formatSI(value: number, unit: string, digits = 4): string {
+  if (!Number.isFinite(value)) return nonFinite(value, unit);
+  const sep = unit ? " " : "";
+  if (value === 0) return `${(0).toPrecision(digits)}${sep}${unit}`;
+  const mag = Math.abs(value);
+  const e3 = engineeringExponent(mag, digits);
   const lo = PREFIXES[0][0], hi = PREFIXES[PREFIXES.length - 1][0];
   const clamped = Math.min(hi, Math.max(lo, e3));
   const prefix = PREFIXES[(clamped - lo) / 3][1];

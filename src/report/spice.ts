@@ -13,6 +13,7 @@
  * after the factor are ignored). Node "0" is the global ground, so the reference is a
  * port of its own that the user ties to 0 or to anything else.
  */
+import { engineeringExponent } from "../io/si.js";
 
 /** Scale factors SPICE3 reads (ngspice manual, table of scale factors). */
 const SCALE: ReadonlyArray<[string, number]> = [
@@ -32,13 +33,7 @@ export function spiceNumber(value: number, digits = 6): string {
   if (!Number.isFinite(value)) throw new RangeError(`spiceNumber: ${value} is not a finite value`);
   if (value === 0) return "0";
   const mag = Math.abs(value);
-  let e3 = 3 * Math.floor(Math.log10(mag) / 3);
-  for (let guard = 0; guard < 3; guard++) {
-    const m = Number((mag / 10 ** e3).toPrecision(digits));
-    if (m >= 1000) e3 += 3;
-    else if (m < 1) e3 -= 3;
-    else break;
-  }
+  const e3 = engineeringExponent(mag, digits);
   const sign = value < 0 ? "-" : "";
   const prefix = WRITTEN.find(([e]) => e === e3);
   if (!prefix) return sign + trimZeros(mag.toExponential(digits - 1));
