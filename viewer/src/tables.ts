@@ -1,0 +1,160 @@
+/**
+ * What the side panel and the read-out say: the capacitance matrices, the conductor
+ * summary, the hot-spot list and its note, the excitation names and a panel's values.
+ * The content is built by plain functions (strings and numbers, tested without a browser in
+ * tests/viewer/tables.test.ts); the DOM functions below only put it into elements, as text.
+ */
+import { el } from "./dom.js";
+import type { Excitation, HotSpot, ViewerData } from "./data.js";
+import { formatSI, formatPoint, formatNumber, formatArea } from "../../src/io/si.js";
+import type { LengthUnit } from "../../src/io/units.js";
+
+// ---- Content ----
+
+/** The line under the title: input files, panels, conductors, date. */
+export function subtitle(report: Record<string, any>, v: ViewerData): string {
+  const k = v.names.length;
+  const files = (report.input?.files as string[] | undefined) ?? [];
+  return `${files.join(", ") || "extraction"} · ${v.triangles.length / 3} panels · ${k} conductor${k === 1 ? "" : "s"}${report.created ? " · " + String(report.created) : ""}`;
+}
+
+/** The excitation's name in the drop-down: the working potentials, or which conductor is at 1 V. */
+export function excitationLabel(e: Excitation, names: string[]): string {
+  if (e.id === "scene") return "Working potentials (" + e.potentials.map((p, j) => `${names[j]} ${formatNumber(p)} V`).join(", ") + ")";
+  const j = Number(e.id.slice(5));
+  return `${names[j]} at 1 V, others 0 V`;
+}
+
+export function accuracyNote(report: Record<string, any>): string | undefined {
+  if (report.accuracy?.relativeError === undefined) return undefined;
+  return `Estimated relative error of the matrix (Richardson): ${formatNumber(report.accuracy.relativeError, 2)}`;
+}
+
+/** A capacitance-matrix cell: its text, and the exact value kept beside it (a data attribute). */
+export function capacitanceCell(x: number): { text: string; value: string } {
+  return { text: formatSI(x, "F"), value: String(x) };
+}
+
+export const SUMMARY_HEADS = ["conductor", "potential", "charge", "peak |E|", "of breakdown", "area", "panels"];
+
+/** Rows of the conductor summary, one per conductor of the report, as cell texts. */
+export function summaryRows(report: Record<string, any>, names: string[], unit: LengthUnit): string[][] {
+  const rows = (report.conductors as any[] | undefined) ?? [];
+  return rows.map((c, i) => [
+    names[i] ?? String(c.name),
+    formatSI(c.potential, "V"),
+    formatSI(c.charge, "C"),
+    c.peakField === null ? "—" : formatSI(c.peakField, "V/m"),
+    c.fieldRatio === null ? "—" : `${formatNumber(100 * c.fieldRatio, 3)} %`,
+    formatArea(c.area, unit),
+    String(c.triangles),
+  ]);
+}
+
+/** One hot spot in the list: rank, conductor, field, share of breakdown, margin and place. */
+export function hotSpotText(h: HotSpot, rank: number, names: string[], unit: LengthUnit): string {
+  const margin = h.fieldRatio > 0 ? formatNumber(1 / h.fieldRatio, 3) : "inf";
+  return `${rank}. ${names[h.conductor]} — ${formatSI(h.field, "V/m")} — ${formatNumber(100 * h.fieldRatio, 3)} % of breakdown (margin ×${margin}) — at ${formatPoint(h.at, unit)}`;
+}
+
+/** A hot spot at or above the breakdown strength is marked. */
+export function hotSpotClass(h: HotSpot): string {
+  return h.fieldRatio >= 1 ? "sm-hot sm-exceeded" : "sm-hot";
+}
+
+export function hotSpotNote(e: Excitation, breakdownField: number): string {
+  return `Breakdown strength used: ${formatSI(breakdownField, "V/m")}. Margin is breakdown strength over field; below ×1 breakdown is expected.` +
+    (e.id === "scene" ? "" : " Unit excitation (1 V): scale fields by the working voltage.");
+}
+
+/** The note under the display controls when the excitation's sheet fields are bounds. */
+export function sheetBoundNote(e: Excitation): string {
+  return e.sheetFieldBound ? "On open sheets this excitation's |E| is the upper bound |σ|/ε (the model was too large for the exact two-sided field)." : "";
+}
+
+/** Centroid of panel `p` in the model's own frame (the positions are stored relative to `origin`). */
+export function panelCentroid(v: ViewerData, p: number): number[] {
+  const a = v.triangles[3 * p], b = v.triangles[3 * p + 1], d = v.triangles[3 * p + 2];
+  const P = v.positions;
+  return [0, 1, 2].map((i) => (P[3 * a + i] + P[3 * b + i] + P[3 * d + i]) / 3 + v.origin[i]);
+}
+
+/** The read-out of panel `p` under excitation `e`, one line each. */
+export function readoutLines(v: ViewerData, e: Excitation, p: number, pin: boolean, unit: LengthUnit): string[] {
+  const c = v.panelConductor[p];
+  const at = panelCentroid(v, p);
+  return [
+    `${v.names[c]} · panel ${p}${pin ? " (pinned; click empty space to release)" : ""}`,
+    `σ = ${formatSI(e.sigma[p], "C/m²")}`,
+    `|E| = ${formatSI(e.field[p], "V/m")} (${formatNumber((100 * e.field[p]) / v.breakdownField, 3)} % of breakdown)`,
+    `centroid ${formatPoint(at, unit)}`,
+    `area ${formatArea(v.areas[p], unit)}`,
+  ];
+}
+
+// ---- Elements ----
+
+export function matrixTable(caption: string, m: number[][], names: string[], id: string): HTMLTableElement {
+  const t = el("table", "sm-matrix");
+  t.id = id;
+  t.appendChild(el("caption", undefined, caption));
+  const head = el("tr");
+  head.appendChild(el("th"));
+  for (const n of names) head.appendChild(el("th", undefined, n));
+  t.appendChild(head);
+  m.forEach((row, i) => {
+    const tr = el("tr");
+    tr.appendChild(el("th", undefined, names[i]));
+    for (const x of row) { const cell = capacitanceCell(x); const td = el("td", undefined, cell.text); td.dataset.value = cell.value; tr.appendChild(td); }
+    t.appendChild(tr);
+  });
+  return t;
+}
+
+export function summaryTable(report: Record<string, any>, names: string[], unit: LengthUnit): HTMLTableElement {
+  const t = el("table", "sm-summary");
+  t.id = "sm-summary";
+  const head = el("tr");
+  for (const h of SUMMARY_HEADS) head.appendChild(el("th", undefined, h));
+  t.appendChild(head);
+  for (const cells of summaryRows(report, names, unit)) {
+    const tr = el("tr");
+    for (const x of cells) tr.appendChild(el("td", undefined, x));
+    t.appendChild(tr);
+  }
+  return t;
+}
+
+/** A bulleted list of messages (cautions, warnings). */
+export function messageList(messages: string[]): HTMLUListElement {
+  const ul = el("ul");
+  for (const m of messages) ul.appendChild(el("li", undefined, m));
+  return ul;
+}
+
+/** The hot spots of an excitation as buttons; `onSelect(i)` on a click of the i-th. */
+export function fillHotSpots(list: HTMLElement, note: HTMLElement, v: ViewerData, e: Excitation, unit: LengthUnit, onSelect: (i: number) => void): void {
+  list.replaceChildren();
+  note.textContent = hotSpotNote(e, v.breakdownField);
+  e.hotSpots.forEach((h, i) => {
+    const li = el("li", hotSpotClass(h));
+    const b = el("button", "sm-hot-button", hotSpotText(h, i + 1, v.names, unit));
+    b.dataset.field = String(h.field);
+    b.dataset.conductor = String(h.conductor);
+    b.dataset.panel = String(h.panel);
+    b.addEventListener("click", () => onSelect(i));
+    li.appendChild(b);
+    list.appendChild(li);
+  });
+}
+
+export function markSelectedSpot(list: HTMLElement, i: number): void {
+  for (const li of list.children) li.classList.remove("sm-selected");
+  list.children[i]?.classList.add("sm-selected");
+}
+
+export function showReadout(readout: HTMLElement, lines: string[], p: number): void {
+  readout.replaceChildren();
+  for (const t of lines) readout.appendChild(el("div", undefined, t));
+  readout.dataset.panel = String(p);
+}
