@@ -56,7 +56,7 @@ for (const [pd, sd] of quick ? [[10, 24]] : [[10, 24], [16, 38]]) {
 }
 
 if (!quick) {
-  console.log("\n2. ~20k panels, compressed (auto), default --tol 1e-4 (blocks 3e-4, GMRES 1e-5: solve.ts interfaceCompressionTolerance / interfaceKrylovTolerance)");
+  console.log("\n2. ~20k panels, compressed (auto), default --tol 1e-4 (blocks 3e-4, GMRES 1e-5: tolerance-policy.ts interfaceCompressionTolerance / interfaceKrylovTolerance)");
   const m = padsOnSlab(33, 80);
   const cpu0 = process.cpuUsage(), t0 = performance.now();
   const r = await run("auto", m, "auto");

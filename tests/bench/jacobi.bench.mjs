@@ -12,7 +12,8 @@ import { buildHMatrix } from "../../dist/src/linalg/hmatrix.js";
 import { parallelBlockJacobi } from "../../dist/src/linalg/cluster-jacobi.js";
 import { choleskyFactorSerial, choleskySolve } from "../../dist/src/linalg/cholesky.js";
 import { choleskyInverseInPlace, applyInverse } from "../../dist/src/linalg/block-inverse.js";
-import { clusterCover, solveUnitPotentials } from "../../dist/src/extract/solve.js";
+import { solveUnitPotentials } from "../../dist/src/extract/solve.js";
+import { clusterCover } from "../../dist/src/extract/preconditioner.js";
 import { sharedPool, sharedFloat64, closeSharedPool } from "../../dist/src/linalg/pool.js";
 
 const args = process.argv.slice(2);

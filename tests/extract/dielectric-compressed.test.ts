@@ -1,5 +1,5 @@
 /**
- * The compressed solver with dielectric interfaces (extract/solve.ts solveCompressedWithInterfaces,
+ * The compressed solver with dielectric interfaces (extract/compressed-solve.ts with interface entries,
  * bem/assembly.ts assembleInterfaceBlock and normalFieldBlock) against the dense LU of the same
  * matrix: Maxwell entries within 0.1 % of the largest (the issue's bound; measured 1e-5 and 1e-7),
  * free charges of open sheets from the normal-field H-matrix equal to the direct sum.
@@ -52,7 +52,7 @@ describe("compressed solver with dielectric interfaces", () => {
     const c = await extractMesh(m.mesh, { ...o, solver: "compressed" });
     expect(c.solver.solver).toBe("compressed");
     expect(worstOfLargest(d.maxwell, c.maxwell)).toBeLessThan(1e-3);
-    // The interface path's tolerance policy (solve.ts interfaceCompressionTolerance/KrylovTolerance)
+    // The interface path's tolerance policy (tolerance-policy.ts interfaceCompressionTolerance/KrylovTolerance)
     // aims at a solver error of C under tol/10 at the default --tol 1e-4 (measured 2.3e-6 at 4896 panels).
     expect(c.solver.compressionTolerance).toBeGreaterThan(1e-4);
     expect(worstOfLargest(d.maxwell, c.maxwell)).toBeLessThan(1e-5);

@@ -6,7 +6,7 @@ import { buildHMatrix } from "../../src/linalg/hmatrix.js";
 import { parallelBlockJacobi, BLOCK_INVERSE } from "../../src/linalg/cluster-jacobi.js";
 import { pcg } from "../../src/linalg/cg.js";
 import { WorkerPool, sharedFloat64 } from "../../src/linalg/pool.js";
-import { clusterCover, PRECONDITIONER_CLUSTER } from "../../src/extract/solve.js";
+import { clusterCover, PRECONDITIONER_CLUSTER } from "../../src/extract/preconditioner.js";
 
 const pool = new WorkerPool(2);
 afterAll(async () => { await pool.close(); });

@@ -4,7 +4,7 @@ import { blockJacobiFromBlocks, parallelBlockJacobi, BLOCK_INVERSE, BLOCK_CHOLES
 import { buildHMatrix } from "../../src/linalg/hmatrix.js";
 import { pcg } from "../../src/linalg/cg.js";
 import { WorkerPool, sharedFloat64 } from "../../src/linalg/pool.js";
-import { clusterCover } from "../../src/extract/solve.js";
+import { clusterCover } from "../../src/extract/preconditioner.js";
 import { randomSpd, randomGeneral, rng, relDiff } from "./random.js";
 import { inverseMultiquadricModule } from "./kernel-matrix.js";
 

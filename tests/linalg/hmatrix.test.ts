@@ -1,7 +1,7 @@
 import { describe, it, expect, afterAll } from "vitest";
 import { buildHMatrix } from "../../src/linalg/hmatrix.js";
 import { WorkerPool, sharedFloat64 } from "../../src/linalg/pool.js";
-import { clusterCover } from "../../src/extract/solve.js";
+import { clusterCover } from "../../src/extract/preconditioner.js";
 import { rng } from "./random.js";
 import { inverseMultiquadricModule } from "./kernel-matrix.js";
 
