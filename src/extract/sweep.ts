@@ -26,7 +26,8 @@ import { pairSentence } from "../report/check-summary.js";
 import { csvText, parseCsv } from "../report/csv.js";
 import { linePlotSvg, type PlotSeries } from "../report/svg-plot.js";
 import { compiledUrl } from "../linalg/pool.js";
-import { extractMesh, type MeshExtractOptions } from "./extract-mesh.js";
+import { extractMesh } from "./extract-mesh.js";
+import type { MeshExtractOptions } from "./options.js";
 import { fileURLToPath } from "node:url";
 
 /** One swept parameter and its values, in the order they are run. */

@@ -3,7 +3,7 @@
  * the CLI can write them all or none (src/io/atomic.ts `writeFilesAtomic`).
  */
 import { basename, dirname, extname, join } from "node:path";
-import type { ExtractionResult } from "../extract/extract-mesh.js";
+import type { ExtractionResult } from "../extract/result.js";
 import { probeExtraction, type ProbeResult } from "../extract/probe.js";
 import { probePoints, probeCsv, distanceAlong, fieldMagnitude, type ProbeSpec } from "../extract/probe-spec.js";
 import { metresPer, type LengthUnit } from "../io/units.js";
