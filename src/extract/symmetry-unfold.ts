@@ -140,13 +140,22 @@ export function unfoldedFinest(finest: FinestSolution, patterns: Float64Array[],
 
 /** Unit solutions of every net on every panel of the unfolded model, (n·nets)×(k·nets), from the per-pattern n×k solutions. */
 function unfoldSolutions(xs: Float64Array[], n: number, k: number, nets: number): Float64Array {
-  const K = k * nets, out = new Float64Array(n * nets * K);
+  return characterSum(xs, n, k, nets, (h, p) => h * n + p);
+}
+
+/**
+ * The unit solutions of every net, (N·nets)×(k·nets), from the per-pattern N×k ones by the
+ * character sum of unfoldMatrix: net (g, j) on panel p of copy h (row rowOf(h, p)) takes
+ * 2^−b Σ_s χ_s(h ⊕ g) x_s[p, j].
+ */
+function characterSum(xs: Float64Array[], N: number, k: number, nets: number, rowOf: (h: number, p: number) => number): Float64Array {
+  const K = k * nets, out = new Float64Array(N * nets * K);
   for (let h = 0; h < nets; h++) for (let g = 0; g < nets; g++) {
     const m = h ^ g;
     for (let s = 0; s < nets; s++) {
       const w = (popcount(s & m) & 1 ? -1 : 1) / nets, x = xs[s];
-      for (let p = 0; p < n; p++) {
-        const row = (h * n + p) * K + g * k;
+      for (let p = 0; p < N; p++) {
+        const row = rowOf(h, p) * K + g * k;
         for (let j = 0; j < k; j++) out[row + j] += w * x[p * k + j];
       }
     }
@@ -334,7 +343,7 @@ export type BodyUnfolding = ReturnType<typeof unfolding>;
  * both-planes (copy h reflected in copyMask(h)): conductor panels of copies 0, 1, ... first
  * (conductor j of copy h is net h·k + j, as unfoldedMesh), then interface panels copy by copy;
  * and the total charges of every net, (N·nets)×(k·nets), from the per-pattern N×k solutions by
- * the character sum of unfoldSolutions.
+ * the character sum (characterSum).
  */
 function unfoldedDielectric(m: DielectricModel, xs: Float64Array[], k: number, nets: number, copyMask: (h: number) => number,
   offsets: Float64Array): { model: DielectricModel; x: Float64Array } {
@@ -346,17 +355,7 @@ function unfoldedDielectric(m: DielectricModel, xs: Float64Array[], k: number, n
     positions.set(r.positions, 3 * nv * h);
     for (let p = 0; p < N; p++) for (let c = 0; c < 3; c++) triangles[3 * rowOf(h, p) + c] = r.triangles[3 * p + c] + nv * h;
   }
-  const K = k * nets, x = new Float64Array(N * nets * K);
-  for (let h = 0; h < nets; h++) for (let g = 0; g < nets; g++) {
-    const mm = h ^ g;
-    for (let s = 0; s < nets; s++) {
-      const w = (popcount(s & mm) & 1 ? -1 : 1) / nets, xs_ = xs[s];
-      for (let p = 0; p < N; p++) {
-        const row = rowOf(h, p) * K + g * k;
-        for (let j = 0; j < k; j++) x[row + j] += w * xs_[p * k + j];
-      }
-    }
-  }
+  const x = characterSum(xs, N, k, nets, rowOf);
   const rep = <T extends Float64Array | Uint32Array | Int32Array | Uint8Array>(a: T): T => {
     const out = new (a.constructor as { new(n: number): T })(a.length * nets);
     for (let h = 0; h < nets; h++) out.set(a, a.length * h);
