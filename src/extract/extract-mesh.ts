@@ -58,6 +58,11 @@ export function assumedOrder(hasSharpFeatures: boolean): number {
   return hasSharpFeatures ? 1 : 2;
 }
 
+/**
+ * Capacitance matrices, charges, fields, energy and forces of the conductors of `input`
+ * (metres; one conductor per name), with an accuracy estimate when `opts.refine` > 0.
+ * InputError names any fault of the input or options.
+ */
 export async function extractMesh(input: SurfaceMesh, opts: MeshExtractOptions = {}): Promise<ExtractionResult> {
   const t0 = performance.now();
   const k = input.names.length;
