@@ -28,7 +28,9 @@ export * from "./mesh/primitives/index.js";
 
 // Extraction
 export { extract, runProbes, type ExtractSettings, type SceneExtraction, type ExtractionInput, type ProbeRun } from "./extract/extract.js";
-export { extractMesh, type MeshExtractOptions, type ExtractionResult, type ConductorResult } from "./extract/extract-mesh.js";
+export { extractMesh } from "./extract/extract-mesh.js";
+export type { MeshExtractOptions } from "./extract/options.js";
+export type { ExtractionResult, ConductorResult } from "./extract/result.js";
 export { probeField, probeExtraction, type ProbeResult } from "./extract/probe.js";
 export { EPSILON_0, AIR_BREAKDOWN_FIELD } from "./extract/constants.js";
 export {

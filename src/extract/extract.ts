@@ -21,7 +21,8 @@ import type { WorkerPool } from "../linalg/pool.js";
 import { probePoints, type ProbeSpec } from "./probe-spec.js";
 import { probeExtraction, type ProbeResult } from "./probe.js";
 import type { SolverChoice } from "./solve.js";
-import { extractMesh, type ExtractionResult } from "./extract-mesh.js";
+import { extractMesh } from "./extract-mesh.js";
+import type { ExtractionResult } from "./result.js";
 import { checkConductors } from "./scene-check.js";
 
 /** What a run adds to the scene: how to solve it, and how to follow and stop it. */

@@ -2,7 +2,7 @@
  * The terminal summary of an extraction: aligned tables with engineering prefixes,
  * the field check with margins, the accuracy estimate and the cautions.
  */
-import type { ExtractionResult } from "../extract/extract-mesh.js";
+import type { ExtractionResult } from "../extract/result.js";
 import type { SceneExtraction } from "../extract/extract.js";
 import type { LengthUnit } from "../io/units.js";
 import { formatSI, formatNumber, formatArea, formatPoint, formatFieldStrength, formatLength, unitLabel, digitsFor } from "../io/si.js";

@@ -12,7 +12,7 @@
 import { readFileSync, existsSync } from "node:fs";
 import { createHash } from "node:crypto";
 import { fileURLToPath } from "node:url";
-import type { ExtractionResult } from "../extract/extract-mesh.js";
+import type { ExtractionResult } from "../extract/result.js";
 import { writeFileAtomic } from "../io/atomic.js";
 import { packViewerData, viewerData, VIEWER_FORMAT, type ViewerData, type ViewerDataOptions } from "./viewer-data.js";
 

@@ -2,7 +2,7 @@
  * The JSON report of an extraction. SI units throughout (m, m², V, C, F, V/m, J, N, s, bytes).
  * Field names are documented in README.md ("JSON report"); keep the two in step.
  */
-import type { ExtractionResult } from "../extract/extract-mesh.js";
+import type { ExtractionResult } from "../extract/result.js";
 import { toRows } from "../extract/capacitance.js";
 import type { LengthUnit } from "../io/units.js";
 import { cautionsFor } from "./cautions.js";

@@ -10,7 +10,7 @@
  * keeps ~1e-7 of the model size wherever the model sits in space; value ranges and hot-spot
  * numbers are kept in double precision so that what the page prints equals the JSON report.
  */
-import type { ExtractionResult } from "../extract/extract-mesh.js";
+import type { ExtractionResult } from "../extract/result.js";
 import { panelExcitation } from "../extract/excitation.js";
 import { centroidFields } from "../extract/probe.js";
 import { boundingBox } from "../mesh/model.js";

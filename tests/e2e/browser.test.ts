@@ -9,7 +9,7 @@ import { join } from "node:path";
 import { fileURLToPath, pathToFileURL } from "node:url";
 import type { Browser, Page } from "playwright-core";
 import { chromiumMissing, launchChromium, sampleExtraction, writeSampleHtml, ARTIFACTS, MARKUP_NAME } from "./browser-helper.js";
-import type { ExtractionResult } from "../../src/extract/extract-mesh.js";
+import type { ExtractionResult } from "../../src/extract/result.js";
 import { viewerData, viewerDataJson, hotSpots, type ViewerData } from "../../src/report/viewer-data.js";
 import { formatSI } from "../../src/io/si.js";
 import { htmlReport } from "../../src/report/html.js";

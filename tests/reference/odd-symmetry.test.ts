@@ -7,7 +7,8 @@
 import { describe, it, expect, afterAll } from "vitest";
 import { sphereMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes, type SurfaceMesh } from "../../src/mesh/model.js";
-import { extractMesh, unfoldMatrix } from "../../src/extract/extract-mesh.js";
+import { extractMesh } from "../../src/extract/extract-mesh.js";
+import { unfoldMatrix } from "../../src/extract/symmetry-unfold.js";
 import { reflectSurface } from "../../src/bem/images.js";
 import { probeExtraction } from "../../src/extract/probe.js";
 import { EPSILON_0 } from "../../src/extract/constants.js";

@@ -1,0 +1,129 @@
+/**
+ * The refinement levels' solves: the unit-potential solutions of the conductors on the oriented
+ * mesh and on each uniform refinement of it, once per even/odd pattern of the planes with images
+ * "both" (symmetry-unfold.ts), with or without dielectric bodies. Each level yields the Maxwell
+ * matrix of the (unfolded) model; the finest keeps its panel solutions for the excitation.
+ */
+import type { SurfaceMesh } from "../mesh/model.js";
+import { refineUniform } from "../mesh/refine.js";
+import { panelSet, type PanelSet } from "../bem/panels.js";
+import { imageSet, type KernelSpec } from "../bem/images.js";
+import { EPSILON_0 } from "./constants.js";
+import { solveUnitPotentials, solveUnitPotentialsWithInterfaces, type UnitSolution } from "./solve.js";
+import { conductorCharges } from "./capacitance.js";
+import { dielectricModel, freeCharges, openFieldPanels, type DielectricModel, type PreparedBody } from "./dielectric.js";
+import type { ResolvedOptions } from "./options.js";
+import type { LevelResult } from "./result.js";
+import { unfoldMatrix, type SymmetryLayout, type BodyUnfolding } from "./symmetry-unfold.js";
+
+/** The dielectric model's solution on the finest mesh. */
+export interface DielectricSolution {
+  model: DielectricModel;
+  /** All panels of the model: conductors first, then interfaces. */
+  panels: PanelSet;
+  /** Total (free and polarisation) unit solutions of all panels, N×k per net; x units (Q = 4πε0 x). */
+  totalX: Float64Array;
+  /** The open sheets' normal field from the compressed solver, when it holds (one pattern only). */
+  openNormalField?: Float64Array;
+}
+
+/** The finest mesh and its unit solutions, per net. */
+export interface FinestSolution {
+  mesh: SurfaceMesh;
+  /** Unit solutions on the conductor panels (free charges with dielectrics); x units. */
+  unit: UnitSolution;
+  dielectric?: DielectricSolution;
+}
+
+export interface LevelSolves extends FinestSolution {
+  levels: LevelResult[];
+  /** The finest level's unit solutions per solve pattern (of all panels with dielectrics). */
+  patterns: Float64Array[];
+  /** The dielectric bodies as refined for the finest level. */
+  bodies?: PreparedBody[];
+}
+
+/** One level's solves: its Maxwell matrix and its panel solutions. */
+interface LevelSolve {
+  level: LevelResult;
+  unit: UnitSolution;
+  patterns: Float64Array[];
+  dielectric?: DielectricSolution;
+}
+
+/** Solves the mesh (and dielectric bodies) as given and on `o.refine` uniform refinements. */
+export async function solveLevels(oriented: SurfaceMesh, bodies: PreparedBody[] | undefined, unfold: BodyUnfolding | undefined,
+  layout: SymmetryLayout, o: ResolvedOptions): Promise<LevelSolves> {
+  const levels: LevelResult[] = [];
+  let mesh = oriented;
+  let solve: LevelSolve | undefined;
+  for (let level = 0; level <= o.refine; level++) {
+    if (level > 0) mesh = refineUniform(mesh);
+    if (bodies) {
+      if (level > 0) bodies = bodies.map((b) => ({ ...b, mesh: refineUniform(b.mesh) }));
+      solve = await solveDielectricLevel(mesh, bodies, unfold, level, layout, o);
+    } else {
+      solve = await solveConductorLevel(mesh, level, layout, o);
+    }
+    levels.push(solve.level);
+  }
+  if (!solve) throw new Error("no level solved");
+  return { levels, mesh, unit: solve.unit, patterns: solve.patterns, dielectric: solve.dielectric, bodies };
+}
+
+/** Progress of pattern s of a level, counted over all levels' patterns. */
+function patternProgress(o: ResolvedOptions, level: number, s: number, nets: number) {
+  return (phase: string, f: number) => o.progress?.(phase, f, level * nets + s, (o.refine + 1) * nets);
+}
+
+/** Conductors in a uniform medium: per pattern, Q = 4πε x summed over each conductor (and its even mirrors). */
+async function solveConductorLevel(mesh: SurfaceMesh, level: number, layout: SymmetryLayout, o: ResolvedOptions): Promise<LevelSolve> {
+  const { nets, tied } = layout, k = mesh.names.length;
+  const perPattern: Float64Array[] = [], xs: Float64Array[] = [];
+  let last: UnitSolution | undefined;
+  for (let s = 0; s < nets; s++) {
+    const sol = await solveUnitPotentials(mesh.positions, mesh.triangles, mesh.conductor, k, {
+      method: o.method, solver: o.solver, tolerance: o.tolerance, pool: o.pool, memoryLimit: o.memoryLimit, kernel: layout.kernelFor(s),
+      progress: patternProgress(o, level, s, nets),
+    });
+    const q = conductorCharges(sol.x, mesh.conductor, k, sol.chargeCorrection);
+    const scale = 4 * Math.PI * o.permittivity * tied;
+    for (let i = 0; i < q.length; i++) q[i] *= scale;
+    perPattern.push(q); xs.push(sol.x);
+    last = sol;
+  }
+  return { level: { panels: last!.panels.n, maxwell: nets > 1 ? unfoldMatrix(perPattern, k, nets) : perPattern[0], info: last!.info }, unit: last!, patterns: xs };
+}
+
+/**
+ * Conductors and dielectric interfaces: per pattern, the free charges (ε-weighted, bem/interface.ts)
+ * summed over each conductor give Q; every charge, free and polarisation, radiates in vacuum.
+ */
+async function solveDielectricLevel(mesh: SurfaceMesh, bodies: PreparedBody[], unfold: BodyUnfolding | undefined, level: number,
+  layout: SymmetryLayout, o: ResolvedOptions): Promise<LevelSolve> {
+  const { nets, tied } = layout, k = mesh.names.length, er = o.relativePermittivity;
+  const model = unfold ? unfold.restrict(dielectricModel(unfold.surface(mesh), bodies, er, o.groundPlane), mesh.conductor.length)
+    : dielectricModel(mesh, bodies, er, o.groundPlane);
+  const perPattern: Float64Array[] = [], xs: Float64Array[] = [];
+  let dsol: UnitSolution | undefined;
+  let unit: UnitSolution | undefined;
+  for (let s = 0; s < nets; s++) {
+    const ks: KernelSpec | undefined = layout.kernelFor(s);
+    dsol = await solveUnitPotentialsWithInterfaces(model.positions, model.triangles, mesh.conductor, k, model.lambda, o.testing, {
+      method: o.method, solver: o.solver, tolerance: o.tolerance, pool: o.pool, memoryLimit: o.memoryLimit, kernel: ks,
+      progress: patternProgress(o, level, s, nets),
+    }, openFieldPanels(model));
+    const xFree = freeCharges(model, dsol.panels, dsol.x, k, ks ? imageSet(dsol.panels, ks) : undefined, dsol.normalField);
+    const qd = conductorCharges(xFree, mesh.conductor, k);
+    for (let i = 0; i < qd.length; i++) qd[i] *= 4 * Math.PI * EPSILON_0 * tied;
+    perPattern.push(qd); xs.push(dsol.x);
+    if (s === 0) unit = { x: xFree, panels: panelSet(mesh.positions, mesh.triangles), info: dsol.info };
+  }
+  return {
+    level: { panels: dsol!.panels.n, maxwell: nets > 1 ? unfoldMatrix(perPattern, k, nets) : perPattern[0], info: dsol!.info },
+    unit: unit!, patterns: xs,
+    // The open sheets' normal field from the solver (compressed path) holds for the one
+    // pattern; unfolded both-plane models sum it directly.
+    dielectric: { model, panels: dsol!.panels, totalX: xs[0], openNormalField: nets === 1 ? dsol!.normalField : undefined },
+  };
+}

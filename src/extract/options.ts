@@ -1,0 +1,132 @@
+/**
+ * The options of an extraction and their checked, resolved form: defaults filled in, every
+ * value checked with an InputError a user can act on, working potentials and floating flags
+ * spread over the nets of the unfolded model (symmetry-unfold.ts).
+ */
+import type { Discretisation } from "../bem/assembly.js";
+import type { InterfaceTesting } from "../bem/interface.js";
+import type { AxisPlane, SymmetryPlane } from "../bem/images.js";
+import { sharedPool, type WorkerPool } from "../linalg/pool.js";
+import { InputError } from "../io/errors.js";
+import { EPSILON_0, AIR_BREAKDOWN_FIELD } from "./constants.js";
+import type { SolverChoice } from "./solve.js";
+import type { DielectricBody } from "./dielectric.js";
+
+export interface MeshExtractOptions {
+  /** Relative permittivity of the uniform medium (default 1). */
+  permittivity?: number;
+  method?: Discretisation;
+  solver?: SolverChoice;
+  /** Requested relative accuracy of C (default 1e-4): sets solver tolerances. */
+  tolerance?: number;
+  /** Working potentials in volts, one per conductor (default: first 1 V, rest 0 V). */
+  potentials?: ArrayLike<number>;
+  /** Breakdown strength of the medium; V/m (default 3 MV/m, air). */
+  breakdownField?: number;
+  /** Uniform refinements for the error estimate (0 = none). */
+  refine?: number;
+  /** Convergence order assumed when only two meshes are solved (default: see `assumedOrder`). */
+  assumedOrder?: number;
+  pool?: WorkerPool;
+  progress?: (phase: string, fraction: number, level: number, levels: number) => void;
+  memoryLimit?: number;
+  /** Grounded conducting plane (method of images); metres. Becomes the reference of the mutual matrix. */
+  groundPlane?: AxisPlane;
+  /**
+   * Mirror symmetry planes; metres. At most one plane per axis, none on the ground plane's axis.
+   * `images`: even (default; the mirror half tied to the same potential), odd (the mirror half at
+   * the opposite potential; the plane is at 0 V) or both (an even and an odd solve per plane
+   * rebuild the full model, each mirrored conductor its own net named `name~x`).
+   */
+  symmetry?: SymmetryPlane[];
+  /** Per conductor: zero net charge at a potential solved for (its entry in `potentials` is ignored). */
+  floating?: ArrayLike<boolean>;
+  /**
+   * Dielectric bodies: closed surfaces (metres) with their relative permittivity, in the background
+   * `permittivity`; `breakdownField` (V/m) is the body's strength for the field check (default:
+   * the background's `breakdownField`).
+   */
+  dielectrics?: Array<DielectricBody & { breakdownField?: number }>;
+  /** Testing of the interface rows (default galerkin: measured more accurate, bem/interface.ts). */
+  interfaceTesting?: InterfaceTesting;
+}
+
+/** The options checked, with their defaults filled in, over the K = k·nets nets of the unfolded model. */
+export interface ResolvedOptions {
+  /** Per net: zero net charge at a solved potential. */
+  floating: boolean[];
+  /** Working potentials per net; V (floating nets' entries are replaced by their solved ones later). */
+  potentials: Float64Array;
+  relativePermittivity: number;
+  /** Absolute permittivity of the background; F/m. */
+  permittivity: number;
+  method: Discretisation;
+  solver: SolverChoice;
+  tolerance: number;
+  /** Uniform refinements after the first mesh (0 to 4). */
+  refine: number;
+  /** Breakdown strength of the background; V/m. */
+  breakdownField: number;
+  pool: WorkerPool;
+  memoryLimit?: number;
+  groundPlane?: AxisPlane;
+  assumedOrder?: number;
+  progress?: MeshExtractOptions["progress"];
+  dielectrics: Array<DielectricBody & { breakdownField?: number }>;
+  testing: InterfaceTesting;
+  /** Breakdown strength per dielectric body; V/m. */
+  strengths: Float64Array;
+}
+
+/**
+ * Checks the options for k meshed conductors unfolded into `nets` copies (copy h's working
+ * potentials signed by copySign(h)); InputError naming the fault. Potentials and floating flags
+ * come one per meshed conductor (mirrors follow) or one per net.
+ */
+export function resolveOptions(opts: MeshExtractOptions, k: number, nets: number, copySign: (h: number) => number): ResolvedOptions {
+  const K = k * nets;
+  const floating = new Array<boolean>(K).fill(false);
+  if (opts.floating) {
+    if (opts.floating.length !== k && opts.floating.length !== K) throw new InputError(`${opts.floating.length} floating flags given for ${k} conductors${K > k ? ` (or ${K} with their mirrors)` : ""}`);
+    for (let i = 0; i < K; i++) floating[i] = Boolean(opts.floating[opts.floating.length === K ? i : i % k]);
+    if (floating.every((f) => f)) throw new InputError("every conductor is floating: at least one must be held at a potential");
+  }
+  const er = opts.permittivity ?? 1;
+  if (!(er >= 1) || !Number.isFinite(er)) throw new InputError(`relative permittivity must be a number of at least 1, got ${er}`);
+  const eps = EPSILON_0 * er;
+  const method = opts.method ?? "galerkin";
+  const tolerance = opts.tolerance ?? 1e-4;
+  const refine = opts.refine ?? 0;
+  if (!Number.isInteger(refine) || refine < 0 || refine > 4) throw new InputError(`refine must be a whole number from 0 to 4, got ${refine}`);
+  const breakdownField = opts.breakdownField ?? AIR_BREAKDOWN_FIELD;
+  if (!(breakdownField > 0) || !Number.isFinite(breakdownField)) throw new InputError(`breakdown field must be a positive number of V/m, got ${breakdownField}`);
+  const potentials = new Float64Array(K);
+  if (opts.potentials) {
+    const m = opts.potentials.length;
+    if (m !== k && m !== K) throw new InputError(`${m} potentials given for ${k} conductors${K > k ? ` (or ${K} with their mirrors)` : ""}`);
+    for (let i = 0; i < K; i++) potentials[i] = m === K ? opts.potentials[i] : copySign((i / k) | 0) * opts.potentials[i % k];
+  } else {
+    const first = floating.indexOf(false) % k;
+    for (let h = 0; h < nets; h++) potentials[h * k + first] = copySign(h);
+  }
+  const pool = opts.pool ?? sharedPool();
+  const testing: InterfaceTesting = opts.interfaceTesting ?? "galerkin";
+  if (testing !== "collocation" && testing !== "galerkin") throw new InputError(`interface testing must be collocation or galerkin, got ${String(testing)}`);
+  const dielectrics = opts.dielectrics ?? [];
+  const strengths = bodyStrengths(dielectrics, breakdownField);
+  return {
+    floating, potentials, relativePermittivity: er, permittivity: eps, method, solver: opts.solver ?? "auto", tolerance, refine, breakdownField,
+    pool, memoryLimit: opts.memoryLimit, groundPlane: opts.groundPlane, assumedOrder: opts.assumedOrder, progress: opts.progress,
+    dielectrics, testing, strengths,
+  };
+}
+
+/** Breakdown strength per body (V/m): its own, else the background's. */
+function bodyStrengths(bodies: Array<DielectricBody & { breakdownField?: number }>, background: number): Float64Array {
+  return Float64Array.from(bodies, (b, i) => {
+    const e = b.breakdownField;
+    if (e === undefined) return background;
+    if (typeof e !== "number" || !(e > 0) || !Number.isFinite(e)) throw new InputError(`dielectric ${b.name ?? i + 1}: breakdown field must be a positive number of V/m, got ${String(e)}`);
+    return e;
+  });
+}
