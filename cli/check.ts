@@ -42,7 +42,7 @@ import type { Command } from "commander";
 import { createRequire } from "node:module";
 import { loadMeshFiles } from "../src/io/load.js";
 import { parseUnit, DEFAULT_UNIT } from "../src/io/units.js";
-import { InputError } from "../src/io/errors.js";
+import { InputError } from "../src/errors.js";
 import { checkMeshParallel } from "../src/mesh/check.js";
 import { formatCheckSummary, pairSentence } from "../src/report/check-summary.js";
 import { action, printWarnings, writeOutput, EXIT_BAD_INPUT } from "./common.js";

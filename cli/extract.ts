@@ -7,7 +7,7 @@ import type { Command } from "commander";
 import { createRequire } from "node:module";
 import { loadScene } from "../src/io/inputs.js";
 import { parseUnit } from "../src/io/units.js";
-import { InputError } from "../src/io/errors.js";
+import { InputError } from "../src/errors.js";
 import { checkMesh } from "../src/mesh/check.js";
 import { pairSentence } from "../src/report/check-summary.js";
 import { extractMesh } from "../src/extract/extract-mesh.js";
@@ -18,7 +18,7 @@ import { action, printWarnings, collect } from "./common.js";
 import { progressBar } from "./progress.js";
 import { extractionOutputs } from "../src/report/outputs.js";
 import { viewerDataJson } from "../src/report/viewer-data.js";
-import { parseProbeOption } from "../src/extract/probe-spec.js";
+import { parseProbeOption } from "../src/io/probe-spec.js";
 import { writeFilesAtomic } from "../src/io/atomic.js";
 
 export interface ExtractCliOptions {

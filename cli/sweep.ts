@@ -7,7 +7,7 @@ import type { Command } from "commander";
 import { readFileSync, existsSync } from "node:fs";
 import { createRequire } from "node:module";
 import { extname } from "node:path";
-import { InputError } from "../src/io/errors.js";
+import { InputError } from "../src/errors.js";
 import { writeFilesAtomic } from "../src/io/atomic.js";
 import { closeSharedPool } from "../src/linalg/pool.js";
 import { journalPath, readJournal, removeJournal, SweepJournal, type JournalEntry } from "../src/io/sweep-journal.js";

@@ -7,7 +7,7 @@
 import type { Command } from "commander";
 import { readFileSync } from "node:fs";
 import { createServer, type Server } from "node:http";
-import { InputError } from "../src/io/errors.js";
+import { InputError } from "../src/errors.js";
 import { htmlReport, embeddedResults, type PackedViewerData } from "../src/report/html.js";
 import { VIEWER_FORMAT } from "../src/report/viewer-data.js";
 import { action } from "./common.js";

@@ -11,7 +11,7 @@ export { loadScene, type LoadedScene, type InputOptions } from "./io/inputs.js";
 export { loadSceneFile, parseScene, loadSceneMesh, type Scene, type SceneConductor } from "./io/scene.js";
 export { loadMeshFile, loadMeshFiles, parseMeshBytes, type LoadOptions, type LoadedMesh } from "./io/load.js";
 export { encodeMesh, writeMeshFile, outputFormatFromPath, type OutputFormat } from "./io/write.js";
-export { InputError, type Warning } from "./io/errors.js";
+export { InputError, type Warning } from "./errors.js";
 export { parseUnit, metresPer, DEFAULT_UNIT, type LengthUnit } from "./io/units.js";
 export { checkMesh, type CheckReport } from "./mesh/check.js";
 export { refineUniform } from "./mesh/refine.js";

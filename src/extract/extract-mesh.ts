@@ -31,7 +31,7 @@ import { panelExcitation, peakFields, conductorForces, criticalFields, type Pane
 import { peakResidentBytes } from "./memory.js";
 import { centroidFieldsFast } from "./probe.js";
 import type { PanelSet } from "../bem/panels.js";
-import { InputError } from "../io/errors.js";
+import { InputError } from "../errors.js";
 import {
   AXES, mirrorNets, hasImages, kernelPlanes, imageSet, symmetryCopies, conductorRanges, checkSides, trianglesInSymmetryPlanes,
   edgeInSymmetryPlane, foldVectors, evenCopies, axisIndex, reflectSurface, mirrorSuffix,

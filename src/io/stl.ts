@@ -13,7 +13,7 @@
  * and orientation is the topology checker's business.
  */
 import type { SurfaceMesh } from "../mesh/model.js";
-import { InputError, atByte, atLine } from "./errors.js";
+import { InputError, atByte, atLine } from "../errors.js";
 import { METRES_PER_UNIT } from "./units.js";
 import { GrowF64, GrowU32, TextSink, decodeName, type RawMesh } from "./raw.js";
 import { readDecimal, decimalEnd, tokenText } from "./decimal.js";

@@ -5,7 +5,8 @@
 import { basename, dirname, extname, join } from "node:path";
 import type { ExtractionResult } from "../extract/extract-mesh.js";
 import { probeExtraction, type ProbeResult } from "../extract/probe.js";
-import { probePoints, probeCsv, distanceAlong, fieldMagnitude, type ProbeSpec } from "../extract/probe-spec.js";
+import { probePoints, distanceAlong, type ProbeSpec } from "../io/probe-spec.js";
+import { probeCsv, fieldMagnitude } from "./probe-csv.js";
 import { metresPer, type LengthUnit } from "../io/units.js";
 import { spiceSubcircuit } from "./spice.js";
 import { csvReport, markdownReport, reportData } from "./csv.js";
