@@ -1,5 +1,6 @@
 /**
- * Flat-triangle measures: area vector, unit normal, area, centroid.
+ * Flat-triangle measures: area vector, unit normal, area, centroid, and the signed volume of the
+ * tetrahedron a point makes with a triangle.
  *
  * The lowest layer of sigmesh (with src/errors.ts): imports nothing of the project, so every
  * layer may use it. Conventions, as gl-matrix: plain functions over typed arrays, the output
@@ -51,4 +52,17 @@ export function triangleCentroid(out: Float64Array, oo: number, p: ArrayLike<num
   out[oo + 1] = (p[a + 1] + p[b + 1] + p[c + 1]) / 3;
   out[oo + 2] = (p[a + 2] + p[b + 2] + p[c + 2]) / 3;
   return out;
+}
+
+/**
+ * Six times the signed volume of the tetrahedron with apex (x, y, z) over the triangle:
+ * (a − x)·((b − x) × (c − x)). Positive when the apex lies behind the triangle (as for
+ * solid-angle.ts), so over a closed outward surface the sum is six times the enclosed volume,
+ * about any apex; an apex near the surface keeps the digits a far-off origin would cancel.
+ */
+export function tetrahedronVolume6(p: ArrayLike<number>, a: number, b: number, c: number, x: number, y: number, z: number): number {
+  const ax = p[a] - x, ay = p[a + 1] - y, az = p[a + 2] - z;
+  const bx = p[b] - x, by = p[b + 1] - y, bz = p[b + 2] - z;
+  const cx = p[c] - x, cy = p[c + 1] - y, cz = p[c + 2] - z;
+  return ax * (by * cz - bz * cy) + ay * (bz * cx - bx * cz) + az * (bx * cy - by * cx);
 }

@@ -11,7 +11,7 @@
  */
 import type { SurfaceMesh } from "./model.js";
 import { boundingBox } from "./model.js";
-import { triangleArea } from "../geometry/triangle.js";
+import { triangleArea, tetrahedronVolume6 } from "../geometry/triangle.js";
 
 /** Total surface area; square metres. */
 export function surfaceArea(mesh: SurfaceMesh): number {
@@ -33,11 +33,7 @@ export function signedVolume(mesh: SurfaceMesh, conductor?: number): number {
   let sum = 0;
   for (let i = 0; i < tr.length; i += 3) {
     if (conductor !== undefined && mesh.conductor[i / 3] !== conductor) continue;
-    const a = 3 * tr[i], b = 3 * tr[i + 1], c = 3 * tr[i + 2];
-    const ax = p[a] - ox, ay = p[a + 1] - oy, az = p[a + 2] - oz;
-    const bx = p[b] - ox, by = p[b + 1] - oy, bz = p[b + 2] - oz;
-    const cx = p[c] - ox, cy = p[c + 1] - oy, cz = p[c + 2] - oz;
-    sum += ax * (by * cz - bz * cy) + ay * (bz * cx - bx * cz) + az * (bx * cy - by * cx);
+    sum += tetrahedronVolume6(p, 3 * tr[i], 3 * tr[i + 1], 3 * tr[i + 2], ox, oy, oz);
   }
   return sum / 6;
 }

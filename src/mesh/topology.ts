@@ -11,7 +11,7 @@
 import { type SurfaceMesh, triangleCount } from "./model.js";
 import { buildBoxTree, forEachItemInBox } from "./bvh.js";
 import { windingNumber } from "../geometry/solid-angle.js";
-import { triangleArea } from "../geometry/triangle.js";
+import { triangleArea, tetrahedronVolume6 } from "../geometry/triangle.js";
 
 export interface EdgeTable {
   edgeCount: number;
@@ -168,11 +168,7 @@ function signedVolume(p: Float64Array, tr: Uint32Array, list: Uint32Array, from:
   let v = 0;
   for (let k = from; k < to; k++) {
     const t = list[k];
-    const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], c = 3 * tr[3 * t + 2];
-    const ax = p[a] - ox, ay = p[a + 1] - oy, az = p[a + 2] - oz;
-    const bx = p[b] - ox, by = p[b + 1] - oy, bz = p[b + 2] - oz;
-    const cx = p[c] - ox, cy = p[c + 1] - oy, cz = p[c + 2] - oz;
-    const d = ax * (by * cz - bz * cy) + ay * (bz * cx - bx * cz) + az * (bx * cy - by * cx);
+    const d = tetrahedronVolume6(p, 3 * tr[3 * t], 3 * tr[3 * t + 1], 3 * tr[3 * t + 2], ox, oy, oz);
     v += flip[t] ? -d : d;
   }
   return v / 6;

@@ -1,5 +1,5 @@
 import { describe, it, expect } from "vitest";
-import { triangleArea, triangleAreaVector, triangleCentroid, triangleNormal } from "../../src/geometry/triangle.js";
+import { tetrahedronVolume6, triangleArea, triangleAreaVector, triangleCentroid, triangleNormal } from "../../src/geometry/triangle.js";
 
 describe("triangle measures (closed forms)", () => {
   it("right triangle with legs 2 and 3 in the xy-plane: area 3, normal +z, area vector (0, 0, 6)", () => {
@@ -44,5 +44,22 @@ describe("triangle measures (closed forms)", () => {
     expect(triangleNormal(n, 0, p, 0, 3, 6)).toBe(0);
     expect(Array.from(n)).toEqual([0, 0, 0]);
     expect(triangleArea(p, 0, 3, 6)).toBe(0);
+  });
+});
+
+describe("tetrahedronVolume6", () => {
+  it("unit right tetrahedron: 6·(1/6) = 1 with the apex behind, −1 in front, and a closed surface gives 6V about any apex", () => {
+    const p = new Float64Array([1, 0, 0, 0, 1, 0, 0, 0, 1]);
+    expect(tetrahedronVolume6(p, 0, 3, 6, 0, 0, 0)).toBe(1);
+    expect(tetrahedronVolume6(p, 0, 6, 3, 0, 0, 0)).toBe(-1);
+    expect(tetrahedronVolume6(p, 0, 3, 6, 1, 1, 1)).toBeCloseTo(-2, 15); // (1,1,1) is in front, at distance 2/√3
+    // Unit cube as 12 outward triangles: 6 × volume 1 from inside, outside or on a corner.
+    const q = new Float64Array([0, 0, 0, 1, 0, 0, 1, 1, 0, 0, 1, 0, 0, 0, 1, 1, 0, 1, 1, 1, 1, 0, 1, 1]);
+    const tr = [0, 2, 1, 0, 3, 2, 4, 5, 6, 4, 6, 7, 0, 1, 5, 0, 5, 4, 3, 7, 6, 3, 6, 2, 0, 4, 7, 0, 7, 3, 1, 2, 6, 1, 6, 5];
+    for (const [x, y, z] of [[0.5, 0.5, 0.5], [3, -2, 7], [0, 0, 0]]) {
+      let s = 0;
+      for (let t = 0; t < 12; t++) s += tetrahedronVolume6(q, 3 * tr[3 * t], 3 * tr[3 * t + 1], 3 * tr[3 * t + 2], x, y, z);
+      expect(s).toBeCloseTo(6, 12);
+    }
   });
 });
