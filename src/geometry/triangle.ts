@@ -12,6 +12,10 @@
  *
  * The cross product is written as (b − a) × (c − a) component by component, in one fixed
  * order: callers that used to inline it get the same rounding, bit for bit.
+ *
+ * Written here rather than taken from gl-matrix: its vec3 functions take one small array per
+ * vector, not offsets into the struct-of-arrays buffers sigmesh keeps, so every call would
+ * first copy three corners out (and gl-matrix was a dependency nothing imported; dropped).
  */
 
 /** (b − a) × (c − a), twice the area vector, into out[oo..oo+2]; returns out. */
