@@ -11,7 +11,7 @@
 import type { Command } from "commander";
 import { loadMeshFiles } from "../src/io/load.js";
 import { parseUnit, DEFAULT_UNIT } from "../src/io/units.js";
-import { InputError } from "../src/io/errors.js";
+import { InputError } from "../src/errors.js";
 import { checkMeshParallel } from "../src/mesh/check.js";
 import { formatCheckSummary } from "../src/report/check-summary.js";
 import { pairSentence } from "../src/extract/scene-check.js";

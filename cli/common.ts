@@ -2,7 +2,7 @@
  * What every command shares at the edge: error reporting, exit codes, warnings, output.
  * Exit codes: 0 success, 2 bad input (one line naming file, place and fault), 1 internal error.
  */
-import { InputError, type Warning } from "../src/io/errors.js";
+import { InputError, type Warning } from "../src/errors.js";
 import { writeFileAtomic } from "../src/io/atomic.js";
 
 export const EXIT_BAD_INPUT = 2;

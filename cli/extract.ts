@@ -6,9 +6,9 @@
 import type { Command } from "commander";
 import { loadScene } from "../src/io/inputs.js";
 import { parseUnit } from "../src/io/units.js";
-import { InputError } from "../src/io/errors.js";
+import { InputError } from "../src/errors.js";
 import { extract } from "../src/extract/extract.js";
-import { parseProbeOption } from "../src/extract/probe-spec.js";
+import { parseProbeOption } from "../src/io/probe-spec.js";
 import { extractionSummary } from "../src/report/extract-summary.js";
 import { writeOutputs, checkOutputTargets, type OutputTargets } from "../src/report/outputs.js";
 import { closeSharedPool } from "../src/linalg/pool.js";

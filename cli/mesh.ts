@@ -4,7 +4,7 @@
  */
 import type { Command } from "commander";
 import { action } from "./common.js";
-import { InputError } from "../src/io/errors.js";
+import { InputError } from "../src/errors.js";
 import { parseUnit, metresPer, DEFAULT_UNIT } from "../src/io/units.js";
 import { encodeMesh, outputFormatFromPath, writeMeshFile } from "../src/io/write.js";
 import { generateShape, SHAPES, type ShapeParams } from "../src/mesh/primitives/index.js";

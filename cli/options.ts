@@ -2,7 +2,7 @@
  * Option values shared by the commands: each turns the text of one option into a value or an
  * InputError naming the option, so `extract`, `sweep` and `demo` refuse the same things alike.
  */
-import { InputError } from "../src/io/errors.js";
+import { InputError } from "../src/errors.js";
 import type { ExtractSettings } from "../src/extract/extract.js";
 
 /** A finite number passing `check`, else an InputError "OPTION "TEXT": expected WHAT". */

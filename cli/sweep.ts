@@ -6,7 +6,7 @@
 import type { Command } from "commander";
 import { readFileSync } from "node:fs";
 import { extname } from "node:path";
-import { InputError } from "../src/io/errors.js";
+import { InputError } from "../src/errors.js";
 import { writeFilesAtomic } from "../src/io/atomic.js";
 import { closeSharedPool } from "../src/linalg/pool.js";
 import { parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, sceneConductorNames } from "../src/extract/sweep.js";

@@ -3,7 +3,7 @@
  * 127.0.0.1 until Ctrl-C (src/report/view-server.ts).
  */
 import type { Command } from "commander";
-import { InputError } from "../src/io/errors.js";
+import { InputError } from "../src/errors.js";
 import { viewPage, serveViewPage } from "../src/report/view-server.js";
 import { action } from "./common.js";
 

@@ -13,10 +13,10 @@ export { loadScene, parsePlane, parseSymmetryPlane, type LoadedScene, type Input
 export { loadSceneFile, parseScene, loadSceneMesh, type Scene, type SceneConductor } from "./io/scene.js";
 export { loadMeshFile, loadMeshFiles, parseMeshBytes, type LoadOptions, type LoadedMesh } from "./io/load.js";
 export { encodeMesh, writeMeshFile, outputFormatFromPath, type OutputFormat } from "./io/write.js";
-export { InputError, type Warning } from "./io/errors.js";
+export { InputError, type Warning } from "./errors.js";
 export { parseUnit, metresPer, DEFAULT_UNIT, type LengthUnit } from "./io/units.js";
 export { formatSI } from "./io/si.js";
-export { parseProbeOption, type ProbeSpec } from "./extract/probe-spec.js";
+export { parseProbeOption, type ProbeSpec } from "./io/probe-spec.js";
 
 // Meshes
 export type { SurfaceMesh } from "./mesh/model.js";

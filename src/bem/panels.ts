@@ -10,6 +10,7 @@
  * place: a PanelSet posted to a worker arrives as views on the same memory.
  */
 import { dunavantRule } from "./dunavant.js";
+import { triangleCentroid, triangleNormal } from "../geometry/triangle.js";
 
 export interface PanelSet {
   /** Number of panels. */
@@ -83,14 +84,9 @@ function build(positions: Float64Array, triangles: Uint32Array, alloc: Alloc, al
     const ax = vertices[o], ay = vertices[o + 1], az = vertices[o + 2];
     const bx = vertices[o + 3], by = vertices[o + 4], bz = vertices[o + 5];
     const cx = vertices[o + 6], cy = vertices[o + 7], cz = vertices[o + 8];
-    const gx = (ax + bx + cx) / 3, gy = (ay + by + cy) / 3, gz = (az + bz + cz) / 3;
-    centroids[3 * t] = gx; centroids[3 * t + 1] = gy; centroids[3 * t + 2] = gz;
-    const nx = (by - ay) * (cz - az) - (bz - az) * (cy - ay);
-    const ny = (bz - az) * (cx - ax) - (bx - ax) * (cz - az);
-    const nz = (bx - ax) * (cy - ay) - (by - ay) * (cx - ax);
-    const nn = Math.sqrt(nx * nx + ny * ny + nz * nz);
-    areas[t] = 0.5 * nn;
-    if (nn > 0) { normals[3 * t] = nx / nn; normals[3 * t + 1] = ny / nn; normals[3 * t + 2] = nz / nn; }
+    triangleCentroid(centroids, 3 * t, vertices, o, o + 3, o + 6);
+    const gx = centroids[3 * t], gy = centroids[3 * t + 1], gz = centroids[3 * t + 2];
+    areas[t] = 0.5 * triangleNormal(normals, 3 * t, vertices, o, o + 3, o + 6);
     radii[t] = Math.sqrt(Math.max(
       (ax - gx) ** 2 + (ay - gy) ** 2 + (az - gz) ** 2,
       (bx - gx) ** 2 + (by - gy) ** 2 + (bz - gz) ** 2,

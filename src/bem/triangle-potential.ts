@@ -27,12 +27,16 @@
  * taken as limits, so I is finite everywhere; the in-plane gradient is log-singular on edges.
  */
 import { dunavantRule } from "./dunavant.js";
+import { solidAngle } from "../geometry/solid-angle.js";
+import { triangleAreaVector } from "../geometry/triangle.js";
 
 /** Beyond this distance from the centroid, in centroid-to-vertex radii, use quadrature. */
 export const FAR_RATIO = 40;
 const FAR_RULE = dunavantRule(8);
 /** |h| below this fraction of the panel radius counts as on the plane (principal value). */
 export const PLANE_TOLERANCE = 1e-12;
+/** Scratch for the area vector: the kernels below allocate nothing. */
+const N = new Float64Array(3);
 
 /**
  * I(x) for the triangle whose 9 vertex coordinates (metres) are v[o..o+8], counter-clockwise
@@ -49,9 +53,8 @@ export function trianglePotential(v: ArrayLike<number>, o: number, px: number, p
     (ax - gx) ** 2 + (ay - gy) ** 2 + (az - gz) ** 2,
     (bx - gx) ** 2 + (by - gy) ** 2 + (bz - gz) ** 2,
     (cx - gx) ** 2 + (cy - gy) ** 2 + (cz - gz) ** 2);
-  let nx = (by - ay) * (cz - az) - (bz - az) * (cy - ay);
-  let ny = (bz - az) * (cx - ax) - (bx - ax) * (cz - az);
-  let nz = (bx - ax) * (cy - ay) - (by - ay) * (cx - ax);
+  triangleAreaVector(N, 0, v, o, o + 3, o + 6);
+  let nx = N[0], ny = N[1], nz = N[2];
   const n2 = Math.sqrt(nx * nx + ny * ny + nz * nz);
   if (n2 === 0) return 0;
   const area = 0.5 * n2;
@@ -69,7 +72,7 @@ export function trianglePotential(v: ArrayLike<number>, o: number, px: number, p
   }
   nx /= n2; ny /= n2; nz /= n2;
   const h = (px - ax) * nx + (py - ay) * ny + (pz - az) * nz;
-  return edgeSum(ax, ay, az, bx, by, bz, cx, cy, cz, nx, ny, nz, px, py, pz, null, 0) - h * solidAngle(ax - px, ay - py, az - pz, bx - px, by - py, bz - pz, cx - px, cy - py, cz - pz);
+  return edgeSum(ax, ay, az, bx, by, bz, cx, cy, cz, nx, ny, nz, px, py, pz, null, 0) - h * triangleSolidAngle(v, o, px, py, pz);
 }
 
 /**
@@ -91,9 +94,8 @@ export function sourceFrame(F: Float64Array, v: ArrayLike<number>, o: number): F
     (ax - gx) ** 2 + (ay - gy) ** 2 + (az - gz) ** 2,
     (bx - gx) ** 2 + (by - gy) ** 2 + (bz - gz) ** 2,
     (cx - gx) ** 2 + (cy - gy) ** 2 + (cz - gz) ** 2);
-  let nx = (by - ay) * (cz - az) - (bz - az) * (cy - ay);
-  let ny = (bz - az) * (cx - ax) - (bx - ax) * (cz - az);
-  let nz = (bx - ax) * (cy - ay) - (by - ay) * (cx - ax);
+  triangleAreaVector(N, 0, v, o, o + 3, o + 6);
+  let nx = N[0], ny = N[1], nz = N[2];
   const n2 = Math.sqrt(nx * nx + ny * ny + nz * nz);
   F[F_AREA] = 0.5 * n2;
   if (n2 > 0) { nx /= n2; ny /= n2; nz /= n2; }
@@ -157,7 +159,8 @@ export function framePotential(F: Float64Array, px: number, py: number, pz: numb
   const trip = wax * (wby * wcz - wbz * wcy) - way * (wbx * wcz - wbz * wcx) + waz * (wbx * wcy - wby * wcx);
   const den = ra * rb * rc + (wax * wbx + way * wby + waz * wbz) * rc + (wax * wcx + way * wcy + waz * wcz) * rb
     + (wbx * wcx + wby * wcy + wbz * wcz) * ra;
-  // Van Oosterom & Strackee solid angle, as solidAngle below.
+  // The solid angle of src/geometry/solid-angle.ts, negated (triangleSolidAngle below), inlined
+  // to reuse ra, rb, rc: this inner loop of the Galerkin near rungs is its only other copy.
   return sum + h * 2 * Math.atan2(trip, den);
 }
 
@@ -218,22 +221,6 @@ function edgeSum(ax: number, ay: number, az: number, bx: number, by: number, bz:
   return sum;
 }
 
-/**
- * Signed solid angle of the triangle (corners relative to x), positive seen from the +n̂ side:
- * Van Oosterom & Strackee, IEEE Trans. Biomed. Eng. 30(2):125–126, 1983. Equals sgn(h)·Σβ of
- * Wilton et al., in one atan2 instead of six atans.
- */
-function solidAngle(ax: number, ay: number, az: number, bx: number, by: number, bz: number, cx: number, cy: number, cz: number): number {
-  const la = Math.sqrt(ax * ax + ay * ay + az * az);
-  const lb = Math.sqrt(bx * bx + by * by + bz * bz);
-  const lc = Math.sqrt(cx * cx + cy * cy + cz * cz);
-  const trip = ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
-  const den = la * lb * lc + (ax * bx + ay * by + az * bz) * lc + (ax * cx + ay * cy + az * cz) * lb
-    + (bx * cx + by * cy + bz * cz) * la;
-  // Seen from the +n̂ side the corners run counter-clockwise, making the triple product negative.
-  return -2 * Math.atan2(trip, den);
-}
-
 /** f = ln((R⁺+s⁺)/(R⁻+s⁻)) = ∫_edge dl / distance, formed without cancellation. */
 function edgeLog(L: number, sm: number, sp: number, Rm: number, Rp: number, R02: number): number {
   const q = (sp + sm) / (Rp + Rm);
@@ -280,9 +267,8 @@ export function trianglePotentialGradient(out: Float64Array, oo: number, v: Arra
     (ax - gx) ** 2 + (ay - gy) ** 2 + (az - gz) ** 2,
     (bx - gx) ** 2 + (by - gy) ** 2 + (bz - gz) ** 2,
     (cx - gx) ** 2 + (cy - gy) ** 2 + (cz - gz) ** 2);
-  let nx = (by - ay) * (cz - az) - (bz - az) * (cy - ay);
-  let ny = (bz - az) * (cx - ax) - (bx - ax) * (cz - az);
-  let nz = (bx - ax) * (cy - ay) - (by - ay) * (cx - ax);
+  triangleAreaVector(N, 0, v, o, o + 3, o + 6);
+  let nx = N[0], ny = N[1], nz = N[2];
   const n2 = Math.sqrt(nx * nx + ny * ny + nz * nz);
   out[oo] = 0; out[oo + 1] = 0; out[oo + 2] = 0;
   if (n2 === 0) return 0;
@@ -309,16 +295,17 @@ export function trianglePotentialGradient(out: Float64Array, oo: number, v: Arra
   const tf = edgeSum(ax, ay, az, bx, by, bz, cx, cy, cz, nx, ny, nz, px, py, pz, out, oo);
   // A point computed to lie on the panel carries a rounding-level h; it gets the principal value.
   if (Math.abs(h) <= PLANE_TOLERANCE * Math.sqrt(r2)) return tf;
-  const om = solidAngle(ax - px, ay - py, az - pz, bx - px, by - py, bz - pz, cx - px, cy - py, cz - pz);
+  const om = triangleSolidAngle(v, o, px, py, pz);
   out[oo] -= nx * om; out[oo + 1] -= ny * om; out[oo + 2] -= nz * om;
   return tf - h * om;
 }
 
 /**
  * Solid angle (steradians, signed: positive seen from the +n̂ side) subtended by the triangle
- * at x, i.e. sgn(h)·Σβ of the formula above, so that ∂I/∂n = −Ω on both sides.
+ * at x, i.e. sgn(h)·Σβ of the formula above, so that ∂I/∂n = −Ω on both sides: the Van Oosterom
+ * & Strackee angle of src/geometry/solid-angle.ts, which is positive from the −n̂ side, negated.
+ * Equals sgn(h)·Σβ of Wilton et al. in one atan2 instead of six atans.
  */
 export function triangleSolidAngle(v: ArrayLike<number>, o: number, px: number, py: number, pz: number): number {
-  return solidAngle(v[o] - px, v[o + 1] - py, v[o + 2] - pz, v[o + 3] - px, v[o + 4] - py, v[o + 5] - pz,
-    v[o + 6] - px, v[o + 7] - py, v[o + 8] - pz);
+  return -solidAngle(v, o, o + 3, o + 6, px, py, pz);
 }

@@ -27,7 +27,7 @@ import { normalFieldAt } from "../bem/interface.js";
 import { fieldAt } from "../bem/field.js";
 import type { AxisPlane, ImageSet } from "../bem/images.js";
 import type { PanelExcitation } from "./excitation.js";
-import { InputError } from "../io/errors.js";
+import { InputError } from "../errors.js";
 import { EPSILON_0 } from "./constants.js";
 
 export interface DielectricBody {

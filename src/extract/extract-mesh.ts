@@ -31,7 +31,7 @@ import type { SurfaceMesh } from "../mesh/model.js";
 import { triangleCount, conductorAreas } from "../mesh/model.js";
 import { orientSurfaces, conductorTopology, buildEdgeTable } from "../mesh/topology.js";
 import { hasFeatureEdges } from "../mesh/refine.js";
-import { InputError } from "../io/errors.js";
+import { InputError } from "../errors.js";
 import { kernelPlanes, symmetryCopies, conductorRanges, checkSides, trianglesInSymmetryPlanes, evenCopies, type KernelSpec } from "../bem/images.js";
 import { EPSILON_0 } from "./constants.js";
 import { capacitanceMatrices, chargesAt, storedEnergy, mutualFromMaxwell } from "./capacitance.js";
@@ -42,7 +42,8 @@ import { prepareBodies, type PreparedBody } from "./dielectric.js";
 import { resolveOptions, type MeshExtractOptions, type ResolvedOptions } from "./options.js";
 import type { Accuracy, ConductorResult, ExtractionResult, LevelResult } from "./result.js";
 import { symmetryLayout, unfoldedFinest, withoutTriangles, closeBySymmetry, unfolding, type SymmetryLayout, type BodyUnfolding } from "./symmetry-unfold.js";
-import { solveLevels, type FinestSolution, type LevelSolves } from "./levels.js";
+import { solveLevels, type LevelSolves } from "./levels.js";
+import type { FinestSolution } from "./result.js";
 import { workingPointFields, scaleCopy, type WorkingPoint } from "./working-point.js";
 
 export type { MeshExtractOptions } from "./options.js";

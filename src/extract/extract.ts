@@ -18,7 +18,7 @@ import { metresPer } from "../io/units.js";
 import type { Discretisation } from "../bem/assembly.js";
 import type { InterfaceTesting } from "../bem/interface.js";
 import type { WorkerPool } from "../linalg/pool.js";
-import { probePoints, type ProbeSpec } from "./probe-spec.js";
+import { probePoints, type ProbeSpec } from "../io/probe-spec.js";
 import { probeExtraction, type ProbeResult } from "./probe.js";
 import type { SolverChoice } from "./solve.js";
 import { extractMesh } from "./extract-mesh.js";

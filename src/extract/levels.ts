@@ -13,27 +13,8 @@ import { solveUnitPotentials, solveUnitPotentialsWithInterfaces, type UnitSoluti
 import { conductorCharges } from "./capacitance.js";
 import { dielectricModel, freeCharges, openFieldPanels, type DielectricModel, type PreparedBody } from "./dielectric.js";
 import type { ResolvedOptions } from "./options.js";
-import type { LevelResult } from "./result.js";
+import type { LevelResult, FinestSolution, DielectricSolution } from "./result.js";
 import { unfoldMatrix, type SymmetryLayout, type BodyUnfolding } from "./symmetry-unfold.js";
-
-/** The dielectric model's solution on the finest mesh. */
-export interface DielectricSolution {
-  model: DielectricModel;
-  /** All panels of the model: conductors first, then interfaces. */
-  panels: PanelSet;
-  /** Total (free and polarisation) unit solutions of all panels, N×k per net; x units (Q = 4πε0 x). */
-  totalX: Float64Array;
-  /** The open sheets' normal field from the compressed solver, when it holds (one pattern only). */
-  openNormalField?: Float64Array;
-}
-
-/** The finest mesh and its unit solutions, per net. */
-export interface FinestSolution {
-  mesh: SurfaceMesh;
-  /** Unit solutions on the conductor panels (free charges with dielectrics); x units. */
-  unit: UnitSolution;
-  dielectric?: DielectricSolution;
-}
 
 export interface LevelSolves extends FinestSolution {
   levels: LevelResult[];

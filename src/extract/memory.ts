@@ -2,7 +2,7 @@
  * Memory estimates made before the large allocations, and the peak measured after.
  */
 import { freemem } from "node:os";
-import { InputError } from "../io/errors.js";
+import { InputError } from "../errors.js";
 
 /** Bytes the dense path needs for n panels and k conductors: the n×n matrix, panel data, a few n×k blocks. */
 export function denseBytes(n: number, k: number): number {

@@ -7,7 +7,7 @@ import type { Discretisation } from "../bem/assembly.js";
 import type { InterfaceTesting } from "../bem/interface.js";
 import type { AxisPlane, SymmetryPlane } from "../bem/images.js";
 import { sharedPool, type WorkerPool } from "../linalg/pool.js";
-import { InputError } from "../io/errors.js";
+import { InputError } from "../errors.js";
 import { EPSILON_0, AIR_BREAKDOWN_FIELD } from "./constants.js";
 import type { SolverChoice } from "./solve.js";
 import type { DielectricBody } from "./dielectric.js";

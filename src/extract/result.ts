@@ -7,7 +7,7 @@ import type { SurfaceMesh } from "../mesh/model.js";
 import type { PanelSet } from "../bem/panels.js";
 import type { InterfaceTesting } from "../bem/interface.js";
 import type { AxisPlane, ImageSet, SymmetryPlane } from "../bem/images.js";
-import type { SolveInfo } from "./solve.js";
+import type { SolveInfo, UnitSolution } from "./solve.js";
 import type { RichardsonResult } from "./accuracy.js";
 import type { PanelExcitation, PeakField } from "./excitation.js";
 import type { BodySummary, DielectricModel } from "./dielectric.js";
@@ -130,4 +130,23 @@ export interface ExtractionResult {
   reducedMutual: Float64Array;
   reducedNames: string[];
   warnings: string[];
+}
+
+/** The dielectric model's solution on the finest mesh. */
+export interface DielectricSolution {
+  model: DielectricModel;
+  /** All panels of the model: conductors first, then interfaces. */
+  panels: PanelSet;
+  /** Total (free and polarisation) unit solutions of all panels, N×k per net; x units (Q = 4πε0 x). */
+  totalX: Float64Array;
+  /** The open sheets' normal field from the compressed solver, when it holds (one pattern only). */
+  openNormalField?: Float64Array;
+}
+
+/** The finest mesh and its unit solutions, per net. */
+export interface FinestSolution {
+  mesh: SurfaceMesh;
+  /** Unit solutions on the conductor panels (free charges with dielectrics); x units. */
+  unit: UnitSolution;
+  dielectric?: DielectricSolution;
 }

@@ -4,7 +4,7 @@
  * another's closed surface are warned of. Findings are phrased in the user's length unit.
  */
 import { checkMesh, type PairCheck } from "../mesh/check.js";
-import { InputError } from "../io/errors.js";
+import { InputError } from "../errors.js";
 import { formatLength, formatPoint } from "../io/si.js";
 import type { LengthUnit } from "../io/units.js";
 import type { SurfaceMesh } from "../mesh/model.js";

@@ -9,7 +9,7 @@
  * Any other failure is an internal error: its message on standard error, exit 1.
  */
 import { loadScene } from "../io/inputs.js";
-import { InputError } from "../io/errors.js";
+import { InputError } from "../errors.js";
 import { extract, type ExtractSettings } from "./extract.js";
 
 /** The settings a sweep passes to each point (plain JSON). */

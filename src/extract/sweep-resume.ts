@@ -5,7 +5,7 @@
  * matches, so the table is the one an uninterrupted run writes.
  */
 import { existsSync } from "node:fs";
-import { InputError } from "../io/errors.js";
+import { InputError } from "../errors.js";
 import { journalPath, readJournal, removeJournal, SweepJournal, type JournalEntry } from "../io/sweep-journal.js";
 import { version } from "../version.js";
 import {

@@ -19,7 +19,7 @@ import { createHash } from "node:crypto";
 import { mkdtempSync, writeFileSync, rmSync, readFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join, dirname, resolve, isAbsolute } from "node:path";
-import { InputError } from "../io/errors.js";
+import { InputError } from "../errors.js";
 import { loadScene } from "../io/inputs.js";
 import { substituteScene, loadSceneFile } from "../io/scene.js";
 import { compiledUrl } from "../linalg/pool.js";

@@ -14,14 +14,14 @@
 import type { SurfaceMesh } from "../mesh/model.js";
 import type { buildEdgeTable } from "../mesh/topology.js";
 import { panelSet } from "../bem/panels.js";
-import { InputError } from "../io/errors.js";
+import { InputError } from "../errors.js";
 import {
   AXES, mirrorNets, hasImages, kernelPlanes, imageSet, symmetryCopies, trianglesInSymmetryPlanes,
   edgeInSymmetryPlane, evenCopies, axisIndex, reflectSurface, mirrorSuffix,
   type AxisPlane, type KernelSpec, type SymmetryPlane,
 } from "../bem/images.js";
 import { freeCharges, type DielectricModel } from "./dielectric.js";
-import type { FinestSolution } from "./levels.js";
+import type { FinestSolution } from "./result.js";
 
 /**
  * The planes of a model and what they make of it. Copy h of the meshed part is reflected in the

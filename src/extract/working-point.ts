@@ -14,7 +14,7 @@ import { dielectricExcitation } from "./dielectric.js";
 import { dielectricBodyForces } from "./dielectric-force.js";
 import type { ResolvedOptions } from "./options.js";
 import type { DielectricResult } from "./result.js";
-import type { DielectricSolution, FinestSolution } from "./levels.js";
+import type { DielectricSolution, FinestSolution } from "./result.js";
 
 export interface WorkingPoint {
   excitation: PanelExcitation;

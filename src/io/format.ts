@@ -3,7 +3,7 @@
  * (Gmsh's `$MeshFormat`, the binary STL size rule, `solid`, OBJ statements).
  */
 import { extname } from "node:path";
-import { InputError } from "./errors.js";
+import { InputError } from "../errors.js";
 
 export type MeshFormat = "stl" | "obj" | "msh";
 

@@ -2,15 +2,15 @@
  * What an extraction reads: a scene file, or mesh files whose bodies are the conductors.
  * One entry point for the CLI and the library API (`loadScene`).
  */
-import type { ProbeSpec } from "../extract/probe-spec.js";
+import type { ProbeSpec } from "./probe-spec.js";
 import { extname } from "node:path";
-import { InputError } from "./errors.js";
+import { InputError } from "../errors.js";
 import { loadMeshFiles } from "./load.js";
 import { loadSceneFile, loadSceneMesh, type Scene } from "./scene.js";
 import { DEFAULT_UNIT, metresPer, type LengthUnit } from "./units.js";
 import { mirrorNets, type AxisPlane, type Axis, type SymmetryPlane } from "../bem/images.js";
 import type { SurfaceMesh } from "../mesh/model.js";
-import type { Warning } from "./errors.js";
+import type { Warning } from "../errors.js";
 
 export interface LoadedScene {
   mesh: SurfaceMesh;

@@ -13,7 +13,7 @@ import { basename, extname } from "node:path";
 import { type SurfaceMesh, concatMeshes, uniqueNames } from "../mesh/model.js";
 import { weldVertices, dropDegenerate, DEFAULT_WELD_TOLERANCE } from "../mesh/weld.js";
 import { connectedComponents } from "../mesh/components.js";
-import { InputError, type Warning } from "./errors.js";
+import { InputError, type Warning } from "../errors.js";
 import { metresPer, UNIT_CHOICES, type LengthUnit } from "./units.js";
 import { detectFormat } from "./format.js";
 import { readStl } from "./stl.js";

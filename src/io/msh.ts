@@ -21,7 +21,7 @@
  * surface entities that share nodes are joined into one body, named after its lowest entity
  * tag (`surface_7`), with a warning.
  */
-import { InputError, atByte, atLine } from "./errors.js";
+import { InputError, atByte, atLine } from "../errors.js";
 import { GrowF64, GrowU32, decodeText, decodeName, type RawMesh } from "./raw.js";
 
 /** Nodes per element type (Gmsh manual, "MSH file format", element types 1–31, 92, 93). */

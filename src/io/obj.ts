@@ -14,7 +14,7 @@
  * Monthly 82 (1975) 648–651) in the plane of their Newell normal.
  */
 import type { SurfaceMesh } from "../mesh/model.js";
-import { InputError, atLine } from "./errors.js";
+import { InputError, atLine } from "../errors.js";
 import { GrowF64, GrowU32, decodeText, type RawMesh } from "./raw.js";
 import { formatCoordinate, toFileUnits, trianglesByConductor } from "./stl.js";
 import { METRES_PER_UNIT } from "./units.js";

@@ -29,10 +29,10 @@
  * names the key path of every fault (`conductors[1].potential: expected a number`).
  * Mesh paths are relative to the scene file.
  */
-import { parseSceneProbes, type ProbeSpec } from "../extract/probe-spec.js";
+import { parseSceneProbes, type ProbeSpec } from "./probe-spec.js";
 import { readFileSync, statSync } from "node:fs";
 import { dirname, resolve, basename, extname } from "node:path";
-import { InputError } from "./errors.js";
+import { InputError } from "../errors.js";
 import { parseUnit, metresPer, DEFAULT_UNIT, type LengthUnit } from "./units.js";
 import type { AxisPlane, Axis, SymmetryPlane } from "../bem/images.js";
 import { loadMeshFile, type LoadedMesh } from "./load.js";

@@ -13,10 +13,11 @@
  * and orientation is the topology checker's business.
  */
 import type { SurfaceMesh } from "../mesh/model.js";
-import { InputError, atByte, atLine } from "./errors.js";
+import { InputError, atByte, atLine } from "../errors.js";
 import { METRES_PER_UNIT } from "./units.js";
 import { GrowF64, GrowU32, TextSink, decodeName, type RawMesh } from "./raw.js";
 import { readDecimal, decimalEnd, tokenText } from "./decimal.js";
+import { triangleNormal } from "../geometry/triangle.js";
 
 const HEADER = 80;
 const RECORD = 50;
@@ -248,7 +249,7 @@ export function writeStlBinary(mesh: SurfaceMesh, metresPerUnit: number): Uint8A
   for (let t = 0; t < n; t++) {
     const rec = HEADER + 4 + RECORD * t;
     const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], c = 3 * tr[3 * t + 2];
-    facetNormal(p, a, b, c);
+    triangleNormal(NRM, 0, p, a, b, c);
     view.setFloat32(rec, NRM[0], true);
     view.setFloat32(rec + 4, NRM[1], true);
     view.setFloat32(rec + 8, NRM[2], true);
@@ -263,14 +264,6 @@ export function writeStlBinary(mesh: SurfaceMesh, metresPerUnit: number): Uint8A
 }
 
 const NRM = new Float64Array(3);
-/** Unit normal of the triangle with vertex offsets a, b, c (right-hand rule); zero if degenerate. */
-function facetNormal(p: Float64Array, a: number, b: number, c: number): void {
-  const ux = p[b] - p[a], uy = p[b + 1] - p[a + 1], uz = p[b + 2] - p[a + 2];
-  const vx = p[c] - p[a], vy = p[c + 1] - p[a + 1], vz = p[c + 2] - p[a + 2];
-  const nx = uy * vz - uz * vy, ny = uz * vx - ux * vz, nz = ux * vy - uy * vx;
-  const l = Math.sqrt(nx * nx + ny * ny + nz * nz);
-  if (l > 0) { NRM[0] = nx / l; NRM[1] = ny / l; NRM[2] = nz / l; } else NRM.fill(0);
-}
 
 /**
  * Coordinates printed with 15 significant digits and no trailing zeros: every digit
@@ -319,7 +312,7 @@ function stlAsciiText(mesh: SurfaceMesh, metresPerUnit: number): TextSink {
     out.ascii("solid ").text(name).ascii("\n");
     for (let k = order.start[c]; k < order.start[c + 1]; k++) {
       const t = order.triangle[k];
-      facetNormal(p, 3 * tr[3 * t], 3 * tr[3 * t + 1], 3 * tr[3 * t + 2]);
+      triangleNormal(NRM, 0, p, 3 * tr[3 * t], 3 * tr[3 * t + 1], 3 * tr[3 * t + 2]);
       out.ascii("  facet normal ").ascii(formatCoordinate(NRM[0])).ascii(" ").ascii(formatCoordinate(NRM[1])).ascii(" ").ascii(formatCoordinate(NRM[2])).ascii("\n    outer loop\n");
       for (let j = 0; j < 3; j++) {
         const v = 3 * tr[3 * t + j];

@@ -11,7 +11,7 @@
  * uninterrupted run. A last line cut short by a kill is ignored on reading.
  */
 import { appendFileSync, existsSync, readFileSync, unlinkSync } from "node:fs";
-import { InputError } from "./errors.js";
+import { InputError } from "../errors.js";
 import { writeFileAtomic } from "./atomic.js";
 
 export interface JournalEntry {

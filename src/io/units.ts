@@ -4,7 +4,7 @@
  * The default is the millimetre: CAD exports of the parts sigmesh serves
  * (boards, connectors, electrodes) are in millimetres far more often than not.
  */
-import { InputError } from "./errors.js";
+import { InputError } from "../errors.js";
 
 export type LengthUnit = "m" | "cm" | "mm" | "um" | "in" | "mil";
 

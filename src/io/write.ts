@@ -1,7 +1,7 @@
 /** Writing meshes: the format from the output path, the bytes, and an atomic file write. */
 import { extname } from "node:path";
 import type { SurfaceMesh } from "../mesh/model.js";
-import { InputError } from "./errors.js";
+import { InputError } from "../errors.js";
 import { metresPer, type LengthUnit } from "./units.js";
 import { writeStlBinary, writeStlAsciiBytes } from "./stl.js";
 import { writeObj } from "./obj.js";

@@ -13,6 +13,7 @@
  * directions, and only if every one is ambiguous is the exact solid-angle sum taken.
  */
 import { buildBoxTree, triangleBoxes, type BoxTree } from "./bvh.js";
+import { solidAngle } from "../geometry/solid-angle.js";
 
 export interface SurfaceIndex {
   tree: BoxTree;
@@ -111,22 +112,9 @@ export function windingNumber(S: SurfaceIndex, x: number, y: number, z: number):
     const c = crossings(S, x, y, z, d[0], d[1], d[2]);
     if (!Number.isNaN(c)) return c;
   }
-  // Every ray grazed: the exact sum of solid angles (−4π per enclosing outward surface).
+  // Every ray grazed: the exact sum of solid angles (+4π per enclosing outward surface).
   const v = S.vertices, nt = v.length / 9;
   let w = 0;
-  for (let t = 0; t < nt; t++) w += solidAngle(v, 9 * t, x, y, z);
+  for (let t = 0; t < nt; t++) w += solidAngle(v, 9 * t, 9 * t + 3, 9 * t + 6, x, y, z);
   return Math.round(w / (4 * Math.PI));
-}
-
-/**
- * Solid angle of the triangle at v[o..o+8] seen from x, positive from its −n̂ side (A. van
- * Oosterom & J. Strackee, IEEE Trans. Biomed. Eng. 30(2):125, 1983).
- */
-function solidAngle(v: Float64Array, o: number, x: number, y: number, z: number): number {
-  const ax = v[o] - x, ay = v[o + 1] - y, az = v[o + 2] - z, bx = v[o + 3] - x, by = v[o + 4] - y, bz = v[o + 5] - z;
-  const cx = v[o + 6] - x, cy = v[o + 7] - y, cz = v[o + 8] - z;
-  const la = Math.sqrt(ax * ax + ay * ay + az * az), lb = Math.sqrt(bx * bx + by * by + bz * bz), lc = Math.sqrt(cx * cx + cy * cy + cz * cz);
-  const trip = ax * (by * cz - bz * cy) - ay * (bx * cz - bz * cx) + az * (bx * cy - by * cx);
-  const den = la * lb * lc + (ax * bx + ay * by + az * bz) * lc + (ax * cx + ay * cy + az * cz) * lb + (bx * cx + by * cy + bz * cz) * la;
-  return 2 * Math.atan2(trip, den);
 }

@@ -3,8 +3,10 @@
  *
  * Every coordinate is in metres once a mesh has passed through the loader
  * (readers return file units; `src/io/load.ts` scales them). No per-triangle
- * objects exist anywhere: a 1M-triangle mesh is 3 typed arrays.
+ * objects exist anywhere: a 1M-triangle mesh is 3 typed arrays. Per-triangle measures are
+ * those of src/geometry, indexed here by triangle number.
  */
+import { triangleArea as cornerArea, triangleAreaVector as cornerAreaVector } from "../geometry/triangle.js";
 
 export interface SurfaceMesh {
   /** Vertex coordinates, 3 per vertex (x, y, z), metres. */
@@ -53,23 +55,14 @@ export function boundingDiagonal(positions: Float64Array): number {
 
 /** Twice the area vector of triangle t (cross product of two edges), written into out[o..o+2]. */
 export function triangleAreaVector(mesh: SurfaceMesh, t: number, out: Float64Array, o = 0): void {
-  const p = mesh.positions, tr = mesh.triangles;
-  const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], c = 3 * tr[3 * t + 2];
-  const ux = p[b] - p[a], uy = p[b + 1] - p[a + 1], uz = p[b + 2] - p[a + 2];
-  const vx = p[c] - p[a], vy = p[c + 1] - p[a + 1], vz = p[c + 2] - p[a + 2];
-  out[o] = uy * vz - uz * vy;
-  out[o + 1] = uz * vx - ux * vz;
-  out[o + 2] = ux * vy - uy * vx;
+  const tr = mesh.triangles;
+  cornerAreaVector(out, o, mesh.positions, 3 * tr[3 * t], 3 * tr[3 * t + 1], 3 * tr[3 * t + 2]);
 }
 
 /** Area of triangle t; square metres. */
 export function triangleArea(mesh: SurfaceMesh, t: number): number {
-  const p = mesh.positions, tr = mesh.triangles;
-  const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], c = 3 * tr[3 * t + 2];
-  const ux = p[b] - p[a], uy = p[b + 1] - p[a + 1], uz = p[b + 2] - p[a + 2];
-  const vx = p[c] - p[a], vy = p[c + 1] - p[a + 1], vz = p[c + 2] - p[a + 2];
-  const cx = uy * vz - uz * vy, cy = uz * vx - ux * vz, cz = ux * vy - uy * vx;
-  return 0.5 * Math.sqrt(cx * cx + cy * cy + cz * cz);
+  const tr = mesh.triangles;
+  return cornerArea(mesh.positions, 3 * tr[3 * t], 3 * tr[3 * t + 1], 3 * tr[3 * t + 2]);
 }
 
 /** Total area of each conductor; square metres. */

@@ -13,6 +13,8 @@
 import { type SurfaceMesh, triangleCount, boundingDiagonal } from "./model.js";
 import { buildBoxTree, triangleBoxes, forEachOverlappingPair, forEachItemInBox, nodeLabels, nearestItem, type BoxTree } from "./bvh.js";
 import { panelSizes } from "./quality.js";
+import { windingNumber as generalisedWinding } from "../geometry/solid-angle.js";
+import { triangleAreaVector } from "../geometry/triangle.js";
 
 const cp = new Float64Array(3);
 
@@ -113,6 +115,8 @@ function clamp01(x: number): number {
 
 // Corners of the two triangles under test: A0 A1 A2 B0 B1 B2, 3 numbers each.
 const V = new Float64Array(18);
+/** Scratch for a triangle's area vector (src/geometry/triangle.ts). */
+const NRM = new Float64Array(3);
 const seg = new Float64Array(6);
 
 function loadPair(p: Float64Array, tr: Uint32Array, ta: number, tb: number): void {
@@ -155,9 +159,8 @@ export function triangleTriangleDistance(positions: Float64Array, triangles: Uin
       if (d < best) { best = d; writePair(out, side, px, py, pz); }
     }
     // Edge–plane crossings of this side's edges through the other triangle's plane.
-    const nx = (by - ay) * (cz - az) - (bz - az) * (cy - ay);
-    const ny = (bz - az) * (cx - ax) - (bx - ax) * (cz - az);
-    const nz = (bx - ax) * (cy - ay) - (by - ay) * (cx - ax);
+    triangleAreaVector(NRM, 0, V, q, q + 3, q + 6);
+    const nx = NRM[0], ny = NRM[1], nz = NRM[2];
     if (nx === 0 && ny === 0 && nz === 0) continue;
     for (let k = 0; k < 3; k++) {
       const k2 = k === 2 ? 0 : k + 1;
@@ -323,8 +326,8 @@ function crossesProperly(tol: number): boolean {
   for (let side = 0; side < 2; side++) {
     const q = side === 0 ? 9 : 0, o = side === 0 ? 0 : 9;
     const ax = V[q], ay = V[q + 1], az = V[q + 2];
-    const ux = V[q + 3] - ax, uy = V[q + 4] - ay, uz = V[q + 5] - az, vx = V[q + 6] - ax, vy = V[q + 7] - ay, vz = V[q + 8] - az;
-    let nx = uy * vz - uz * vy, ny = uz * vx - ux * vz, nz = ux * vy - uy * vx;
+    triangleAreaVector(NRM, 0, V, q, q + 3, q + 6);
+    let nx = NRM[0], ny = NRM[1], nz = NRM[2];
     const l = Math.hypot(nx, ny, nz);
     if (l === 0) return false;
     nx /= l; ny /= l; nz /= l;
@@ -523,28 +526,11 @@ export function conductorTriangles(mesh: SurfaceMesh): ConductorTriangles {
 
 /**
  * Winding number of conductor c's surface about (x, y, z): the sum of its triangles'
- * signed solid angles over 4π, 1 inside a closed outward surface and 0 outside.
- * Solid angles by Van Oosterom & Strackee, "The solid angle of a plane triangle",
- * IEEE Trans. Biomed. Eng. 30(2), 1983.
+ * signed solid angles over 4π, 1 inside a closed outward surface and 0 outside
+ * (src/geometry/solid-angle.ts).
  */
 export function windingNumber(mesh: SurfaceMesh, groups: ConductorTriangles, c: number, x: number, y: number, z: number): number {
-  const p = mesh.positions, tr = mesh.triangles;
-  let w = 0;
-  for (let q = groups.offset[c]; q < groups.offset[c + 1]; q++) {
-    const t = groups.list[q];
-    const i = 3 * tr[3 * t], j = 3 * tr[3 * t + 1], k = 3 * tr[3 * t + 2];
-    const ax = p[i] - x, ay = p[i + 1] - y, az = p[i + 2] - z;
-    const bx = p[j] - x, by = p[j + 1] - y, bz = p[j + 2] - z;
-    const cx = p[k] - x, cy = p[k + 1] - y, cz = p[k + 2] - z;
-    const la = Math.sqrt(ax * ax + ay * ay + az * az), lb = Math.sqrt(bx * bx + by * by + bz * bz), lc = Math.sqrt(cx * cx + cy * cy + cz * cz);
-    const num = ax * (by * cz - bz * cy) + ay * (bz * cx - bx * cz) + az * (bx * cy - by * cx);
-    const den = la * lb * lc + (ax * bx + ay * by + az * bz) * lc + (ax * cx + ay * cy + az * cz) * lb + (bx * cx + by * cy + bz * cz) * la;
-    // A point in the plane of a triangle sees it under ±2π or 0 by the sign of a zero: take 0, so
-    // that a point on the surface gets a fractional winding number rather than a whole one.
-    if (Math.abs(num) <= 1e-12 * la * lb * lc) continue;
-    w += 2 * Math.atan2(num, den);
-  }
-  return w / (4 * Math.PI);
+  return generalisedWinding(mesh.positions, mesh.triangles, groups.list, groups.offset[c], groups.offset[c + 1], x, y, z);
 }
 
 /**
@@ -577,7 +563,8 @@ export function resolveOverlaps(mesh: SurfaceMesh, findings: ProximityFinding[],
         const i = 3 * tr[3 * t], j = 3 * tr[3 * t + 1], k = 3 * tr[3 * t + 2];
         const ux = p[j] - p[i], uy = p[j + 1] - p[i + 1], uz = p[j + 2] - p[i + 2];
         const vx = p[k] - p[i], vy = p[k + 1] - p[i + 1], vz = p[k + 2] - p[i + 2];
-        const nx = uy * vz - uz * vy, ny = uz * vx - ux * vz, nz = ux * vy - uy * vx;
+        triangleAreaVector(NRM, 0, p, i, j, k);
+        const nx = NRM[0], ny = NRM[1], nz = NRM[2];
         const nl = Math.hypot(nx, ny, nz);
         if (nl === 0) continue;
         const h = Math.sqrt(Math.max(ux * ux + uy * uy + uz * uz, vx * vx + vy * vy + vz * vz));

@@ -10,6 +10,7 @@
  * R / (2r) = abc·s / (8A²).
  */
 import { type SurfaceMesh, triangleCount } from "./model.js";
+import { triangleArea } from "../geometry/triangle.js";
 
 /**
  * A triangle is degenerate when its area is below this fraction of its longest edge
@@ -26,8 +27,7 @@ export function triangleAspect(positions: Float64Array, triangles: Uint32Array, 
   const vx = p[k] - p[i], vy = p[k + 1] - p[i + 1], vz = p[k + 2] - p[i + 2];
   const wx = p[k] - p[j], wy = p[k + 1] - p[j + 1], wz = p[k + 2] - p[j + 2];
   const a = Math.sqrt(ux * ux + uy * uy + uz * uz), b = Math.sqrt(vx * vx + vy * vy + vz * vz), c = Math.sqrt(wx * wx + wy * wy + wz * wz);
-  const cx = uy * vz - uz * vy, cy = uz * vx - ux * vz, cz = ux * vy - uy * vx;
-  const area = 0.5 * Math.sqrt(cx * cx + cy * cy + cz * cz);
+  const area = triangleArea(p, i, j, k);
   const longest = Math.max(a, b, c);
   if (!(area > DEGENERATE_AREA_RATIO * longest * longest)) return Infinity;
   const s = 0.5 * (a + b + c);

@@ -23,6 +23,7 @@
  * Flat faces thus keep the exact face normal, so box faces stay flat and box edges straight.
  */
 import type { SurfaceMesh } from "./model.js";
+import { triangleArea, triangleNormal } from "../geometry/triangle.js";
 
 /** The edges of a triangle mesh; edge j of triangle t runs from its corner j to corner (j+1) mod 3. */
 export interface MeshEdges {
@@ -107,12 +108,7 @@ function faceNormals(mesh: SurfaceMesh): Float64Array {
   const nt = tr.length / 3;
   const n = new Float64Array(3 * nt);
   for (let t = 0; t < nt; t++) {
-    const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], c = 3 * tr[3 * t + 2];
-    const ux = p[b] - p[a], uy = p[b + 1] - p[a + 1], uz = p[b + 2] - p[a + 2];
-    const vx = p[c] - p[a], vy = p[c + 1] - p[a + 1], vz = p[c + 2] - p[a + 2];
-    const x = uy * vz - uz * vy, y = uz * vx - ux * vz, z = ux * vy - uy * vx;
-    const len = Math.sqrt(x * x + y * y + z * z);
-    if (len > 0) { n[3 * t] = x / len; n[3 * t + 1] = y / len; n[3 * t + 2] = z / len; }
+    triangleNormal(n, 3 * t, p, 3 * tr[3 * t], 3 * tr[3 * t + 1], 3 * tr[3 * t + 2]);
   }
   return n;
 }
@@ -196,11 +192,11 @@ export function refineUniform(mesh: SurfaceMesh, opts: RefineOptions = {}): Surf
       const a = 3 * tr[h], b = 3 * tr[nextCorner(h)], c = 3 * tr[nextCorner(nextCorner(h))];
       const ux = p[b] - p[a], uy = p[b + 1] - p[a + 1], uz = p[b + 2] - p[a + 2];
       const vx = p[c] - p[a], vy = p[c + 1] - p[a + 1], vz = p[c + 2] - p[a + 2];
-      const cx = uy * vz - uz * vy, cy = uz * vx - ux * vz, cz = ux * vy - uy * vx;
       // Max's weight sin(alpha)/(|u||v|) on the unit face normal, i.e. (u x v)/(|u|^2 |v|^2).
       const uu = ux * ux + uy * uy + uz * uz, vv = vx * vx + vy * vy + vz * vz;
       if (uu === 0 || vv === 0) continue;
-      const weight = Math.sqrt(cx * cx + cy * cy + cz * cz) / (uu * vv);
+      // |u × v| = 2·area exactly (doubling is exact).
+      const weight = 2 * triangleArea(p, a, b, c) / (uu * vv);
       const r = 3 * findRoot(parent, h);
       acc[r] += weight * normals[3 * t];
       acc[r + 1] += weight * normals[3 * t + 1];

@@ -10,6 +10,8 @@
  */
 import { type SurfaceMesh, triangleCount } from "./model.js";
 import { buildBoxTree, forEachItemInBox } from "./bvh.js";
+import { windingNumber } from "../geometry/solid-angle.js";
+import { triangleArea, tetrahedronVolume6 } from "../geometry/triangle.js";
 
 export interface EdgeTable {
   edgeCount: number;
@@ -166,38 +168,10 @@ function signedVolume(p: Float64Array, tr: Uint32Array, list: Uint32Array, from:
   let v = 0;
   for (let k = from; k < to; k++) {
     const t = list[k];
-    const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], c = 3 * tr[3 * t + 2];
-    const ax = p[a] - ox, ay = p[a + 1] - oy, az = p[a + 2] - oz;
-    const bx = p[b] - ox, by = p[b + 1] - oy, bz = p[b + 2] - oz;
-    const cx = p[c] - ox, cy = p[c + 1] - oy, cz = p[c + 2] - oz;
-    const d = ax * (by * cz - bz * cy) + ay * (bz * cx - bx * cz) + az * (bx * cy - by * cx);
+    const d = tetrahedronVolume6(p, 3 * tr[3 * t], 3 * tr[3 * t + 1], 3 * tr[3 * t + 2], ox, oy, oz);
     v += flip[t] ? -d : d;
   }
   return v / 6;
-}
-
-/**
- * Winding number of the triangles tr[list] about point (x, y, z): the sum of their
- * signed solid angles over 4π. Solid angle of a triangle by Van Oosterom & Strackee,
- * "The solid angle of a plane triangle", IEEE Trans. Biomed. Eng. 30(2), 1983, eq. (8).
- */
-function windingNumber(p: Float64Array, tr: Uint32Array, list: Uint32Array, from: number, to: number, flip: Uint8Array, x: number, y: number, z: number): number {
-  let w = 0;
-  for (let k = from; k < to; k++) {
-    const t = list[k];
-    const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], c = 3 * tr[3 * t + 2];
-    const ax = p[a] - x, ay = p[a + 1] - y, az = p[a + 2] - z;
-    const bx = p[b] - x, by = p[b + 1] - y, bz = p[b + 2] - z;
-    const cx = p[c] - x, cy = p[c + 1] - y, cz = p[c + 2] - z;
-    const la = Math.sqrt(ax * ax + ay * ay + az * az), lb = Math.sqrt(bx * bx + by * by + bz * bz), lc = Math.sqrt(cx * cx + cy * cy + cz * cz);
-    const num = ax * (by * cz - bz * cy) + ay * (bz * cx - bx * cz) + az * (bx * cy - by * cx);
-    const den = la * lb * lc + (ax * bx + ay * by + az * bz) * lc + (ax * cx + ay * cy + az * cz) * lb + (bx * cx + by * cy + bz * cz) * la;
-    // In the triangle's plane the angle is ±2π or 0 by the sign of a zero: take 0 (on-surface points stay fractional).
-    if (Math.abs(num) <= 1e-12 * la * lb * lc) continue;
-    const omega = 2 * Math.atan2(num, den);
-    w += flip[t] ? -omega : omega;
-  }
-  return w / (4 * Math.PI);
 }
 
 /**
@@ -259,7 +233,7 @@ export function orientSurfaces(mesh: SurfaceMesh, table: EdgeTable = buildEdgeTa
       let flippedArea = 0, totalArea = 0;
       for (let k = start; k < end; k++) {
         const t = queue[k];
-        const a = triangleArea2(p, tr, t);
+        const a = 2 * triangleArea(p, 3 * tr[3 * t], 3 * tr[3 * t + 1], 3 * tr[3 * t + 2]);
         totalArea += a;
         if (flip[t]) flippedArea += a;
       }
@@ -308,7 +282,7 @@ export function orientSurfaces(mesh: SurfaceMesh, table: EdgeTable = buildEdgeTa
       const ab = compBox[ai];
       if (!(ab[0] <= bb[0] && ab[1] <= bb[1] && ab[2] <= bb[2] && ab[3] >= bb[3] && ab[4] >= bb[4] && ab[5] >= bb[5])) continue;
       // Whole off the surface, fractional only on it: 3/4 separates inside from a touching point.
-      if (Math.abs(windingNumber(p, tr, queue, compStart[ai], compStart[ai + 1], flip, x, y, z)) > 0.75) inner.enclosedBy++;
+      if (Math.abs(windingNumber(p, tr, queue, compStart[ai], compStart[ai + 1], x, y, z, flip)) > 0.75) inner.enclosedBy++;
     }
   }
   for (const ci of closedIdx) {
@@ -335,14 +309,6 @@ export function orientSurfaces(mesh: SurfaceMesh, table: EdgeTable = buildEdgeTa
     if (c.status === "outward" && flipped > 0) c.status = flipped === c.triangles ? "inward-flipped" : "repaired";
   }
   return { mesh: { positions: mesh.positions, triangles, conductor: mesh.conductor, names: mesh.names }, components, componentOf };
-}
-
-function triangleArea2(p: Float64Array, tr: Uint32Array, t: number): number {
-  const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], c = 3 * tr[3 * t + 2];
-  const ux = p[b] - p[a], uy = p[b + 1] - p[a + 1], uz = p[b + 2] - p[a + 2];
-  const vx = p[c] - p[a], vy = p[c + 1] - p[a + 1], vz = p[c + 2] - p[a + 2];
-  const cx = uy * vz - uz * vy, cy = uz * vx - ux * vz, cz = ux * vy - uy * vx;
-  return Math.sqrt(cx * cx + cy * cy + cz * cz);
 }
 
 /**

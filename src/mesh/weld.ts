@@ -9,6 +9,8 @@
  * so every partner is found and the whole pass is O(N) expected. Clustering is greedy: a vertex joins the first earlier kept
  * vertex within tolerance and keeps that vertex's position.
  */
+import { triangleArea } from "../geometry/triangle.js";
+
 /** Default weld tolerance, relative to the bounding-box diagonal. */
 export const DEFAULT_WELD_TOLERANCE = 1e-6;
 /** Default degeneracy threshold: twice the area over the longest edge squared (≈ height / length). */
@@ -114,8 +116,7 @@ export function dropDegenerate(positions: Float64Array, triangles: Uint32Array, 
     const ux = p[b] - p[a], uy = p[b + 1] - p[a + 1], uz = p[b + 2] - p[a + 2];
     const vx = p[c] - p[a], vy = p[c + 1] - p[a + 1], vz = p[c + 2] - p[a + 2];
     const wx = p[c] - p[b], wy = p[c + 1] - p[b + 1], wz = p[c + 2] - p[b + 2];
-    const cx = uy * vz - uz * vy, cy = uz * vx - ux * vz, cz = ux * vy - uy * vx;
-    const twiceArea = Math.sqrt(cx * cx + cy * cy + cz * cz);
+    const twiceArea = 2 * triangleArea(p, a, b, c);
     const l2 = Math.max(ux * ux + uy * uy + uz * uz, vx * vx + vy * vy + vz * vz, wx * wx + wy * wy + wz * wz);
     if (!(twiceArea > relAreaTol * l2)) continue;
     keep[t] = 1;

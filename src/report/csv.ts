@@ -20,7 +20,7 @@
  * 4.10 "Tables"); text is escaped with backslashes, which CommonMark allows before any ASCII
  * punctuation (CommonMark spec 0.30, section 2.4 "Backslash escapes").
  */
-import { InputError } from "../io/errors.js";
+import { InputError } from "../errors.js";
 import type { LengthUnit } from "../io/units.js";
 import { formatSI, formatNumber, formatFieldStrength, formatPoint, formatArea, unitLabel } from "../io/si.js";
 

@@ -7,9 +7,10 @@
  */
 import { basename, dirname, extname, join, resolve } from "node:path";
 import type { SceneExtraction } from "../extract/extract.js";
-import { probeCsv, distanceAlong, fieldMagnitude } from "../extract/probe-spec.js";
+import { distanceAlong } from "../io/probe-spec.js";
+import { probeCsv, fieldMagnitude } from "./probe-csv.js";
 import { metresPer } from "../io/units.js";
-import { InputError } from "../io/errors.js";
+import { InputError } from "../errors.js";
 import { writeFilesAtomic } from "../io/atomic.js";
 import { version } from "../version.js";
 import { spiceSubcircuit } from "./spice.js";

@@ -3,7 +3,7 @@
  * parameters, the chosen matrix entries in farads), the merge of sharded slices' tables, and
  * the entries against the first parameter as an SVG plot.
  */
-import { InputError } from "../io/errors.js";
+import { InputError } from "../errors.js";
 import { entryLabel, entryValue, type MatrixEntry, type PointMatrices, type SweepAxis } from "../extract/sweep.js";
 import { csvText, parseCsv } from "./csv.js";
 import { linePlotSvg, type PlotSeries } from "./svg-plot.js";

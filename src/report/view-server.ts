@@ -6,7 +6,7 @@
  */
 import { readFileSync } from "node:fs";
 import { createServer, type Server } from "node:http";
-import { InputError } from "../io/errors.js";
+import { InputError } from "../errors.js";
 import { htmlReport, embeddedResults, type PackedViewerData } from "./html.js";
 import { VIEWER_FORMAT } from "./viewer-data.js";
 

@@ -3,7 +3,7 @@ import { compressedBytes, assertCompressedFits } from "../../src/extract/memory.
 import { solveUnitPotentials } from "../../src/extract/solve.js";
 import { sphereMesh } from "../../src/mesh/primitives/index.js";
 import { WorkerPool } from "../../src/linalg/pool.js";
-import { InputError } from "../../src/io/errors.js";
+import { InputError } from "../../src/errors.js";
 
 describe("compressed solver memory estimate", () => {
   it("counts the block-Jacobi factors (n·cluster numbers) and grows with the panels", () => {

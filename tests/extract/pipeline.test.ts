@@ -9,10 +9,10 @@ import { mkdtempSync, writeFileSync, rmSync } from "node:fs";
 import { join } from "node:path";
 import { tmpdir } from "node:os";
 import { loadScene } from "../../src/io/inputs.js";
-import { InputError } from "../../src/io/errors.js";
+import { InputError } from "../../src/errors.js";
 import { extract } from "../../src/extract/extract.js";
 import { extractMesh } from "../../src/extract/extract-mesh.js";
-import { parseProbeOption } from "../../src/extract/probe-spec.js";
+import { parseProbeOption } from "../../src/io/probe-spec.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
 
 const dir = mkdtempSync(join(tmpdir(), "sigmesh-pipeline-"));

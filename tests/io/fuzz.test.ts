@@ -1,7 +1,7 @@
 import { describe, it, expect } from "vitest";
 import fc from "fast-check";
 import { parseMeshBytes } from "../../src/io/load.js";
-import { InputError } from "../../src/io/errors.js";
+import { InputError } from "../../src/errors.js";
 import { fixtureBytes } from "./helpers.js";
 import { msh41Binary, msh22Binary, msh40Ascii } from "./msh-fixtures.js";
 

@@ -4,7 +4,7 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { loadMeshFile, loadMeshFiles, parseMeshBytes } from "../../src/io/load.js";
 import { detectFormat } from "../../src/io/format.js";
-import { InputError } from "../../src/io/errors.js";
+import { InputError } from "../../src/errors.js";
 import { conductorAreas } from "../../src/mesh/model.js";
 import { fixture, fixtureBytes, UNIT_TET_AREA } from "./helpers.js";
 

@@ -1,6 +1,6 @@
 import { describe, it, expect } from "vitest";
 import { readMsh } from "../../src/io/msh.js";
-import { InputError } from "../../src/io/errors.js";
+import { InputError } from "../../src/errors.js";
 import { fixtureBytes, rawArea, UNIT_TET_AREA } from "./helpers.js";
 import { msh41Binary, msh22Binary, msh40Ascii, ByteWriter } from "./msh-fixtures.js";
 

@@ -1,6 +1,6 @@
 import { describe, it, expect } from "vitest";
 import { readObj, writeObj } from "../../src/io/obj.js";
-import { InputError } from "../../src/io/errors.js";
+import { InputError } from "../../src/errors.js";
 import { fixtureBytes, rawArea } from "./helpers.js";
 
 /** z-component of each triangle's doubled area vector. */

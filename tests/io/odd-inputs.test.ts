@@ -1,6 +1,6 @@
 import { describe, it, expect } from "vitest";
 import { parseMeshBytes } from "../../src/io/load.js";
-import { InputError } from "../../src/io/errors.js";
+import { InputError } from "../../src/errors.js";
 import { conductorAreas } from "../../src/mesh/model.js";
 import { readMsh } from "../../src/io/msh.js";
 import { UNIT_TET_AREA } from "./helpers.js";

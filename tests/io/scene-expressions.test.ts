@@ -6,7 +6,7 @@
 import { describe, it, expect } from "vitest";
 import { evaluateExpression, ExpressionError, resolveParameters } from "../../src/io/parameters.js";
 import { parseScene, substituteScene } from "../../src/io/scene.js";
-import { InputError } from "../../src/io/errors.js";
+import { InputError } from "../../src/errors.js";
 
 const fail = (path: string, fault: string): never => { throw new InputError(`${path}: ${fault}`); };
 

@@ -2,7 +2,7 @@ import { describe, it, expect } from "vitest";
 import fc from "fast-check";
 import { readStl, writeStlBinary, writeStlAscii, formatCoordinate } from "../../src/io/stl.js";
 import { readDecimal } from "../../src/io/decimal.js";
-import { InputError } from "../../src/io/errors.js";
+import { InputError } from "../../src/errors.js";
 import { fixtureBytes, rawArea, UNIT_TET_AREA } from "./helpers.js";
 
 const enc = (s: string) => new TextEncoder().encode(s);

@@ -1,7 +1,7 @@
 import { describe, it, expect } from "vitest";
 import { parseUnit, metresPer } from "../../src/io/units.js";
 import { parseScene } from "../../src/io/scene.js";
-import { InputError } from "../../src/io/errors.js";
+import { InputError } from "../../src/errors.js";
 
 // Exact factors: 1 in = 25.4 mm (international inch, 1959); 1 mil = 1 thou = 0.001 in.
 describe("parseUnit", () => {

@@ -5,7 +5,7 @@ import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { encodeMesh, outputFormatFromPath, writeMeshFile, type OutputFormat } from "../../src/io/write.js";
 import { parseMeshBytes, loadMeshFile } from "../../src/io/load.js";
-import { InputError } from "../../src/io/errors.js";
+import { InputError } from "../../src/errors.js";
 import type { SurfaceMesh } from "../../src/mesh/model.js";
 import type { LengthUnit } from "../../src/io/units.js";
 

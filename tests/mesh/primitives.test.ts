@@ -6,7 +6,7 @@ import {
 } from "../../src/mesh/primitives/index.js";
 import { surfaceArea, signedVolume } from "../../src/mesh/measure.js";
 import { boundingBox, triangleArea, type SurfaceMesh } from "../../src/mesh/model.js";
-import { InputError } from "../../src/io/errors.js";
+import { InputError } from "../../src/errors.js";
 import { topology, euler } from "./edge-census.js";
 
 function expectClosed(mesh: SurfaceMesh, genus = 0): void {

@@ -8,7 +8,7 @@ import { concatMeshes, type SurfaceMesh } from "../../src/mesh/model.js";
 import { extractMesh } from "../../src/extract/extract-mesh.js";
 import { EPSILON_0 } from "../../src/extract/constants.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
-import { InputError } from "../../src/io/errors.js";
+import { InputError } from "../../src/errors.js";
 
 const FOUR_PI_EPS0 = 4 * Math.PI * EPSILON_0;
 afterAll(() => closeSharedPool());

@@ -10,7 +10,7 @@ import { concatMeshes, type SurfaceMesh } from "../../src/mesh/model.js";
 import { extractMesh } from "../../src/extract/extract-mesh.js";
 import { extractionReport } from "../../src/report/json.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
-import { InputError } from "../../src/io/errors.js";
+import { InputError } from "../../src/errors.js";
 
 afterAll(() => closeSharedPool());
 

@@ -16,7 +16,7 @@ import { viewerData, viewerDataJson, packViewerData, hotSpots, type PackedArray 
 import { coolWarmTable, viridisTable, divergingColor, COOL, WARM } from "../../viewer/src/colormap.js";
 import { viewPage } from "../../src/report/view-server.js";
 import { parsePort } from "../../cli/view.js";
-import { InputError } from "../../src/io/errors.js";
+import { InputError } from "../../src/errors.js";
 
 const MARKUP = "<img src=x onerror=alert(1)></script><script>alert(2)</script>";
 const bundle: ViewerBundle = { script: "console.log('viewer'); var s = '</script>';", css: "body{}" };

@@ -8,7 +8,7 @@ import { mkdtempSync, writeFileSync, readFileSync, readdirSync, rmSync, existsSy
 import { join } from "node:path";
 import { tmpdir } from "node:os";
 import { loadScene } from "../../src/io/inputs.js";
-import { InputError } from "../../src/io/errors.js";
+import { InputError } from "../../src/errors.js";
 import { extract, type SceneExtraction } from "../../src/extract/extract.js";
 import { writeOutputs, checkOutputTargets, extractionFiles } from "../../src/report/outputs.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";

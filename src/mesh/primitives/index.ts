@@ -4,7 +4,7 @@
  * Shape functions take metres; `generateShape` scales lengths from the caller's unit.
  */
 import type { SurfaceMesh } from "../model.js";
-import { InputError } from "../../io/errors.js";
+import { InputError } from "../../errors.js";
 import { sphereMesh } from "./sphere.js";
 import { boxMesh } from "./box.js";
 import { plateMesh } from "./plate.js";

@@ -7,6 +7,7 @@
 import type { SurfaceMesh } from "../model.js";
 import { refineUniform } from "../refine.js";
 import { checkTriangleBudget } from "./placement.js";
+import { triangleAreaVector } from "../../geometry/triangle.js";
 
 export interface SphereParams {
   /** metres */
@@ -58,12 +59,11 @@ function icosahedron(): SurfaceMesh {
     3, 9, 4, 3, 4, 2, 3, 2, 6, 3, 6, 8, 3, 8, 9, 4, 9, 5, 2, 4, 11, 6, 2, 10, 8, 6, 7, 9, 8, 1,
   ]);
   // Orientation fixed by construction check rather than trusted: the normal must point away from the centre.
+  const scratch = new Float64Array(3);
   for (let f = 0; f < 20; f++) {
-    const a = 3 * triangles[3 * f], b = 3 * triangles[3 * f + 1], c = 3 * triangles[3 * f + 2];
-    const ux = positions[b] - positions[a], uy = positions[b + 1] - positions[a + 1], uz = positions[b + 2] - positions[a + 2];
-    const vx = positions[c] - positions[a], vy = positions[c + 1] - positions[a + 1], vz = positions[c + 2] - positions[a + 2];
-    const nx = uy * vz - uz * vy, ny = uz * vx - ux * vz, nz = ux * vy - uy * vx;
-    if (nx * positions[a] + ny * positions[a + 1] + nz * positions[a + 2] < 0) {
+    const a = 3 * triangles[3 * f];
+    const n = triangleAreaVector(scratch, 0, positions, a, 3 * triangles[3 * f + 1], 3 * triangles[3 * f + 2]);
+    if (n[0] * positions[a] + n[1] * positions[a + 1] + n[2] * positions[a + 2] < 0) {
       const tmp = triangles[3 * f + 1]; triangles[3 * f + 1] = triangles[3 * f + 2]; triangles[3 * f + 2] = tmp;
     }
   }

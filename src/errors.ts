@@ -2,6 +2,10 @@
  * Errors a user can act on. `InputError` is bad input (exit code 2): it names the
  * file, the place in it (line for text formats, byte offset for binary) and the fault.
  * Anything else that escapes to the CLI is an internal error (exit code 1).
+ *
+ * In the lowest layer (with src/geometry; this file imports nothing), so every layer may
+ * raise it: readers where the file and line are known, mesh primitives and the pipeline
+ * for parameters a user gave.
  */
 export class InputError extends Error {
   readonly file: string | undefined;

@@ -2,7 +2,8 @@
  * Probe requests: where in space the user wants the potential and field. Points, straight
  * lines (evenly spaced points from one end to the other, both ends included) and planar
  * grids (origin plus two edge vectors, evenly spaced both ways, edges included). Lengths
- * stay in the user's unit until `probePoints` turns them into metres.
+ * stay in the user's unit until `probePoints` turns them into metres. The CSV of the probed
+ * values is src/report/probe-csv.ts.
  *
  * Command line (one request per option value; an optional `NAME=` in front names it):
  *   point:x,y,z[:x,y,z...]              one or more points
@@ -13,9 +14,7 @@
  *   { "name": "gap", "line": { "from": [..], "to": [..], "points": 50 } }
  *   { "name": "above pad", "grid": { "origin": [..], "u": [..], "v": [..], "points": [20, 10] } }
  */
-import { InputError } from "../io/errors.js";
-import type { ProbeResult } from "./probe.js";
-import { type LengthUnit, metresPer } from "../io/units.js";
+import { InputError } from "../errors.js";
 
 export type Vec3 = [number, number, number];
 
@@ -218,52 +217,4 @@ export function distanceAlong(points: Float64Array): Float64Array {
   const m = points.length / 3, d = new Float64Array(m);
   for (let i = 0; i < m; i++) d[i] = Math.hypot(points[3 * i] - points[0], points[3 * i + 1] - points[1], points[3 * i + 2] - points[2]);
   return d;
-}
-
-/** Field magnitude |E| per point; V/m. */
-export function fieldMagnitude(result: ProbeResult): Float64Array {
-  const m = result.potential.length, e = new Float64Array(m);
-  for (let i = 0; i < m; i++) e[i] = Math.hypot(result.field[3 * i], result.field[3 * i + 1], result.field[3 * i + 2]);
-  return e;
-}
-
-function quoted(s: string): string {
-  return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-}
-
-function num(x: number): string {
-  return Number.isFinite(x) ? String(x) : "";
-}
-
-/**
- * CSV (RFC 4180: CRLF records, quoted fields where needed) of one request's results:
- * probe name, point index, x, y, z in the user's `unit`, the distance along a line (lines)
- * or the grid indices i, j (grids), potential (V), Ex, Ey, Ez and |E| (V/m). `points` are the
- * metres from `probePoints`. `columns` forces the distance and grid-index columns on (left
- * empty where they do not apply), so that the tables of several requests of different kinds
- * share one header.
- */
-export function probeCsv(spec: ProbeSpec, points: Float64Array, result: ProbeResult, unit: LengthUnit,
-  columns?: { distance: boolean; grid: boolean }): string {
-  const m = points.length / 3;
-  if (result.potential.length !== m || result.field.length !== 3 * m) throw new RangeError(`probeCsv: ${m} points but ${result.potential.length} results`);
-  const s = metresPer(unit), u = unit === "um" ? "µm" : unit;
-  const withDistance = columns?.distance ?? spec.kind === "line", withGrid = columns?.grid ?? spec.kind === "grid";
-  const header = ["probe", "index", `x (${u})`, `y (${u})`, `z (${u})`];
-  if (withDistance) header.push(`distance (${u})`);
-  if (withGrid) header.push("i", "j");
-  header.push("potential (V)", "Ex (V/m)", "Ey (V/m)", "Ez (V/m)", "|E| (V/m)");
-  const lines = [header.map(quoted).join(",")];
-  const name = quoted(spec.name);
-  const d = spec.kind === "line" ? distanceAlong(points) : undefined;
-  const e = fieldMagnitude(result);
-  const nu = spec.kind === "grid" ? spec.counts[0] : 1;
-  for (let i = 0; i < m; i++) {
-    const row = [name, String(i), num(points[3 * i] / s), num(points[3 * i + 1] / s), num(points[3 * i + 2] / s)];
-    if (withDistance) row.push(d ? num(d[i] / s) : "");
-    if (withGrid) row.push(...(spec.kind === "grid" ? [String(i % nu), String(Math.floor(i / nu))] : ["", ""]));
-    row.push(num(result.potential[i]), num(result.field[3 * i]), num(result.field[3 * i + 1]), num(result.field[3 * i + 2]), num(e[i]));
-    lines.push(row.join(","));
-  }
-  return lines.join("\r\n") + "\r\n";
 }
