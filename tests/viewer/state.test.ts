@@ -4,7 +4,7 @@
 // where the clipping plane lies.
 import { describe, it, expect } from "vitest";
 import {
-  createViewerState, chooseExcitation, axisOf, takeReadout, releaseReadout, startMotion, endMotion, frameDrawn,
+  createViewerState, chooseExcitation, axisOf, takeReadout, releaseReadout, pinnedPanel, startMotion, endMotion, frameDrawn,
   settleDelay, conductorDetail, frontFacesOnly, clipPlaneOf, SETTLE_MS, SETTLE_HELD_MS, type ClipState,
 } from "../../viewer/src/state.js";
 
@@ -50,6 +50,18 @@ describe("transitions", () => {
     expect(takeReadout(s, true)).toBe(true);
     releaseReadout(s);
     expect(takeReadout(s, false)).toBe(true);
+  });
+
+  it("a pinned panel stays the one to show again after another excitation is chosen; a hovered one does not", () => {
+    const s = createViewerState(2);
+    takeReadout(s, false, 5);
+    expect(pinnedPanel(s)).toBe(-1);
+    takeReadout(s, true, 7);
+    takeReadout(s, false, 9); // a hover while pinned changes nothing
+    chooseExcitation(s, 1);
+    expect(pinnedPanel(s)).toBe(7);
+    releaseReadout(s);
+    expect(pinnedPanel(s)).toBe(-1);
   });
 
   it("motion: proxies while moving, a full frame owed on rest only if a coarse one was drawn", () => {

@@ -19,7 +19,7 @@ import { fillHotSpots, sheetBoundNote } from "./tables.js";
 import { drawColourBar, saveSnapshot } from "./legend.js";
 import { applyClip, applyEdges, applyVisibility, createScene, fit, panelLists, placeMarkers, recolourMeshes } from "./scene.js";
 import { buildProxies, renderLoop, usesProxies, wireControls, type DetailContext } from "./detail.js";
-import { flyTo, wirePointer, type PickingContext } from "./picking.js";
+import { flyTo, wirePointer, refreshPinned, type PickingContext } from "./picking.js";
 import "./style.css";
 
 function start(root: HTMLElement, data: PageData): void {
@@ -43,6 +43,7 @@ function start(root: HTMLElement, data: PageData): void {
     placeMarkers(sv, v, state);
     page.boundNote.textContent = sheetBoundNote(e);
     root.dataset.excitation = e.id;
+    refreshPinned(picking);
     loop.requestRender();
   }
   const refit = (): void => { fit(sv, state); loop.requestRender(); };

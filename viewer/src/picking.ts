@@ -12,7 +12,7 @@ import type { PageElements } from "./panels.js";
 import { placeMarkers, shownMeshes, type SceneView } from "./scene.js";
 import type { RenderLoop } from "./detail.js";
 import { markSelectedSpot, readoutLines, showReadout } from "./tables.js";
-import { releaseReadout, takeReadout, type ViewerState } from "./state.js";
+import { releaseReadout, takeReadout, pinnedPanel, type ViewerState } from "./state.js";
 import type { LengthUnit } from "../../src/io/units.js";
 
 /** A press and release closer than this (CSS pixels) is a click; farther, a drag of the view. */
@@ -94,8 +94,14 @@ export interface PickingContext {
 /** Panel `p`'s values in the read-out: on hover unless a panel is pinned, or pinned by a click. */
 export function showPanel(ctx: PickingContext, p: number, pin: boolean): void {
   const { v, state } = ctx;
-  if (!takeReadout(state, pin)) return;
+  if (!takeReadout(state, pin, p)) return;
   showReadout(ctx.page.readout, readoutLines(v, v.excitations[state.excitation], p, pin, ctx.unit), p);
+}
+
+/** A pinned read-out shows the current excitation's values (after the user switched it). */
+export function refreshPinned(ctx: PickingContext): void {
+  const p = pinnedPanel(ctx.state);
+  if (p >= 0) showPanel(ctx, p, true);
 }
 
 /** The i-th hot spot of the current excitation: selected, its panel pinned, and the camera flown in front of it. */

@@ -51,6 +51,8 @@ export interface ViewerState {
   selectedSpot: number;
   /** The read-out holds a clicked panel: hovering does not replace it. */
   pinned: boolean;
+  /** The panel the read-out shows, -1 none (a pinned one is shown again for another excitation). */
+  readoutPanel: number;
   conductors: ConductorState[];
   clip: ClipState;
   motion: MotionState;
@@ -61,7 +63,7 @@ export interface ViewerState {
 /** The state of a freshly opened page with `conductors` conductors. */
 export function createViewerState(conductors: number): ViewerState {
   return {
-    excitation: 0, quantity: "field", scale: "linear", edges: false, selectedSpot: -1, pinned: false,
+    excitation: 0, quantity: "field", scale: "linear", edges: false, selectedSpot: -1, pinned: false, readoutPanel: -1,
     conductors: Array.from({ length: conductors }, () => ({ visible: true, opacity: 1 })),
     clip: { on: false, axis: 0, position: 0.5, flip: false },
     motion: { moving: false, interacting: false, drewCoarse: false, flying: false, flight: 0, settleTimer: 0, proxiesBuilt: false },
@@ -84,10 +86,16 @@ export function axisOf(name: string): Axis {
  * Whether a panel's values replace the read-out: a click (pin) always does and pins it, a
  * hover only when nothing is pinned.
  */
-export function takeReadout(s: ViewerState, pin: boolean): boolean {
+export function takeReadout(s: ViewerState, pin: boolean, panel = -1): boolean {
   if (s.pinned && !pin) return false;
   s.pinned = pin;
+  s.readoutPanel = panel;
   return true;
+}
+
+/** The panel whose values must be shown again after the excitation or quantity changed (-1: none, the read-out is not pinned). */
+export function pinnedPanel(s: ViewerState): number {
+  return s.pinned ? s.readoutPanel : -1;
 }
 
 /** A click on empty space: hovering shows panels again. */
