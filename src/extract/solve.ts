@@ -7,6 +7,7 @@
  */
 import { panelSetShared, type PanelSet } from "../bem/panels.js";
 import { assembleDense, assembleWithInterfaces, preparedImages, type Discretisation } from "../bem/assembly.js";
+import { assembleBlockTask, assembleInterfaceBlockTask, normalFieldBlockTask } from "../bem/assembly.js";
 import type { ImageSet } from "../bem/images.js";
 import type { InterfaceTesting } from "../bem/interface.js";
 import type { KernelSpec } from "../bem/images.js";
@@ -266,10 +267,9 @@ async function solveCompressed(positions: Float64Array, triangles: Uint32Array, 
   const progress = opts.progress ?? (() => {});
   const panels = panelSetShared(positions, triangles);
   const hTol = compressionTolerance(opts.tolerance);
-  const url = new URL(import.meta.url.endsWith(".ts") ? "../bem/assembly.ts" : "../bem/assembly.js", import.meta.url).href;
 
   const t0 = performance.now();
-  const H = await buildHMatrix(panels.centroids, { source: { module: url, name: "assembleBlock", before: [panels], after: [opts.method, preparedImages(panels, opts.kernel, true)] } }, {
+  const H = await buildHMatrix(panels.centroids, { source: { task: assembleBlockTask, before: [panels], after: [opts.method, preparedImages(panels, opts.kernel, true)] } }, {
     tolerance: hTol, leafSize, eta, symmetric: opts.method === "galerkin", pad: panels.radii, pool: opts.pool,
     progress,
   });
@@ -515,12 +515,11 @@ async function solveCompressedWithInterfaces(positions: Float64Array, triangles:
   const lam = sharedFloat64(lambda.length);
   lam.set(lambda);
   const hTol = interfaceCompressionTolerance(opts.tolerance);
-  const url = new URL(import.meta.url.endsWith(".ts") ? "../bem/assembly.ts" : "../bem/assembly.js", import.meta.url).href;
 
   const t0 = performance.now();
   const images = preparedImages(panels, opts.kernel, true);
   const H = await buildHMatrix(panels.centroids, {
-    source: { module: url, name: "assembleInterfaceBlock", before: [panels, nc, lam], after: [opts.method, testing, images] },
+    source: { task: assembleInterfaceBlockTask, before: [panels, nc, lam], after: [opts.method, testing, images] },
   }, {
     tolerance: hTol, leafSize, eta, symmetric: false, pad: panels.radii, pool: opts.pool,
     progress,
@@ -578,9 +577,8 @@ async function openSheetNormalField(panels: PanelSet, nc: number, fieldPanels: U
   const N = panels.n, progress = opts.progress ?? (() => {});
   const flag = new Uint8Array(new SharedArrayBuffer(N));
   flag.set(fieldPanels.subarray(0, nc));
-  const url = new URL(import.meta.url.endsWith(".ts") ? "../bem/assembly.ts" : "../bem/assembly.js", import.meta.url).href;
   progress("fields", 0);
-  const F = await buildHMatrix(panels.centroids, { source: { module: url, name: "normalFieldBlock", before: [panels, flag], after: [images] } }, {
+  const F = await buildHMatrix(panels.centroids, { source: { task: normalFieldBlockTask, before: [panels, flag], after: [images] } }, {
     tolerance: hTol, leafSize, eta, symmetric: false, pad: panels.radii, pool: opts.pool,
     progress: (_phase, f) => progress("fields", f),
   });

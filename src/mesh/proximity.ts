@@ -13,6 +13,7 @@
 import { type SurfaceMesh, triangleCount, boundingDiagonal } from "./model.js";
 import { buildBoxTree, triangleBoxes, forEachOverlappingPair, forEachItemInBox, nodeLabels, nearestItem, type BoxTree } from "./bvh.js";
 import { panelSizes } from "./quality.js";
+import { task } from "../linalg/task.js";
 
 const cp = new Float64Array(3);
 
@@ -641,7 +642,9 @@ export function enclosedConductors(mesh: SurfaceMesh, closed: boolean[], boxes: 
  * Worker entry for `conductorProximity` (see src/linalg/pool.ts): the mesh arrives as its
  * typed arrays; findings go back as plain objects.
  */
-export function proximityTask(positions: Float64Array, triangles: Uint32Array, conductor: Uint32Array, conductors: number, opts: ProximityOptions): ProximityFinding[] {
+export function proximityOfArrays(positions: Float64Array, triangles: Uint32Array, conductor: Uint32Array, conductors: number, opts: ProximityOptions): ProximityFinding[] {
   const names = Array.from({ length: conductors }, (_, i) => String(i));
   return conductorProximity({ positions, triangles, conductor, names }, opts);
 }
+
+export const proximityTask = task(import.meta.url, { proximityOfArrays });
