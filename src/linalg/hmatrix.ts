@@ -1,10 +1,10 @@
 /**
  * Hierarchical matrix (H-matrix): a square matrix over points in space, stored as the
  * leaves of a block cluster tree (block-tree.ts): admissible blocks as low-rank factors
- * from ACA+ with recompression (aca.ts, recompression.ts, low-rank-block.ts), the rest dense (Hackbusch,
- * Hierarchical Matrices, Springer 2015, ch. 6; Bebendorf, Hierarchical Matrices, Springer
- * 2008, ch. 3). Storage and product cost grow like N log N for asymptotically smooth
- * kernels.
+ * (low-rank-block.ts) from ACA+ with recompression (aca.ts, recompression.ts), the rest
+ * dense (dense-block.ts) (Hackbusch, Hierarchical Matrices, Springer 2015, ch. 6;
+ * Bebendorf, Hierarchical Matrices, Springer 2008, ch. 3). Storage and product cost grow
+ * like N log N for asymptotically smooth kernels.
  *
  * The matrix is known only through an entry generator (entry-generator.ts); nothing here
  * knows what the entries mean. The build is split into chunks of independent blocks that

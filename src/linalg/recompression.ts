@@ -42,14 +42,7 @@ export function recompressFromGram(u: Float64Array, v: Float64Array, m: number, 
   // ru, rv hold S_U, S_V; mu, mv hold M_U, M_V; core and zmat are scratch until the SVD.
   gramQR(GU, r, ru, mu, core);
   gramQR(GV, r, rv, mv, core);
-  for (let i = 0; i < r; i++)
-    for (let j = 0; j < r; j++) {
-      let t = 0;
-      for (let q = 0; q < r; q++) t += ru[i * r + q] * rv[j * r + q];
-      core[i * r + j] = t;
-    }
-  jacobiSVD(core, r, zmat, sig);
-  const keep = truncationRank(r, tol);
+  const keep = truncatedCoreSVD(r, tol);
   // U' = U·M_U·(σ_j w_j) and V' = V·M_V·z_j for the kept j: coefficients first (r×r'), in eu / ev.
   for (let q = 0; q < r; q++)
     for (let a = 0; a < keep; a++) {
@@ -75,6 +68,21 @@ function combineTerms(f: Float64Array, m: number, r: number, C: Float64Array, ke
       for (let i = 0; i < m; i++) out[oa + i] += c * f[fq + i];
     }
   }
+}
+
+/**
+ * SVD of the core R_U·R_Vᵀ (from ru, rv: core becomes W·Σ, zmat Z, sig σ) and the rank kept
+ * at tol; perm lists the singular values by decreasing σ.
+ */
+function truncatedCoreSVD(r: number, tol: number): number {
+  for (let i = 0; i < r; i++)
+    for (let j = 0; j < r; j++) {
+      let t = 0;
+      for (let q = 0; q < r; q++) t += ru[i * r + q] * rv[j * r + q];
+      core[i * r + j] = t;
+    }
+  jacobiSVD(core, r, zmat, sig);
+  return truncationRank(r, tol);
 }
 
 /** Sort σ (in sig) into perm by decreasing value; the smallest count whose discarded tail is within tol (relative, Frobenius). */
@@ -113,15 +121,7 @@ export function recompress(u: Float64Array, v: Float64Array, m: number, n: numbe
   grow(r);
   gramSchmidtQR(u, m, r, ru);
   gramSchmidtQR(v, n, r, rv);
-  // core = R_U · R_Vᵀ
-  for (let i = 0; i < r; i++)
-    for (let j = 0; j < r; j++) {
-      let t = 0;
-      for (let q = 0; q < r; q++) t += ru[i * r + q] * rv[j * r + q];
-      core[i * r + j] = t;
-    }
-  jacobiSVD(core, r, zmat, sig);
-  const keep = truncationRank(r, tol);
+  const keep = truncatedCoreSVD(r, tol);
   if (vOff < 0) vOff = uOff + m * keep;
   // U' = Q_U·(G columns, which are σ_j w_j), V' = Q_V·Z columns, for the kept j.
   for (let q = 0; q < r; q++)
