@@ -16,8 +16,9 @@ import type { PanelSet } from "./panels.js";
 import { galerkinEntry, RHO_FAR, RHO_QUADRUPOLE } from "./galerkin.js";
 import { collocationEntry, COLLOCATION_FAR } from "./collocation.js";
 import { sharedFloat64, sharedPool, type WorkerPool } from "../linalg/pool.js";
+import { task } from "../linalg/task.js";
 import { hasImages, imageSet, type ImageSet, type KernelSpec } from "./images.js";
-import { interfaceRowEntry, normalFieldAt, type InterfaceTesting } from "./interface.js";
+import { interfaceRowEntry, interfaceRows, interfaceRowsTask, normalFieldAt, type InterfaceTesting } from "./interface.js";
 import { unitField } from "./field.js";
 
 export type Discretisation = "galerkin" | "collocation";
@@ -193,12 +194,8 @@ export function rowSplit(n: number, parts: number, method: Discretisation): Uint
   return b;
 }
 
-/** Worker task: rows [rowStart, rowEnd) into the shared matrix; returns the row count. */
-export function assembleRowsTask(P: PanelSet, method: Discretisation, rowStart: number, rowEnd: number, out: Float64Array,
-  images?: ImageSet): number {
-  assembleRows(P, method, rowStart, rowEnd, out, images);
-  return rowEnd - rowStart;
-}
+/** Rows [rowStart, rowEnd) into the shared matrix, in a worker. */
+export const assembleRowsTask = task(import.meta.url, { assembleRows });
 
 /** A PanelSet whose arrays are all in shared memory (returned as is when they already are). */
 export function sharedPanels(P: PanelSet): PanelSet {
@@ -230,9 +227,9 @@ export async function assembleDense(P: PanelSet, method: Discretisation, pool: W
   const images = preparedImages(S, kernel, true);
   const parts = Math.max(1, Math.min(pool.size, n));
   const b = rowSplit(n, parts, method);
-  const args: unknown[][] = [];
+  const args: Parameters<typeof assembleRows>[] = [];
   for (let k = 0; k < parts; k++) args.push(images ? [S, method, b[k], b[k + 1], out, images] : [S, method, b[k], b[k + 1], out]);
-  await pool.map(import.meta.url, "assembleRowsTask", args);
+  await pool.map(assembleRowsTask, args);
   return out;
 }
 
@@ -297,13 +294,12 @@ export async function assembleWithInterfaces(P: PanelSet, nConductor: number, la
   const lam = sharedFloat64(ni);
   lam.set(lambda);
   const parts = Math.max(1, Math.min(pool.size, ni));
-  const url = new URL(import.meta.url.endsWith(".ts") ? "./interface.ts" : "./interface.js", import.meta.url).href;
-  const args: unknown[][] = [];
+  const args: Parameters<typeof interfaceRows>[] = [];
   for (let p = 0; p < parts; p++) {
     const a0 = Math.round((ni * p) / parts), a1 = Math.round((ni * (p + 1)) / parts);
     args.push(images ? [S, rows, lam, a0, a1, out, testing, images] : [S, rows, lam, a0, a1, out, testing]);
   }
-  await pool.map(url, "interfaceRowsTask", args);
+  await pool.map(interfaceRowsTask, args);
   return out;
 }
 
@@ -363,7 +359,7 @@ export function normalFieldBlock(P: PanelSet, flag: Uint8Array, rows: Uint32Arra
 
 /**
  * The field of unit panel charges at panel centroids, three matrices at once (the entry
- * generator of a vector kernel, linalg/hmatrix-apply.ts): out[(comp·m + a)·nc + b] = component
+ * generator of a vector kernel, linalg/apply-once.ts): out[(comp·m + a)·nc + b] = component
  * comp of −∇I_j(c_i)/A_j (1/m², before 1/(4πε)), i = rows[a], j = cols[b], m = rows.length
  * (field.ts unitField; the own panel's normal part is its principal value). With `images`,
  * the mirror panels' fields are added with their signs.
@@ -391,3 +387,9 @@ export function fieldBlock(P: PanelSet, rows: Uint32Array, cols: Uint32Array, ou
   }
 }
 const fieldScratch = new Float64Array(6);
+
+/** Entry generators of this file for the H-matrix code in the workers (linalg/entry-generator.ts). */
+export const assembleBlockTask = task(import.meta.url, { assembleBlock });
+export const assembleInterfaceBlockTask = task(import.meta.url, { assembleInterfaceBlock });
+export const normalFieldBlockTask = task(import.meta.url, { normalFieldBlock });
+export const fieldBlockTask = task(import.meta.url, { fieldBlock });

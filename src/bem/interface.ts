@@ -31,6 +31,7 @@
  */
 import type { PanelSet } from "./panels.js";
 import type { ImageSet } from "./images.js";
+import { task } from "../linalg/task.js";
 import { trianglePotentialGradient, triangleSolidAngle, PLANE_TOLERANCE } from "./triangle-potential.js";
 import { dunavantRule, type TriangleRule } from "./dunavant.js";
 
@@ -340,9 +341,5 @@ export function interfaceRowEntry(P: PanelSet, i: number, j: number, lambda: num
   return x;
 }
 
-/** Worker task: interfaceRows over [a0, a1); returns the row count. */
-export function interfaceRowsTask(P: PanelSet, rows: Uint32Array, lambda: Float64Array, a0: number, a1: number, out: Float64Array,
-  testing: InterfaceTesting, images?: ImageSet): number {
-  interfaceRows(P, rows, lambda, a0, a1, out, testing, images);
-  return a1 - a0;
-}
+/** interfaceRows in a worker. */
+export const interfaceRowsTask = task(import.meta.url, { interfaceRows });

@@ -5,12 +5,13 @@
  * This file is the only one in the solve that names the worker modules computing entries.
  */
 import type { PanelSet } from "../bem/panels.js";
-import { assembleDense, assembleWithInterfaces, preparedImages, type Discretisation } from "../bem/assembly.js";
+import { assembleDense, assembleWithInterfaces, preparedImages, assembleBlockTask, assembleInterfaceBlockTask, normalFieldBlockTask, type Discretisation } from "../bem/assembly.js";
 import type { ImageSet, KernelSpec } from "../bem/images.js";
 import type { InterfaceTesting } from "../bem/interface.js";
 import type { BlockOperator } from "../linalg/cg.js";
 import { denseMultiply } from "../linalg/dense.js";
-import { buildHMatrix, type EntrySource, type HMatrix } from "../linalg/hmatrix.js";
+import { buildHMatrix, type HMatrix } from "../linalg/hmatrix.js";
+import type { EntrySource, EntrySourceData } from "../linalg/entry-generator.js";
 import { sharedFloat64, type WorkerPool } from "../linalg/pool.js";
 
 /** Where the entries come from: bem/assembly.ts, on the panels and kernel given. */
@@ -29,19 +30,23 @@ export type WorkerEntries =
   | { kind: "normal field"; panels: PanelSet; flag: Uint8Array; images: ImageSet | undefined };
 
 /**
- * The worker task computing the entries: module URL, export name and the arguments before and
- * after (rows, cols, out). The one place of the solve that names a worker module.
+ * The worker task computing the entries (a typed handle, src/linalg/task.ts) and the arguments
+ * before and after (rows, cols, out). The one place of the solve that names worker entry generators.
  */
-export function workerEntrySource(entries: WorkerEntries): EntrySource {
-  const url = new URL(import.meta.url.endsWith(".ts") ? "../bem/assembly.ts" : "../bem/assembly.js", import.meta.url).href;
+export function workerEntrySource(entries: WorkerEntries): EntrySourceData {
   switch (entries.kind) {
     case "conductors":
-      return { module: url, name: "assembleBlock", before: [entries.panels], after: [entries.method, entries.images] };
+      return checkedSource({ task: assembleBlockTask, before: [entries.panels], after: [entries.method, entries.images] });
     case "interfaces":
-      return { module: url, name: "assembleInterfaceBlock", before: [entries.panels, entries.conductorPanels, entries.lambda], after: [entries.method, entries.testing, entries.images] };
+      return checkedSource({ task: assembleInterfaceBlockTask, before: [entries.panels, entries.conductorPanels, entries.lambda], after: [entries.method, entries.testing, entries.images] });
     case "normal field":
-      return { module: url, name: "normalFieldBlock", before: [entries.panels, entries.flag], after: [entries.images] };
+      return checkedSource({ task: normalFieldBlockTask, before: [entries.panels, entries.flag], after: [entries.images] });
   }
+}
+
+/** The source as written, its arguments checked against the generator's parameters. */
+function checkedSource<const B extends unknown[], const A extends unknown[]>(source: EntrySource<B, A>): EntrySourceData {
+  return source;
 }
 
 /**
@@ -109,7 +114,7 @@ export interface CompressedOperatorOptions {
 export async function compressedOperator(entries: OperatorEntries, opts: CompressedOperatorOptions): Promise<CompressedOperator> {
   const panels = entries.panels;
   let images: ImageSet | undefined;
-  let source: EntrySource;
+  let source: EntrySourceData;
   if (entries.kind === "conductors") {
     images = preparedImages(panels, entries.kernel, true);
     source = workerEntrySource({ kind: "conductors", panels, method: entries.method, images });

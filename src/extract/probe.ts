@@ -10,8 +10,9 @@ import { potentialAt, fieldAt } from "../bem/field.js";
 import type { PanelSet } from "../bem/panels.js";
 import type { ImageSet } from "../bem/images.js";
 import { sharedFloat64, type WorkerPool } from "../linalg/pool.js";
-import { applyOnce } from "../linalg/hmatrix-apply.js";
-import { sharedPanels } from "../bem/assembly.js";
+import { applyOnce } from "../linalg/apply-once.js";
+import { task } from "../linalg/task.js";
+import { fieldBlockTask, sharedPanels } from "../bem/assembly.js";
 
 export interface ProbeResult {
   /** Potential at each point; volts. */
@@ -59,11 +60,10 @@ export async function centroidFieldsParallel(panels: PanelSet, charge: Float64Ar
   const parts = pool ? Math.min(pool.size, Math.floor(list.length / PARALLEL_MIN_TARGETS)) : 0;
   if (!pool || parts < 2) return centroidFields(panels, charge, permittivity, list, images);
   const out = sharedFloat64(3 * list.length);
-  const url = new URL(import.meta.url.endsWith(".ts") ? "./probe.ts" : "./probe.js", import.meta.url).href;
   const step = Math.ceil(list.length / parts);
   await Promise.all(Array.from({ length: parts }, (_, w) => {
     const a0 = w * step, a1 = Math.min(list.length, a0 + step);
-    return pool.runOn(w, url, "centroidFieldsTask", [panels, charge, permittivity, list.subarray(a0, a1), images, out, 3 * a0]);
+    return pool.run(centroidFieldsTask, w, [panels, charge, permittivity, list.subarray(a0, a1), images, out, 3 * a0]);
   }));
   return Float64Array.from(out);
 }
@@ -71,7 +71,7 @@ export async function centroidFieldsParallel(panels: PanelSet, charge: Float64Ar
 /**
  * E_pv at the centroids of the listed panels (3 per listed panel; V/m) in about N log N work:
  * the field of all the panel charges, evaluated block by block over an H-matrix block tree
- * without storing it (linalg/hmatrix-apply.ts; near blocks with the closed-form panel
+ * without storing it (linalg/apply-once.ts; near blocks with the closed-form panel
  * integrals, admissible blocks through ACA+ of the three field matrices stacked, to
  * `tolerance` per block). Used where the all-pairs sum of centroidFields would cost minutes
  * (an 80k-panel pad array: 6.4·10⁹ panel pairs); below FAST_FIELD_PAIRS target-source pairs it
@@ -84,8 +84,7 @@ export async function centroidFieldsFast(panels: PanelSet, charge: Float64Array,
   const S = sharedPanels(panels);
   const wanted = new Uint8Array(n);
   for (let a = 0; a < list.length; a++) wanted[list[a]] = 1;
-  const url = new URL(import.meta.url.endsWith(".ts") ? "../bem/assembly.ts" : "../bem/assembly.js", import.meta.url).href;
-  const y = await applyOnce(S.centroids, { source: { module: url, name: "fieldBlock", before: [S], after: [images] } }, charge, {
+  const y = await applyOnce(S.centroids, { source: { task: fieldBlockTask, before: [S], after: [images] } }, charge, {
     tolerance, components: 3, pad: S.radii, rows: wanted, pool,
   });
   const k = 1 / (4 * Math.PI * permittivity), out = new Float64Array(3 * list.length);
@@ -103,11 +102,13 @@ export const FAST_FIELD_PAIRS = 3e7;
 const PARALLEL_MIN_TARGETS = 64;
 
 /** Worker task: centroidFields for `list`, written into the shared `out` from `outOff`. */
-export function centroidFieldsTask(panels: PanelSet, charge: Float64Array, permittivity: number, list: Uint32Array,
+export function centroidFieldsInto(panels: PanelSet, charge: Float64Array, permittivity: number, list: Uint32Array,
   images: ImageSet | undefined, out: Float64Array, outOff: number): number {
   out.set(centroidFields(panels, charge, permittivity, list, images), outOff);
   return list.length;
 }
+
+export const centroidFieldsTask = task(import.meta.url, { centroidFieldsInto });
 
 /** Probe an extraction's field at the working potentials (finest mesh). */
 export function probeExtraction(r: { panels: PanelSet; excitation: { charge: Float64Array }; permittivity: number; images?: ImageSet;

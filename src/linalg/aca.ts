@@ -10,12 +10,12 @@
  * larger of the two, so a whole block is not missed. Stopping rule (ibid., eq. 3.4):
  * ‖u_q‖‖v_q‖ ≤ ε‖S_q‖_F, with ‖S_q‖_F updated exactly from the earlier terms.
  *
- * The caller then recompresses (low-rank.ts `recompress`). When the rank would reach the
+ * The caller then recompresses (recompression.ts `recompress`). When the rank would reach the
  * point where dense storage is cheaper, `aca` reports failure and the caller stores the
  * block dense.
  */
 
-import { recompress, recompressFromGram, GRAM_TOLERANCE_FLOOR } from "./low-rank.js";
+import { recompress, recompressFromGram, GRAM_TOLERANCE_FLOOR } from "./recompression.js";
 
 /** Fill out[0..n) with row i (0..m) of the block. */
 export type BlockRow = (i: number, out: Float64Array) => void;
@@ -30,7 +30,7 @@ let usedRow = new Uint8Array(0), usedCol = new Uint8Array(0);
  * Gram matrices of the factors of the last `aca` call, packed lower triangle by rows
  * (entry (q, p), p ≤ q, at q(q+1)/2 + p): gramU = UᵀU, gramV = VᵀV. The stopping rule needs
  * these inner products anyway, so keeping them makes the recompression's orthogonalisation
- * free (low-rank.ts recompressFromGram).
+ * free (recompression.ts recompressFromGram).
  */
 export let gramU = new Float64Array(0), gramV = new Float64Array(0);
 

@@ -30,6 +30,7 @@
  */
 import { sharedFloat64, type WorkerPool } from "./pool.js";
 import { gemmStridedSimd, simdAvailable } from "./wasm-kernel.js";
+import { task } from "./task.js";
 import { columnNorms, type BlockOperator, type BlockPreconditioner, type KrylovOptions, type KrylovResult } from "./cg.js";
 
 /**
@@ -70,11 +71,12 @@ export function gemm(C: Float64Array, cOff: number, ldc: number,
   }
 }
 
+export const gemmTask = task(import.meta.url, { gemm });
+
 /** Splits the block products over the main thread and the pool's workers. */
 class Products {
   private readonly parts: number;
   private scratch: Float64Array[] = [];
-  private readonly url = import.meta.url;
   constructor(private readonly pool: WorkerPool | undefined, private readonly minWork: number, k: number) {
     this.parts = pool ? Math.max(1, pool.size) : 1;
     // Partial sums of the depth-split products, one k×k per worker share.
@@ -89,7 +91,7 @@ class Products {
     const step = Math.ceil(m / parts), jobs: Promise<unknown>[] = [];
     for (let q = 1; q < parts; q++) {
       const r0 = q * step, rows = Math.min(m, r0 + step) - r0;
-      if (rows > 0) jobs.push(this.pool!.runOn(q - 1, this.url, "gemm", [C, r0 * ldc, ldc, A, r0 * aRow, aRow, aCol, B, 0, bRow, bCol, rows, p, kc, alpha]));
+      if (rows > 0) jobs.push(this.pool!.run(gemmTask, q - 1, [C, r0 * ldc, ldc, A, r0 * aRow, aRow, aCol, B, 0, bRow, bCol, rows, p, kc, alpha]));
     }
     gemm(C, 0, ldc, A, 0, aRow, aCol, B, 0, bRow, bCol, Math.min(m, step), p, kc, alpha);
     await Promise.all(jobs);
@@ -108,7 +110,7 @@ class Products {
       const S = this.scratch[q - 1];
       S.fill(0, 0, m * p);
       used.push(S);
-      jobs.push(this.pool!.runOn(q - 1, this.url, "gemm", [S, 0, p, A, t0 * aCol, aRow, aCol, B, t0 * bCol, bRow, bCol, m, p, depth, 1]));
+      jobs.push(this.pool!.run(gemmTask, q - 1, [S, 0, p, A, t0 * aCol, aRow, aCol, B, t0 * bCol, bRow, bCol, m, p, depth, 1]));
     }
     gemm(C, 0, p, A, 0, aRow, aCol, B, 0, bRow, bCol, m, p, Math.min(kc, step), 1);
     await Promise.all(jobs);

@@ -11,10 +11,10 @@
  * Only the lower triangle of A is read; on return it holds L. The strictly upper triangle
  * is left as it was.
  */
-import { type DenseKernel, rowSplits, isShared } from "./dense.js";
-import { choleskyPanel, choleskyUpdate } from "./tasks.js";
-import { solveLower, solveLowerTransposed } from "./triangular.js";
+import { type DenseKernel, denseKernelInUse, gemmNT, isShared, packRows, rowSplits } from "./dense.js";
+import { PANEL_BLOCK, solveLower, solveLowerTransposed, solveRowsLowerTransposedRight } from "./triangular.js";
 import { type WorkerPool, sharedFloat64 } from "./pool.js";
+import { task } from "./task.js";
 
 /** A is not (numerically) positive definite: the pivot of row `pivot` (0-based) was ≤ 0. */
 export class NotPositiveDefiniteError extends Error {
@@ -39,7 +39,8 @@ export interface CholeskyOptions {
 
 export const DEFAULT_BLOCK = 96;
 
-const tasksUrl = new URL(import.meta.url.endsWith(".ts") ? "./tasks.ts" : "./tasks.js", import.meta.url).href;
+// Per-thread scratch (each worker is its own isolate), grown on demand.
+let l11 = new Float64Array(0);
 
 /**
  * Unblocked Cholesky–Crout on the nb×nb block at `off` (stride ld), row-oriented so every
@@ -103,12 +104,44 @@ export async function choleskyFactor(A: Float64Array, n: number, opts: CholeskyO
       continue;
     }
     const even = rowSplits(i0, n, parts, false);
-    await pool.map(tasksUrl, "choleskyPanel", even.slice(0, -1).map((r, t) => [S, n, j0, w, P, r, even[t + 1], kernel]));
+    await pool.map(choleskyPanelTask, even.slice(0, -1).map((r, t) => [S, n, j0, w, P, r, even[t + 1], kernel]));
     const tri = rowSplits(i0, n, parts, true);
-    await pool.map(tasksUrl, "choleskyUpdate", tri.slice(0, -1).map((r, t) => [S, n, j0, w, P, r, tri[t + 1], kernel]));
+    await pool.map(choleskyUpdateTask, tri.slice(0, -1).map((r, t) => [S, n, j0, w, P, r, tri[t + 1], kernel]));
   }
   if (S !== A) A.set(S);
 }
+
+/**
+ * Cholesky panel: rows r0..r1 of column block j0..j0+nb become L21 = A21·L11⁻ᵀ (L11 already
+ * factored in place), and are copied into the packed panel P (row r at (r − j0 − nb)·nb).
+ */
+export function choleskyPanel(A: Float64Array, n: number, j0: number, nb: number, P: Float64Array, r0: number, r1: number, kernel: DenseKernel = "auto"): void {
+  if (r1 <= r0) return;
+  // L11 packed: in place its rows sit a page or more apart, and every panel row reads all of them.
+  if (l11.length < nb * nb) l11 = new Float64Array(nb * nb);
+  packRows(l11, 0, A, j0 * n + j0, n, nb, nb);
+  const rows = r1 - r0, x = r0 * n + j0;
+  // Column blocks of X·L11ᵀ = A21, left-looking (Golub & Van Loan, 4th ed., §3.1.4 block
+  // triangular solve): columns c0.. first lose X[:, 0..c0)·L11[c0.., 0..c0)ᵀ through the
+  // packed kernel, then a bs-wide triangular solve; only that solve runs as scalar code.
+  const bs = denseKernelInUse(kernel) === "wasm" ? PANEL_BLOCK : nb;
+  for (let c0 = 0; c0 < nb; c0 += bs) {
+    const w = Math.min(bs, nb - c0);
+    if (c0 > 0) gemmNT(A, x + c0, n, A, x, n, l11, c0 * nb, nb, rows, w, c0, w, -1, kernel);
+    solveRowsLowerTransposedRight(l11, c0 * nb + c0, nb, w, A, x + c0, n, rows);
+  }
+  packRows(P, (r0 - j0 - nb) * nb, A, x, n, rows, nb);
+}
+
+/** Cholesky trailing update of rows r0..r1, lower triangle only: A22 ← A22 − L21·L21ᵀ. */
+export function choleskyUpdate(A: Float64Array, n: number, j0: number, nb: number, P: Float64Array, r0: number, r1: number, kernel: DenseKernel = "auto"): void {
+  if (r1 <= r0) return;
+  const i0 = j0 + nb;
+  gemmNT(A, r0 * n + i0, n, P, (r0 - i0) * nb, nb, P, 0, nb, r1 - r0, r1 - i0, nb, r0 - i0, -1, kernel);
+}
+
+export const choleskyPanelTask = task(import.meta.url, { choleskyPanel });
+export const choleskyUpdateTask = task(import.meta.url, { choleskyUpdate });
 
 /**
  * Solve A·X = B for all k right-hand sides at once, given the lower factor L of A

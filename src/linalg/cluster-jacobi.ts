@@ -10,6 +10,8 @@
 import { choleskyFactorSerial, choleskySolve, NotPositiveDefiniteError } from "./cholesky.js";
 import { luFactorSerial, luSolve } from "./lu.js";
 import { applyInverse, blockInverseAvailable, choleskyInverseInPlace, luInverseInPlace } from "./block-inverse.js";
+import type { WorkerPool } from "./pool.js";
+import { task } from "./task.js";
 
 export type BlockPreconditionerFn = (R: Float64Array, Z: Float64Array, k: number) => void;
 
@@ -84,10 +86,6 @@ export const BLOCK_CHOLESKY = 0, BLOCK_LU = 1, BLOCK_INVERSE = 2;
 let nextJacobiId = 1;
 const installedJacobi = new Map<number, SharedBlockJacobi>();
 
-function jacobiUrl(): string {
-  return new URL(import.meta.url.endsWith(".ts") ? "./cluster-jacobi.ts" : "./cluster-jacobi.js", import.meta.url).href;
-}
-
 /**
  * As blockJacobiFromBlocks, but the factorisation and every application run on `pool`'s
  * workers. `blocks` are moved into shared memory (each entry of the list is replaced by an
@@ -97,7 +95,7 @@ function jacobiUrl(): string {
  * reference, and what a thread without WebAssembly SIMD does anyway).
  */
 export async function parallelBlockJacobi(blocks: Float64Array[] | ((into: Float64Array[]) => void), sets: Uint32Array[], n: number,
-  pool: { size: number; runOn<T>(w: number, module: string, fn: string, args: unknown[]): Promise<T> },
+  pool: Pick<WorkerPool, "size" | "run">,
   opts: { lu?: boolean; inverse?: boolean } = {}): Promise<{ apply: AsyncBlockPreconditionerFn; release: () => Promise<void>; kind: Uint8Array }> {
   const nb = sets.length;
   if (Array.isArray(blocks) && blocks.length !== nb) throw new RangeError(`${blocks.length} diagonal blocks for ${nb} index sets`);
@@ -134,28 +132,28 @@ export async function parallelBlockJacobi(blocks: Float64Array[] | ((into: Float
   }
   parts[threads] = nb;
   const layout: SharedBlockJacobi = { factors, offsets, index, istart, pivots, kind, parts, lu: !!opts.lu, inverse: opts.inverse ?? true };
-  const id = nextJacobiId++, url = jacobiUrl();
-  await Promise.all(Array.from({ length: threads }, (_, w) => pool.runOn(w, url, "clusterJacobiInstallTask", [id, w, layout])));
+  const id = nextJacobiId++;
+  await Promise.all(Array.from({ length: threads }, (_, w) => pool.run(clusterJacobiInstallTask, w, [id, w, layout])));
   const free: number[] = [];
   for (let i = 0; i < n; i++) if (!covered[i]) free.push(i);
   const freeRows = Uint32Array.from(free);
   return {
     apply: async (R, Z, k) => {
       for (let a = 0; a < freeRows.length; a++) { const r = freeRows[a] * k; for (let c = 0; c < k; c++) Z[r + c] = R[r + c]; }
-      await Promise.all(Array.from({ length: threads }, (_, w) => pool.runOn(w, url, "clusterJacobiApplyTask", [id, w, R, Z, k])));
+      await Promise.all(Array.from({ length: threads }, (_, w) => pool.run(clusterJacobiApplyTask, w, [id, w, R, Z, k])));
     },
     release: async () => {
-      await Promise.all(Array.from({ length: threads }, (_, w) => pool.runOn(w, url, "clusterJacobiReleaseTask", [id])));
+      await Promise.all(Array.from({ length: threads }, (_, w) => pool.run(clusterJacobiReleaseTask, w, [id])));
     },
     kind,
   };
 }
 
 /**
- * Worker task: keep the layout and factor this worker's share of the blocks in place, then
+ * In a worker: keep the layout and factor this worker's share of the blocks in place, then
  * (L.inverse) overwrite each factor with the block's inverse.
  */
-export function clusterJacobiInstallTask(id: number, part: number, L: SharedBlockJacobi): number {
+export function installAndFactorShare(id: number, part: number, L: SharedBlockJacobi): number {
   installedJacobi.set(id, L);
   const b0 = L.parts[part], b1 = L.parts[part + 1];
   const invert = L.inverse && blockInverseAvailable();
@@ -177,14 +175,14 @@ export function clusterJacobiInstallTask(id: number, part: number, L: SharedBloc
   return b1 - b0;
 }
 
-export function clusterJacobiReleaseTask(id: number): boolean {
+export function releaseShare(id: number): boolean {
   return installedJacobi.delete(id);
 }
 
 let Wj = new Float64Array(0), Wz = new Float64Array(0);
 
-/** Worker task: Z rows of this worker's blocks = D_b⁻¹·R rows. */
-export function clusterJacobiApplyTask(id: number, part: number, R: Float64Array, Z: Float64Array, k: number): number {
+/** In a worker: Z rows of this worker's blocks = D_b⁻¹·R rows. */
+export function applyShare(id: number, part: number, R: Float64Array, Z: Float64Array, k: number): number {
   const L = installedJacobi.get(id);
   if (!L) throw new Error(`block-Jacobi preconditioner ${id} is not installed in this worker`);
   const b0 = L.parts[part], b1 = L.parts[part + 1];
@@ -203,3 +201,7 @@ export function clusterJacobiApplyTask(id: number, part: number, R: Float64Array
   }
   return b1 - b0;
 }
+
+export const clusterJacobiInstallTask = task(import.meta.url, { installAndFactorShare });
+export const clusterJacobiApplyTask = task(import.meta.url, { applyShare });
+export const clusterJacobiReleaseTask = task(import.meta.url, { releaseShare });

@@ -14,6 +14,8 @@
  * V8 has no SIMD in plain loops), which is the fallback and stays tested. `gemmNT` picks.
  */
 import { gemmNTSimd, simdAvailable } from "./wasm-kernel.js";
+import type { WorkerPool } from "./pool.js";
+import { task } from "./task.js";
 
 /**
  * Which implementation of the trailing-update kernel to use: "wasm" (WebAssembly SIMD,
@@ -214,9 +216,7 @@ export function isShared(a: Float64Array): boolean {
   return a.buffer instanceof SharedArrayBuffer;
 }
 
-import type { WorkerPool } from "./pool.js";
-
-const tasksUrl = new URL(import.meta.url.endsWith(".ts") ? "./tasks.ts" : "./tasks.js", import.meta.url).href;
+export const multiplyRowsTask = task(import.meta.url, { multiplyRows });
 
 // Xᵀ scratch for the products, grown on demand so repeated products do not allocate.
 let xtLocal = new Float64Array(0);
@@ -258,7 +258,7 @@ export async function denseMultiply(
   const s = rowSplits(0, n, pool.size, false);
   if (!own) xtBusy = true;
   try {
-    await pool.map(tasksUrl, "multiplyRowRange", s.slice(0, -1).map((r, t) => [A, n, Xs, Xt, k, Ys, r, s[t + 1]]));
+    await pool.map(multiplyRowsTask, s.slice(0, -1).map((r, t) => [A, n, Xs, Xt, k, Ys, r, s[t + 1]]));
   } finally {
     if (!own) xtBusy = false;
   }

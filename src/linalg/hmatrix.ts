@@ -1,16 +1,17 @@
 /**
  * Hierarchical matrix (H-matrix): a square matrix over points in space, stored as the
  * leaves of a block cluster tree (block-tree.ts): admissible blocks as low-rank factors
- * from ACA+ with recompression (aca.ts, low-rank.ts), the rest dense (Hackbusch,
- * Hierarchical Matrices, Springer 2015, ch. 6; Bebendorf, Hierarchical Matrices, Springer
- * 2008, ch. 3). Storage and product cost grow like N log N for asymptotically smooth
- * kernels.
+ * (low-rank-block.ts) from ACA+ with recompression (aca.ts, recompression.ts), the rest
+ * dense (dense-block.ts) (Hackbusch, Hierarchical Matrices, Springer 2015, ch. 6;
+ * Bebendorf, Hierarchical Matrices, Springer 2008, ch. 3). Storage and product cost grow
+ * like N log N for asymptotically smooth kernels.
  *
- * The matrix is known only through an entry generator; nothing here knows what the
- * entries mean. The build is split into chunks of independent blocks that run on the
- * worker pool (each worker imports the generator by module URL and name, hmatrix-tasks.ts);
- * the product splits the block uses over the workers, each accumulating its own copy of Y
- * in shared memory, summed afterwards, so no two threads write the same entry.
+ * The matrix is known only through an entry generator (entry-generator.ts); nothing here
+ * knows what the entries mean. The build is split into chunks of independent blocks that
+ * run on the worker pool (hmatrix-build.ts: each worker imports the generator its
+ * EntrySource names); the product splits the block uses over the workers
+ * (hmatrix-product.ts), each accumulating its own copy of Y in shared memory, summed
+ * afterwards, so no two threads write the same entry.
  *
  * Vectors passed to `apply` are in the caller's index order, n×k row-major; internally
  * everything is in tree order (every cluster a contiguous range).
@@ -18,12 +19,13 @@
 import { clusterPoints, type ClusterTree } from "./cluster.js";
 import { blockTree, type BlockTree } from "./block-tree.js";
 import { sharedFloat64, type WorkerPool } from "./pool.js";
+import { loadGenerator, type EntryGenerator, type EntrySource, type EntrySourceData } from "./entry-generator.js";
+import { buildChunk, hmatrixBuildTask, JOB_FAR, JOB_FIELDS, JOB_NEAR, type BuiltChunk } from "./hmatrix-build.js";
 import {
-  BLOCK_FIELDS, JOB_FAR, JOB_FIELDS, JOB_NEAR, buildChunk, partProduct,
-  type BuiltChunk, type EntryGenerator, type EntrySource, type HMatrixLayout, type ProductKernel,
-} from "./hmatrix-tasks.js";
+  BLOCK_FIELDS, hmatrixInstallTask, hmatrixProductTask, hmatrixReleaseTask, partProduct, type HMatrixLayout, type ProductKernel,
+} from "./hmatrix-product.js";
 
-export type { EntryGenerator, EntrySource } from "./hmatrix-tasks.js";
+export type { EntryGenerator, EntrySource } from "./entry-generator.js";
 
 export interface HMatrixOptions {
   /** Relative accuracy of each admissible block (Frobenius); e.g. 1e-5. */
@@ -83,7 +85,7 @@ export class HMatrix {
 
   /**
    * Y = H·X, n×k row-major in the caller's order (X and Y distinct); `kernel` picks the block
-   * product code (hmatrix-tasks.ts ProductKernel: "js" only to check or time the SIMD path).
+   * product code (hmatrix-product.ts ProductKernel: "js" only to check or time the SIMD path).
    */
   async apply(X: Float64Array, Y: Float64Array, k: number, kernel: ProductKernel = "auto"): Promise<void> {
     const n = this.n, nk = n * k, order = this.tree.order;
@@ -101,10 +103,10 @@ export class HMatrix {
     if (this.pool && parts > 1) {
       if (!this.installed) {
         await Promise.all(Array.from({ length: this.pool.size }, (_, w) =>
-          this.pool!.runOn(w, tasksUrl(), "hmatrixInstallTask", [this.id, this.layout])));
+          this.pool!.run(hmatrixInstallTask, w, [this.id, this.layout])));
         this.installed = true;
       }
-      await Promise.all(Yp.map((Yw, part) => this.pool!.runOn(part, tasksUrl(), "hmatrixProductTask", [this.id, part, Xp, Yw, k, kernel])));
+      await Promise.all(Yp.map((Yw, part) => this.pool!.run(hmatrixProductTask, part, [this.id, part, Xp, Yw, k, kernel])));
     } else {
       for (let part = 0; part < parts; part++) partProduct(this.layout, this.layout.uses[part], Xp, Yp[part], k, kernel);
     }
@@ -225,13 +227,9 @@ export class HMatrix {
   /** Forget the copies installed in the workers (the shared data is freed with this object). */
   async release(): Promise<void> {
     if (!this.installed || !this.pool) return;
-    await Promise.all(Array.from({ length: this.pool.size }, (_, w) => this.pool!.runOn(w, tasksUrl(), "hmatrixReleaseTask", [this.id])));
+    await Promise.all(Array.from({ length: this.pool.size }, (_, w) => this.pool!.run(hmatrixReleaseTask, w, [this.id])));
     this.installed = false;
   }
-}
-
-function tasksUrl(): string {
-  return new URL(import.meta.url.endsWith(".ts") ? "./hmatrix-tasks.ts" : "./hmatrix-tasks.js", import.meta.url).href;
 }
 
 /**
@@ -239,8 +237,9 @@ function tasksUrl(): string {
  * from `source` (run in the workers; see EntrySource) or, with no pool, from `generator`
  * on this thread.
  */
-export async function buildHMatrix(points: Float64Array, entries: { source?: EntrySource; generator?: EntryGenerator },
-  opts: HMatrixOptions): Promise<HMatrix> {
+export async function buildHMatrix<const B extends unknown[] = [], const A extends unknown[] = []>(points: Float64Array,
+  entries: { source?: EntrySource<B, A> | EntrySourceData; generator?: EntryGenerator }, opts: HMatrixOptions): Promise<HMatrix> {
+  const source: EntrySourceData | undefined = entries.source;
   const t0 = performance.now();
   const n = points.length / 3;
   const leafSize = opts.leafSize ?? 32, eta = opts.eta ?? 2;
@@ -285,23 +284,21 @@ export async function buildHMatrix(points: Float64Array, entries: { source?: Ent
     if (doneNear < nearCost) opts.progress("near field", doneNear / nearCost);
     else opts.progress("far field", farCost > 0 ? doneFar / farCost : 1);
   };
-  if (opts.pool && entries.source) {
+  if (opts.pool && source) {
     const pool = opts.pool;
     let next = 0;
-    const url = tasksUrl();
     await Promise.all(Array.from({ length: pool.size }, async (_, w) => {
       while (next < chunks.length) {
         const c = next++;
-        built[c] = await pool.runOn<BuiltChunk>(w, url, "hmatrixBuildTask", [entries.source, order, chunkJobs(c), opts.tolerance]);
+        built[c] = await pool.run(hmatrixBuildTask, w, [source, order, chunkJobs(c), opts.tolerance]);
         finished(c);
       }
     }));
   } else {
     let gen = entries.generator;
     if (!gen) {
-      if (!entries.source) throw new Error("buildHMatrix needs an entry source or a generator");
-      const { loadGenerator } = await import("./hmatrix-tasks.js");
-      gen = await loadGenerator(entries.source);
+      if (!source) throw new Error("buildHMatrix needs an entry source or a generator");
+      gen = await loadGenerator(source);
     }
     for (let c = 0; c < chunks.length; c++) {
       const d = buildChunk(gen, order, chunkJobs(c), opts.tolerance);

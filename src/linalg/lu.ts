@@ -9,10 +9,10 @@
  * among the workers. The panel itself stays on the caller, factored in a packed copy.
  * Pivots follow LAPACK's ipiv convention, 0-based: at step c rows c and piv[c] were swapped.
  */
-import { type DenseKernel, gemmNT, isShared, packTransposed, rowSplits } from "./dense.js";
-import { luBlockRow, luUpdate, luUpdateColumns } from "./tasks.js";
-import { solveLower, solveUnitLowerLeft, solveUpper } from "./triangular.js";
+import { type DenseKernel, denseKernelInUse, gemmNT, isShared, packTransposed, rowSplits } from "./dense.js";
+import { PANEL_BLOCK, solveLower, solveUnitLowerLeft, solveUpper } from "./triangular.js";
 import { type WorkerPool, sharedFloat64 } from "./pool.js";
+import { task } from "./task.js";
 
 /** No non-zero finite pivot in column `column` (0-based): singular, or holding NaN/∞. */
 export class SingularMatrixError extends Error {
@@ -32,8 +32,6 @@ export interface LuOptions {
   /** Trailing-update kernel (default "auto": WebAssembly SIMD where available). */
   kernel?: DenseKernel;
 }
-
-const tasksUrl = new URL(import.meta.url.endsWith(".ts") ? "./tasks.ts" : "./tasks.js", import.meta.url).href;
 
 /**
  * Unblocked LU of columns c0..c0+w of the packed panel T (`rows` rows, stride ld), rows c0
@@ -166,14 +164,14 @@ export async function luFactor(A: Float64Array, n: number, opts: LuOptions = {})
       continue;
     }
     const s = rowSplits(i0, n, pool.size, false);
-    await pool.map(tasksUrl, "luBlockRow", s.slice(0, -1).map((c, t) => [S, n, j0, w, Q, c, s[t + 1], kernel]));
+    await pool.map(luBlockRowTask, s.slice(0, -1).map((c, t) => [S, n, j0, w, Q, c, s[t + 1], kernel]));
     // Look-ahead (Kurzak & Dongarra, "Implementing linear algebra routines on multi-core
     // processors with pipelining and a look ahead", PARA 2006): the caller updates and
     // factors the next panel while the workers update the columns right of it. The
     // panel's row exchanges wait for the workers, who read L21 in the columns left of it;
     // exchanging rows after a row-wise update equals exchanging them before.
     const c1 = i0 + w2;
-    const rest = pool.map(tasksUrl, "luUpdateColumns", s.slice(0, -1).map((r, t) => [S, n, j0, w, Q, r, s[t + 1], c1, n, kernel]));
+    const rest = pool.map(luUpdateColumnsTask, s.slice(0, -1).map((r, t) => [S, n, j0, w, Q, r, s[t + 1], c1, n, kernel]));
     let failure: unknown;
     try {
       luUpdateColumns(S, n, j0, w, Q, i0, n, i0, c1, kernel);
@@ -206,3 +204,52 @@ function checkSize(A: Float64Array, n: number): void {
   if (!Number.isInteger(n) || n < 0) throw new RangeError(`matrix order ${n} is not a non-negative integer`);
   if (A.length < n * n) throw new RangeError(`matrix holds ${A.length} values, need ${n}×${n}`);
 }
+
+/**
+ * LU block row: columns c0..c1 of U12 = L11⁻¹·A12 for the column block j0..j0+nb (L11 in
+ * place), packed transposed into Q (column j as row j − j0 − nb).
+ */
+export function luBlockRow(A: Float64Array, n: number, j0: number, nb: number, Q: Float64Array, c0: number, c1: number, kernel: DenseKernel = "auto"): void {
+  if (c1 <= c0) return;
+  const p = c1 - c0, q0 = (c0 - j0 - nb) * nb;
+  if (denseKernelInUse(kernel) !== "wasm") {
+    solveUnitLowerLeft(A, j0 * n + j0, n, nb, A, j0 * n + c0, n, p);
+    packTransposed(Q, q0, A, j0 * n + c0, n, nb, p);
+    return;
+  }
+  // Row blocks of L11·U12 = A12, top down (Golub & Van Loan, 4th ed., §3.1.4): rows r0..
+  // first lose L11[r0.., 0..r0)·U12[0..r0, :] through the packed kernel, reading the rows
+  // already solved from their transposed copy in Q; then a bs-row unit triangular solve.
+  for (let r0 = 0; r0 < nb; r0 += PANEL_BLOCK) {
+    const w = Math.min(PANEL_BLOCK, nb - r0), row = (j0 + r0) * n;
+    if (r0 > 0) gemmNT(A, row + c0, n, A, row + j0, n, Q, q0, nb, w, p, r0, p, -1, kernel);
+    solveUnitLowerLeft(A, row + j0 + r0, n, w, A, row + c0, n, p);
+    for (let r = 0; r < w; r++) {
+      const a = row + r * n + c0, d = q0 + r0 + r;
+      for (let c = 0; c < p; c++) Q[d + c * nb] = A[a + c];
+    }
+  }
+}
+
+/**
+ * LU trailing update of rows r0..r1: A22 ← A22 − L21·U12, with U12 packed transposed in Q
+ * (column j of U12 as row j − j0 − nb of Q, length nb).
+ */
+export function luUpdate(A: Float64Array, n: number, j0: number, nb: number, Q: Float64Array, r0: number, r1: number, kernel: DenseKernel = "auto"): void {
+  if (r1 <= r0) return;
+  const i0 = j0 + nb;
+  gemmNT(A, r0 * n + i0, n, A, r0 * n + j0, n, Q, 0, nb, r1 - r0, n - i0, nb, n, -1, kernel);
+}
+
+/**
+ * Columns c0..c1 (c0 ≥ j0 + nb) of the LU trailing update of rows r0..r1, for the
+ * look-ahead of luFactor: the next panel's columns and the rest go to different threads.
+ */
+export function luUpdateColumns(A: Float64Array, n: number, j0: number, nb: number, Q: Float64Array, r0: number, r1: number, c0: number, c1: number, kernel: DenseKernel = "auto"): void {
+  if (r1 <= r0 || c1 <= c0) return;
+  const i0 = j0 + nb;
+  gemmNT(A, r0 * n + c0, n, A, r0 * n + j0, n, Q, (c0 - i0) * nb, nb, r1 - r0, c1 - c0, nb, c1 - c0, -1, kernel);
+}
+
+export const luBlockRowTask = task(import.meta.url, { luBlockRow });
+export const luUpdateColumnsTask = task(import.meta.url, { luUpdateColumns });

@@ -1,27 +1,35 @@
 /**
  * A small pool of worker threads for the heavy loops (assembly, factorisation, products).
  *
- * A task is a named export of an ES module, called in a worker with arguments that are
- * structured-cloned; `SharedArrayBuffer`s inside them are shared, not copied, so tasks
- * work in place on shared typed arrays. The pool knows nothing of what tasks compute.
+ * A task is an exported function of an ES module, named by a typed handle (task.ts), called
+ * in a worker with arguments that are structured-cloned; `SharedArrayBuffer`s inside them are
+ * shared, not copied, so tasks work in place on shared typed arrays. The pool knows nothing
+ * of what tasks compute.
  *
  * Workers load compiled JavaScript. When the caller's module is TypeScript source (as
- * under the test runner), `compiledUrl` maps `<root>/src/a/b.ts` to `<root>/dist/src/a/b.js`;
- * `npm test` builds first, so the compiled files are current.
+ * under the test runner), `compiledUrl` maps `<root>/src/a/b.ts` to `<root>/dist/src/a/b.js`
+ * and refuses a compiled file older than its source, so a worker never runs stale code
+ * unnoticed (the test setup, tests/setup/build.ts, rebuilds before the run).
  */
 import { Worker } from "node:worker_threads";
 import { availableParallelism } from "node:os";
-import { existsSync } from "node:fs";
+import { statSync } from "node:fs";
 import { fileURLToPath, pathToFileURL } from "node:url";
+import type { Task } from "./task.js";
 
-/** URL of the compiled JavaScript module for a module URL (identity for .js). */
+/**
+ * URL of the compiled JavaScript module for a module URL (identity for anything but .ts).
+ * Throws, naming both files, when the compiled module is missing or older than its source.
+ */
 export function compiledUrl(url: string): string {
   if (!url.endsWith(".ts")) return url;
   const path = fileURLToPath(url);
   const m = /^(.*)[\\/](src|cli)[\\/](.*)\.ts$/.exec(path);
   if (!m) throw new Error(`cannot map ${path} to its compiled module`);
   const js = `${m[1]}/dist/${m[2]}/${m[3]}.js`;
-  if (!existsSync(js)) throw new Error(`compiled module ${js} is missing: run npm run build`);
+  let built: number;
+  try { built = statSync(js).mtimeMs; } catch { throw new Error(`compiled module ${js} is missing: run npm run build`); }
+  if (built < statSync(path).mtimeMs) throw new Error(`compiled module ${js} is older than its source ${path}: run npm run build`);
   return pathToFileURL(js).href;
 }
 
@@ -70,20 +78,21 @@ export class WorkerPool {
     }
   }
 
-  /** Run `fn` of `module` on worker `index` (mod size). */
-  runOn<T>(index: number, module: string, fn: string, args: unknown[]): Promise<T> {
+  /** Run the task on worker `index` (mod size). */
+  run<F extends (...args: any[]) => unknown>(task: Task<F>, index: number, args: Parameters<F>): Promise<Awaited<ReturnType<F>>> {
     const w = this.workers[index % this.size];
     const id = this.nextId++;
-    return new Promise<T>((resolve, reject) => {
+    return new Promise<Awaited<ReturnType<F>>>((resolve, reject) => {
+      const module = compiledUrl(task.module); // throws (a rejection) before anything waits on the worker
       this.pending.set(id, { resolve: resolve as (v: unknown) => void, reject });
       w.ref();
-      w.postMessage({ id, module: compiledUrl(module), fn, args });
+      w.postMessage({ id, module, fn: task.name, args });
     }).finally(() => { if (this.pending.size === 0) for (const x of this.workers) x.unref(); });
   }
 
-  /** Run one call per argument list, spread across the workers; resolves in order. */
-  map<T>(module: string, fn: string, argLists: unknown[][]): Promise<T[]> {
-    return Promise.all(argLists.map((args, i) => this.runOn<T>(i, module, fn, args)));
+  /** Run the task once per argument list, call i on worker i (mod size); resolves in order. */
+  map<F extends (...args: any[]) => unknown>(task: Task<F>, argLists: Parameters<F>[]): Promise<Awaited<ReturnType<F>>[]> {
+    return Promise.all(argLists.map((args, i) => this.run(task, i, args)));
   }
 
   async close(): Promise<void> {

@@ -6,7 +6,7 @@
 import { type SurfaceMesh, triangleCount, vertexCount, conductorAreas } from "./model.js";
 import { buildEdgeTable, conductorTopology, orientSurfaces, conductorOrientation, type ConductorOrientation, type OrientationResult, type EdgeTable } from "./topology.js";
 import { conductorQuality, type MeshQuality } from "./quality.js";
-import { conductorProximity, enclosedConductors, resolveOverlaps, conductorTriangles, type ProximityOptions, type ProximityFinding } from "./proximity.js";
+import { conductorProximity, enclosedConductors, proximityTask, resolveOverlaps, conductorTriangles, type ProximityOptions, type ProximityFinding } from "./proximity.js";
 import { sharedPool, toShared } from "../linalg/pool.js";
 
 export interface ConductorCheck {
@@ -181,9 +181,8 @@ export const PARALLEL_MIN_TRIANGLES = 100_000;
 export async function checkMeshParallel(mesh: SurfaceMesh, opts: CheckOptions = {}): Promise<CheckReport> {
   const pool = sharedPool();
   if (triangleCount(mesh) < PARALLEL_MIN_TRIANGLES || pool.size < 2 || mesh.names.length < 2) return checkMesh(mesh, opts);
-  const module = import.meta.url.replace(/check\.(ts|js)$/, "proximity.$1");
   // The message is posted synchronously, so the worker starts while this thread computes.
-  const pending = pool.runOn<ProximityFinding[]>(1, module, "proximityTask", [toShared(mesh.positions), mesh.triangles, mesh.conductor, mesh.names.length, { ...opts }])
+  const pending = pool.run(proximityTask, 1, [toShared(mesh.positions), mesh.triangles, mesh.conductor, mesh.names.length, { ...opts }])
     .then((f): ProximityFinding[] | undefined => f, () => undefined);
   const finish = assembleLater(mesh, opts);
   // A worker that cannot start (no compiled module, say) costs time, not the answer.

@@ -15,6 +15,7 @@ import { buildBoxTree, triangleBoxes, forEachOverlappingPair, forEachItemInBox, 
 import { panelSizes } from "./quality.js";
 import { windingNumber as generalisedWinding } from "../geometry/solid-angle.js";
 import { triangleAreaVector } from "../geometry/triangle.js";
+import { task } from "../linalg/task.js";
 
 const cp = new Float64Array(3);
 
@@ -628,7 +629,9 @@ export function enclosedConductors(mesh: SurfaceMesh, closed: boolean[], boxes: 
  * Worker entry for `conductorProximity` (see src/linalg/pool.ts): the mesh arrives as its
  * typed arrays; findings go back as plain objects.
  */
-export function proximityTask(positions: Float64Array, triangles: Uint32Array, conductor: Uint32Array, conductors: number, opts: ProximityOptions): ProximityFinding[] {
+export function proximityOfArrays(positions: Float64Array, triangles: Uint32Array, conductor: Uint32Array, conductors: number, opts: ProximityOptions): ProximityFinding[] {
   const names = Array.from({ length: conductors }, (_, i) => String(i));
   return conductorProximity({ positions, triangles, conductor, names }, opts);
 }
+
+export const proximityTask = task(import.meta.url, { proximityOfArrays });

@@ -63,15 +63,15 @@ if (process.argv.includes("products") || (!quick && !only)) {
   // both workers. Flops: 2·m·n·k per dense block, 2·r·(m + n)·k per low-rank block, per use.
   const { buildHMatrix } = await import("../../dist/src/linalg/hmatrix.js");
   const { panelSetShared } = await import("../../dist/src/bem/panels.js");
+  const { assembleBlockTask } = await import("../../dist/src/bem/assembly.js");
   const { sharedPool, sharedFloat64 } = await import("../../dist/src/linalg/pool.js");
   const parts = [];
   for (let i = 0; i < 4; i++) for (let j = 0; j < 4; j++)
     parts.push({ ...plateMesh({ size: [0.008, 0.008], divisions: 25, center: [0.01 * i, 0.01 * j, 0] }), names: [`pad${i}${j}`] });
   const m = concatMeshes(parts);
   const panels = panelSetShared(m.positions, m.triangles);
-  const url = new URL("../../dist/src/bem/assembly.js", import.meta.url).href;
   const pool = sharedPool();
-  const H = await buildHMatrix(panels.centroids, { source: { module: url, name: "assembleBlock", before: [panels], after: ["galerkin", undefined] } },
+  const H = await buildHMatrix(panels.centroids, { source: { task: assembleBlockTask, before: [panels], after: ["galerkin", undefined] } },
     { tolerance: 1e-5, leafSize: 32, eta: 2, symmetric: true, pad: panels.radii, pool });
   const k = 64, n = panels.n, B = H.layout.blocks;
   let flops = 0;

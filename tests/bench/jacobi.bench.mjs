@@ -8,6 +8,7 @@ import { loadavg } from "node:os";
 import { plateMesh, sphereMesh } from "../../dist/src/mesh/primitives/index.js";
 import { concatMeshes } from "../../dist/src/mesh/model.js";
 import { panelSetShared } from "../../dist/src/bem/panels.js";
+import { assembleBlockTask } from "../../dist/src/bem/assembly.js";
 import { buildHMatrix } from "../../dist/src/linalg/hmatrix.js";
 import { parallelBlockJacobi } from "../../dist/src/linalg/cluster-jacobi.js";
 import { choleskyFactorSerial, choleskySolve } from "../../dist/src/linalg/cholesky.js";
@@ -71,10 +72,9 @@ const pads = arg("pads") ?? (all ? 36 : undefined);
 if (pads) {
   const { mesh } = padMesh(pads);
   const P = panelSetShared(mesh.positions, mesh.triangles);
-  const url = new URL("../../dist/src/bem/assembly.js", import.meta.url).href;
   const pool = sharedPool();
   let t = performance.now();
-  const H = await buildHMatrix(P.centroids, { source: { module: url, name: "assembleBlock", before: [P], after: ["galerkin", undefined] } },
+  const H = await buildHMatrix(P.centroids, { source: { task: assembleBlockTask, before: [P], after: ["galerkin", undefined] } },
     { tolerance: 1e-5, leafSize: 32, eta: 2, symmetric: true, pad: P.radii, pool });
   const n = P.n;
   console.log(`\n${pads} pads, ${n} panels (the compressed bench's geometry, Galerkin, tol 1e-5): H built in ${((performance.now() - t) / 1e3).toFixed(1)} s, 2 workers  load ${load()}`);

@@ -2,6 +2,7 @@ import { describe, it, expect, afterAll } from "vitest";
 import { plateMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes } from "../../src/mesh/model.js";
 import { panelSetShared } from "../../src/bem/panels.js";
+import { assembleBlockTask } from "../../src/bem/assembly.js";
 import { buildHMatrix } from "../../src/linalg/hmatrix.js";
 import { parallelBlockJacobi, BLOCK_INVERSE } from "../../src/linalg/cluster-jacobi.js";
 import { pcg } from "../../src/linalg/cg.js";
@@ -20,8 +21,7 @@ describe("block-Jacobi inverses on the Galerkin H-matrix of a pad array", () => 
       parts.push({ ...plateMesh({ size: [0.008, 0.008], divisions: 16, center: [0.01 * i, 0.01 * j, 0] }), names: [`pad${i}${j}`] });
     const m = concatMeshes(parts), k = 4;
     const P = panelSetShared(m.positions, m.triangles), n = P.n;
-    const url = new URL("../../src/bem/assembly.ts", import.meta.url).href;
-    const H = await buildHMatrix(P.centroids, { source: { module: url, name: "assembleBlock", before: [P], after: ["galerkin", undefined] } },
+    const H = await buildHMatrix(P.centroids, { source: { task: assembleBlockTask, before: [P], after: ["galerkin", undefined] } },
       { tolerance: 1e-5, leafSize: 32, eta: 2, symmetric: true, pad: P.radii, pool });
     try {
       // Unit potential on each pad in turn, as the extraction's right-hand sides.

@@ -1,6 +1,8 @@
 import { describe, it, expect } from "vitest";
 import { aca, compressBlock, gramU, gramV } from "../../src/linalg/aca.js";
-import { gramSchmidtQR, jacobiSVD, recompress, recompressFromGram } from "../../src/linalg/low-rank.js";
+import { gramSchmidtQR } from "../../src/linalg/qr.js";
+import { jacobiSVD } from "../../src/linalg/svd.js";
+import { recompress, recompressFromGram } from "../../src/linalg/recompression.js";
 import { clusterPoints } from "../../src/linalg/cluster.js";
 import { blockTree } from "../../src/linalg/block-tree.js";
 import { rng } from "./random.js";

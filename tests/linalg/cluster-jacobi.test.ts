@@ -6,7 +6,7 @@ import { pcg } from "../../src/linalg/cg.js";
 import { WorkerPool, sharedFloat64 } from "../../src/linalg/pool.js";
 import { clusterCover } from "../../src/extract/preconditioner.js";
 import { randomSpd, randomGeneral, rng, relDiff } from "./random.js";
-import { inverseMultiquadricModule } from "./kernel-matrix.js";
+import { inverseMultiquadricTask } from "./kernel-matrix.js";
 
 const pool = new WorkerPool(2);
 afterAll(async () => { await pool.close(); });
@@ -95,14 +95,13 @@ describe("block-Jacobi with explicit block inverses", () => {
 // multiquadric kernel 1/√(r² + δ²) on a point cloud (positive definite: Wendland, Scattered
 // Data Approximation, 2005, Thm 8.15). Linalg tests may not import bem, so the generator is a
 // data: URL module the workers import.
-const kernelModule = inverseMultiquadricModule;
 
 describe("block-Jacobi inverses on H-matrix diagonal blocks", () => {
   it("same application to 1e-12 and the same PCG iterations as the substitution, 2 cluster sizes", async () => {
     const N = 2000, r = rng(21), pts = new Float64Array(new SharedArrayBuffer(24 * N));
     // Points in a thin slab (a pad-like layout): cluster blocks are dense and well separated.
     for (let i = 0; i < N; i++) { pts[3 * i] = 4 * r(); pts[3 * i + 1] = 4 * r(); pts[3 * i + 2] = 0.05 * r(); }
-    const H = await buildHMatrix(pts, { source: { module: kernelModule, name: "entries", before: [pts, 0.01] } },
+    const H = await buildHMatrix(pts, { source: { task: inverseMultiquadricTask, before: [pts, 0.01] } },
       { tolerance: 1e-8, symmetric: true, pool, leafSize: 32 });
     try {
       for (const cluster of [128, 256]) {

@@ -1,7 +1,7 @@
 // A far block far larger than any test matrix: ACA's scratch is capped by the block's size
 // (it used to ask for min(m, n) terms, 28.8 GB at 60k × 60k), and the result is right.
 import { describe, it, expect } from "vitest";
-import { buildChunk, JOB_FAR, JOB_FIELDS } from "../../src/linalg/hmatrix-tasks.js";
+import { buildChunk, JOB_FAR, JOB_FIELDS } from "../../src/linalg/hmatrix-build.js";
 
 describe("H-matrix build of one very large admissible block", () => {
   it("compresses a 60,000 × 60,000 block of 1/r between separated point clouds to low rank", () => {

@@ -3,11 +3,10 @@ import { buildHMatrix } from "../../src/linalg/hmatrix.js";
 import { WorkerPool, sharedFloat64 } from "../../src/linalg/pool.js";
 import { clusterCover } from "../../src/extract/preconditioner.js";
 import { rng } from "./random.js";
-import { inverseMultiquadricModule } from "./kernel-matrix.js";
+import { inverseMultiquadricTask } from "./kernel-matrix.js";
 
 // A generic kernel: linalg tests may not import bem. The generator lives in a compiled
 // module the workers can import, so the test builds it as a data: URL module.
-const kernelModule = inverseMultiquadricModule;
 
 function spherePoints(n: number, seed: number): Float64Array {
   // z and φ uniform give an area-uniform sphere (Archimedes' hat-box theorem).
@@ -46,7 +45,7 @@ describe("hierarchical matrix of an inverse-multiquadric kernel (SPD: Wendland 2
 
   for (const symmetric of [false, true]) {
     it(`product with ${k} right-hand sides on 2 workers matches the dense product to the tolerance (${symmetric ? "symmetric storage" : "full storage"})`, async () => {
-      const H = await buildHMatrix(pts, { source: { module: kernelModule, name: "entries", before: [pts, DELTA] } },
+      const H = await buildHMatrix(pts, { source: { task: inverseMultiquadricTask, before: [pts, DELTA] } },
         { tolerance: 1e-6, symmetric, pool, leafSize: 32 });
       const Y = sharedFloat64(n * k);
       await H.apply(X, Y, k);
@@ -71,7 +70,7 @@ describe("hierarchical matrix of an inverse-multiquadric kernel (SPD: Wendland 2
       const K = 64, Xk = sharedFloat64(n * K), q = rng(21);
       for (let i = 0; i < Xk.length; i++) Xk[i] = q() - 0.5;
       // Loose tolerance: ranks from 1 to well past SIMD_MIN_RANK, dense blocks of all leaf sizes.
-      const H = await buildHMatrix(pts, { source: { module: kernelModule, name: "entries", before: [pts, DELTA] } },
+      const H = await buildHMatrix(pts, { source: { task: inverseMultiquadricTask, before: [pts, DELTA] } },
         { tolerance: 1e-4, symmetric, pool, leafSize: 24 });
       expect(H.stats.maxRank).toBeGreaterThan(4);
       const A = sharedFloat64(n * K), B = sharedFloat64(n * K);
@@ -94,8 +93,8 @@ describe("hierarchical matrix of an inverse-multiquadric kernel (SPD: Wendland 2
   }
 
   it("a looser tolerance stores fewer numbers and stays within it", async () => {
-    const tight = await buildHMatrix(pts, { source: { module: kernelModule, name: "entries", before: [pts, DELTA] } }, { tolerance: 1e-8, symmetric: true, pool });
-    const loose = await buildHMatrix(pts, { source: { module: kernelModule, name: "entries", before: [pts, DELTA] } }, { tolerance: 1e-3, symmetric: true, pool });
+    const tight = await buildHMatrix(pts, { source: { task: inverseMultiquadricTask, before: [pts, DELTA] } }, { tolerance: 1e-8, symmetric: true, pool });
+    const loose = await buildHMatrix(pts, { source: { task: inverseMultiquadricTask, before: [pts, DELTA] } }, { tolerance: 1e-3, symmetric: true, pool });
     expect(loose.stats.storedEntries).toBeLessThan(tight.stats.storedEntries);
     expect(loose.stats.meanRank).toBeLessThan(tight.stats.meanRank);
     const Y = sharedFloat64(n * k);
@@ -107,7 +106,7 @@ describe("hierarchical matrix of an inverse-multiquadric kernel (SPD: Wendland 2
   });
 
   it("diagonal blocks over a cluster cover equal the kernel's entries", async () => {
-    const H = await buildHMatrix(pts, { source: { module: kernelModule, name: "entries", before: [pts, DELTA] } }, { tolerance: 1e-9, symmetric: true, pool });
+    const H = await buildHMatrix(pts, { source: { task: inverseMultiquadricTask, before: [pts, DELTA] } }, { tolerance: 1e-9, symmetric: true, pool });
     const nodes = clusterCover(H.tree, 200);
     let covered = 0;
     for (const v of nodes) covered += H.tree.end[v] - H.tree.start[v];
@@ -127,7 +126,7 @@ describe("hierarchical matrix of an inverse-multiquadric kernel (SPD: Wendland 2
 
   for (const symmetric of [true, false]) {
     it(`coarse matrix PᵀHP over aggregates equals the dense sums of the kernel (${symmetric ? "symmetric" : "full"} storage)`, async () => {
-      const H = await buildHMatrix(pts, { source: { module: kernelModule, name: "entries", before: [pts, DELTA] } }, { tolerance: 1e-8, symmetric, pool });
+      const H = await buildHMatrix(pts, { source: { task: inverseMultiquadricTask, before: [pts, DELTA] } }, { tolerance: 1e-8, symmetric, pool });
       // Aggregates larger than some admissible blocks and smaller than others.
       const nodes = clusterCover(H.tree, 150);
       const nc = nodes.length, agg = new Int32Array(n);

@@ -1,4 +1,5 @@
 import { rng } from "./random.js";
+import { task, type Task } from "../../src/linalg/task.js";
 
 /**
  * Points in `groups` tight clusters (spread `spread` around centres in the unit cube).
@@ -29,12 +30,8 @@ export function inverseMultiquadricMatrix(pts: Float64Array, delta: number): Flo
   return A;
 }
 
-/**
- * The inverse multiquadric entries as an H-matrix entry generator in a data: URL module
- * (`entries(pts, delta, rows, cols, out)`), so worker threads can import it.
- */
-export const inverseMultiquadricModule = "data:text/javascript," + encodeURIComponent(`
-export function entries(pts, delta, rows, cols, out) {
+/** The inverse multiquadric entries as an H-matrix entry generator, before-arguments (pts, delta). */
+export function inverseMultiquadricEntries(pts: Float64Array, delta: number, rows: Uint32Array, cols: Uint32Array, out: Float64Array): void {
   const nc = cols.length;
   for (let a = 0; a < rows.length; a++) {
     const i = 3 * rows[a];
@@ -44,4 +41,16 @@ export function entries(pts, delta, rows, cols, out) {
       out[a * nc + b] = 1 / Math.sqrt(dx * dx + dy * dy + dz * dz + delta * delta);
     }
   }
-}`);
+}
+
+/**
+ * The handle of a self-contained function (no imports, no free variables) as a worker task:
+ * the module is the function's own source as a data: URL, since workers load compiled
+ * modules and tests are not compiled.
+ */
+export function inlineTask<F extends (...args: any[]) => unknown>(fn: Record<string, F>): Task<F> {
+  const name = Object.keys(fn)[0];
+  return task("data:text/javascript," + encodeURIComponent(`export const ${name} = ${fn[name].toString()};`), fn);
+}
+
+export const inverseMultiquadricTask = inlineTask({ inverseMultiquadricEntries });

@@ -1,14 +1,13 @@
 import { describe, it, expect, afterAll } from "vitest";
-import { applyOnce } from "../../src/linalg/hmatrix-apply.js";
+import { applyOnce } from "../../src/linalg/apply-once.js";
 import { WorkerPool } from "../../src/linalg/pool.js";
-import { clusteredPoints } from "./kernel-matrix.js";
+import { clusteredPoints, inlineTask } from "./kernel-matrix.js";
 import { rng } from "./random.js";
 
 // Two matrices at once over the same points (a generic vector kernel; linalg tests may not
-// import bem): the gradient components x and y of 1/√(r² + δ²). The generator is a data: URL
-// module so the workers can import it.
-const kernelModule = "data:text/javascript," + encodeURIComponent(`
-export function grad2(pts, delta, rows, cols, out) {
+// import bem): the gradient components x and y of 1/√(r² + δ²). The workers import it from a
+// data: URL module (inlineTask).
+function grad2(pts: Float64Array, delta: number, rows: Uint32Array, cols: Uint32Array, out: Float64Array): void {
   const m = rows.length, nc = cols.length;
   for (let a = 0; a < m; a++) {
     const i = 3 * rows[a];
@@ -20,12 +19,8 @@ export function grad2(pts, delta, rows, cols, out) {
       out[(m + a) * nc + b] = dy * s3;
     }
   }
-}`);
-
-async function generator() {
-  const mod = await import(kernelModule) as { grad2: (p: Float64Array, d: number, r: Uint32Array, c: Uint32Array, o: Float64Array) => void };
-  return mod.grad2;
 }
+const grad2Task = inlineTask({ grad2 });
 
 function exact(pts: Float64Array, delta: number, x: Float64Array): Float64Array {
   const n = pts.length / 3, y = new Float64Array(2 * n);
@@ -53,7 +48,7 @@ describe("applyOnce: a matrix product block by block without storing the matrix"
 
   for (const tol of [1e-4, 1e-7]) {
     it(`two stacked components agree with the full sum to the block tolerance (${tol})`, async () => {
-      const gen = await generator();
+      const gen = grad2;
       const y = await applyOnce(pts, { generator: (rows, cols, out) => gen(pts, delta, rows, cols, out) }, x, { tolerance: tol, components: 2 });
       let d = 0;
       for (let i = 0; i < ref.length; i++) d = Math.max(d, Math.abs(y[i] - ref[i]));
@@ -66,9 +61,9 @@ describe("applyOnce: a matrix product block by block without storing the matrix"
 
   it("on the workers equals the serial evaluation, and masked rows are left out", async () => {
     const mask = Uint8Array.from({ length: n }, (_, i) => (i % 5 === 2 ? 0 : 1));
-    const gen = await generator();
+    const gen = grad2;
     const serial = await applyOnce(pts, { generator: (rows, cols, out) => gen(pts, delta, rows, cols, out) }, x, { tolerance: 1e-6, components: 2, rows: mask });
-    const parallel = await applyOnce(pts, { source: { module: kernelModule, name: "grad2", before: [pts, delta] } }, x, { tolerance: 1e-6, components: 2, rows: mask, pool });
+    const parallel = await applyOnce(pts, { source: { task: grad2Task, before: [pts, delta] } }, x, { tolerance: 1e-6, components: 2, rows: mask, pool });
     let d = 0;
     for (let i = 0; i < n; i++) {
       for (let c = 0; c < 2; c++) {

@@ -20,7 +20,8 @@ import { clusterPoints } from "./cluster.js";
 import { blockTree } from "./block-tree.js";
 import { aca } from "./aca.js";
 import { sharedFloat64, type WorkerPool } from "./pool.js";
-import { loadGenerator, type EntryGenerator, type EntrySource } from "./hmatrix-tasks.js";
+import { loadGenerator, type EntryGenerator, type EntrySource, type EntrySourceData } from "./entry-generator.js";
+import { task } from "./task.js";
 
 export interface ApplyOnceOptions {
   /** Relative accuracy of each admissible block (ACA stopping rule, Frobenius). */
@@ -52,8 +53,9 @@ const DENSE_CHUNK = 2 ** 20;
  * cluster). Returns y as n×c row-major (index i, component comp at i·c + comp); rows not
  * wanted are 0.
  */
-export async function applyOnce(points: Float64Array, entries: { source?: EntrySource; generator?: EntryGenerator },
-  x: Float64Array, opts: ApplyOnceOptions): Promise<Float64Array> {
+export async function applyOnce<const B extends unknown[] = [], const A extends unknown[] = []>(points: Float64Array,
+  entries: { source?: EntrySource<B, A>; generator?: EntryGenerator }, x: Float64Array, opts: ApplyOnceOptions): Promise<Float64Array> {
+  const source: EntrySourceData | undefined = entries.source;
   const n = points.length / 3, c = opts.components ?? 1;
   if (x.length !== n) throw new RangeError(`applyOnce: x holds ${x.length} values for ${n} points`);
   if (!(opts.tolerance > 0 && opts.tolerance < 1)) throw new RangeError(`tolerance must be in (0, 1), got ${opts.tolerance}`);
@@ -80,7 +82,7 @@ export async function applyOnce(points: Float64Array, entries: { source?: EntryS
 
   const xs = sharedFloat64(n);
   xs.set(x);
-  const threads = opts.pool && entries.source ? opts.pool.size : 1;
+  const threads = opts.pool && source ? opts.pool.size : 1;
   const chunks = split(cost, Math.max(1, Math.min(cost.length, 16 * threads)));
   const chunkJobs = (list: number[]): Float64Array => {
     const out = new Float64Array(new SharedArrayBuffer(8 * Math.max(1, list.length * JOB)));
@@ -88,17 +90,17 @@ export async function applyOnce(points: Float64Array, entries: { source?: EntryS
     return out.subarray(0, list.length * JOB);
   };
   const ys = Array.from({ length: threads }, () => sharedFloat64(n * c));
-  if (opts.pool && entries.source && threads > 1) {
-    const pool = opts.pool, url = selfUrl();
+  if (opts.pool && source && threads > 1) {
+    const pool = opts.pool;
     let next = 0;
     await Promise.all(Array.from({ length: threads }, async (_, w) => {
       while (next < chunks.length) {
         const q = next++;
-        await pool.runOn(w, url, "applyOnceTask", [entries.source, order, mask, chunkJobs(chunks[q]), opts.tolerance, c, xs, ys[w]]);
+        await pool.run(applyOnceTask, w, [source, order, mask, chunkJobs(chunks[q]), opts.tolerance, c, xs, ys[w]]);
       }
     }));
   } else {
-    const gen = entries.generator ?? (entries.source ? await loadGenerator(entries.source) : undefined);
+    const gen = entries.generator ?? (source ? await loadGenerator(source) : undefined);
     if (!gen) throw new Error("applyOnce needs an entry source or a generator");
     for (const list of chunks) applyChunk(gen, order, mask, chunkJobs(list), opts.tolerance, c, xs, ys[0]);
   }
@@ -107,12 +109,14 @@ export async function applyOnce(points: Float64Array, entries: { source?: EntryS
   return y;
 }
 
-/** Worker task: load the generator and apply a chunk of jobs into y. */
-export async function applyOnceTask(source: EntrySource, order: Uint32Array, mask: Uint8Array, jobs: Float64Array, tol: number,
+/** Load the generator `source` names (once per thread) and apply a chunk of jobs into y. */
+export async function applyChunkFromSource(source: EntrySourceData, order: Uint32Array, mask: Uint8Array, jobs: Float64Array, tol: number,
   c: number, x: Float64Array, y: Float64Array): Promise<number> {
   applyChunk(await loadGenerator(source), order, mask, jobs, tol, c, x, y);
   return jobs.length / JOB;
 }
+
+export const applyOnceTask = task(import.meta.url, { applyChunkFromSource });
 
 // Per-thread scratch, grown on demand.
 let rowsBuf = new Uint32Array(0), u = new Float64Array(0), v = new Float64Array(0), dense = new Float64Array(0);
@@ -219,8 +223,4 @@ function split(cost: number[], parts: number): number[][] {
   }
   if (cur.length > 0) out.push(cur);
   return out;
-}
-
-function selfUrl(): string {
-  return new URL(import.meta.url.endsWith(".ts") ? "./hmatrix-apply.ts" : "./hmatrix-apply.js", import.meta.url).href;
 }
