@@ -10,7 +10,9 @@
  */
 // Reading
 export { loadScene, parsePlane, parseSymmetryPlane, type LoadedScene, type InputOptions } from "./io/inputs.js";
-export { loadSceneFile, parseScene, loadSceneMesh, type Scene, type SceneConductor } from "./io/scene.js";
+export { loadSceneFile, parseScene, type Scene } from "./io/scene.js";
+export type { SceneConductor } from "./io/scene-entries.js";
+export { loadSceneMesh } from "./io/scene-mesh.js";
 export { loadMeshFile, loadMeshFiles, parseMeshBytes, type LoadOptions, type LoadedMesh } from "./io/load.js";
 export { encodeMesh, writeMeshFile, outputFormatFromPath, type OutputFormat } from "./io/write.js";
 export { InputError, type Warning } from "./errors.js";

@@ -1,7 +1,7 @@
 /**
  * Net electrostatic force on each dielectric body from the total-charge solution.
  *
- * Every charge radiates in vacuum (dielectric.ts), so the Maxwell stress of vacuum integrated
+ * Every charge radiates in vacuum (dielectric-model.ts), so the Maxwell stress of vacuum integrated
  * over a surface S just outside a body equals the force on the charge S encloses: the body's
  * interface charge (total = polarisation of the body and of the medium next to it) in the field
  * of all other charge, since a charge distribution exerts no net force on itself. In a linear
@@ -17,7 +17,7 @@
 import type { PanelSet } from "../bem/panels.js";
 import type { ImageSet } from "../bem/images.js";
 import { fieldAt } from "../bem/field.js";
-import type { DielectricModel } from "./dielectric.js";
+import type { DielectricModel } from "./dielectric-model.js";
 import { EPSILON_0 } from "./constants.js";
 
 /**

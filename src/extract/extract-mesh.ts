@@ -38,7 +38,7 @@ import { capacitanceMatrices, chargesAt, storedEnergy, mutualFromMaxwell } from 
 import { richardson } from "./accuracy.js";
 import { peakResidentBytes } from "./memory.js";
 import { eliminateFloating, withFloatingPotentials } from "./floating.js";
-import { prepareBodies, type PreparedBody } from "./dielectric.js";
+import { prepareBodies, type PreparedBody } from "./dielectric-bodies.js";
 import { resolveOptions, type MeshExtractOptions, type ResolvedOptions } from "./options.js";
 import type { Accuracy, ConductorResult, ExtractionResult, LevelResult } from "./result.js";
 import { symmetryLayout, unfoldedFinest, withoutTriangles, closeBySymmetry, unfolding, type SymmetryLayout, type BodyUnfolding } from "./symmetry-unfold.js";

@@ -10,7 +10,7 @@ import { sharedPool, type WorkerPool } from "../linalg/pool.js";
 import { InputError } from "../errors.js";
 import { EPSILON_0, AIR_BREAKDOWN_FIELD } from "./constants.js";
 import type { SolverChoice } from "./solve.js";
-import type { DielectricBody } from "./dielectric.js";
+import type { DielectricBody } from "./dielectric-bodies.js";
 
 export interface MeshExtractOptions {
   /** Relative permittivity of the uniform medium (default 1). */

@@ -10,7 +10,7 @@ import type { AxisPlane, ImageSet, SymmetryPlane } from "../bem/images.js";
 import type { SolveInfo, UnitSolution } from "./solve.js";
 import type { RichardsonResult } from "./accuracy.js";
 import type { PanelExcitation, PeakField } from "./excitation.js";
-import type { BodySummary, DielectricModel } from "./dielectric.js";
+import type { BodySummary, DielectricModel } from "./dielectric-model.js";
 
 /** What the dielectric model did, on the finest mesh. */
 export interface DielectricResult {

@@ -20,7 +20,8 @@ import {
   edgeInSymmetryPlane, evenCopies, axisIndex, reflectSurface, mirrorSuffix,
   type AxisPlane, type KernelSpec, type SymmetryPlane,
 } from "../bem/images.js";
-import { freeCharges, type DielectricModel } from "./dielectric.js";
+import { freeCharges } from "./dielectric-charges.js";
+import type { DielectricModel } from "./dielectric-model.js";
 import type { FinestSolution } from "./result.js";
 
 /**

@@ -10,7 +10,7 @@ import { EPSILON_0 } from "./constants.js";
 import { compressionTolerance } from "./solve.js";
 import { panelExcitation, peakFields, conductorForces, criticalFields, type PanelExcitation, type PeakField, type CriticalField } from "./excitation.js";
 import { centroidFieldsFast } from "./probe.js";
-import { dielectricExcitation } from "./dielectric.js";
+import { dielectricExcitation } from "./dielectric-excitation.js";
 import { dielectricBodyForces } from "./dielectric-force.js";
 import type { ResolvedOptions } from "./options.js";
 import type { DielectricResult } from "./result.js";

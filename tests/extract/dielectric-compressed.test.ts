@@ -12,7 +12,8 @@ import { closeSharedPool } from "../../src/linalg/pool.js";
 import { panelSet } from "../../src/bem/panels.js";
 import { assembleWithInterfaces, assembleInterfaceBlock } from "../../src/bem/assembly.js";
 import { imageSet } from "../../src/bem/images.js";
-import { prepareBodies, dielectricModel } from "../../src/extract/dielectric.js";
+import { prepareBodies } from "../../src/extract/dielectric-bodies.js";
+import { dielectricModel } from "../../src/extract/dielectric-model.js";
 import { sharedPool } from "../../src/linalg/pool.js";
 
 afterAll(() => closeSharedPool());

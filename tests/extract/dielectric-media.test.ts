@@ -6,7 +6,8 @@ import { describe, it, expect } from "vitest";
 import { surfaceIndex, windingNumber } from "../../src/mesh/containment.js";
 import { sphereMesh, boxMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes, type SurfaceMesh } from "../../src/mesh/model.js";
-import { prepareBodies, dielectricModel } from "../../src/extract/dielectric.js";
+import { prepareBodies } from "../../src/extract/dielectric-bodies.js";
+import { dielectricModel } from "../../src/extract/dielectric-model.js";
 import { triangleSolidAngle } from "../../src/bem/triangle-potential.js";
 import { panelSet } from "../../src/bem/panels.js";
 

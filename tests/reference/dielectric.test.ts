@@ -1,5 +1,5 @@
 /**
- * Dielectric bodies (equivalent-charge formulation, src/extract/dielectric.ts) against closed
+ * Dielectric bodies (equivalent-charge formulation, src/extract/dielectric-model.ts) against closed
  * forms. Each check names its source; meshes are kept small (≤ ~2k panels).
  */
 import { describe, it, expect, afterAll } from "vitest";

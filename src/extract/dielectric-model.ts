@@ -3,50 +3,27 @@
  * R. F. Harrington, IEEE Trans. MTT 32(11):1441, 1984): every charge — free and polarisation —
  * radiates in vacuum (ε0); conductor panels carry their total charge and keep the potential rows
  * of src/bem; interface panels carry polarisation charge and get the normal-displacement rows of
- * bem/interface.ts. Free charge on a conductor panel is its total charge times ε_local/ε0, ε_local
- * the permittivity of the medium just outside it (Gauss's law at the conductor surface: the
- * displacement there is σ_free, the field σ_total/ε0).
+ * bem/interface.ts. This file builds the combined panel model of one mesh level; free charges and
+ * the working point are in ./dielectric-charges.ts and ./dielectric-excitation.ts.
  *
- * Media: each body is a closed, outward-oriented surface holding its permittivity. The medium at a
- * point is the smallest body (by enclosed volume) whose winding number there is 1, else the
- * background; so nested bodies resolve by containment and the two sides of every interface panel
- * are read at points DELTA panel radii along ∓n̂ (touching bodies, bodies inside bodies).
- * Interface panels are removed where a conductor covers them (centroid on a conductor panel within
- * the coincidence tolerance and parallel), where they lie inside a closed conductor, or in the
- * ground plane; coincident panels of two touching bodies are merged into one.
+ * The two sides of every interface panel, and the outside of every conductor panel, are read in
+ * the media (./dielectric-media.ts) at points DELTA panel radii along ∓n̂ (touching bodies,
+ * bodies inside bodies). Interface panels are removed where a conductor covers them (centroid on
+ * a conductor panel within the coincidence tolerance and parallel), where they lie inside a
+ * closed conductor, or in the ground plane; coincident panels of two touching bodies are merged
+ * into one.
  */
 import type { SurfaceMesh } from "../mesh/model.js";
 import { boundingDiagonal, triangleCount } from "../mesh/model.js";
-import { orientSurfaces, conductorTopology, buildEdgeTable } from "../mesh/topology.js";
-import { signedVolume } from "../mesh/measure.js";
+import { conductorTopology } from "../mesh/topology.js";
 import { triangleBoxes, buildBoxTree, forEachItemInBox, type BoxTree } from "../mesh/bvh.js";
 import { panelSet, type PanelSet } from "../bem/panels.js";
 import { sourceFrame, frameDistance, FRAME_SIZE } from "../bem/triangle-potential.js";
-import { surfaceIndex, windingNumber, type SurfaceIndex } from "../mesh/containment.js";
-import { normalFieldAt } from "../bem/interface.js";
-import { fieldAt } from "../bem/field.js";
-import type { AxisPlane, ImageSet } from "../bem/images.js";
-import type { PanelExcitation } from "./excitation.js";
+import { surfaceIndex, windingNumber } from "../mesh/containment.js";
+import type { AxisPlane } from "../bem/images.js";
 import { InputError } from "../errors.js";
-import { EPSILON_0 } from "./constants.js";
-
-export interface DielectricBody {
-  name: string;
-  /** Closed surface; metres. */
-  mesh: SurfaceMesh;
-  /** Relative permittivity inside. */
-  permittivity: number;
-}
-
-/** A body checked and oriented outward, with what containment queries need. */
-export interface PreparedBody {
-  name: string;
-  permittivity: number;
-  mesh: SurfaceMesh;
-  /** m³, positive. */
-  volume: number;
-  flipped: boolean;
-}
+import type { PreparedBody } from "./dielectric-bodies.js";
+import { Media } from "./dielectric-media.js";
 
 export interface BodySummary {
   name: string;
@@ -93,64 +70,6 @@ export const DELTA = 1e-4;
 export const COINCIDENCE = 1e-6;
 /** |n̂_a·n̂_b| at or above this counts as parallel. */
 const PARALLEL = 1 - 1e-6;
-
-/** Check and orient the bodies; InputError naming the body for open, non-manifold or bad input. */
-export function prepareBodies(bodies: DielectricBody[], background: number): PreparedBody[] {
-  const seen = new Set<string>();
-  return bodies.map((b, index) => {
-    const name = typeof b.name === "string" && b.name !== "" ? b.name : `dielectric ${index + 1}`;
-    if (seen.has(name)) throw new InputError(`dielectric ${name}: the name is used twice`);
-    seen.add(name);
-    const er = b.permittivity;
-    if (typeof er !== "number" || !Number.isFinite(er) || er < 1) {
-      throw new InputError(`dielectric ${name}: relative permittivity must be a number of at least 1, got ${String(er)}`);
-    }
-    if (!b.mesh || triangleCount(b.mesh) === 0) throw new InputError(`dielectric ${name}: the interface mesh has no triangles`);
-    void background;
-    const single: SurfaceMesh = { positions: b.mesh.positions, triangles: b.mesh.triangles, conductor: new Uint32Array(triangleCount(b.mesh)), names: [name] };
-    const table = buildEdgeTable(single);
-    const topo = conductorTopology(single, table)[0];
-    if (topo.boundaryEdges > 0) throw new InputError(`dielectric ${name}: the interface is not closed (${topo.boundaryEdges} boundary edges); a dielectric body must be a closed surface`);
-    if (topo.nonManifoldEdges > 0) throw new InputError(`dielectric ${name}: the interface has ${topo.nonManifoldEdges} edges shared by three or more triangles`);
-    const o = orientSurfaces(single, table);
-    let flipped = false;
-    for (const c of o.components) {
-      if (c.status === "non-orientable" || c.status === "non-manifold") throw new InputError(`dielectric ${name}: the interface cannot be oriented (${c.status})`);
-      if (c.status === "inward-flipped" || c.status === "repaired") flipped = true;
-    }
-    const volume = signedVolume(o.mesh);
-    if (!(volume > 0)) throw new InputError(`dielectric ${name}: the interface encloses no volume`);
-    return { name, permittivity: er, mesh: o.mesh, volume, flipped };
-  });
-}
-
-/** Containment queries over the prepared bodies (mesh/containment.ts: ray crossings through a BVH, ~log N per query). */
-class Media {
-  private readonly index: SurfaceIndex[];
-  constructor(private readonly bodies: PreparedBody[], private readonly background: number) {
-    this.index = bodies.map((b) => surfaceIndex(b.mesh.positions, b.mesh.triangles));
-  }
-
-  /** Index of the innermost body containing the point, −1 for the background. */
-  bodyAt(x: number, y: number, z: number): number {
-    let best = -1, bestVolume = Infinity;
-    for (let b = 0; b < this.bodies.length; b++) {
-      if (this.bodies[b].volume >= bestVolume) continue;
-      if (windingNumber(this.index[b], x, y, z) >= 1) { best = b; bestVolume = this.bodies[b].volume; }
-    }
-    return best;
-  }
-
-  /** Relative permittivity at the point. */
-  at(x: number, y: number, z: number): number {
-    const b = this.bodyAt(x, y, z);
-    return b < 0 ? this.background : this.bodies[b].permittivity;
-  }
-
-  name(b: number): string {
-    return b < 0 ? "background" : this.bodies[b].name;
-  }
-}
 
 /**
  * Kept interface panels hashed by centroid on a grid of cell `tol`, to find a coincident,
@@ -320,114 +239,4 @@ function coveredByConductor(tree: BoxTree, P: PanelSet, x: number, y: number, z:
   forEachItemInBox(tree, QUERY, coverVisit);
   coverP = undefined;
   return coverHit;
-}
-
-/**
- * Free charge per conductor panel from the total-charge solution (scaled unknowns x = q/(4πε0),
- * N×k row-major over all panels; only the first nc rows are returned, same scaling). Closed
- * panels: ε_out/ε0 times the total. Open sheets with different media on their faces: each face's
- * total charge is σ/2 ± ε0 E_pv·n̂ (excitation.ts), so free = (ε+ + ε−)/2 σ + (ε+ − ε−) ε0 E_pv·n̂,
- * with E_pv·n̂ from all panels (bem/interface.ts), or from `normalField` (nc×k, Σ_q K_pq x_q at the
- * panels openFieldPanels flags; the compressed solver computes it, solve.ts) when given.
- */
-export function freeCharges(model: DielectricModel, P: PanelSet, x: Float64Array, k: number, images?: ImageSet,
-  normalField?: Float64Array): Float64Array {
-  const nc = model.nc, N = P.n;
-  const out = new Float64Array(nc * k);
-  const en = new Float64Array(k);
-  for (let p = 0; p < nc; p++) {
-    const ep = model.conductorPlus[p], em = model.conductorMinus[p];
-    if (!model.openPanel[p] || ep === em) {
-      for (let j = 0; j < k; j++) out[p * k + j] = ep * x[p * k + j];
-      continue;
-    }
-    if (normalField !== undefined) {
-      const a4 = P.areas[p] / (4 * Math.PI);
-      for (let j = 0; j < k; j++) out[p * k + j] = 0.5 * (ep + em) * x[p * k + j] + (ep - em) * a4 * normalField[p * k + j];
-      continue;
-    }
-    en.fill(0);
-    const c = P.centroids, nm = P.normals;
-    const px = c[3 * p], py = c[3 * p + 1], pz = c[3 * p + 2], nx = nm[3 * p], ny = nm[3 * p + 1], nz = nm[3 * p + 2];
-    for (let q = 0; q < N; q++) {
-      if (q === p) continue;
-      const K = normalFieldAt(P, q, px, py, pz, nx, ny, nz);
-      for (let j = 0; j < k; j++) en[j] += K * x[q * k + j];
-    }
-    if (images !== undefined) {
-      for (let e = 0; e < images.count; e++) for (let q = 0; q < N; q++) {
-        const K = images.signs[e] * normalFieldAt(images.panels, N * (e + 1) + q, px, py, pz, nx, ny, nz);
-        for (let j = 0; j < k; j++) en[j] += K * x[q * k + j];
-      }
-    }
-    // E_pv·n̂ = Σ K x (V/m per 1/(4πε0)·4πε0); in x units ε0 E_pv A/(4πε0 ... ) = A Σ K x / (4π).
-    const a4 = P.areas[p] / (4 * Math.PI);
-    for (let j = 0; j < k; j++) out[p * k + j] = 0.5 * (ep + em) * x[p * k + j] + (ep - em) * a4 * en[j];
-  }
-  return out;
-}
-
-/** Conductor panels whose free charge needs E_pv·n̂: open sheets with different media on their faces (1; nc flags). */
-export function openFieldPanels(model: DielectricModel): Uint8Array {
-  const f = new Uint8Array(model.nc);
-  for (let p = 0; p < model.nc; p++) f[p] = model.openPanel[p] && model.conductorPlus[p] !== model.conductorMinus[p] ? 1 : 0;
-  return f;
-}
-
-export interface DielectricExcitation {
-  excitation: PanelExcitation;
-  /** Net force per conductor, 3 each; newtons. */
-  force: Float64Array;
-  /** Polarisation charge per interface panel at the working potentials; coulombs. */
-  interfaceCharge: Float64Array;
-}
-
-/**
- * The conductors at their working potentials in the dielectric model. Fields: closed panels
- * |σ_total|/ε0 (= |σ_free|/ε_local); open sheets the stronger face |E_pv·n̂ ± σ_total/(2ε0)|.
- * Forces: Maxwell stress ε E_n²/2 along the outward normal of each face in its own medium
- * (common practice for a conductor in a linear fluid dielectric; electrostriction and forces on
- * the dielectric bodies themselves are not included).
- */
-export function dielectricExcitation(model: DielectricModel, P: PanelSet, x: Float64Array, k: number, potentials: ArrayLike<number>,
-  conductorOf: Uint32Array, nConductors: number, images?: ImageSet, normalField?: Float64Array): DielectricExcitation {
-  const nc = model.nc, N = P.n;
-  const fourPiEps0 = 4 * Math.PI * EPSILON_0;
-  const total = new Float64Array(N);
-  for (let p = 0; p < N; p++) {
-    let s = 0;
-    for (let j = 0; j < k; j++) s += x[p * k + j] * potentials[j];
-    total[p] = fourPiEps0 * s;
-  }
-  const charge = new Float64Array(nc), sigma = new Float64Array(nc), field = new Float64Array(nc);
-  const force = new Float64Array(3 * nConductors);
-  const point = new Float64Array(3), e = new Float64Array(3);
-  for (let p = 0; p < nc; p++) {
-    const A = P.areas[p], st = total[p] / A, nx = P.normals[3 * p], ny = P.normals[3 * p + 1], nz = P.normals[3 * p + 2];
-    const ep = model.conductorPlus[p], em = model.conductorMinus[p];
-    let f: number, sf: number, fn: number;
-    if (!model.openPanel[p]) {
-      const E = st / EPSILON_0;
-      f = Math.abs(E); sf = ep * st; fn = 0.5 * ep * EPSILON_0 * E * E;
-    } else {
-      let En: number;
-      if (normalField !== undefined && ep !== em) {
-        // Σ_q K_pq total_q/(4πε0) = Σ_j V_j Σ_q K_pq x_qj.
-        En = 0;
-        for (let j = 0; j < k; j++) En += normalField[p * k + j] * potentials[j];
-      } else {
-        point[0] = P.centroids[3 * p]; point[1] = P.centroids[3 * p + 1]; point[2] = P.centroids[3 * p + 2];
-        fieldAt(P, total, point, e, images);
-        En = (e[0] * nx + e[1] * ny + e[2] * nz) / fourPiEps0;
-      }
-      const Ep = En + st / (2 * EPSILON_0), Em = En - st / (2 * EPSILON_0);
-      f = Math.max(Math.abs(Ep), Math.abs(Em));
-      sf = EPSILON_0 * (ep * Ep - em * Em);
-      fn = 0.5 * EPSILON_0 * (ep * Ep * Ep - em * Em * Em);
-    }
-    charge[p] = sf * A; sigma[p] = sf; field[p] = f;
-    const c = conductorOf[p];
-    force[3 * c] += fn * A * nx; force[3 * c + 1] += fn * A * ny; force[3 * c + 2] += fn * A * nz;
-  }
-  return { excitation: { charge, sigma, field }, force, interfaceCharge: total.slice(nc) };
 }
