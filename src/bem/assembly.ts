@@ -335,7 +335,7 @@ export function assembleInterfaceBlock(P: PanelSet, nConductor: number, lambda: 
  * out[a·cols.length + b] = K(rows[a], cols[b]) = −∇I_j(c_i)·n̂_i / A_j by collocation at the
  * centroid (bem/interface.ts normalFieldAt; 0 for j = i), plus the images' Σ_e s_e K(i, image e
  * of j). Times the scaled charges x it gives E_pv·n̂ in the units of x: the entry generator of
- * the open-sheet fields (extract/dielectric.ts freeCharges) for the compressed solver.
+ * the open-sheet fields (extract/dielectric-charges.ts freeCharges) for the compressed solver.
  */
 export function normalFieldBlock(P: PanelSet, flag: Uint8Array, rows: Uint32Array, cols: Uint32Array, out: Float64Array,
   images?: ImageSet): void {

@@ -11,7 +11,7 @@
  * - An odd (antisymmetric) symmetry plane is an image of sign −1, like the ground plane: the
  *   mirrored half carries the opposite charge and potential (a differential pair, a balanced
  *   electrode pair), and the plane itself is at 0 V, so no conductor may touch it. The even and
- *   odd solves of a half model together give the full model's matrix (extract.ts, "both").
+ *   odd solves of a half model together give the full model's matrix (extract/symmetry-unfold.ts, "both").
  *
  * Reflections in planes of distinct axes commute, so the group of m planes has 2^m elements and
  * s_g is the product of the signs of the reflections that make g up. Two planes on the same

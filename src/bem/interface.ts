@@ -27,7 +27,7 @@
  * interface panels: collocation +5.0e-2 / +3.3e-2, Galerkin test −1.1e-2 / −2.9e-3 (the earlier
  * split-outer-rule entries gave −2.2e-3 at 1280). Point
  * matching at the centroid of a flat facet misses the tilt of its neighbours' field across the
- * facet; the Galerkin test converges like h² and is the default (extract.ts).
+ * facet; the Galerkin test converges like h² and is the default (extract/options.ts).
  */
 import type { PanelSet } from "./panels.js";
 import type { ImageSet } from "./images.js";

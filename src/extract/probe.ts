@@ -117,7 +117,7 @@ export function probeExtraction(r: { panels: PanelSet; excitation: { charge: Flo
   // With dielectric bodies every charge, free and bound, radiates in vacuum; the images then
   // mirror all panels, not only the conductors'.
   if (r.dielectric) {
-    // Planes with images "both" are unfolded into explicit copies (extract.ts): no images for them.
+    // Planes with images "both" are unfolded into explicit copies (symmetry-unfold.ts): no images for them.
     const spec = { groundPlane: r.groundPlane, symmetry: (r.symmetry ?? []).filter((p) => p.images !== "both") };
     const images = hasImages(spec) ? imageSet(r.dielectric.panels, spec) : undefined;
     return probeField(r.dielectric.panels, r.dielectric.totalCharge, EPSILON_0, points, images);
