@@ -7,7 +7,7 @@
  * Recompression of the factors: recompression.ts.
  */
 import { gemmStridedSimd } from "./wasm-kernel.js";
-import { axpy2, dot } from "./dense-block.js";
+import { axpy2, dot, rowTimesRows } from "./dense-block.js";
 
 /**
  * Y[rows] += U·(Vᵀ·X[cols]) for a stored low-rank block (U m×r and V n×r column-major at uOff,
@@ -25,18 +25,7 @@ export function lowRankMultiplyAdd(data: Float64Array, uOff: number, vOff: numbe
   }
   const rk = r * k;
   for (let i = 0; i < rk; i++) T[i] = 0;
-  for (let q = 0; q < r; q++) {
-    const vo = vOff + q * n, to = q * k;
-    let b = 0;
-    for (; b + 1 < n; b += 2) {
-      const v0 = data[vo + b], v1 = data[vo + b + 1], xo = (c0 + b) * k, x1 = xo + k;
-      for (let c = 0; c < k; c++) T[to + c] += v0 * X[xo + c] + v1 * X[x1 + c];
-    }
-    if (b < n) {
-      const v0 = data[vo + b], xo = (c0 + b) * k;
-      for (let c = 0; c < k; c++) T[to + c] += v0 * X[xo + c];
-    }
-  }
+  for (let q = 0; q < r; q++) rowTimesRows(data, vOff + q * n, n, X, c0, k, T, q * k);
   let q = 0;
   for (; q + 1 < r; q += 2) {
     const uo = uOff + q * m, u1 = uo + m, to = q * k, t1 = to + k;
