@@ -2,7 +2,9 @@
  * Distance between two triangles of a mesh, with the closest points that realise it.
  *
  * Scalar kernels over module-level scratch: no allocation per triangle pair. Arguments as in
- * the rest of src/mesh: the mesh arrays and triangle indices first, the output last.
+ * the rest of src/mesh: the mesh arrays and triangle indices first, the output last. Here
+ * rather than in src/geometry because it reads corners through a mesh's triangle indices; the
+ * point and segment measures it is built from are in src/geometry/closest-point.ts.
  */
 import { closestPointTriangle, closestPointsSegments } from "../geometry/closest-point.js";
 import { triangleAreaVector } from "../geometry/triangle.js";
