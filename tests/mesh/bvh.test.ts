@@ -1,7 +1,7 @@
 import { describe, it, expect } from "vitest";
 import fc from "fast-check";
 import { buildBoxTree, triangleBoxes, forEachItemInBox, nearestItem, nodeLabels, forEachOverlappingPair } from "../../src/mesh/bvh.js";
-import { closestPointTriangle } from "../../src/mesh/proximity.js";
+import { closestPointTriangle } from "../../src/geometry/closest-point.js";
 
 // Coordinates on a 1/100 grid: metre-scale meshes never meet the subnormal numbers free doubles shrink to.
 const coord = fc.integer({ min: -500, max: 500 }).map((k) => k / 100);
