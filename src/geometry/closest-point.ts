@@ -11,10 +11,9 @@
 /**
  * Closest point to p on triangle abc, written into out; returns the squared distance.
  * Ericson, Real-Time Collision Detection (2005), 5.1.5 ClosestPtPointTriangle
- * (Voronoi-region tests on the barycentric parameters). Zero-length sides, which the
- * book's version divides by, fall back on the nearer end. Known fault: with corners a = b
- * a point beside side ac may be taken to corner a rather than to its nearest point on ac
- * (tests/geometry/closest-point.test.ts, the `it.fails` case).
+ * (Voronoi-region tests on the barycentric parameters). A triangle of zero area (two corners
+ * equal, or all three in a line), whose region tests the book's version gets wrong (with a = b
+ * it can answer corner a for a point beside side ac), is taken as its three sides.
  */
 export function closestPointTriangle(
   out: Float64Array, px: number, py: number, pz: number,
@@ -22,6 +21,11 @@ export function closestPointTriangle(
 ): number {
   const abx = bx - ax, aby = by - ay, abz = bz - az;
   const acx = cx - ax, acy = cy - ay, acz = cz - az;
+  // |ab × ac|² against |ab|²|ac|²: zero area (sin² of the angle at a below 1e-24, or a side of length zero).
+  const nx = aby * acz - abz * acy, ny = abz * acx - abx * acz, nz = abx * acy - aby * acx;
+  if (nx * nx + ny * ny + nz * nz <= 1e-24 * (abx * abx + aby * aby + abz * abz) * (acx * acx + acy * acy + acz * acz)) {
+    return closestPointOnSides(out, px, py, pz, ax, ay, az, bx, by, bz, cx, cy, cz);
+  }
   const apx = px - ax, apy = py - ay, apz = pz - az;
   let qx: number, qy: number, qz: number;
   const d1 = abx * apx + aby * apy + abz * apz, d2 = acx * apx + acy * apy + acz * apz;
@@ -49,22 +53,32 @@ export function closestPointTriangle(
       const v = vb / s, w = vc / s;
       qx = ax + abx * v + acx * w; qy = ay + aby * v + acy * w; qz = az + abz * v + acz * w;
     } else {
-      // Collinear corners (zero area) that slipped past the region tests: nearest of the three sides.
-      let best = Infinity; qx = ax; qy = ay; qz = az;
-      for (let k = 0; k < 3; k++) {
-        const sx = k === 0 ? ax : k === 1 ? bx : cx, sy = k === 0 ? ay : k === 1 ? by : cy, sz = k === 0 ? az : k === 1 ? bz : cz;
-        const ex = k === 0 ? bx : k === 1 ? cx : ax, ey = k === 0 ? by : k === 1 ? cy : ay, ez = k === 0 ? bz : k === 1 ? cz : az;
-        const dx = ex - sx, dy = ey - sy, dz = ez - sz, l2 = dx * dx + dy * dy + dz * dz;
-        let u = l2 > 0 ? ((px - sx) * dx + (py - sy) * dy + (pz - sz) * dz) / l2 : 0;
-        u = u < 0 ? 0 : u > 1 ? 1 : u;
-        const rx = sx + u * dx, ry = sy + u * dy, rz = sz + u * dz;
-        const d = (px - rx) ** 2 + (py - ry) ** 2 + (pz - rz) ** 2;
-        if (d < best) { best = d; qx = rx; qy = ry; qz = rz; }
-      }
+      // Corners collinear to rounding that slipped past the region tests: nearest of the three sides.
+      return closestPointOnSides(out, px, py, pz, ax, ay, az, bx, by, bz, cx, cy, cz);
     }
   }
   out[0] = qx; out[1] = qy; out[2] = qz;
   return (px - qx) ** 2 + (py - qy) ** 2 + (pz - qz) ** 2;
+}
+
+/** Closest point to p on the three sides of triangle abc (for a triangle of zero area); squared distance. */
+function closestPointOnSides(
+  out: Float64Array, px: number, py: number, pz: number,
+  ax: number, ay: number, az: number, bx: number, by: number, bz: number, cx: number, cy: number, cz: number,
+): number {
+  let best = Infinity, qx = ax, qy = ay, qz = az;
+  for (let k = 0; k < 3; k++) {
+    const sx = k === 0 ? ax : k === 1 ? bx : cx, sy = k === 0 ? ay : k === 1 ? by : cy, sz = k === 0 ? az : k === 1 ? bz : cz;
+    const ex = k === 0 ? bx : k === 1 ? cx : ax, ey = k === 0 ? by : k === 1 ? cy : ay, ez = k === 0 ? bz : k === 1 ? cz : az;
+    const dx = ex - sx, dy = ey - sy, dz = ez - sz, l2 = dx * dx + dy * dy + dz * dz;
+    let u = l2 > 0 ? ((px - sx) * dx + (py - sy) * dy + (pz - sz) * dz) / l2 : 0;
+    u = u < 0 ? 0 : u > 1 ? 1 : u;
+    const rx = sx + u * dx, ry = sy + u * dy, rz = sz + u * dz;
+    const d = (px - rx) ** 2 + (py - ry) ** 2 + (pz - rz) ** 2;
+    if (d < best) { best = d; qx = rx; qy = ry; qz = rz; }
+  }
+  out[0] = qx; out[1] = qy; out[2] = qz;
+  return best;
 }
 
 /**
