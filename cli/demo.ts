@@ -38,7 +38,7 @@ export function registerDemo(program: Command): void {
           probe: d.probes, probeCsv: `${stem}.probes.csv`,
           convergenceSvg: Number(refine) > 0 ? `${stem}.convergence.svg` : undefined,
         });
-        process.stdout.write(`written: ${displayText(stem)}.html (open it in a browser), ${stem}.report.json, .cir (SPICE), .md, .csv, .probes.csv and plots\n`);
+        process.stdout.write(displayText(`written: ${stem}.html (open it in a browser), ${stem}.report.json, .cir (SPICE), .md, .csv, .probes.csv and plots`) + "\n");
       }
     }));
 }
