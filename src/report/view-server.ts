@@ -74,7 +74,7 @@ const HEADERS = {
 };
 
 /** The Host header names this server: the loopback address or localhost, with its port. */
-export function hostAllowed(host: string | undefined, port: number): boolean {
+function hostAllowed(host: string | undefined, port: number): boolean {
   if (host === undefined) return false;
   const m = /^(127\.0\.0\.1|localhost)(?::(\d{1,5}))?$/i.exec(host.trim());
   if (!m) return false;
