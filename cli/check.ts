@@ -17,6 +17,7 @@ import { formatCheckSummary } from "../src/report/check-summary.js";
 import { pairSentence } from "../src/extract/scene-check.js";
 import { checkReport } from "../src/report/check-report.js";
 import { jsonText } from "../src/report/outputs.js";
+import { displayText } from "../src/io/display-text.js";
 import { action, printWarnings, writeOutput, EXIT_BAD_INPUT } from "./common.js";
 
 interface CheckCliOptions {
@@ -58,7 +59,7 @@ export function registerCheck(program: Command): void {
         writeOutput(opts.json, jsonText(checkReport(loaded, report, unit, unitAssumed)));
       }
       if (!opts.quiet) (opts.json === "-" ? process.stderr : process.stdout).write(summary);
-      else for (const p of report.pairs) if (p.severity === "error") process.stderr.write(`sigmesh: FAILED: ${pairSentence(p, unit)}\n`);
+      else for (const p of report.pairs) if (p.severity === "error") process.stderr.write(`sigmesh: FAILED: ${displayText(pairSentence(p, unit))}\n`);
       if (report.failed) process.exitCode = EXIT_BAD_INPUT;
     }));
 }

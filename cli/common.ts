@@ -4,6 +4,7 @@
  */
 import { InputError, type Warning } from "../src/errors.js";
 import { writeFileAtomic } from "../src/io/atomic.js";
+import { displayText } from "../src/io/display-text.js";
 
 export const EXIT_BAD_INPUT = 2;
 export const EXIT_INTERNAL = 1;
@@ -44,9 +45,10 @@ export function action<A extends unknown[]>(fn: (...args: A) => Promise<void> | 
   };
 }
 
+/** Warnings on stderr, one line each: names and paths in them escaped for the terminal. */
 export function printWarnings(warnings: Warning[], quiet = false): void {
   if (quiet) return;
-  for (const w of warnings) process.stderr.write(`sigmesh: warning: ${w.file ? w.file + ": " : ""}${w.message}\n`);
+  for (const w of warnings) process.stderr.write(`sigmesh: warning: ${displayText(`${w.file ? w.file + ": " : ""}${w.message}`)}\n`);
 }
 
 /** Write text to a path atomically, or to stdout when the path is "-". */

@@ -8,6 +8,7 @@ import { join } from "node:path";
 import { existsSync } from "node:fs";
 import { action } from "./common.js";
 import { runExtract } from "./extract.js";
+import { displayText } from "../src/io/display-text.js";
 
 const DEMO_DIR = fileURLToPath(new URL("../../meshes/demo/", import.meta.url));
 
@@ -37,7 +38,7 @@ export function registerDemo(program: Command): void {
           probe: d.probes, probeCsv: `${stem}.probes.csv`,
           convergenceSvg: Number(refine) > 0 ? `${stem}.convergence.svg` : undefined,
         });
-        process.stdout.write(`written: ${stem}.html (open it in a browser), ${stem}.report.json, .cir (SPICE), .md, .csv, .probes.csv and plots\n`);
+        process.stdout.write(displayText(`written: ${stem}.html (open it in a browser), ${stem}.report.json, .cir (SPICE), .md, .csv, .probes.csv and plots`) + "\n");
       }
     }));
 }

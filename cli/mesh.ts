@@ -10,6 +10,7 @@ import { encodeMesh, outputFormatFromPath, writeMeshFile } from "../src/io/write
 import { generateShape, SHAPES, type ShapeParams } from "../src/mesh/primitives/index.js";
 import { surfaceArea } from "../src/mesh/measure.js";
 import { formatArea, unitLabel } from "../src/io/si.js";
+import { displayText } from "../src/io/display-text.js";
 
 /** Option flag for a parameter name: panelSize -> --panel-size. */
 const flag = (param: string): string => "--" + param.replace(/[A-Z]/g, (c) => "-" + c.toLowerCase());
@@ -63,7 +64,7 @@ export function registerMesh(program: Command): void {
       else writeMeshFile(output, mesh, format, unit);
       if (!opts.quiet) {
         // Area as `check` and `extract` print it (same digits, same unit notation).
-        process.stderr.write(`sigmesh: ${shape} "${mesh.names[0]}": ${mesh.triangles.length / 3} triangles, ${mesh.positions.length / 3} vertices, area ${formatArea(surfaceArea(mesh), unit)}, lengths in ${unitLabel(unit)} -> ${output === "-" ? "stdout" : output}\n`);
+        process.stderr.write(displayText(`sigmesh: ${shape} "${mesh.names[0]}": ${mesh.triangles.length / 3} triangles, ${mesh.positions.length / 3} vertices, area ${formatArea(surfaceArea(mesh), unit)}, lengths in ${unitLabel(unit)} -> ${output === "-" ? "stdout" : output}`) + "\n");
       }
     }));
 }

@@ -12,6 +12,7 @@ import { closeSharedPool } from "../src/linalg/pool.js";
 import { parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, sceneConductorNames } from "../src/extract/sweep.js";
 import { planResume, runResumable, finishResumable } from "../src/extract/sweep-resume.js";
 import { sweepFiles, mergeSweepCsv } from "../src/report/sweep-table.js";
+import { displayText } from "../src/io/display-text.js";
 import { action, printWarnings, reportFailure } from "./common.js";
 import { collect, countOption, solveSettings } from "./options.js";
 
@@ -49,8 +50,8 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
   const { journalFile, toRun } = plan;
   const kept = plan.kept.size;
   if (!opts.quiet) {
-    process.stderr.write(`sigmesh: sweep of ${scene}: ${points.length} point${points.length === 1 ? "" : "s"}${shard ? `, slice ${shard.index}/${shard.count}: ${indices.length} of them` : ""}`
-      + `${kept > 0 ? `, ${kept} kept from ${journalFile}, ${toRun.length} to run` : ""}, ${processes > 0 ? `${processes} processes at a time` : "one at a time on every core"}\n`);
+    process.stderr.write(`sigmesh: sweep of ${displayText(scene)}: ${points.length} point${points.length === 1 ? "" : "s"}${shard ? `, slice ${shard.index}/${shard.count}: ${indices.length} of them` : ""}`
+      + `${kept > 0 ? `, ${kept} kept from ${displayText(journalFile)}, ${toRun.length} to run` : ""}, ${processes > 0 ? `${processes} processes at a time` : "one at a time on every core"}\n`);
   }
   const start = Date.now();
   let shown = 0;
@@ -58,7 +59,7 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
   const interrupted = (signal: NodeJS.Signals): void => {
     controller.abort();
     if (shown > 0) process.stderr.write("\n");
-    process.stderr.write(`sigmesh: interrupted (${signal}); the points finished are kept in ${journalFile}: rerun with --resume to run only the others\n`);
+    process.stderr.write(`sigmesh: interrupted (${signal}); the points finished are kept in ${displayText(journalFile)}: rerun with --resume to run only the others\n`);
     // In this process a point cannot be stopped half-way, and the journal is complete up to the last line: leave now.
     if (processes <= 0) process.exit(signal === "SIGINT" ? 130 : 143);
     process.exitCode = signal === "SIGINT" ? 130 : 143;
@@ -85,14 +86,14 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
   if (failures.length > 0) {
     let code = 0;
     for (const f of failures) code = Math.max(code, reportFailure(f.error));
-    process.stderr.write(`sigmesh: ${failures.length} of ${indices.length} points failed and no table was written; the ${results.size} finished are kept in ${journalFile}: fix the scene and rerun with --resume to run only the others\n`);
+    process.stderr.write(`sigmesh: ${failures.length} of ${indices.length} points failed and no table was written; the ${results.size} finished are kept in ${displayText(journalFile)}: fix the scene and rerun with --resume to run only the others\n`);
     process.exitCode = code;
     return;
   }
   const files = sweepFiles(axes, entries, points, indices, results, { csv: opts.csv, svg: opts.svg, title: `sweep of ${scene}` });
   writeFilesAtomic(files);
   finishResumable(plan);
-  if (!opts.quiet) process.stderr.write(`sigmesh: ${indices.length} points (${toRun.length} run) in ${((Date.now() - start) / 1000).toFixed(1)} s -> ${files.map((f) => f.path).join(", ")}\n`);
+  if (!opts.quiet) process.stderr.write(`sigmesh: ${indices.length} points (${toRun.length} run) in ${((Date.now() - start) / 1000).toFixed(1)} s -> ${files.map((f) => displayText(f.path)).join(", ")}\n`);
 }
 
 export async function runSweepMerge(inputs: string[], opts: { csv: string; quiet?: boolean }): Promise<void> {
@@ -108,7 +109,7 @@ export async function runSweepMerge(inputs: string[], opts: { csv: string; quiet
     const shown = merged.missing.slice(0, 20).join(", ") + (merged.missing.length > 20 ? `, ... (${merged.missing.length} in all)` : "");
     printWarnings([{ message: `${merged.missing.length} of ${merged.total} points are missing: ${shown}` }], false);
   } else if (!opts.quiet) {
-    process.stderr.write(`sigmesh: ${merged.total} points from ${inputs.length} file${inputs.length === 1 ? "" : "s"} -> ${opts.csv}\n`);
+    process.stderr.write(`sigmesh: ${merged.total} points from ${inputs.length} file${inputs.length === 1 ? "" : "s"} -> ${displayText(opts.csv)}\n`);
   }
 }
 

@@ -5,6 +5,7 @@
 import type { Command } from "commander";
 import { InputError } from "../src/errors.js";
 import { viewPage, serveViewPage } from "../src/report/view-server.js";
+import { displayText } from "../src/io/display-text.js";
 import { action } from "./common.js";
 
 /** Port number 0–65535 (0: the system picks a free one). */
@@ -24,7 +25,7 @@ export function registerView(program: Command): void {
       const port = parsePort(opts.port);
       const page = viewPage(path);
       const { server, url } = await serveViewPage(page, port);
-      process.stdout.write(`sigmesh: viewer for ${path} at ${url}  (Ctrl-C to stop)\n`);
+      process.stdout.write(`sigmesh: viewer for ${displayText(path)} at ${url}  (Ctrl-C to stop)\n`);
       const stop = (): void => { server.close(); server.closeAllConnections(); };
       process.once("SIGINT", stop);
       process.once("SIGTERM", stop);

@@ -18,6 +18,7 @@ export { encodeMesh, writeMeshFile, outputFormatFromPath, type OutputFormat } fr
 export { InputError, type Warning } from "./errors.js";
 export { parseUnit, metresPer, DEFAULT_UNIT, type LengthUnit } from "./io/units.js";
 export { formatSI } from "./io/si.js";
+export { displayText } from "./io/display-text.js";
 export { parseProbeOption, type ProbeSpec } from "./io/probe-spec.js";
 
 // Meshes

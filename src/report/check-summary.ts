@@ -8,6 +8,7 @@ import type { CheckReport, ConductorCheck, PairCheck } from "../mesh/check.js";
 import { THIN_ASPECT } from "../mesh/check.js";
 import { formatNumber, formatLength, formatPoint, lengthValue, unitLabel } from "../io/si.js";
 import { pairSentence } from "../extract/scene-check.js";
+import { displayText } from "../io/display-text.js";
 
 export { pairSentence };
 
@@ -18,8 +19,12 @@ export interface CheckSummaryOptions {
   files?: string[];
 }
 
-/** Pad cells to column widths; numeric-looking columns are right-aligned. */
-export function alignTable(header: string[], rows: string[][], rightAligned: boolean[]): string[] {
+/**
+ * Pad cells to column widths; numeric-looking columns are right-aligned. Cells are escaped
+ * for the terminal (`displayText`) before they are measured.
+ */
+export function alignTable(headerCells: string[], cells: string[][], rightAligned: boolean[]): string[] {
+  const header = headerCells.map(displayText), rows = cells.map((r) => r.map(displayText));
   const width = header.map((h, i) => Math.max([...h].length, ...rows.map((r) => [...r[i]].length)));
   const line = (cells: string[]) => cells.map((c, i) => {
     const pad = " ".repeat(width[i] - [...c].length);
@@ -52,7 +57,10 @@ function conductorNotes(c: ConductorCheck, unit: LengthUnit): string[] {
   return notes;
 }
 
-/** The sentence for one finding between conductors. */
+/**
+ * The check as text for a terminal. Names and paths come from files: each line is escaped
+ * (`displayText`), so a name can neither send control sequences nor break a line.
+ */
 export function formatCheckSummary(report: CheckReport, opts: CheckSummaryOptions): string {
   const u = opts.unit, ul = unitLabel(u);
   const out: string[] = [];
@@ -89,5 +97,5 @@ export function formatCheckSummary(report: CheckReport, opts: CheckSummaryOption
   for (const w of warnings) out.push(`warning: ${pairSentence(w, u)}`);
   for (const e of errors) out.push(`FAILED: ${pairSentence(e, u)}`);
   if (errors.length === 0) out.push(`OK: mesh can be solved${warnings.length + notes.length > 0 ? " (see notes and warnings above)" : ""}`);
-  return out.join("\n") + "\n";
+  return out.map(displayText).join("\n") + "\n";
 }

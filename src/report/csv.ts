@@ -18,11 +18,15 @@
  *
  * Markdown tables are the GitHub Flavored Markdown table extension (GFM spec 0.29, section
  * 4.10 "Tables"); text is escaped with backslashes, which CommonMark allows before any ASCII
- * punctuation (CommonMark spec 0.30, section 2.4 "Backslash escapes").
+ * punctuation (CommonMark spec 0.30, section 2.4 "Backslash escapes"). Control, format and
+ * line-break characters in names are first written as visible escapes (`displayText`), so a
+ * name can neither break a table nor send control sequences to a terminal showing the file;
+ * the CSV, like the JSON report, keeps every name exactly.
  */
 import { InputError } from "../errors.js";
 import type { LengthUnit } from "../io/units.js";
 import { formatSI, formatNumber, formatFieldStrength, formatPoint, formatArea, unitLabel } from "../io/si.js";
+import { displayText } from "../io/display-text.js";
 
 export interface ReportConductor {
   name: string;
@@ -278,11 +282,12 @@ export function csvReport(data: ReportData): string {
 // ---------- Markdown ----------
 
 /**
- * Text safe in a GFM table cell or list item: one line, and the punctuation that starts
- * inline markup (emphasis, code, links, HTML, entities, strikethrough, cell bounds) escaped.
+ * Text safe in a GFM table cell or list item: one line (control and format characters, line
+ * breaks among them, as visible escapes), and the punctuation that starts inline markup
+ * (emphasis, code, links, HTML, entities, strikethrough, cell bounds) escaped.
  */
 export function markdownText(s: string): string {
-  return s.replace(/[\r\n]+/g, " ").replace(/[\\`*_[\]<>|&~]/g, (c) => `\\${c}`);
+  return displayText(s).replace(/[\\`*_[\]<>|&~]/g, (c) => `\\${c}`);
 }
 
 function markdownTable(header: string[], rows: string[][], right: boolean[]): string[] {

@@ -6,10 +6,15 @@ import type { ExtractionResult } from "../extract/result.js";
 import type { SceneExtraction } from "../extract/extract.js";
 import type { LengthUnit } from "../io/units.js";
 import { formatSI, formatNumber, formatArea, formatPoint, formatFieldStrength, formatLength, unitLabel, digitsFor } from "../io/si.js";
+import { displayText } from "../io/display-text.js";
 import { cautionsFor } from "./cautions.js";
 
-/** Lay out rows as columns; `right` marks right-aligned columns. */
-export function table(rows: string[][], right: boolean[] = []): string[] {
+/**
+ * Lay out rows as columns; `right` marks right-aligned columns. Cells are escaped for the
+ * terminal (`displayText`) before they are measured.
+ */
+export function table(cells: string[][], right: boolean[] = []): string[] {
+  const rows = cells.map((r) => r.map(displayText));
   const widths: number[] = [];
   for (const r of rows) r.forEach((cell, i) => { widths[i] = Math.max(widths[i] ?? 0, [...cell].length); });
   return rows.map((r) => r.map((cell, i) => {
@@ -26,7 +31,9 @@ export interface SummaryContext {
 
 /**
  * The terminal summary of an extraction. A scene's extraction (`extract`) names its own input
- * and unit; a bare mesh's (`extractMesh`) needs them given.
+ * and unit; a bare mesh's (`extractMesh`) needs them given. Names, paths and warnings come
+ * from files: each line is escaped for the terminal (`displayText`), so a name can neither
+ * send control sequences nor break a line.
  */
 export function extractionSummary(r: SceneExtraction, ctx?: SummaryContext): string;
 export function extractionSummary(r: ExtractionResult, ctx: SummaryContext): string;
@@ -162,5 +169,5 @@ export function extractionSummary(r: ExtractionResult | SceneExtraction, given?:
     out.push("Warnings");
     for (const w of r.warnings) out.push(`  - ${w}`);
   }
-  return out.join("\n") + "\n";
+  return out.map(displayText).join("\n") + "\n";
 }

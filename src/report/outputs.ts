@@ -17,6 +17,7 @@ import { spiceSubcircuit } from "./spice.js";
 import { csvReport, markdownReport, reportData } from "./csv.js";
 import { fieldAlongLineSvg, convergencePlotSvg } from "./svg-plot.js";
 import { unitLabel } from "../io/si.js";
+import { jsonDisplaySafe } from "../io/display-text.js";
 import { htmlReport } from "./html.js";
 import { viewerData, viewerDataJson } from "./viewer-data.js";
 import { extractionReport } from "./json.js";
@@ -76,9 +77,12 @@ export function sceneReport(result: SceneExtraction, opts: { panels?: boolean } 
   return report;
 }
 
-/** JSON text with non-finite numbers as null (JSON has no NaN or Infinity). */
+/**
+ * JSON text with non-finite numbers as null (JSON has no NaN or Infinity), and control and
+ * format characters in strings as `\u` escapes: the same names when read, safe to show.
+ */
 export function jsonText(value: unknown): string {
-  return JSON.stringify(value, (_k, v) => (typeof v === "number" && !Number.isFinite(v) ? null : v), 2) + "\n";
+  return jsonDisplaySafe(JSON.stringify(value, (_k, v) => (typeof v === "number" && !Number.isFinite(v) ? null : v), 2)) + "\n";
 }
 
 /** What `writeOutputs` did: the files written, and the text of the output sent to `-`, if any. */

@@ -14,6 +14,7 @@
  * port of its own that the user ties to 0 or to anything else.
  */
 import { engineeringExponent } from "../io/si.js";
+import { displayText } from "../io/display-text.js";
 
 /** Scale factors SPICE3 reads (ngspice manual, table of scale factors). */
 const SCALE: ReadonlyArray<[string, number]> = [
@@ -119,11 +120,6 @@ export function spiceLines(words: readonly string[], width = 80): string[] {
   return lines;
 }
 
-/** Comment text: one physical line, no control characters. */
-function commentText(s: string): string {
-  return s.replace(/[\u0000-\u001f\u007f]+/g, " ");
-}
-
 /**
  * The subcircuit of a k×k mutual (two-terminal) capacitance matrix `mutual` (F, row-major:
  * C_ii^m on the diagonal, C_ij^m ≥ 0 off it; the two halves are averaged).
@@ -163,15 +159,18 @@ export function spiceSubcircuit(names: string[], mutual: Float64Array, opts: Spi
     out.push(...spiceLines(chunks, 78).map((l, n) => (n === 0 ? `* ${l}` : `*   ${l.slice(2)}`)));
   };
   const words = (text: string): string[] => text.split(" ");
-  out.push(`* ${commentText(opts.title ?? "sigmesh capacitance network")}`);
+  // Names and the title in comments: one physical line, control and format characters (C1
+  // and the bidirectional overrides too, which reach a terminal showing the netlist) as
+  // visible escapes.
+  out.push(`* ${displayText(opts.title ?? "sigmesh capacitance network")}`);
   comment([`${k} conductor${k === 1 ? "" : "s"}; ports in order:`, ...nodes, refNode]);
   comment(words(reference === "infinity"
     ? `reference port ${refNode}: the far surroundings (potential at infinity); tie it to 0 for an isolated system`
     : `reference port ${refNode}: the ground plane of the extraction; tie it to 0`));
   const eliminated = opts.eliminated ?? [];
-  if (eliminated.length > 0) comment([`floating conductor${eliminated.length === 1 ? "" : "s"} eliminated (no net charge, no port):`, ...eliminated.map(commentText)]);
+  if (eliminated.length > 0) comment([`floating conductor${eliminated.length === 1 ? "" : "s"} eliminated (no net charge, no port):`, ...eliminated.map(displayText)]);
   out.push("* conductor names and their nodes:");
-  for (let i = 0; i < k; i++) out.push(`*   ${nodes[i]} = ${commentText(names[i])}`);
+  for (let i = 0; i < k; i++) out.push(`*   ${nodes[i]} = ${displayText(names[i])}`);
   comment([...words(`values from the mutual capacitance matrix (F); capacitors below ${Number(threshold.toPrecision(3))} times the largest (${spiceNumber(largest, 4)})`), `dropped: ${dropped} of ${caps.length}`]);
   const negative = kept.filter((c) => c.value < 0);
   if (negative.length > 0) comment(words(`${negative.length} negative value(s) kept as computed (a shielded conductor's capacitance to the reference is near zero and within the error of the extraction)`));

@@ -1,11 +1,20 @@
 /**
  * The viewer server behind `sigmesh view`: one result's page served on 127.0.0.1. The server
- * holds the page in memory and answers exactly two paths, `/` (the page) and `/report.json`
- * (the JSON report); it never touches the file system after start-up, so there is nothing to
- * list and no path to traverse.
+ * holds the page in memory and answers exactly two paths, `/TOKEN/` (the page) and
+ * `/TOKEN/report.json` (the JSON report); it never touches the file system after start-up,
+ * so there is nothing to list and no path to traverse.
+ *
+ * Two locks keep other web sites out. The Host header must name the loopback address and
+ * port it listens on (`127.0.0.1:PORT` or `localhost:PORT`): a page on another site that
+ * rebinds its own DNS name to 127.0.0.1 sends its own name, and is answered 421 Misdirected
+ * Request (RFC 9110, section 15.5.20); checking the Host header is the common-practice
+ * defence of a local server against DNS rebinding. And TOKEN is 24 random bytes (base64url)
+ * made at start and printed only in the URL: a request without it is answered 403, so a page
+ * that guesses ports, or another user of this machine, reads nothing either.
  */
+import { randomBytes, timingSafeEqual } from "node:crypto";
 import { readFileSync } from "node:fs";
-import { createServer, type Server } from "node:http";
+import { createServer, type Server, type ServerResponse } from "node:http";
 import { InputError } from "../errors.js";
 import { htmlReport, embeddedResults, type PackedViewerData } from "./html.js";
 import { VIEWER_FORMAT } from "./viewer-data.js";
@@ -64,23 +73,58 @@ const HEADERS = {
   "Cross-Origin-Resource-Policy": "same-origin",
 };
 
-/** Start serving `page` on 127.0.0.1:port; resolves with the server and its URL. */
+/** The Host header names this server: the loopback address or localhost, with its port. */
+function hostAllowed(host: string | undefined, port: number): boolean {
+  if (host === undefined) return false;
+  const m = /^(127\.0\.0\.1|localhost)(?::(\d{1,5}))?$/i.exec(host.trim());
+  if (!m) return false;
+  // A browser leaves out the port only when it is the scheme's default.
+  return m[2] === undefined ? port === 80 : Number(m[2]) === port;
+}
+
+/** What follows `/TOKEN` in `path` (from the next slash on), or undefined when the token is not there; compared in constant time. */
+function tokenPath(path: string, token: Buffer): string | undefined {
+  const end = path.indexOf("/", 1);
+  if (!path.startsWith("/") || end < 0) return undefined;
+  const given = Buffer.from(path.slice(1, end), "utf8");
+  if (given.length !== token.length || !timingSafeEqual(given, token)) return undefined;
+  return path.slice(end);
+}
+
+/**
+ * Start serving `page` on 127.0.0.1:port; resolves with the server and its URL, which
+ * carries the access token (`http://127.0.0.1:PORT/TOKEN/`).
+ */
 export function serveViewPage(page: ViewPage, port: number): Promise<{ server: Server; url: string }> {
   const html = Buffer.from(page.html, "utf8");
   const json = Buffer.from(page.reportJson, "utf8");
+  const token = randomBytes(24).toString("base64url");
+  const tokenBytes = Buffer.from(token, "utf8");
+  let listening = port;
+  const refuse = (res: ServerResponse, status: number, text: string): void => {
+    res.writeHead(status, { ...HEADERS, "Content-Type": "text/plain; charset=utf-8" });
+    res.end(text + "\n");
+  };
   const server = createServer((req, res) => {
+    if (!hostAllowed(req.headers.host, listening)) {
+      refuse(res, 421, `misdirected request: this server answers only to 127.0.0.1:${listening} and localhost:${listening}`);
+      return;
+    }
     const method = req.method ?? "GET";
     if (method !== "GET" && method !== "HEAD") {
       res.writeHead(405, { ...HEADERS, Allow: "GET, HEAD", "Content-Type": "text/plain; charset=utf-8" });
       res.end("method not allowed\n");
       return;
     }
-    // The raw request target, unnormalised: only the exact two paths are served.
-    const target = (req.url ?? "").split("?")[0];
+    // The raw request target, unnormalised: only the exact two paths under the token are served.
+    const target = tokenPath((req.url ?? "").split("?")[0], tokenBytes);
+    if (target === undefined) {
+      refuse(res, 403, "forbidden: open the address `sigmesh view` printed, with its token");
+      return;
+    }
     const body = target === "/" || target === "/index.html" ? html : target === "/report.json" ? json : undefined;
     if (!body) {
-      res.writeHead(404, { ...HEADERS, "Content-Type": "text/plain; charset=utf-8" });
-      res.end("not found\n");
+      refuse(res, 404, "not found");
       return;
     }
     res.writeHead(200, {
@@ -98,8 +142,8 @@ export function serveViewPage(page: ViewPage, port: number): Promise<{ server: S
     });
     server.listen(port, "127.0.0.1", () => {
       const addr = server.address();
-      const p = typeof addr === "object" && addr ? addr.port : port;
-      resolve({ server, url: `http://127.0.0.1:${p}/` });
+      listening = typeof addr === "object" && addr ? addr.port : port;
+      resolve({ server, url: `http://127.0.0.1:${listening}/${token}/` });
     });
   });
 }

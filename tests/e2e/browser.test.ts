@@ -373,7 +373,7 @@ function startView(args: string[]): Promise<{ child: ChildProcess; url: string }
     let out = "", err = "";
     child.stdout!.on("data", (c) => {
       out += c;
-      const m = /(http:\/\/127\.0\.0\.1:\d+\/)/.exec(out);
+      const m = /(http:\/\/127\.0\.0\.1:\d+\/\S*)/.exec(out);
       if (m) resolve({ child, url: m[1] });
     });
     child.stderr!.on("data", (c) => { err += c; });
@@ -386,24 +386,28 @@ function stop(child: ChildProcess): Promise<number | null> {
 }
 
 describe("sigmesh view", () => {
-  it("serves the page and the report on 127.0.0.1 only, and nothing else", async () => {
+  it("serves the page and the report on 127.0.0.1 only, under its token only, and nothing else", async () => {
     expect(existsSync(cli), "dist/cli/main.js missing: run `npm run build` first").toBe(true);
     const { child, url } = await startView([htmlPath]);
     try {
       const port = Number(new URL(url).port);
-      const page = await get(port, "/");
+      const base = new URL(url).pathname;
+      const page = await get(port, base);
       expect(page.status).toBe(200);
       expect(page.type).toMatch(/^text\/html/);
       expect(page.body).toContain('id="sigmesh-data"');
-      const json = await get(port, "/report.json");
+      const json = await get(port, base + "report.json");
       expect(json.status).toBe(200);
       expect(JSON.parse(json.body).fieldCheck.peakField).toBe(report.fieldCheck.peakField);
-      for (const p of ["/../etc/passwd", "/..%2f..%2fetc%2fpasswd", "/%2e%2e/etc/passwd", "//etc/passwd", "/dist/", "/viewer.js", "/report.html", "/favicon.ico", "/index.html/.."]) {
-        const r = await get(port, p);
+      for (const p of ["../etc/passwd", "..%2f..%2fetc%2fpasswd", "%2e%2e/etc/passwd", "/etc/passwd", "dist/", "viewer.js", "report.html", "favicon.ico", "index.html/.."]) {
+        const r = await get(port, base + p);
         expect(r.status, p).toBe(404);
         expect(r.body).not.toContain("root:");
+        // without the token: refused before any path is looked at
+        expect((await get(port, "/" + p)).status, p).toBe(403);
       }
-      expect((await get(port, "/", "POST")).status).toBe(405);
+      expect((await get(port, "/")).status).toBe(403);
+      expect((await get(port, base, "POST")).status).toBe(405);
       // Bound to the loopback address: another interface of this machine refuses.
       const other = Object.values(networkInterfaces()).flat().find((a) => a && a.family === "IPv4" && !a.internal);
       if (other) await expect(get(port, "/", "GET", other.address)).rejects.toThrow();
@@ -417,7 +421,7 @@ describe("sigmesh view", () => {
     writeFileSync(jsonPath, JSON.stringify({ ...report, viewer: viewerDataJson(result) }));
     const { child, url } = await startView([jsonPath, "--port", "0"]);
     try {
-      expect((await get(Number(new URL(url).port), "/report.json")).body).not.toContain('"viewer"');
+      expect((await get(Number(new URL(url).port), new URL(url).pathname + "report.json")).body).not.toContain('"viewer"');
       if (browser) {
         const requests: string[] = [], dialogs: string[] = [];
         const page = await openReport(url, requests, dialogs);

@@ -2,6 +2,7 @@
 // the file (and the line and column of a JSON fault), and serves a report until SIGINT.
 import { describe, it, expect, beforeAll, afterAll } from "vitest";
 import { spawn, spawnSync } from "node:child_process";
+import { request } from "node:http";
 import { mkdtempSync, rmSync, existsSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
@@ -13,6 +14,20 @@ let dir = "";
 function run(args: string[]) {
   const r = spawnSync(process.execPath, [cli, ...args], { encoding: "utf8", timeout: 60_000 });
   return { code: r.status, out: r.stdout, err: r.stderr };
+}
+
+/** A GET with the Host header given (fetch sets its own). */
+function getWithHost(url: URL, host: string, path = url.pathname): Promise<{ status: number; body: string }> {
+  return new Promise((resolve, reject) => {
+    const req = request({ host: url.hostname, port: url.port, path, headers: { host } }, (res) => {
+      let body = "";
+      res.setEncoding("utf8");
+      res.on("data", (c: string) => { body += c; });
+      res.on("end", () => resolve({ status: res.statusCode ?? 0, body }));
+    });
+    req.on("error", reject);
+    req.end();
+  });
 }
 
 beforeAll(() => {
@@ -44,18 +59,31 @@ describe("sigmesh view", () => {
     expect(s.err).toMatch(/^sigmesh: error: .*stray\.json: (line \d+, column \d+: )?not valid JSON \([^\n]*\)\n$/);
   });
 
-  it("serves an extraction's JSON report with panels, only its two paths, and stops on SIGINT with exit 0", async () => {
+  /** Serve `ball.json` (made once), run `check` against the printed URL, stop with SIGINT and expect exit 0. */
+  async function withViewer(check: (url: string) => Promise<void>): Promise<void> {
     const mesh = join(dir, "ball.stl"), report = join(dir, "ball.json");
-    expect(run(["mesh", "sphere", "--radius", "1", "--level", "1", "-o", mesh, "-q"]).code).toBe(0);
-    const ex = run(["extract", mesh, "--json", report, "--json-panels", "--quiet"]);
-    expect(ex.code, ex.err).toBe(0);
+    if (!existsSync(report)) {
+      expect(run(["mesh", "sphere", "--radius", "1", "--level", "1", "-o", mesh, "-q"]).code).toBe(0);
+      const ex = run(["extract", mesh, "--json", report, "--json-panels", "--quiet"]);
+      expect(ex.code, ex.err).toBe(0);
+    }
     const child = spawn(process.execPath, [cli, "view", report], { stdio: ["ignore", "pipe", "pipe"] });
     const url = await new Promise<string>((resolve, reject) => {
       let out = "";
-      child.stdout.on("data", (b: Buffer) => { out += b.toString(); const m = /(http:\/\/127\.0\.0\.1:\d+\/)/.exec(out); if (m) resolve(m[1]); });
+      child.stdout.on("data", (b: Buffer) => { out += b.toString(); const m = /(http:\/\/127\.0\.0\.1:\d+\/\S*)/.exec(out); if (m) resolve(m[1]); });
       child.once("exit", (code) => reject(new Error(`view exited with ${code} before printing its URL`)));
     });
     try {
+      await check(url);
+    } finally {
+      const exited = new Promise<number | null>((resolve) => child.once("exit", (code) => resolve(code)));
+      child.kill("SIGINT");
+      expect(await exited).toBe(0);
+    }
+  }
+
+  it("serves an extraction's JSON report with panels at the printed URL, only its two paths, and stops on SIGINT with exit 0", async () => {
+    await withViewer(async (url) => {
       const page = await fetch(url);
       expect(page.status).toBe(200);
       expect(page.headers.get("content-type")).toMatch(/^text\/html/);
@@ -65,10 +93,35 @@ describe("sigmesh view", () => {
       expect(json.viewer).toBeUndefined();
       expect((await fetch(url + "ball.json")).status).toBe(404);
       expect((await fetch(url, { method: "POST" })).status).toBe(405);
-    } finally {
-      const exited = new Promise<number | null>((resolve) => child.once("exit", (code) => resolve(code)));
-      child.kill("SIGINT");
-      expect(await exited).toBe(0);
-    }
+    });
+  }, 60_000);
+
+  it("serves nothing without the random token the printed URL carries", async () => {
+    await withViewer(async (url) => {
+      const u = new URL(url);
+      const token = u.pathname.split("/")[1];
+      // at least 128 random bits, URL-safe
+      expect(token).toMatch(/^[A-Za-z0-9_-]{22,}$/);
+      for (const path of ["/", "/report.json", "/index.html", `/${token.slice(0, -1)}/report.json`, `/${token}x/`, `/x${token}/`, `/${token}`]) {
+        const r = await fetch(new URL(path, u.origin));
+        expect(r.status, path).toBe(403);
+        expect(await r.text()).not.toContain("sigmesh-extraction");
+      }
+    });
+  }, 60_000);
+
+  it("answers only requests whose Host is its own loopback address and port (DNS rebinding is refused with 421)", async () => {
+    await withViewer(async (url) => {
+      const u = new URL(url);
+      // A page on another site that resolves its own name to 127.0.0.1 sends its own name as Host.
+      for (const host of [`evil.example:${u.port}`, `127.0.0.1.evil.example:${u.port}`, `localhost:${Number(u.port) + 1}`, "127.0.0.1", `[::1]:${u.port}`, `127.0.0.1:${u.port}@evil.example`]) {
+        const r = await getWithHost(u, host, u.pathname + "report.json");
+        expect(r.status, host).toBe(421);
+        expect(r.body).not.toContain("sigmesh-extraction");
+      }
+      for (const host of [`127.0.0.1:${u.port}`, `localhost:${u.port}`, `LOCALHOST:${u.port}`]) {
+        expect((await getWithHost(u, host, u.pathname + "report.json")).status, host).toBe(200);
+      }
+    });
   }, 60_000);
 });

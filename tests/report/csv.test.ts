@@ -130,6 +130,15 @@ describe("report tables", async () => {
     expect(md).toContain("a warning, with a comma");
   });
 
+  it("Markdown shows control, line-break and bidirectional characters in names as visible escapes", () => {
+    expect(markdownText("pad\x1b]0;t\x07\n| forged |\u202e")).toBe("pad\\\\x1b\\]0;t\\\\x07\\\\x0a\\| forged \\|\\\\u202e");
+    expect(markdownText("Düse 电极")).toBe("Düse 电极");
+    const hostile = { ...data, conductors: data.conductors.map((c, i) => (i === 0 ? { ...c, name: "a\x9b2J\r\nb\u2067" } : c)) };
+    const md = markdownReport(hostile);
+    expect(/[\0-\x09\x0b-\x1f\x7f-\x9f\p{Cf}]/u.test(md)).toBe(false);
+    expect(md).toContain("| a\\\\x9b2J\\\\x0d\\\\x0ab\\\\u2067 |");
+  });
+
   it("rejects a report missing what the tables need, naming the key path", () => {
     const bad = JSON.parse(JSON.stringify(json)) as Record<string, any>;
     bad.conductors[1].charge = "x";

@@ -139,6 +139,16 @@ describe("spiceSubcircuit", () => {
     expect(parseSpiceCapacitors(spiceSubcircuit(names, mutual, { relativeThreshold: 0 })).caps.length).toBe(10);
   });
 
+  it("names in comments show control and bidirectional characters as visible escapes (C1 and U+202E too)", () => {
+    const names = ["pad\x1b[2J\x9b31m", "key\u202eyek\u2066", "ok"];
+    const text = spiceSubcircuit(names, mutualFromMaxwell(maxwellOf(3, 5), 3), { title: "run\x07\nnext" });
+    expect(/[\0-\x09\x0b-\x1f\x7f-\x9f\p{Cf}]/u.test(text)).toBe(false);
+    expect(text).toContain("* run\\x07\\x0anext\n");
+    expect(text).toContain("= pad\\x1b[2J\\x9b31m\n");
+    expect(text).toContain("= key\\u202eyek\\u2066\n");
+    expect(parseSpiceCapacitors(text).nodes.length).toBe(4);
+  });
+
   it("keeps every line within 80 columns on many conductors: ports continue on + lines and read back in order", () => {
     const k = 40;
     const names = Array.from({ length: k }, (_, i) => `sense_electrode_row${Math.floor(i / 8)}_col${i % 8}`);
