@@ -16,7 +16,7 @@ export function isDebug(): boolean { return debug; }
 /** Report a failure as one line on stderr (a stack trace only with --debug) and set the exit code. */
 export function reportFailure(err: unknown): number {
   if (err instanceof InputError) {
-    process.stderr.write(`sigmesh: error: ${err.message}\n`);
+    process.stderr.write(`sigmesh: error: ${displayText(err.message)}\n`);
     if (debug && err.stack) process.stderr.write(err.stack + "\n");
     return EXIT_BAD_INPUT;
   }
@@ -24,12 +24,12 @@ export function reportFailure(err: unknown): number {
   if (code === "ENOENT" || code === "EACCES" || code === "EISDIR" || code === "ENOSPC" || code === "EROFS") {
     const e = err as NodeJS.ErrnoException;
     const what = code === "ENOENT" ? "no such file" : code === "EACCES" ? "permission denied" : code === "EISDIR" ? "is a directory" : code === "ENOSPC" ? "no space left on device" : "read-only file system";
-    process.stderr.write(`sigmesh: error: ${e.path ?? ""}: ${what}\n`);
+    process.stderr.write(`sigmesh: error: ${displayText(e.path ?? "")}: ${what}\n`);
     if (debug && e.stack) process.stderr.write(e.stack + "\n");
     return EXIT_BAD_INPUT;
   }
   const msg = err instanceof Error ? err.message : String(err);
-  process.stderr.write(`sigmesh: internal error: ${msg}${debug ? "" : " (run with --debug for details)"}\n`);
+  process.stderr.write(`sigmesh: internal error: ${displayText(msg)}${debug ? "" : " (run with --debug for details)"}\n`);
   if (debug && err instanceof Error && err.stack) process.stderr.write(err.stack + "\n");
   return EXIT_INTERNAL;
 }

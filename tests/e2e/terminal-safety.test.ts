@@ -94,9 +94,8 @@ describe("hostile conductor names", () => {
     for (const text of [r.out, r.err]) expect(text.split("\n").some((l) => l.startsWith("OK"))).toBe(false);
   }, 120_000);
 
-  // reportFailure (cli/common.ts, another branch of issue 13) writes error messages through
-  // displayText once merged; until then this test is expected to fail: turn `it.fails` into `it`.
-  it.fails("an error message quoting the names shows them escaped", () => {
+  // reportFailure (cli/common.ts) writes error messages through displayText.
+  it("an error message quoting the names shows them escaped", () => {
     const r = run(["extract", "hostile.stl", "--potential", "nothere\x1b[2J=1"]);
     expect(r.code).toBe(2);
     expect(r.err.trim().split("\n")).toHaveLength(1);
