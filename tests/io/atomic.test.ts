@@ -67,6 +67,18 @@ describe("writeFilesAtomic", () => {
     expect(readdirSync(join(dir, "r.json"))).toEqual(["keep"]);
   });
 
+  it("a target that is already a directory is refused before the earlier set is touched", () => {
+    const dir = folderWith({ "r.cir": "old spice", "r.csv": "old csv" });
+    mkdirSync(join(dir, "r.json"));
+    const err = refusal(() => writeFilesAtomic([
+      { path: join(dir, "r.cir"), option: "--spice", data: "new spice" },
+      { path: join(dir, "r.csv"), option: "--csv", data: "new csv" },
+      { path: join(dir, "r.json"), option: "--json", data: "new json" },
+    ]));
+    expect(err.message).toBe(`--json ${join(dir, "r.json")}: is a directory, not a file: give a file name`);
+    expect(contents(dir)).toEqual({ "r.cir": "old spice", "r.csv": "old csv", "r.json": "<dir>" });
+  });
+
   it("the same file named twice (directly, through .. or a symbolic link) writes nothing", () => {
     const dir = folderWith({});
     symlinkSync(dir, join(dir, "link"));
