@@ -3,7 +3,7 @@
  * a failed rename that puts the earlier set back, one file named twice, only an output's own
  * directory created, and the process ending in the middle of a write (an exit, a signal).
  */
-import { describe, it, expect, beforeAll, afterAll } from "vitest";
+import { describe, it, expect, beforeAll, afterAll, vi } from "vitest";
 import { spawnSync } from "node:child_process";
 import { mkdtempSync, mkdirSync, writeFileSync, readFileSync, readdirSync, rmSync, existsSync, symlinkSync, unlinkSync, statSync, chmodSync } from "node:fs";
 import { tmpdir } from "node:os";
@@ -11,6 +11,7 @@ import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 import { writeFilesAtomic, writeFileAtomic, checkOutputPaths, outputOfHidden } from "../../src/io/atomic.js";
 import { InputError } from "../../src/errors.js";
+import { reportFailure } from "../../cli/common.js";
 
 let root = "";
 beforeAll(() => { root = mkdtempSync(join(tmpdir(), "sigmesh-atomic-")); });
@@ -175,4 +176,20 @@ describe("writeFilesAtomic when the process ends in the middle", () => {
       expect(contents(dir)).toEqual({ "a.txt": "new a", "b.txt": "new b" });
     });
   }
+});
+
+describe("a file-system fault that reaches the command line", () => {
+  const reported = (err: unknown): [number, string] => {
+    let text = "";
+    const spy = vi.spyOn(process.stderr, "write").mockImplementation((chunk: string | Uint8Array) => { text += String(chunk); return true; });
+    try { return [reportFailure(err), text]; } finally { spy.mockRestore(); }
+  };
+  const fault = (code: string, path?: string) => Object.assign(new Error(`${code}: raw`), { code, path });
+
+  it("is one line and exit 2, naming the output a hidden temporary stands for, never the temporary", () => {
+    expect(reported(fault("ENOSPC", "/d/.keypad.html.sigmesh-12-0a1b2c3d.tmp"))).toEqual([2, "sigmesh: error: cannot write /d/keypad.html: no space left on device\n"]);
+    expect(reported(fault("EROFS", "/d/r.json"))).toEqual([2, "sigmesh: error: /d/r.json: read-only file system\n"]);
+    expect(reported(fault("ENOTDIR", "/d/notes.txt/r.json"))).toEqual([2, "sigmesh: error: /d/notes.txt/r.json: a part of the path is not a directory\n"]);
+    expect(reported(fault("EDQUOT"))).toEqual([2, "sigmesh: error: disk quota exceeded\n"]);
+  });
 });
