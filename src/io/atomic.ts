@@ -13,7 +13,7 @@
  *      fails, every target already replaced gets its backup back (a target that was new is
  *      removed), so the earlier set stands as it was;
  *   4. the backups are removed.
- * Steps 2 and 3 are one synchronous call: SIGINT and SIGTERM that would end the process there
+ * Steps 2 and 3 are one synchronous call: SIGINT, SIGTERM and SIGHUP that would end the process there
  * (no listener of their own) are held and raised again once the set is written. Temporaries are
  * removed on every failure, and by an exit hook should the process end any other way.
  *
@@ -205,10 +205,10 @@ export function outputOfHidden(path: string): string | undefined {
 
 // ---- signals ----
 
-const HELD_SIGNALS: NodeJS.Signals[] = ["SIGINT", "SIGTERM"];
+const HELD_SIGNALS: NodeJS.Signals[] = ["SIGINT", "SIGTERM", "SIGHUP"];
 
 /**
- * Hold SIGINT and SIGTERM that would end the process at once (no listener): a listener notes
+ * Hold SIGINT, SIGTERM and SIGHUP that would end the process at once (no listener): a listener notes
  * them, and once the write is done they are raised again with their default action. The
  * signal reaches the listener only on the event loop, after the synchronous write; the
  * release waits two turns of the loop so that its poll phase has run in between.

@@ -166,7 +166,7 @@ describe("writeFilesAtomic when the process ends in the middle", () => {
     expect(contents(dir)).toEqual({ "a.txt": "old a", "b.txt": "old b" });
   });
 
-  for (const signal of ["SIGINT", "SIGTERM"] as const) {
+  for (const signal of ["SIGINT", "SIGTERM", "SIGHUP"] as const) {
     it(`${signal} during the write is held until the set is written, then ends the process as asked`, () => {
       const dir = folderWith({ "a.txt": "old a", "b.txt": "old b" });
       const r = child(dir, signal);
