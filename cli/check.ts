@@ -18,6 +18,7 @@ import { pairSentence } from "../src/extract/scene-check.js";
 import { checkReport } from "../src/report/check-report.js";
 import { jsonText } from "../src/report/outputs.js";
 import { displayText } from "../src/io/display-text.js";
+import { checkOutputPaths } from "../src/io/atomic.js";
 import { action, printWarnings, writeOutput, EXIT_BAD_INPUT } from "./common.js";
 
 interface CheckCliOptions {
@@ -44,6 +45,7 @@ export function registerCheck(program: Command): void {
       const unit = parseUnit(opts.unit, "--unit");
       const unitAssumed = cmd.getOptionValueSource("unit") === "default";
       if (opts.split && opts.merge) throw new InputError("--split and --merge cannot be used together");
+      if (opts.json !== undefined) checkOutputPaths([{ path: opts.json, option: "--json" }]);
       let weldTolerance: number | undefined;
       if (opts.weldTolerance !== undefined) {
         weldTolerance = Number(opts.weldTolerance);

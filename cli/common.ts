@@ -3,7 +3,8 @@
  * Exit codes: 0 success, 2 bad input (one line naming file, place and fault), 1 internal error.
  */
 import { InputError, type Warning } from "../src/errors.js";
-import { writeFileAtomic } from "../src/io/atomic.js";
+import { dirname, join } from "node:path";
+import { writeFileAtomic, fileFault, outputOfHidden } from "../src/io/atomic.js";
 import { displayText } from "../src/io/display-text.js";
 
 export const EXIT_BAD_INPUT = 2;
@@ -13,6 +14,20 @@ let debug = false;
 export function setDebug(on: boolean): void { debug = on; }
 export function isDebug(): boolean { return debug; }
 
+/** File-system faults the user can act on (exit 2): a missing file, no permission, a full or read-only disk. */
+const FILE_FAULTS = new Set(["ENOENT", "EACCES", "EPERM", "EISDIR", "ENOTDIR", "ENOSPC", "EDQUOT", "EROFS", "EFBIG", "ENAMETOOLONG", "ELOOP"]);
+
+/**
+ * One line for a file-system fault that reached the edge without a file named by the library:
+ * the file as its name, never a hidden temporary of an output (src/io/atomic.ts), and the fault.
+ */
+function fileFaultLine(code: string, path: string | undefined): string {
+  const what = code === "ENOENT" ? "no such file" : fileFault(code);
+  if (path === undefined) return what;
+  const output = outputOfHidden(path);
+  return output === undefined ? `${path}: ${what}` : `cannot write ${join(dirname(path), output)}: ${what}`;
+}
+
 /** Report a failure as one line on stderr (a stack trace only with --debug) and set the exit code. */
 export function reportFailure(err: unknown): number {
   if (err instanceof InputError) {
@@ -21,10 +36,9 @@ export function reportFailure(err: unknown): number {
     return EXIT_BAD_INPUT;
   }
   const code = (err as NodeJS.ErrnoException)?.code;
-  if (code === "ENOENT" || code === "EACCES" || code === "EISDIR" || code === "ENOSPC" || code === "EROFS") {
+  if (typeof code === "string" && FILE_FAULTS.has(code)) {
     const e = err as NodeJS.ErrnoException;
-    const what = code === "ENOENT" ? "no such file" : code === "EACCES" ? "permission denied" : code === "EISDIR" ? "is a directory" : code === "ENOSPC" ? "no space left on device" : "read-only file system";
-    process.stderr.write(`sigmesh: error: ${displayText(e.path ?? "")}: ${what}\n`);
+    process.stderr.write(`sigmesh: error: ${displayText(fileFaultLine(code, e.path))}\n`);
     if (debug && e.stack) process.stderr.write(e.stack + "\n");
     return EXIT_BAD_INPUT;
   }

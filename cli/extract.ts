@@ -98,7 +98,10 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
   });
   printWarnings(scene.warnings, false);
   // Probe results go to probes.csv unless told otherwise.
-  if (targets.probeCsv === undefined && scene.probes.length + probes.length > 0) targets.probeCsv = "probes.csv";
+  if (targets.probeCsv === undefined && scene.probes.length + probes.length > 0) {
+    targets.probeCsv = "probes.csv";
+    checkOutputTargets(targets, settings.refine);
+  }
 
   const bar = progressBar(!opts.quiet);
   let result;

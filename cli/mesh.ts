@@ -7,6 +7,7 @@ import { action } from "./common.js";
 import { InputError } from "../src/errors.js";
 import { parseUnit, metresPer, DEFAULT_UNIT } from "../src/io/units.js";
 import { encodeMesh, outputFormatFromPath, writeMeshFile } from "../src/io/write.js";
+import { checkOutputPaths } from "../src/io/atomic.js";
 import { generateShape, SHAPES, type ShapeParams } from "../src/mesh/primitives/index.js";
 import { surfaceArea } from "../src/mesh/measure.js";
 import { formatArea, unitLabel } from "../src/io/si.js";
@@ -50,6 +51,7 @@ export function registerMesh(program: Command): void {
       const output = typeof opts.output === "string" ? opts.output : undefined;
       if (output === undefined || output === "") throw new InputError("give the output file with -o (.stl or .obj, or - for stdout)");
       const format = output === "-" ? "stl-ascii" : outputFormatFromPath(output, Boolean(opts.ascii));
+      checkOutputPaths([{ path: output, option: "-o" }]);
       const params: ShapeParams = {};
       for (const [param] of PARAMETERS) {
         const v = opts[param];

@@ -7,7 +7,7 @@ import type { Command } from "commander";
 import { readFileSync } from "node:fs";
 import { extname } from "node:path";
 import { InputError } from "../src/errors.js";
-import { writeFilesAtomic } from "../src/io/atomic.js";
+import { writeFilesAtomic, checkOutputPaths } from "../src/io/atomic.js";
 import { closeSharedPool } from "../src/linalg/pool.js";
 import { parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, sceneConductorNames } from "../src/extract/sweep.js";
 import { planResume, runResumable, finishResumable } from "../src/extract/sweep-resume.js";
@@ -41,6 +41,8 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
   const points = sweepGrid(axes);
   const shard = opts.shard === undefined ? undefined : parseShard(opts.shard);
   const indices = shardPoints(points.length, shard);
+  // The table's folder also takes the journal: checked before anything runs.
+  checkOutputPaths([{ path: opts.csv, option: "--csv" }, ...(opts.svg === undefined ? [] : [{ path: opts.svg, option: "--svg" }])]);
   // Names and parameters are checked on the first point before anything runs.
   const names = sceneConductorNames(scene, points[0]);
   const entries = opts.entries === undefined ? defaultEntries(names) : parseEntries(opts.entries, names);
@@ -97,6 +99,7 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
 }
 
 export async function runSweepMerge(inputs: string[], opts: { csv: string; quiet?: boolean }): Promise<void> {
+  checkOutputPaths([{ path: opts.csv, option: "--csv" }]);
   const files = inputs.map((file) => {
     try { return { file, text: readFileSync(file, "utf8") }; } catch (err) {
       const code = (err as NodeJS.ErrnoException).code;
@@ -104,7 +107,7 @@ export async function runSweepMerge(inputs: string[], opts: { csv: string; quiet
     }
   });
   const merged = mergeSweepCsv(files);
-  writeFilesAtomic([{ path: opts.csv, data: merged.text }]);
+  writeFilesAtomic([{ path: opts.csv, option: "--csv", data: merged.text }]);
   if (merged.missing.length > 0) {
     const shown = merged.missing.slice(0, 20).join(", ") + (merged.missing.length > 20 ? `, ... (${merged.missing.length} in all)` : "");
     printWarnings([{ message: `${merged.missing.length} of ${merged.total} points are missing: ${shown}` }], false);

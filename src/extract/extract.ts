@@ -3,7 +3,7 @@
  * scene asks for out — capacitance matrices, charges, fields, forces, the field check, the error
  * estimate and the probes. `sigmesh extract`, `sigmesh sweep` (in process and in its child
  * processes) and library scripts all go through `extract`; the files of a run are then written
- * by `writeOutputs` (src/report/write-outputs.ts).
+ * by `writeOutputs` (src/report/outputs.ts).
  *
  *   const scene = loadScene("board.json");
  *   const result = await extract(scene, { refine: 1 });

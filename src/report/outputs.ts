@@ -1,17 +1,18 @@
 /**
  * The outputs of an extraction, written as one set: the JSON report, the HTML report with the 3D
  * view, the SPICE subcircuit, CSV and Markdown tables, the probe table with a field plot per
- * probe line, and the convergence plot. Every file is built in memory first and then written all
- * or none (src/io/atomic.ts `writeFilesAtomic`); `-` sends one of them to the caller instead
- * (the CLI prints it on standard output).
+ * probe line, and the convergence plot. The targets are checked before any work
+ * (`checkOutputTargets`); every file is built in memory and then written all or none
+ * (src/io/atomic.ts `writeFilesAtomic`); `-` sends one of them to the caller instead (the CLI
+ * prints it on standard output).
  */
-import { basename, dirname, extname, join, resolve } from "node:path";
+import { basename, dirname, extname, join } from "node:path";
 import type { SceneExtraction } from "../extract/extract.js";
 import { distanceAlong } from "../io/probe-spec.js";
 import { probeCsv, fieldMagnitude } from "./probe-csv.js";
 import { metresPer } from "../io/units.js";
 import { InputError } from "../errors.js";
-import { writeFilesAtomic } from "../io/atomic.js";
+import { writeFilesAtomic, checkOutputPaths, type OutputData } from "../io/atomic.js";
 import { version } from "../version.js";
 import { spiceSubcircuit } from "./spice.js";
 import { csvReport, markdownReport, reportData } from "./csv.js";
@@ -22,7 +23,8 @@ import { htmlReport } from "./html.js";
 import { viewerData, viewerDataJson } from "./viewer-data.js";
 import { extractionReport } from "./json.js";
 
-export interface OutputFile { path: string; data: string | Uint8Array }
+/** One file of the set; `option` is the option that named it, for messages. */
+export type OutputFile = OutputData;
 
 /** Where each output goes: a path, `-` for the caller (at most one), or nothing. */
 export interface OutputTargets {
@@ -50,22 +52,16 @@ const TARGET_OPTIONS: Array<[keyof OutputTargets, string]> = [
 
 /**
  * Refuse targets that cannot all be written, before any work: two outputs to the caller (`-`),
- * one path given twice, a convergence plot without refinement (`refine` = the run's refinements).
+ * a convergence plot without refinement (`refine` = the run's refinements), and any path that
+ * `checkOutputPaths` refuses (a missing folder above the output's own, a folder not writable,
+ * a target that is a folder or a device, one file named twice).
  */
 export function checkOutputTargets(targets: OutputTargets, refine?: number): void {
   const given = TARGET_OPTIONS.filter(([key]) => typeof targets[key] === "string") as Array<[keyof OutputTargets, string]>;
   const piped = given.filter(([key]) => targets[key] === "-").map(([, option]) => option);
   if (piped.length > 1) throw new InputError(`${piped.join(" and ")} ask for standard output (-); only one output can go there`);
-  const seen = new Map<string, string>();
-  for (const [key, option] of given) {
-    const path = targets[key] as string;
-    if (path === "-") continue;
-    const full = resolve(path);
-    const other = seen.get(full);
-    if (other) throw new InputError(`${other} and ${option} both name ${path}: give each output its own file`);
-    seen.set(full, option);
-  }
   if (targets.convergenceSvg && refine !== undefined && refine === 0) throw new InputError("--convergence-svg needs --refine 1 or more");
+  checkOutputPaths(given.map(([key, option]) => ({ path: targets[key] as string, option })));
 }
 
 /** The JSON report of an extraction as an object (SI units; fields documented in README.md). */
@@ -94,6 +90,7 @@ export function writeOutputs(result: SceneExtraction, targets: OutputTargets): W
   const files = extractionFiles(result, targets);
   const piped = files.find((f) => f.path === "-");
   const written = files.filter((f) => f.path !== "-");
+  // Checked again with the plots beside the probe table, whose names come from the probes.
   writeFilesAtomic(written);
   return { written: written.map((f) => f.path), piped: piped ? (typeof piped.data === "string" ? piped.data : Buffer.from(piped.data).toString("utf8")) : undefined };
 }
@@ -110,7 +107,7 @@ export function extractionFiles(result: SceneExtraction, req: OutputTargets): Ou
   const plots: Array<{ title: string; svg: string }> = [];
   if (req.spice) {
     // With floating conductors the circuit sees only the driven ones: the reduced matrix.
-    files.push({ path: req.spice, data: spiceSubcircuit(result.reducedNames, result.reducedMutual, {
+    files.push({ path: req.spice, option: "--spice", data: spiceSubcircuit(result.reducedNames, result.reducedMutual, {
       reference: result.reference, relativeThreshold: req.spiceThreshold, title, eliminated: result.floatingNames,
       // Named after the file, so that several extracted netlists can be included in one deck.
       subcktName: req.spice === "-" ? undefined : basename(req.spice, extname(req.spice)),
@@ -118,8 +115,8 @@ export function extractionFiles(result: SceneExtraction, req: OutputTargets): Ou
   }
   if (req.csv || req.markdown) {
     const data = reportData(JSON.parse(JSON.stringify(report, (_k, v) => (typeof v === "number" && !Number.isFinite(v) ? null : v))));
-    if (req.csv) files.push({ path: req.csv, data: csvReport(data) });
-    if (req.markdown) files.push({ path: req.markdown, data: markdownReport(data, { title }) });
+    if (req.csv) files.push({ path: req.csv, option: "--csv", data: csvReport(data) });
+    if (req.markdown) files.push({ path: req.markdown, option: "--markdown", data: markdownReport(data, { title }) });
   }
   if (result.probes.length > 0 && req.probeCsv) {
     const runs = result.probes;
@@ -129,23 +126,28 @@ export function extractionFiles(result: SceneExtraction, req: OutputTargets): Ou
       const text = probeCsv(r.spec, r.points, r.result, unit, columns);
       return i === 0 ? text : text.slice(text.indexOf("\n") + 1);
     });
-    files.push({ path: req.probeCsv, data: parts.join("") });
+    files.push({ path: req.probeCsv, option: "--probe-csv", data: parts.join("") });
     const stem = req.probeCsv === "-" ? "probes" : join(dirname(req.probeCsv), basename(req.probeCsv, extname(req.probeCsv)));
+    // Names that differ only in characters a file name cannot hold get a number, so that no plot replaces another.
+    const used = new Set<string>();
     for (const r of runs) {
       if (r.spec.kind !== "line") continue;
+      let name = safeStem(r.spec.name);
+      for (let k = 2; used.has(name.toLowerCase()); k++) name = `${safeStem(r.spec.name)}-${k}`;
+      used.add(name.toLowerCase());
       const d = distanceAlong(r.points), s = metresPer(unit);
       const dist = Float64Array.from(d, (x) => x / s);
       const svg = fieldAlongLineSvg(dist, fieldMagnitude(r.result), { lengthUnit: unitLabel(unit), breakdownField: result.breakdownField, title: `Field along ${r.spec.name}` });
-      files.push({ path: `${stem}-${safeStem(r.spec.name)}.svg`, data: svg });
+      files.push({ path: `${stem}-${name}.svg`, option: `the plot of probe line ${r.spec.name}`, data: svg });
       plots.push({ title: `Field along probe line ${r.spec.name}`, svg });
     }
   }
   if (result.accuracy && (req.convergenceSvg || req.html)) {
     const svg = convergencePlotSvg(result.accuracy.levels.map((l) => ({ panels: l.panels, value: l.maxwell[0] })), result.maxwell[0], `C(${result.names[0]})`, { unit: "F" });
-    if (req.convergenceSvg) files.push({ path: req.convergenceSvg, data: svg });
+    if (req.convergenceSvg) files.push({ path: req.convergenceSvg, option: "--convergence-svg", data: svg });
     plots.push({ title: `Convergence of C(${result.names[0]}) under refinement`, svg });
   }
-  if (req.html) files.push({ path: req.html, data: htmlReport(report, viewerData(result), undefined, plots) });
-  if (req.json !== undefined) files.push({ path: req.json, data: jsonText(report) });
+  if (req.html) files.push({ path: req.html, option: "--html", data: htmlReport(report, viewerData(result), undefined, plots) });
+  if (req.json !== undefined) files.push({ path: req.json, option: "--json", data: jsonText(report) });
   return files;
 }

@@ -97,9 +97,9 @@ export function sweepSvg(axes: readonly SweepAxis[], entries: readonly MatrixEnt
 
 /** The files of a finished sweep: the table, and the plot when asked for. */
 export function sweepFiles(axes: readonly SweepAxis[], entries: readonly MatrixEntry[], points: ReadonlyArray<Record<string, number>>,
-  indices: readonly number[], results: ReadonlyMap<number, PointMatrices>, targets: { csv: string; svg?: string; title: string }): Array<{ path: string; data: string }> {
+  indices: readonly number[], results: ReadonlyMap<number, PointMatrices>, targets: { csv: string; svg?: string; title: string }): Array<{ path: string; option: string; data: string }> {
   const ordered = indices.map((k) => results.get(k)!);
-  const files = [{ path: targets.csv, data: sweepCsv(axes, entries, points.length, indices, points, ordered) }];
-  if (targets.svg) files.push({ path: targets.svg, data: sweepSvg(axes, entries, indices, points, ordered, targets.title) });
+  const files = [{ path: targets.csv, option: "--csv", data: sweepCsv(axes, entries, points.length, indices, points, ordered) }];
+  if (targets.svg) files.push({ path: targets.svg, option: "--svg", data: sweepSvg(axes, entries, indices, points, ordered, targets.title) });
   return files;
 }

@@ -71,6 +71,19 @@ describe("writeOutputs", () => {
     expect(() => checkOutputTargets({ convergenceSvg: "c.svg" }, 1)).not.toThrow();
   });
 
+  it("gives probe lines whose names differ only in characters a file name cannot hold a plot each", () => {
+    const out = join(dir, "plots");
+    const line = result.probes[0];
+    const twins = { ...result, probes: [{ ...line, spec: { ...line.spec, name: "above pad" } }, { ...line, spec: { ...line.spec, name: "above_pad" } }] };
+    const { written } = writeOutputs(twins, { probeCsv: join(out, "p.csv") });
+    expect(written.map((p) => p.slice(out.length + 1)).sort()).toEqual(["p-above_pad-2.svg", "p-above_pad.svg", "p.csv"]);
+    expect(readdirSync(out).sort()).toEqual(["p-above_pad-2.svg", "p-above_pad.svg", "p.csv"]);
+    // A plot beside the probe table and another output on the same file: refused, nothing written.
+    expect(() => writeOutputs(result, { probeCsv: join(dir, "clash", "p.csv"), markdown: join(dir, "clash", "p-axis.svg") }))
+      .toThrow(/--markdown and the plot of probe line axis both name/);
+    expect(existsSync(join(dir, "clash"))).toBe(false);
+  });
+
   it("builds the same bytes it writes (apart from the report's creation time)", () => {
     const out = join(dir, "same");
     const spice = join(out, "r.cir"), csv = join(out, "r.csv");
