@@ -1,5 +1,5 @@
 /**
- * Reading an input file (a mesh, a scene, a report) whole, safely: only regular files, under a
+ * Reading an input file (a mesh, a scene, a report, a sweep table) whole, safely: only regular files, under a
  * size cap, every fault an InputError naming the file.
  *
  * readFileSync on a device (/dev/zero, /dev/urandom, or a symlink to one) reads until memory
@@ -12,7 +12,7 @@ import { closeSync, constants, fstatSync, openSync, readSync, statSync, type Sta
 import { InputError } from "../errors.js";
 
 /** What the file is meant to be, for messages ("not a mesh file"). */
-export type InputKind = "mesh" | "scene" | "report";
+export type InputKind = "mesh" | "scene" | "report" | "table";
 
 /** Largest mesh file read: readFileSync's own limit (2 GiB), kept as it was. */
 export const MAX_MESH_BYTES = 2 ** 31 - 1;
@@ -21,7 +21,10 @@ export const MAX_SCENE_BYTES = 256 * 2 ** 20;
 /** Largest report read by `sigmesh view`: V8's longest string (a report is read as one text). */
 export const MAX_REPORT_BYTES = 0x1fffffe8;
 
-const CAPS: Record<InputKind, number> = { mesh: MAX_MESH_BYTES, scene: MAX_SCENE_BYTES, report: MAX_REPORT_BYTES };
+/** Largest sweep table read by `sigmesh sweep --merge` (CSV text of a shard). */
+export const MAX_TABLE_BYTES = MAX_REPORT_BYTES;
+
+const CAPS: Record<InputKind, number> = { mesh: MAX_MESH_BYTES, scene: MAX_SCENE_BYTES, report: MAX_REPORT_BYTES, table: MAX_TABLE_BYTES };
 
 function notRegular(st: Stats, kind: InputKind): string | undefined {
   if (st.isFile()) return undefined;

@@ -9,6 +9,7 @@ import { mkdtempSync, writeFileSync, rmSync, symlinkSync, mkdirSync, existsSync 
 import { spawnSync } from "node:child_process";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
+import { fileURLToPath } from "node:url";
 import { evaluateExpression, ExpressionError, resolveParameters, MAX_EXPRESSION_DEPTH, MAX_PARAMETER_CHAIN } from "../../src/io/parameters.js";
 import { parseScene, loadSceneFile } from "../../src/io/scene.js";
 import { parseJson, MAX_JSON_DEPTH } from "../../src/io/json-value.js";
@@ -192,6 +193,22 @@ describe("non-regular files are refused at once", () => {
     expect(inputError(() => loadSceneFile(fifo), fifo).fault).toMatch(/^not a regular file \(a named pipe\)/);
     expect(inputError(() => loadMeshFile(fifo, { unit: "mm" }), fifo).fault).toMatch(/^not a regular file \(a named pipe\)/);
     expect(inputError(() => viewPage(fifo), fifo).fault).toMatch(/^not a regular file \(a named pipe\)/);
+  });
+
+  it("through the command line: exit 2 at once, one line naming the file (extract, view, sweep, sweep merge)", { timeout: 60_000 }, () => {
+    const cli = fileURLToPath(new URL("../../dist/cli/main.js", import.meta.url));
+    const dev = devices[0];
+    const link = join(dir, "zero-link.json");
+    if (!existsSync(link)) symlinkSync(dev, link);
+    const runs: Array<[string[], string]> = [[["extract", dev], dev], [["extract", link], link], [["check", dev], dev], [["view", link], link],
+      [["sweep", link, "--vary", "w=1:2:2"], link], [["sweep", "merge", dev, "--csv", join(dir, "merged.csv")], dev]];
+    for (const [args, file] of runs) {
+      const r = spawnSync(process.execPath, [cli, ...args], { encoding: "utf8", cwd: dir, timeout: 20_000 });
+      expect(r.error, args.join(" ")).toBeUndefined();
+      expect(r.status, `${args.join(" ")}: ${r.stderr}`).toBe(2);
+      expect(r.stderr, args.join(" ")).toMatch(new RegExp(`^sigmesh: error: ${file.replace(/[/.]/g, "\\$&")}: not a regular file \\(a character device\\); give a \\w+ file\n$`));
+    }
+    expect(existsSync(join(dir, "merged.csv"))).toBe(false);
   });
 
   it("a folder, a missing file and a file over the cap are one line each", () => {
