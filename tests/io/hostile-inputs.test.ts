@@ -19,6 +19,7 @@ import { readInputBytes } from "../../src/io/input-file.js";
 import { viewPage } from "../../src/report/view-server.js";
 import { InputError } from "../../src/errors.js";
 import { fixture } from "./helpers.js";
+import { parsePotentials } from "../../cli/options.js";
 
 let dir = "";
 beforeAll(() => { dir = mkdtempSync(join(tmpdir(), "sigmesh-hostile-")); });
@@ -152,6 +153,15 @@ describe("prototype keys in a scene are unknown keys at every level", () => {
     const file = join(dir, "proto.json");
     writeFileSync(file, text);
     expect(() => loadScene(file)).toThrow(InputError);
+  });
+
+  it("conductors named __proto__ or constructor are names like any other, also for --potential", () => {
+    const file = join(dir, "named.json");
+    writeFileSync(file, JSON.stringify({ unit: "mm", conductors: [{ name: "__proto__", ...plate, potential: 1 },
+      { name: "constructor", ...plate, place: { translate: [0, 0, 2] } }, { name: "toString", ...plate, place: { translate: [0, 0, 4] } }] }));
+    const s = loadScene(file, { potentials: parsePotentials(["__proto__=3", "constructor=-2", "toString=5"]) });
+    expect(s.mesh.names).toEqual(["__proto__", "constructor", "toString"]);
+    expect(Array.from(s.potentials)).toEqual([3, -2, 5]);
   });
 
   it("nothing parsed carries a prototype key as its own key or as its prototype", () => {
