@@ -32,7 +32,8 @@ export function solveSettings(opts: SolveOptionText): Required<Pick<ExtractSetti
 
 /** Repeated NAME=VOLTS options as a map of potentials. */
 export function parsePotentials(items: string[]): Record<string, number> {
-  const out: Record<string, number> = {};
+  // No prototype: a conductor named "__proto__" is a name like any other, not the map's prototype.
+  const out = Object.create(null) as Record<string, number>;
   for (const item of items) {
     const eq = item.lastIndexOf("=");
     if (eq <= 0) throw new InputError(`--potential "${item}": expected NAME=VOLTS, e.g. --potential pad=5`);

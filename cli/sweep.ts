@@ -4,10 +4,10 @@
  * joins the tables of `--shard` slices. A thin shell over src/extract/sweep.ts.
  */
 import type { Command } from "commander";
-import { readFileSync } from "node:fs";
 import { extname } from "node:path";
 import { InputError } from "../src/errors.js";
 import { writeFilesAtomic, checkOutputPaths } from "../src/io/atomic.js";
+import { readInputText } from "../src/io/input-file.js";
 import { closeSharedPool } from "../src/linalg/pool.js";
 import { parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, sceneConductorNames } from "../src/extract/sweep.js";
 import { planResume, runResumable, finishResumable } from "../src/extract/sweep-resume.js";
@@ -101,10 +101,7 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
 export async function runSweepMerge(inputs: string[], opts: { csv: string; quiet?: boolean }): Promise<void> {
   checkOutputPaths([{ path: opts.csv, option: "--csv" }]);
   const files = inputs.map((file) => {
-    try { return { file, text: readFileSync(file, "utf8") }; } catch (err) {
-      const code = (err as NodeJS.ErrnoException).code;
-      throw new InputError(code === "ENOENT" ? "no such file" : `cannot read (${code ?? String(err)})`, file);
-    }
+    return { file, text: readInputText(file, "table") };
   });
   const merged = mergeSweepCsv(files);
   writeFilesAtomic([{ path: opts.csv, option: "--csv", data: merged.text }]);

@@ -16,7 +16,8 @@
  */
 import { spawn } from "node:child_process";
 import { createHash } from "node:crypto";
-import { mkdtempSync, writeFileSync, rmSync, readFileSync } from "node:fs";
+import { mkdtempSync, writeFileSync, rmSync } from "node:fs";
+import { readInputBytes, readInputText } from "../io/input-file.js";
 import { tmpdir } from "node:os";
 import { join, dirname, resolve, isAbsolute } from "node:path";
 import { InputError } from "../errors.js";
@@ -205,7 +206,7 @@ function pointScript(): string {
 
 /** The substituted scene with mesh paths made absolute, so it can be read from anywhere. */
 function standaloneSceneText(scene: string, point: Record<string, number>): string {
-  const value = substituteScene(readFileSync(scene, "utf8"), scene, point);
+  const value = substituteScene(readInputText(scene, "scene"), scene, point);
   const base = dirname(resolve(scene));
   const absolute = (o: unknown): void => {
     if (typeof o !== "object" || o === null) return;
@@ -352,7 +353,7 @@ export function sweepPointKey(scene: string, point: Record<string, number>, opts
   for (const f of [...new Set(files)].sort()) {
     let d = fileDigests.get(f);
     if (d === undefined) {
-      try { d = createHash("sha256").update(readFileSync(f)).digest("hex"); } catch { d = "unreadable"; }
+      try { d = createHash("sha256").update(readInputBytes(f, "mesh")).digest("hex"); } catch { d = "unreadable"; }
       fileDigests.set(f, d);
     }
     h.update(`\n${f} ${d}`);

@@ -8,7 +8,6 @@
  * names, unnamed ones `stem_1`, `stem_2`, ... With `split`, a group falling apart into k > 1
  * connected pieces gives `group_1` … `group_k` (`stem_1` … for a one-body file).
  */
-import { readFileSync, statSync } from "node:fs";
 import { basename, extname } from "node:path";
 import { type SurfaceMesh, concatMeshes, uniqueNames } from "../mesh/model.js";
 import { weldVertices, dropDegenerate, DEFAULT_WELD_TOLERANCE } from "../mesh/weld.js";
@@ -20,6 +19,7 @@ import { readStl } from "./stl.js";
 import { readObj } from "./obj.js";
 import { readMsh } from "./msh.js";
 import type { RawMesh } from "./raw.js";
+import { readInputBytes } from "./input-file.js";
 
 export interface LoadOptions {
   /** Unit of the file's coordinates. */
@@ -70,17 +70,7 @@ export function loadMeshFiles(paths: string[], opts: LoadOptions): LoadedMesh {
 }
 
 function readMeshBytes(path: string): Uint8Array {
-  try {
-    if (statSync(path).isDirectory()) throw new InputError("is a directory, not a mesh file", path);
-    return readFileSync(path);
-  } catch (err) {
-    if (err instanceof InputError) throw err;
-    const code = (err as NodeJS.ErrnoException).code;
-    const why = code === "ENOENT" ? "no such file" : code === "EACCES" || code === "EPERM" ? "permission denied"
-      : code === "EISDIR" ? "is a directory, not a mesh file" : code === "ERR_FS_FILE_TOO_LARGE" ? "file too large to read (over 2 GiB)"
-      : `cannot read the file (${code ?? (err as Error).message})`;
-    throw new InputError(why, path);
-  }
+  return readInputBytes(path, "mesh");
 }
 
 /** The same pipeline on bytes already in memory; `file` names them in messages and gives the stem. */

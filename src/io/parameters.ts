@@ -21,6 +21,7 @@
  * function per rule; N. Wirth, "Compilerbau", Teubner 1977, ch. 3) and evaluated at once:
  * no code is generated, and nothing but these operations can run.
  */
+import { isPrototypeKey } from "./json-value.js";
 
 /** A fault in an expression; `position` is 1-based, counted in the text given to `evaluateExpression`. */
 export class ExpressionError extends Error {
@@ -30,19 +31,27 @@ export class ExpressionError extends Error {
   }
 }
 
-const FUNCTIONS: Record<string, { arity: [number, number]; fn: (...xs: number[]) => number }> = {
-  sqrt: { arity: [1, 1], fn: Math.sqrt },
-  sin: { arity: [1, 1], fn: Math.sin },
-  cos: { arity: [1, 1], fn: Math.cos },
-  tan: { arity: [1, 1], fn: Math.tan },
-  abs: { arity: [1, 1], fn: Math.abs },
-  min: { arity: [1, Infinity], fn: Math.min },
-  max: { arity: [1, Infinity], fn: Math.max },
-};
-const CONSTANTS: Record<string, number> = { pi: Math.PI };
+// Maps, not object literals: a name is looked up among its own entries only, so `constructor`,
+// `toString` or `__proto__` (inherited by every JavaScript object) stay unknown names.
+const FUNCTIONS = new Map<string, { arity: [number, number]; fn: (xs: number[]) => number }>([
+  ["sqrt", { arity: [1, 1], fn: (xs) => Math.sqrt(xs[0]) }],
+  ["sin", { arity: [1, 1], fn: (xs) => Math.sin(xs[0]) }],
+  ["cos", { arity: [1, 1], fn: (xs) => Math.cos(xs[0]) }],
+  ["tan", { arity: [1, 1], fn: (xs) => Math.tan(xs[0]) }],
+  ["abs", { arity: [1, 1], fn: (xs) => Math.abs(xs[0]) }],
+  // A loop, not Math.min(...xs): spreading a very long argument list overflows the stack.
+  ["min", { arity: [1, Infinity], fn: (xs) => xs.reduce((a, b) => Math.min(a, b), Infinity) }],
+  ["max", { arity: [1, Infinity], fn: (xs) => xs.reduce((a, b) => Math.max(a, b), -Infinity) }],
+]);
+const CONSTANTS = new Map<string, number>([["pi", Math.PI]]);
+
+/** Deepest nesting of parentheses, signs and powers an expression may have (recursive descent uses the stack). */
+export const MAX_EXPRESSION_DEPTH = 100;
+/** Longest chain of parameters defined in terms of one another (a -> b -> c ...). */
+export const MAX_PARAMETER_CHAIN = 100;
 
 /** Names a parameter may not take: they mean something else in an expression. */
-export const RESERVED_NAMES: readonly string[] = [...Object.keys(FUNCTIONS), ...Object.keys(CONSTANTS)];
+export const RESERVED_NAMES: readonly string[] = [...FUNCTIONS.keys(), ...CONSTANTS.keys()];
 
 const NAME = /^[A-Za-z_][A-Za-z0-9_]*$/;
 
@@ -88,11 +97,14 @@ export function evaluateExpression(text: string, values: Readonly<Record<string,
       else return x;
     }
   };
+  // Every recursion of the grammar passes through unary: its depth bounds the stack.
+  let depth = 0;
   const unary = (): number => {
+    if (++depth > MAX_EXPRESSION_DEPTH) fail(`nested more than ${MAX_EXPRESSION_DEPTH} deep (parentheses, signs and powers); split it into parameters`);
     const c = peek();
-    if (c === "-") { i++; return -unary(); }
-    if (c === "+") { i++; return unary(); }
-    return power();
+    const x = c === "-" ? (i++, -unary()) : c === "+" ? (i++, unary()) : power();
+    depth--;
+    return x;
   };
   const power = (): number => {
     const base = atom();
@@ -125,20 +137,21 @@ export function evaluateExpression(text: string, values: Readonly<Record<string,
       const id = name[0];
       i += id.length;
       if (peek() === "(") {
-        const f = FUNCTIONS[id];
-        if (!f) fail(`unknown function "${id}" (use ${Object.keys(FUNCTIONS).join(", ")})`, start);
+        const f = FUNCTIONS.get(id);
+        if (!f) return fail(`unknown function "${id}" (use ${[...FUNCTIONS.keys()].join(", ")})`, start);
         i++;
         const args = [sum()];
         while (peek() === ",") { i++; args.push(sum()); }
         if (peek() !== ")") fail(`expected "," or ")" in the arguments of ${id}, found ${describe()}`);
         i++;
         if (args.length < f.arity[0] || args.length > f.arity[1]) fail(`${id} takes ${f.arity[0] === f.arity[1] ? f.arity[0] : `at least ${f.arity[0]}`} argument${f.arity[0] === 1 && f.arity[1] === 1 ? "" : "s"}, got ${args.length}`, start);
-        const x = f.fn(...args);
+        const x = f.fn(args);
         if (!Number.isFinite(x)) fail(`${id}(${args.join(", ")}) is not a finite number`, start);
         return x;
       }
-      if (FUNCTIONS[id]) fail(`${id} is a function: write ${id}(...)`, start);
-      if (CONSTANTS[id] !== undefined) return CONSTANTS[id];
+      if (FUNCTIONS.has(id)) fail(`${id} is a function: write ${id}(...)`, start);
+      const constant = CONSTANTS.get(id);
+      if (constant !== undefined) return constant;
       const v = get(id);
       if (v === undefined) fail(`unknown parameter "${id}"`, start);
       return v as number;
@@ -181,29 +194,51 @@ export function resolveParameters(raw: Readonly<Record<string, unknown>>, overri
       fail(`${key}`, `no parameter "${name}" to vary (${known.length ? `the scene's parameters are ${known.join(", ")}` : "the scene has no parameters"})`);
     }
   }
-  const out: Record<string, number> = {};
-  const state = new Map<string, "busy" | "done">();
-  const value = (name: string, chain: string[]): number => {
-    if (state.get(name) === "done") return out[name];
-    if (state.get(name) === "busy") fail(`${key}.${name}`, `defined in terms of itself (${[...chain, name].join(" -> ")})`);
-    state.set(name, "busy");
-    const given = Object.prototype.hasOwnProperty.call(overrides, name) ? overrides[name] : raw[name];
-    let x: number;
-    if (typeof given === "number") x = given;
-    else {
-      const text = (given as string).slice(1);
-      try {
-        x = evaluateExpression(text, (n) => (Object.prototype.hasOwnProperty.call(raw, n) ? value(n, [...chain, name]) : undefined));
-      } catch (err) {
-        if (err instanceof ExpressionError) fail(`${key}.${name}`, `expression "${given}": ${err.fault} at position ${err.position + 1}`);
-        throw err;
+  // Evaluated with an explicit stack, not by recursion, so a long chain cannot overflow the
+  // call stack: an expression that meets a parameter not yet known stops (Pending), the
+  // parameter is pushed, and the expression is evaluated again once it is known.
+  const out: Record<string, number> = Object.create(null) as Record<string, number>;
+  const done = new Set<string>();
+  // Length of the longest chain of definitions under each parameter: bounded whatever the key order.
+  const level = new Map<string, number>();
+  class Pending { constructor(readonly name: string) {} }
+  for (const root of Object.keys(raw)) {
+    const stack: string[] = [root];
+    while (stack.length > 0) {
+      const name = stack[stack.length - 1];
+      if (done.has(name)) { stack.pop(); continue; }
+      const given = Object.prototype.hasOwnProperty.call(overrides, name) ? overrides[name] : raw[name];
+      let x: number;
+      let below = 0;
+      if (typeof given === "number") x = given;
+      else {
+        const text = (given as string).slice(1);
+        try {
+          x = evaluateExpression(text, (n) => {
+            if (!Object.prototype.hasOwnProperty.call(raw, n)) return undefined;
+            if (done.has(n)) { below = Math.max(below, level.get(n) as number); return out[n]; }
+            throw new Pending(n);
+          });
+        } catch (err) {
+          if (err instanceof Pending) {
+            const k = stack.indexOf(err.name);
+            if (k >= 0) fail(`${key}.${stack[k]}`, `defined in terms of itself (${[...stack.slice(k), err.name].join(" -> ")})`);
+            stack.push(err.name);
+            continue;
+          }
+          if (err instanceof ExpressionError) fail(`${key}.${name}`, `expression "${given}": ${err.fault} at position ${err.position + 1}`);
+          throw err;
+        }
       }
+      if (below + 1 > MAX_PARAMETER_CHAIN) {
+        fail(`${key}.${name}`, `defined through a chain of more than ${MAX_PARAMETER_CHAIN} parameters, each in terms of the next; at most ${MAX_PARAMETER_CHAIN} may build on one another`);
+      }
+      out[name] = x;
+      level.set(name, below + 1);
+      done.add(name);
+      stack.pop();
     }
-    out[name] = x;
-    state.set(name, "done");
-    return x;
-  };
-  for (const name of Object.keys(raw)) value(name, []);
+  }
   return out;
 }
 
@@ -230,6 +265,8 @@ export function substituteExpressions(value: unknown, params: Readonly<Record<st
     const out: Record<string, unknown> = {};
     for (const [k, v] of Object.entries(value)) {
       const at = path === "" ? k : `${path}.${k}`;
+      // Assigning `__proto__` would set the copy's prototype (scene files are checked for these keys on reading).
+      if (isPrototypeKey(k)) fail(at, "unknown key (\"__proto__\", \"constructor\" and \"prototype\" are never keys of a scene)");
       out[k] = TEXT_KEYS.has(k) ? v : substituteExpressions(v, params, at, fail);
     }
     return out;

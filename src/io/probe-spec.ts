@@ -15,6 +15,7 @@
  *   { "name": "above pad", "grid": { "origin": [..], "u": [..], "v": [..], "points": [20, 10] } }
  */
 import { InputError } from "../errors.js";
+import { isObject } from "./json-value.js";
 
 export type Vec3 = [number, number, number];
 
@@ -115,10 +116,6 @@ export function parseProbeOption(text: string, option = "--probe", index = 1): P
     default:
       return fail(`unknown probe kind "${parts[0]}" (use ${Object.values(usage).join(", or ")})`);
   }
-}
-
-function isObject(v: unknown): v is Record<string, unknown> {
-  return typeof v === "object" && v !== null && !Array.isArray(v);
 }
 
 /**

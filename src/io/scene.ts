@@ -32,7 +32,7 @@
  * relative to the scene file; ./scene-mesh.ts loads the meshes of a parsed scene.
  */
 import { parseSceneProbes, type ProbeSpec } from "./probe-spec.js";
-import { readFileSync, statSync } from "node:fs";
+import { readInputText } from "./input-file.js";
 import { dirname, resolve } from "node:path";
 import { InputError } from "../errors.js";
 import { parseUnit, DEFAULT_UNIT, type LengthUnit } from "./units.js";
@@ -75,7 +75,7 @@ const TOP_KEYS = new Set(["$schema", "parameters", "unit", "permittivity", "brea
  * written, relative to the scene file).
  */
 export function substituteScene(text: string, file: string, overrides: Readonly<Record<string, number>> = {}): Record<string, unknown> {
-  const raw = parseJson(text, file);
+  const raw = parseJson(text, file, { refusePrototypeKeys: true });
   const fail = (path: string, fault: string): never => { throw new InputError(`${path}: ${fault}`, file); };
   if (!isObject(raw)) fail("(top level)", "expected a JSON object");
   const top = raw as Record<string, unknown>;
@@ -146,15 +146,7 @@ export function parseScene(text: string, file: string, opts: SceneParseOptions =
 
 /** Read and validate a scene file. */
 export function loadSceneFile(path: string, opts: SceneParseOptions = {}): Scene {
-  let text: string;
-  try {
-    if (statSync(path).isDirectory()) throw new InputError("is a directory, not a scene file", path);
-    text = readFileSync(path, "utf8");
-  } catch (err) {
-    if (err instanceof InputError) throw err;
-    const code = (err as NodeJS.ErrnoException).code;
-    throw new InputError(code === "ENOENT" ? "no such file" : `cannot read (${code ?? String(err)})`, path);
-  }
-  if (text.trim().length === 0) throw new InputError("empty file", path);
+  const text = readInputText(path, "scene");
+  if (text.replace(/^\uFEFF/, "").trim().length === 0) throw new InputError("empty file", path);
   return parseScene(text, path, opts);
 }

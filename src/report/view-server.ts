@@ -13,9 +13,10 @@
  * that guesses ports, or another user of this machine, reads nothing either.
  */
 import { randomBytes, timingSafeEqual } from "node:crypto";
-import { readFileSync } from "node:fs";
 import { createServer, type Server, type ServerResponse } from "node:http";
 import { InputError } from "../errors.js";
+import { readInputText } from "../io/input-file.js";
+import { parseJson } from "../io/json-value.js";
 import { htmlReport, embeddedResults, type PackedViewerData } from "./html.js";
 import { VIEWER_FORMAT } from "./viewer-data.js";
 
@@ -26,7 +27,7 @@ export interface ViewPage {
 
 /** The page and report to serve for a report file (.json with panel data, or .html from `extract --html`). */
 export function viewPage(path: string): ViewPage {
-  const text = readFileSync(path, "utf8");
+  const text = readInputText(path, "report");
   if (/^\s*</.test(text)) {
     const found = embeddedResults(text);
     if (!found) throw new InputError("not a sigmesh HTML report (no embedded results)", path);
@@ -35,15 +36,7 @@ export function viewPage(path: string): ViewPage {
   if (!/^\s*[{[]/.test(text)) {
     throw new InputError("not a sigmesh report: give the .json written by `sigmesh extract --json FILE --json-panels` or the .html written by `--html`", path);
   }
-  let report: Record<string, unknown>;
-  try {
-    report = JSON.parse(text) as Record<string, unknown>;
-  } catch (err) {
-    const message = err instanceof Error ? err.message : String(err);
-    // V8 quotes a snippet of the text (line breaks and all) or names a position: keep one line.
-    const fault = message.replace(/, (?:\.\.\.)?"[\s\S]*" is not valid JSON$/, "").replace(/ in JSON at position \d+[\s\S]*$/, "").replace(/\s+/g, " ");
-    throw new InputError(`not valid JSON (${fault})`, path, jsonPlace(text, message));
-  }
+  const report = parseJson(text, path) as Record<string, unknown>;
   if (typeof report !== "object" || report === null || typeof report.format !== "string" || !report.format.startsWith("sigmesh-extraction/")) {
     throw new InputError("not a sigmesh extraction report (no \"format\": \"sigmesh-extraction/…\")", path);
   }
@@ -53,17 +46,6 @@ export function viewPage(path: string): ViewPage {
   }
   const { viewer: _omit, ...rest } = report;
   return { html: htmlReport(rest, viewer), reportJson: JSON.stringify(rest, null, 2) };
-}
-
-/** Line and column of the offset a JSON.parse message names ("... at position 17"). */
-function jsonPlace(text: string, message: string): string | undefined {
-  const m = /position (\d+)/.exec(message);
-  if (!m) return undefined;
-  let line = 1, column = 1;
-  for (let i = 0; i < Number(m[1]) && i < text.length; i++) {
-    if (text.charCodeAt(i) === 10) { line++; column = 1; } else column++;
-  }
-  return `line ${line}, column ${column}`;
 }
 
 const HEADERS = {
