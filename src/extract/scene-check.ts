@@ -3,11 +3,12 @@
  * touch are refused (touching conductors are one net), narrow gaps and conductors inside
  * another's closed surface are warned of. Findings are phrased in the user's length unit.
  */
-import { checkMesh, type PairCheck } from "../mesh/check.js";
+import { checkMesh, type PairCheck, type SelfOverlapCheck } from "../mesh/check.js";
 import { InputError } from "../errors.js";
 import { formatLength, formatPoint } from "../io/si.js";
 import type { LengthUnit } from "../io/units.js";
 import type { SurfaceMesh } from "../mesh/model.js";
+import { selfOverlaps } from "../mesh/self-overlap.js";
 
 /** One finding between two conductors as a sentence, positions and lengths in `unit`. */
 export function pairSentence(p: PairCheck, unit: LengthUnit): string {
@@ -20,11 +21,28 @@ export function pairSentence(p: PairCheck, unit: LengthUnit): string {
   }
 }
 
+/** A conductor covering itself (repeated faces, coplanar overlaps) as a sentence, the place in `unit`. */
+export function selfOverlapSentence(name: string, f: SelfOverlapCheck, unit: LengthUnit): string {
+  const what: string[] = [];
+  if (f.repeated > 0) what.push(`${f.repeated} triangle${f.repeated === 1 ? " repeats another" : "s repeat others"} (the same three corners)`);
+  if (f.overlapping > 0) what.push(`${f.lowerBound ? "at least " : ""}${f.overlapping} pair${f.overlapping === 1 ? "" : "s"} of triangles overlap in one plane`);
+  return `conductor ${name} covers itself: ${what.join(" and ")}, the first at ${formatPoint(f.position, unit)}; ` +
+    "two panels on one surface would carry one charge: remove the repeated or overlapping faces";
+}
+
 /**
- * Refuse conductors that intersect or touch (InputError naming `source`, the first pair and how
- * many more); return the warnings (narrow gaps, cavities) as sentences.
+ * Refuse conductors that cover themselves (repeated or overlapping faces; before anything else,
+ * as it is cheap and a million repeats would slow the rest) and conductors that intersect or
+ * touch (InputError naming `source`, the first finding and how many more); return the warnings
+ * (narrow gaps, cavities) as sentences.
  */
 export function checkConductors(mesh: SurfaceMesh, unit: LengthUnit, source: string): string[] {
+  const covering = selfOverlaps(mesh);
+  if (covering.length > 0) {
+    const f = covering[0];
+    const more = covering.length > 1 ? ` (and ${covering.length - 1} more conductor${covering.length > 2 ? "s" : ""}; run sigmesh check)` : "";
+    throw new InputError(selfOverlapSentence(mesh.names[f.conductor], { repeated: f.repeated, overlapping: f.overlapping, lowerBound: f.truncated, position: f.position }, unit) + more, source);
+  }
   const pairs = checkMesh(mesh).pairs;
   const errors = pairs.filter((p) => p.severity === "error");
   if (errors.length > 0) {

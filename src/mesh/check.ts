@@ -7,6 +7,7 @@ import { type SurfaceMesh, triangleCount, vertexCount, conductorAreas } from "./
 import { buildEdgeTable, conductorTopology, orientSurfaces, conductorOrientation, type ConductorOrientation, type OrientationResult, type EdgeTable } from "./topology.js";
 import { conductorQuality, type MeshQuality } from "./quality.js";
 import { conductorProximity, enclosedConductors, proximityTask, resolveOverlaps, conductorTriangles, type ProximityOptions, type ProximityFinding } from "./proximity.js";
+import { selfOverlaps, type SelfOverlap } from "./self-overlap.js";
 import { sharedPool, toShared } from "../linalg/pool.js";
 
 export interface ConductorCheck {
@@ -36,6 +37,22 @@ export interface ConductorCheck {
   /** Centroid of the worst-shaped triangle; metres. */
   worstAspectAt: [number, number, number] | null;
   degenerateTriangles: number;
+  /**
+   * Where the conductor covers itself (repeated faces, coplanar overlaps; self-overlap.ts), or
+   * null. Fails the check: the solve would see two panels carrying one charge.
+   */
+  selfOverlap: SelfOverlapCheck | null;
+}
+
+export interface SelfOverlapCheck {
+  /** Triangles repeating another of the conductor (same three vertices, any order). */
+  repeated: number;
+  /** Pairs of distinct triangles overlapping with positive area in one plane. */
+  overlapping: number;
+  /** True when the overlap search stopped early: `overlapping` is a lower bound. */
+  lowerBound: boolean;
+  /** Centroid of the first triangle found; metres. */
+  position: [number, number, number];
 }
 
 export type PairKind = "intersect" | "touch" | "inside" | "gap";
@@ -59,7 +76,7 @@ export interface CheckReport {
   pairs: PairCheck[];
   triangles: number;
   vertices: number;
-  /** True when any pair is an error (the check failed). */
+  /** True when any pair is an error or a conductor covers itself (the check failed). */
   failed: boolean;
 }
 
@@ -76,7 +93,7 @@ export function checkMeshOriented(mesh: SurfaceMesh, opts: CheckOptions = {}): {
 /** The per-conductor checks, and the proximity findings (made on the mesh as given) resolved against the oriented mesh. */
 function assemble(
   mesh: SurfaceMesh, opts: CheckOptions, findings: ProximityFinding[],
-  done: { table?: EdgeTable; oriented?: OrientationResult; quality?: MeshQuality[] } = {},
+  done: { table?: EdgeTable; oriented?: OrientationResult; quality?: MeshQuality[]; overlaps?: SelfOverlap[] } = {},
 ): { report: CheckReport; oriented: OrientationResult } {
   const nc = mesh.names.length, nt = triangleCount(mesh);
   const table = done.table ?? buildEdgeTable(mesh);
@@ -85,6 +102,8 @@ function assemble(
   const orientation = conductorOrientation(oriented, nc);
   const quality = done.quality ?? conductorQuality(mesh);
   const areas = conductorAreas(mesh);
+  const overlapOf = new Array<SelfOverlap | undefined>(nc);
+  for (const f of done.overlaps ?? selfOverlaps(mesh)) overlapOf[f.conductor] = f;
 
   const count = new Uint32Array(nc), comps = new Uint32Array(nc), flipped = new Uint32Array(nc);
   const volume = new Float64Array(nc), volumeOk = new Uint8Array(nc).fill(1);
@@ -131,6 +150,7 @@ function assemble(
       worstAspect: Number.isFinite(q.worstAspect) ? q.worstAspect : null,
       worstAspectAt: at,
       degenerateTriangles: q.degenerateTriangles,
+      selfOverlap: selfOverlapCheck(overlapOf[c]),
     });
   }
 
@@ -160,9 +180,13 @@ function assemble(
   const rank: Record<PairKind, number> = { intersect: 3, inside: 2, touch: 1, gap: 0 };
   pairs.sort((x, y) => rank[y.kind] - rank[x.kind]);
   return {
-    report: { conductors, pairs, triangles: nt, vertices: vertexCount(mesh), failed: pairs.some((x) => x.severity === "error") },
+    report: { conductors, pairs, triangles: nt, vertices: vertexCount(mesh), failed: pairs.some((x) => x.severity === "error") || conductors.some((c) => c.selfOverlap !== null) },
     oriented,
   };
+}
+
+function selfOverlapCheck(f: SelfOverlap | undefined): SelfOverlapCheck | null {
+  return f ? { repeated: f.repeated, overlapping: f.overlapping, lowerBound: f.truncated, position: f.position } : null;
 }
 
 /** Check a mesh (metres): per-conductor topology and quality, and problems between conductors. */
@@ -195,5 +219,6 @@ function assembleLater(mesh: SurfaceMesh, opts: CheckOptions): (findings: Proxim
   const table = buildEdgeTable(mesh);
   const oriented = orientSurfaces(mesh, table);
   const quality = conductorQuality(mesh);
-  return (findings) => assemble(mesh, opts, findings, { table, oriented, quality });
+  const overlaps = selfOverlaps(mesh);
+  return (findings) => assemble(mesh, opts, findings, { table, oriented, quality, overlaps });
 }
