@@ -233,3 +233,22 @@ function strictlyInside(x: number, y: number, o: number, eps: number): boolean {
   const d3 = orient2(Q[o + 4], Q[o + 5], Q[o], Q[o + 1], x, y);
   return (d1 > eps && d2 > eps && d3 > eps) || (d1 < -eps && d2 < -eps && d3 < -eps);
 }
+
+/**
+ * The mesh without the triangles that repeat an earlier one of their conductor (vertices kept),
+ * and how many were removed; the mesh itself when none repeats.
+ */
+export function withoutRepeats(mesh: SurfaceMesh): { mesh: SurfaceMesh; removed: number } {
+  const repeatOf = repeatedTriangles(mesh.triangles, mesh.conductor);
+  let removed = 0;
+  for (let t = 0; t < repeatOf.length; t++) if (repeatOf[t] >= 0) removed++;
+  if (removed === 0) return { mesh, removed };
+  const n = repeatOf.length - removed;
+  const triangles = new Uint32Array(3 * n), conductor = new Uint32Array(n);
+  for (let t = 0, k = 0; t < repeatOf.length; t++) {
+    if (repeatOf[t] >= 0) continue;
+    triangles[3 * k] = mesh.triangles[3 * t]; triangles[3 * k + 1] = mesh.triangles[3 * t + 1]; triangles[3 * k + 2] = mesh.triangles[3 * t + 2];
+    conductor[k++] = mesh.conductor[t];
+  }
+  return { mesh: { ...mesh, triangles, conductor }, removed };
+}
