@@ -24,6 +24,8 @@ import type { SolverChoice } from "./solve.js";
 import { extractMesh } from "./extract-mesh.js";
 import type { ExtractionResult } from "./result.js";
 import { checkConductors } from "./scene-check.js";
+import { physicalSizeFault } from "../mesh/physical-size.js";
+import { InputError } from "../errors.js";
 
 /** What a run adds to the scene: how to solve it, and how to follow and stop it. */
 export interface ExtractSettings {
@@ -85,6 +87,10 @@ export async function extract(scene: LoadedScene, settings: ExtractSettings = {}
   signal?.throwIfAborted();
   const source = scene.scene ?? scene.files.join(", ");
   const warnings = scene.warnings.map((w) => (w.file ? `${w.file}: ` : "") + w.message);
+  for (const d of scene.dielectrics) {
+    const fault = physicalSizeFault(d.mesh.positions, d.mesh.triangles, 1, () => `dielectric ${d.name} as placed`);
+    if (fault) throw new InputError(fault, source);
+  }
   const found = checkConductors(scene.mesh, scene.unit, source);
   for (const w of found) settings.warn?.(w);
   warnings.push(...found);

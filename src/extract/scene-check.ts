@@ -9,6 +9,7 @@ import { formatLength, formatPoint } from "../io/si.js";
 import type { LengthUnit } from "../io/units.js";
 import type { SurfaceMesh } from "../mesh/model.js";
 import { selfOverlaps } from "../mesh/self-overlap.js";
+import { physicalSizeFault } from "../mesh/physical-size.js";
 
 /** One finding between two conductors as a sentence, positions and lengths in `unit`. */
 export function pairSentence(p: PairCheck, unit: LengthUnit): string {
@@ -31,12 +32,15 @@ export function selfOverlapSentence(name: string, f: SelfOverlapCheck, unit: Len
 }
 
 /**
- * Refuse conductors that cover themselves (repeated or overlapping faces; before anything else,
+ * Refuse a model outside the physical range of sizes (physical-size.ts), conductors that cover themselves (repeated or overlapping faces; before anything else,
  * as it is cheap and a million repeats would slow the rest) and conductors that intersect or
  * touch (InputError naming `source`, the first finding and how many more); return the warnings
  * (narrow gaps, cavities) as sentences.
  */
 export function checkConductors(mesh: SurfaceMesh, unit: LengthUnit, source: string): string[] {
+  // The files were checked as read; a placement (scale, translation) can still leave the range.
+  const sizeFault = physicalSizeFault(mesh.positions, mesh.triangles, 1, (_, t) => `conductor ${mesh.names[mesh.conductor[t]]} as placed`);
+  if (sizeFault) throw new InputError(sizeFault, source);
   const covering = selfOverlaps(mesh);
   if (covering.length > 0) {
     const f = covering[0];
