@@ -22,6 +22,7 @@ import { probePoints, type ProbeSpec } from "../io/probe-spec.js";
 import { probeExtraction, type ProbeResult } from "./probe.js";
 import type { SolverChoice } from "./solve.js";
 import { extractMesh } from "./extract-mesh.js";
+import { checkedRefine } from "./options.js";
 import type { ExtractionResult } from "./result.js";
 import { checkConductors } from "./scene-check.js";
 import { physicalSizeFault } from "../mesh/physical-size.js";
@@ -95,6 +96,8 @@ export async function extract(scene: LoadedScene, settings: ExtractSettings = {}
   for (const w of found) settings.warn?.(w);
   warnings.push(...found);
   signal?.throwIfAborted();
+  // A fault of the run's own settings names no file; every later one concerns the input.
+  checkedRefine(settings.refine);
   const result = await extractMesh(scene.mesh, {
     permittivity: scene.permittivity,
     breakdownField: scene.breakdownField,
@@ -115,6 +118,10 @@ export async function extract(scene: LoadedScene, settings: ExtractSettings = {}
       signal?.throwIfAborted();
       settings.progress?.(phase, fraction, level, levels);
     },
+  }).catch((err: unknown) => {
+    // The solve knows the mesh, not the file: the ground-plane and symmetry checks and the
+    // memory refusals are attributed here, where the source is known.
+    throw err instanceof InputError ? err.inFile(source) : err;
   });
   signal?.throwIfAborted();
   const probes = runProbes(result, [...scene.probes, ...(settings.probes ?? [])], scene.unit);
