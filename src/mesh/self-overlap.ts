@@ -39,8 +39,11 @@ export const OVERLAP_TOLERANCE = 1e-6;
 const PAIR_BUDGET_PER_TRIANGLE = 64;
 const PAIR_BUDGET_BASE = 1_000_000;
 
-/** Per conductor that covers itself, what was found; conductors without a finding are left out. */
-export function selfOverlaps(mesh: SurfaceMesh): SelfOverlap[] {
+/**
+ * Per conductor that covers itself, what was found; conductors without a finding are left out.
+ * `pairBudget` (box-overlapping pairs examined per conductor) defaults to 1e6 + 64 per triangle.
+ */
+export function selfOverlaps(mesh: SurfaceMesh, opts: { pairBudget?: number } = {}): SelfOverlap[] {
   const nt = triangleCount(mesh), nc = mesh.names.length;
   const found: Array<SelfOverlap | undefined> = new Array(nc);
   const repeatOf = repeatedTriangles(mesh.triangles, mesh.conductor);
@@ -66,7 +69,7 @@ export function selfOverlaps(mesh: SurfaceMesh): SelfOverlap[] {
     const items = list.subarray(offset[c], offset[c + 1]);
     if (items.length < 2) continue;
     const tree = buildBoxTree(paddedBoxes(mesh.positions, mesh.triangles, items));
-    const budget = PAIR_BUDGET_BASE + PAIR_BUDGET_PER_TRIANGLE * items.length;
+    const budget = opts.pairBudget ?? PAIR_BUDGET_BASE + PAIR_BUDGET_PER_TRIANGLE * items.length;
     let examined = 0;
     try {
       forEachOverlappingPair(tree, (i, j) => {
