@@ -8,7 +8,6 @@ import { InputError } from "../errors.js";
 import { formatLength, formatPoint } from "../io/si.js";
 import type { LengthUnit } from "../io/units.js";
 import type { SurfaceMesh } from "../mesh/model.js";
-import { selfOverlaps } from "../mesh/self-overlap.js";
 import { physicalSizeFault } from "../mesh/physical-size.js";
 
 /** One finding between two conductors as a sentence, positions and lengths in `unit`. */
@@ -41,13 +40,13 @@ export function checkConductors(mesh: SurfaceMesh, unit: LengthUnit, source: str
   // The files were checked as read; a placement (scale, translation) can still leave the range.
   const sizeFault = physicalSizeFault(mesh.positions, mesh.triangles, 1, (_, t) => `conductor ${mesh.names[mesh.conductor[t]]} as placed`);
   if (sizeFault) throw new InputError(sizeFault, source);
-  const covering = selfOverlaps(mesh);
+  const report = checkMesh(mesh);
+  const covering = report.conductors.filter((c) => c.selfOverlap !== null);
   if (covering.length > 0) {
-    const f = covering[0];
     const more = covering.length > 1 ? ` (and ${covering.length - 1} more conductor${covering.length > 2 ? "s" : ""}; run sigmesh check)` : "";
-    throw new InputError(selfOverlapSentence(mesh.names[f.conductor], { repeated: f.repeated, overlapping: f.overlapping, lowerBound: f.truncated, position: f.position }, unit) + more, source);
+    throw new InputError(selfOverlapSentence(covering[0].name, covering[0].selfOverlap!, unit) + more, source);
   }
-  const pairs = checkMesh(mesh).pairs;
+  const pairs = report.pairs;
   const errors = pairs.filter((p) => p.severity === "error");
   if (errors.length > 0) {
     throw new InputError(`${pairSentence(errors[0], unit)}${errors.length > 1 ? ` (and ${errors.length - 1} more; run sigmesh check)` : ""}`, source);

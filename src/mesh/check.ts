@@ -213,12 +213,11 @@ export const PARALLEL_MIN_TRIANGLES = 100_000;
 export async function checkMeshParallel(given: SurfaceMesh, opts: CheckOptions = {}): Promise<CheckReport> {
   const pool = sharedPool();
   if (triangleCount(given) < PARALLEL_MIN_TRIANGLES || pool.size < 2 || given.names.length < 2) return checkMesh(given, opts);
-  const overlaps = selfOverlaps(given);
   const mesh = withoutRepeats(given).mesh;
   // The message is posted synchronously, so the worker starts while this thread computes.
   const pending = pool.run(proximityTask, 1, [toShared(mesh.positions), mesh.triangles, mesh.conductor, mesh.names.length, { ...opts }])
     .then((f): ProximityFinding[] | undefined => f, () => undefined);
-  const finish = assembleLater(mesh, opts, overlaps);
+  const finish = assembleLater(mesh, opts, selfOverlaps(given));
   // A worker that cannot start (no compiled module, say) costs time, not the answer.
   const findings = (await pending) ?? conductorProximity(mesh, opts);
   return finish(findings).report;

@@ -69,11 +69,19 @@ export function selfOverlaps(mesh: SurfaceMesh, opts: { pairBudget?: number } = 
     const items = list.subarray(offset[c], offset[c + 1]);
     if (items.length < 2) continue;
     const tree = buildBoxTree(paddedBoxes(mesh.positions, mesh.triangles, items));
+    const plane = planes(mesh.positions, mesh.triangles, items);
     const budget = opts.pairBudget ?? PAIR_BUDGET_BASE + PAIR_BUDGET_PER_TRIANGLE * items.length;
     let examined = 0;
     try {
       forEachOverlappingPair(tree, (i, j) => {
         if (++examined > budget) throw STOP;
+        // Coplanar triangles have each centroid within the tolerance of the other's plane; on a
+        // curved surface that rejects nearly every neighbour before the full test.
+        const pi = 8 * i, pj = 8 * j;
+        const dij = plane[pi] * plane[pj + 4] + plane[pi + 1] * plane[pj + 5] + plane[pi + 2] * plane[pj + 6] - plane[pi + 3];
+        const dji = plane[pj] * plane[pi + 4] + plane[pj + 1] * plane[pi + 5] + plane[pj + 2] * plane[pi + 6] - plane[pj + 3];
+        const tol = plane[pi + 7] > plane[pj + 7] ? plane[pi + 7] : plane[pj + 7];
+        if (!(Math.abs(dij) <= tol && Math.abs(dji) <= tol)) return;
         const a = items[i] < items[j] ? items[i] : items[j], b = items[i] < items[j] ? items[j] : items[i];
         if (coplanarOverlap(mesh.positions, mesh.triangles, a, b)) record(c, a, b).overlapping++;
       });
@@ -139,6 +147,32 @@ function paddedBoxes(p: Float64Array, tr: Uint32Array, items: Uint32Array): Floa
     }
     const g = OVERLAP_TOLERANCE * Math.sqrt(h2);
     for (let k = 0; k < 3; k++) { out[6 * i + k] -= g; out[6 * i + 3 + k] += g; }
+  }
+  return out;
+}
+
+/**
+ * Per listed triangle, 8 numbers: unit normal (3), its offset n·x of the plane, centroid (3), and
+ * the coplanarity tolerance (OVERLAP_TOLERANCE × longest edge). Zero-area triangles get a zero
+ * normal, so only a centroid at the origin's offset passes; coplanarOverlap rejects them anyway.
+ */
+function planes(p: Float64Array, tr: Uint32Array, items: Uint32Array): Float64Array {
+  const out = new Float64Array(8 * items.length);
+  for (let i = 0; i < items.length; i++) {
+    const t = items[i];
+    const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], c = 3 * tr[3 * t + 2];
+    const ux = p[b] - p[a], uy = p[b + 1] - p[a + 1], uz = p[b + 2] - p[a + 2];
+    const vx = p[c] - p[a], vy = p[c + 1] - p[a + 1], vz = p[c + 2] - p[a + 2];
+    // The normal of geometry/triangle.ts triangleNormal, inlined.
+    let nx = uy * vz - uz * vy, ny = uz * vx - ux * vz, nz = ux * vy - uy * vx;
+    const l = Math.hypot(nx, ny, nz);
+    if (l > 0) { nx /= l; ny /= l; nz /= l; } else { nx = ny = nz = 0; }
+    const cx = (p[a] + p[b] + p[c]) / 3, cy = (p[a + 1] + p[b + 1] + p[c + 1]) / 3, cz = (p[a + 2] + p[b + 2] + p[c + 2]) / 3;
+    const wx = p[c] - p[b], wy = p[c + 1] - p[b + 1], wz = p[c + 2] - p[b + 2];
+    const h2 = Math.max(ux * ux + uy * uy + uz * uz, vx * vx + vy * vy + vz * vz, wx * wx + wy * wy + wz * wz);
+    const o = 8 * i;
+    out[o] = nx; out[o + 1] = ny; out[o + 2] = nz; out[o + 3] = nx * cx + ny * cy + nz * cz;
+    out[o + 4] = cx; out[o + 5] = cy; out[o + 6] = cz; out[o + 7] = OVERLAP_TOLERANCE * Math.sqrt(h2);
   }
   return out;
 }
