@@ -3,7 +3,7 @@
  * a solve. A thin shell over `loadMeshFiles`, `checkMesh` and `formatCheckSummary`.
  *
  * Exit codes: 0 clean (warnings allowed); 2 bad input, and also when conductors
- * intersect or touch (the check failed; the report is still
+ * intersect or touch or a conductor covers itself (the check failed; the report is still
  * printed and written); 1 internal error.
  *
  * The JSON report's fields are listed in src/report/check-report.ts.
@@ -14,7 +14,7 @@ import { parseUnit, DEFAULT_UNIT } from "../src/io/units.js";
 import { InputError } from "../src/errors.js";
 import { checkMeshParallel } from "../src/mesh/check.js";
 import { formatCheckSummary } from "../src/report/check-summary.js";
-import { pairSentence } from "../src/extract/scene-check.js";
+import { pairSentence, selfOverlapSentence } from "../src/extract/scene-check.js";
 import { checkReport } from "../src/report/check-report.js";
 import { jsonText } from "../src/report/outputs.js";
 import { displayText } from "../src/io/display-text.js";
@@ -61,7 +61,10 @@ export function registerCheck(program: Command): void {
         writeOutput(opts.json, jsonText(checkReport(loaded, report, unit, unitAssumed)));
       }
       if (!opts.quiet) (opts.json === "-" ? process.stderr : process.stdout).write(summary);
-      else for (const p of report.pairs) if (p.severity === "error") process.stderr.write(`sigmesh: FAILED: ${displayText(pairSentence(p, unit))}\n`);
+      else {
+        for (const c of report.conductors) if (c.selfOverlap) process.stderr.write(`sigmesh: FAILED: ${displayText(selfOverlapSentence(c.name, c.selfOverlap, unit))}\n`);
+        for (const p of report.pairs) if (p.severity === "error") process.stderr.write(`sigmesh: FAILED: ${displayText(pairSentence(p, unit))}\n`);
+      }
       if (report.failed) process.exitCode = EXIT_BAD_INPUT;
     }));
 }

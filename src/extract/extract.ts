@@ -22,8 +22,11 @@ import { probePoints, type ProbeSpec } from "../io/probe-spec.js";
 import { probeExtraction, type ProbeResult } from "./probe.js";
 import type { SolverChoice } from "./solve.js";
 import { extractMesh } from "./extract-mesh.js";
+import { checkedRefine } from "./options.js";
 import type { ExtractionResult } from "./result.js";
 import { checkConductors } from "./scene-check.js";
+import { physicalSizeFault } from "../mesh/physical-size.js";
+import { InputError } from "../errors.js";
 
 /** What a run adds to the scene: how to solve it, and how to follow and stop it. */
 export interface ExtractSettings {
@@ -85,10 +88,16 @@ export async function extract(scene: LoadedScene, settings: ExtractSettings = {}
   signal?.throwIfAborted();
   const source = scene.scene ?? scene.files.join(", ");
   const warnings = scene.warnings.map((w) => (w.file ? `${w.file}: ` : "") + w.message);
+  for (const d of scene.dielectrics) {
+    const fault = physicalSizeFault(d.mesh.positions, d.mesh.triangles, 1, () => `dielectric ${d.name} as placed`);
+    if (fault) throw new InputError(fault, source);
+  }
   const found = checkConductors(scene.mesh, scene.unit, source);
   for (const w of found) settings.warn?.(w);
   warnings.push(...found);
   signal?.throwIfAborted();
+  // A fault of the run's own settings names no file; every later one concerns the input.
+  checkedRefine(settings.refine);
   const result = await extractMesh(scene.mesh, {
     permittivity: scene.permittivity,
     breakdownField: scene.breakdownField,
@@ -109,6 +118,10 @@ export async function extract(scene: LoadedScene, settings: ExtractSettings = {}
       signal?.throwIfAborted();
       settings.progress?.(phase, fraction, level, levels);
     },
+  }).catch((err: unknown) => {
+    // The solve knows the mesh, not the file: the ground-plane and symmetry checks and the
+    // memory refusals are attributed here, where the source is known.
+    throw err instanceof InputError ? err.inFile(source) : err;
   });
   signal?.throwIfAborted();
   const probes = runProbes(result, [...scene.probes, ...(settings.probes ?? [])], scene.unit);

@@ -17,6 +17,9 @@ import type { PreparedBody } from "./dielectric-bodies.js";
 import type { ResolvedOptions } from "./options.js";
 import type { LevelResult, FinestSolution, DielectricSolution } from "./result.js";
 import { unfoldMatrix, type SymmetryLayout, type BodyUnfolding } from "./symmetry-unfold.js";
+import { resolveSolver } from "./solver-choice.js";
+import { assertFinestFits } from "./memory.js";
+import { PRECONDITIONER_CLUSTER } from "./preconditioner.js";
 
 export interface LevelSolves extends FinestSolution {
   levels: LevelResult[];
@@ -54,6 +57,18 @@ export async function solveLevels(oriented: SurfaceMesh, bodies: PreparedBody[] 
   return { levels, mesh, unit: solve.unit, patterns: solve.patterns, dielectric: solve.dielectric, bodies };
 }
 
+/**
+ * With refinements, check before the first solve that the finest level fits: n0 panels (conductor
+ * and interface) on the first level, 4^refine times as many on the last (refineUniform splits
+ * each triangle in four), solved on the path the solver choice takes at that size.
+ */
+function checkFinestLevel(n0: number, k: number, o: ResolvedOptions, entries: "conductors" | "interfaces"): void {
+  if (o.refine === 0) return;
+  const n = n0 * 4 ** o.refine;
+  const { solver } = resolveSolver(o.solver, n, k, entries);
+  assertFinestFits(solver, n, k, o.refine, o.memoryLimit, 32, PRECONDITIONER_CLUSTER);
+}
+
 /** Progress of pattern s of a level, counted over all levels' patterns. */
 function patternProgress(o: ResolvedOptions, level: number, s: number, nets: number) {
   return (phase: string, f: number) => o.progress?.(phase, f, level * nets + s, (o.refine + 1) * nets);
@@ -62,6 +77,7 @@ function patternProgress(o: ResolvedOptions, level: number, s: number, nets: num
 /** Conductors in a uniform medium: per pattern, Q = 4πε x summed over each conductor (and its even mirrors). */
 async function solveConductorLevel(mesh: SurfaceMesh, level: number, layout: SymmetryLayout, o: ResolvedOptions): Promise<LevelSolve> {
   const { nets, tied } = layout, k = mesh.names.length;
+  if (level === 0) checkFinestLevel(mesh.conductor.length, k, o, "conductors");
   const perPattern: Float64Array[] = [], xs: Float64Array[] = [];
   let last: UnitSolution | undefined;
   for (let s = 0; s < nets; s++) {
@@ -87,6 +103,7 @@ async function solveDielectricLevel(mesh: SurfaceMesh, bodies: PreparedBody[], u
   const { nets, tied } = layout, k = mesh.names.length, er = o.relativePermittivity;
   const model = unfold ? unfold.restrict(dielectricModel(unfold.surface(mesh), bodies, er, o.groundPlane), mesh.conductor.length)
     : dielectricModel(mesh, bodies, er, o.groundPlane);
+  if (level === 0) checkFinestLevel(model.triangles.length / 3, k, o, "interfaces");
   const perPattern: Float64Array[] = [], xs: Float64Array[] = [];
   let dsol: UnitSolution | undefined;
   let unit: UnitSolution | undefined;

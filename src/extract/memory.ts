@@ -59,3 +59,19 @@ export function assertCompressedFits(n: number, k: number, leafSize = 32, limit 
     );
   }
 }
+
+/**
+ * Stop before the first solve of a refinement study when its finest level cannot fit: n panels
+ * (4^refine times the first level's) on the path `solver` takes there, k conductors. Without it
+ * the refusal would come only when the finest level is reached, after the coarser solves.
+ */
+export function assertFinestFits(solver: "direct" | "iterative" | "compressed", n: number, k: number, refine: number,
+  limit = usableMemory(), leafSize = 32, cluster = 256): void {
+  try {
+    if (solver === "compressed") assertCompressedFits(n, k, leafSize, limit, cluster);
+    else assertDenseFits(n, k, limit);
+  } catch (e) {
+    if (!(e instanceof InputError)) throw e;
+    throw new InputError(`refine ${refine} solves up to ${n} panels (4^${refine} times the mesh's) and the last level will not fit: ${e.fault}, or a smaller refine`);
+  }
+}

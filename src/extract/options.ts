@@ -96,8 +96,7 @@ export function resolveOptions(opts: MeshExtractOptions, k: number, nets: number
   const eps = EPSILON_0 * er;
   const method = opts.method ?? "galerkin";
   const tolerance = opts.tolerance ?? 1e-4;
-  const refine = opts.refine ?? 0;
-  if (!Number.isInteger(refine) || refine < 0 || refine > 4) throw new InputError(`refine must be a whole number from 0 to 4, got ${refine}`);
+  const refine = checkedRefine(opts.refine);
   const breakdownField = opts.breakdownField ?? AIR_BREAKDOWN_FIELD;
   if (!(breakdownField > 0) || !Number.isFinite(breakdownField)) throw new InputError(`breakdown field must be a positive number of V/m, got ${breakdownField}`);
   const potentials = new Float64Array(K);
@@ -119,6 +118,13 @@ export function resolveOptions(opts: MeshExtractOptions, k: number, nets: number
     pool, memoryLimit: opts.memoryLimit, groundPlane: opts.groundPlane, assumedOrder: opts.assumedOrder, progress: opts.progress,
     dielectrics, testing, strengths,
   };
+}
+
+/** The number of uniform refinements (default 0); InputError unless a whole number from 0 to 4. */
+export function checkedRefine(refine: number | undefined): number {
+  const r = refine ?? 0;
+  if (!Number.isInteger(r) || r < 0 || r > 4) throw new InputError(`refine must be a whole number from 0 to 4, got ${r}`);
+  return r;
 }
 
 /** Breakdown strength per body (V/m): its own, else the background's. */

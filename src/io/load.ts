@@ -12,6 +12,7 @@ import { basename, extname } from "node:path";
 import { type SurfaceMesh, concatMeshes, uniqueNames } from "../mesh/model.js";
 import { weldVertices, dropDegenerate, DEFAULT_WELD_TOLERANCE } from "../mesh/weld.js";
 import { connectedComponents } from "../mesh/components.js";
+import { physicalSizeFault } from "../mesh/physical-size.js";
 import { InputError, type Warning } from "../errors.js";
 import { metresPer, UNIT_CHOICES, type LengthUnit } from "./units.js";
 import { detectFormat } from "./format.js";
@@ -131,6 +132,10 @@ export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOption
     if (tri !== raw.triangles) { tri[3 * k] = raw.triangles[3 * t]; tri[3 * k + 1] = raw.triangles[3 * t + 1]; tri[3 * k + 2] = raw.triangles[3 * t + 2]; }
     cond[k++] = c;
   }
+  // Before welding: its tolerance is relative to the model's size, which must be a physical one.
+  const vertexPlace = (v: number) => format === "stl" ? `facet ${Math.floor(v / 3) + 1}` : format === "obj" ? `vertex ${v + 1}` : `node ${v + 1} (in file order)`;
+  const sizeFault = physicalSizeFault(raw.positions, tri, scale, vertexPlace, opts.unit);
+  if (sizeFault) throw new InputError(sizeFault, file);
   const tol = opts.weldTolerance ?? DEFAULT_WELD_TOLERANCE;
   if (!(tol >= 0) || !Number.isFinite(tol)) throw new InputError(`weld tolerance ${tol} must be a finite number >= 0`, file);
   // The tolerance is relative, so welding in file units is the same weld; scaling afterwards

@@ -7,6 +7,7 @@ import { type SurfaceMesh, triangleCount, vertexCount, conductorAreas } from "./
 import { buildEdgeTable, conductorTopology, orientSurfaces, conductorOrientation, type ConductorOrientation, type OrientationResult, type EdgeTable } from "./topology.js";
 import { conductorQuality, type MeshQuality } from "./quality.js";
 import { conductorProximity, enclosedConductors, proximityTask, resolveOverlaps, conductorTriangles, type ProximityOptions, type ProximityFinding } from "./proximity.js";
+import { selfOverlaps, withoutRepeats, type SelfOverlap } from "./self-overlap.js";
 import { sharedPool, toShared } from "../linalg/pool.js";
 
 export interface ConductorCheck {
@@ -36,6 +37,22 @@ export interface ConductorCheck {
   /** Centroid of the worst-shaped triangle; metres. */
   worstAspectAt: [number, number, number] | null;
   degenerateTriangles: number;
+  /**
+   * Where the conductor covers itself (repeated faces, coplanar overlaps; self-overlap.ts), or
+   * null. Fails the check: the solve would see two panels carrying one charge.
+   */
+  selfOverlap: SelfOverlapCheck | null;
+}
+
+export interface SelfOverlapCheck {
+  /** Triangles repeating another of the conductor (same three vertices, any order). */
+  repeated: number;
+  /** Pairs of distinct triangles overlapping with positive area in one plane. */
+  overlapping: number;
+  /** True when the overlap search stopped early: `overlapping` is a lower bound. */
+  lowerBound: boolean;
+  /** Centroid of the first triangle found; metres. */
+  position: [number, number, number];
 }
 
 export type PairKind = "intersect" | "touch" | "inside" | "gap";
@@ -59,7 +76,7 @@ export interface CheckReport {
   pairs: PairCheck[];
   triangles: number;
   vertices: number;
-  /** True when any pair is an error (the check failed). */
+  /** True when any pair is an error or a conductor covers itself (the check failed). */
   failed: boolean;
 }
 
@@ -68,15 +85,21 @@ export interface CheckOptions extends ProximityOptions {}
 /** Aspect ratio above which triangles are reported as thin (common practice for collocation BEM: ~10). */
 export const THIN_ASPECT = 10;
 
-/** Check a mesh (metres). Also returns the oriented copy the checks were made on. */
+/**
+ * Check a mesh (metres). Also returns the oriented copy the checks were made on. Repeated faces
+ * are reported, then left out of the other stages: they would only repeat the finding as
+ * non-manifold edges, and ten million copies of one face would cost the stages seconds each.
+ */
 export function checkMeshOriented(mesh: SurfaceMesh, opts: CheckOptions = {}): { report: CheckReport; oriented: OrientationResult } {
-  return assemble(mesh, opts, conductorProximity(mesh, opts));
+  const overlaps = selfOverlaps(mesh);
+  const unique = withoutRepeats(mesh).mesh;
+  return assemble(unique, opts, conductorProximity(unique, opts), { overlaps });
 }
 
 /** The per-conductor checks, and the proximity findings (made on the mesh as given) resolved against the oriented mesh. */
 function assemble(
   mesh: SurfaceMesh, opts: CheckOptions, findings: ProximityFinding[],
-  done: { table?: EdgeTable; oriented?: OrientationResult; quality?: MeshQuality[] } = {},
+  done: { table?: EdgeTable; oriented?: OrientationResult; quality?: MeshQuality[]; overlaps?: SelfOverlap[] } = {},
 ): { report: CheckReport; oriented: OrientationResult } {
   const nc = mesh.names.length, nt = triangleCount(mesh);
   const table = done.table ?? buildEdgeTable(mesh);
@@ -85,10 +108,14 @@ function assemble(
   const orientation = conductorOrientation(oriented, nc);
   const quality = done.quality ?? conductorQuality(mesh);
   const areas = conductorAreas(mesh);
+  const overlapOf = new Array<SelfOverlap | undefined>(nc);
+  for (const f of done.overlaps ?? selfOverlaps(mesh)) overlapOf[f.conductor] = f;
 
   const count = new Uint32Array(nc), comps = new Uint32Array(nc), flipped = new Uint32Array(nc);
   const volume = new Float64Array(nc), volumeOk = new Uint8Array(nc).fill(1);
   for (let t = 0; t < nt; t++) count[mesh.conductor[t]]++;
+  let repeated = 0;
+  for (let c = 0; c < nc; c++) { const r = overlapOf[c]?.repeated ?? 0; count[c] += r; repeated += r; }
   for (const c of oriented.components) {
     comps[c.conductor]++;
     flipped[c.conductor] += c.flippedTriangles;
@@ -131,6 +158,7 @@ function assemble(
       worstAspect: Number.isFinite(q.worstAspect) ? q.worstAspect : null,
       worstAspectAt: at,
       degenerateTriangles: q.degenerateTriangles,
+      selfOverlap: selfOverlapCheck(overlapOf[c]),
     });
   }
 
@@ -160,9 +188,13 @@ function assemble(
   const rank: Record<PairKind, number> = { intersect: 3, inside: 2, touch: 1, gap: 0 };
   pairs.sort((x, y) => rank[y.kind] - rank[x.kind]);
   return {
-    report: { conductors, pairs, triangles: nt, vertices: vertexCount(mesh), failed: pairs.some((x) => x.severity === "error") },
+    report: { conductors, pairs, triangles: nt + repeated, vertices: vertexCount(mesh), failed: pairs.some((x) => x.severity === "error") || conductors.some((c) => c.selfOverlap !== null) },
     oriented,
   };
+}
+
+function selfOverlapCheck(f: SelfOverlap | undefined): SelfOverlapCheck | null {
+  return f ? { repeated: f.repeated, overlapping: f.overlapping, lowerBound: f.truncated, position: f.position } : null;
 }
 
 /** Check a mesh (metres): per-conductor topology and quality, and problems between conductors. */
@@ -178,22 +210,23 @@ export const PARALLEL_MIN_TRIANGLES = 100_000;
  * worker from the shared pool while this thread builds the edge table, orients and
  * measures. Same report as `checkMesh`.
  */
-export async function checkMeshParallel(mesh: SurfaceMesh, opts: CheckOptions = {}): Promise<CheckReport> {
+export async function checkMeshParallel(given: SurfaceMesh, opts: CheckOptions = {}): Promise<CheckReport> {
   const pool = sharedPool();
-  if (triangleCount(mesh) < PARALLEL_MIN_TRIANGLES || pool.size < 2 || mesh.names.length < 2) return checkMesh(mesh, opts);
+  if (triangleCount(given) < PARALLEL_MIN_TRIANGLES || pool.size < 2 || given.names.length < 2) return checkMesh(given, opts);
+  const mesh = withoutRepeats(given).mesh;
   // The message is posted synchronously, so the worker starts while this thread computes.
   const pending = pool.run(proximityTask, 1, [toShared(mesh.positions), mesh.triangles, mesh.conductor, mesh.names.length, { ...opts }])
     .then((f): ProximityFinding[] | undefined => f, () => undefined);
-  const finish = assembleLater(mesh, opts);
+  const finish = assembleLater(mesh, opts, selfOverlaps(given));
   // A worker that cannot start (no compiled module, say) costs time, not the answer.
   const findings = (await pending) ?? conductorProximity(mesh, opts);
   return finish(findings).report;
 }
 
 /** Run the per-conductor stages now and return a function that finishes with the findings. */
-function assembleLater(mesh: SurfaceMesh, opts: CheckOptions): (findings: ProximityFinding[]) => { report: CheckReport; oriented: OrientationResult } {
+function assembleLater(mesh: SurfaceMesh, opts: CheckOptions, overlaps: SelfOverlap[]): (findings: ProximityFinding[]) => { report: CheckReport; oriented: OrientationResult } {
   const table = buildEdgeTable(mesh);
   const oriented = orientSurfaces(mesh, table);
   const quality = conductorQuality(mesh);
-  return (findings) => assemble(mesh, opts, findings, { table, oriented, quality });
+  return (findings) => assemble(mesh, opts, findings, { table, oriented, quality, overlaps });
 }

@@ -8,7 +8,7 @@
  *   version         sigmesh version
  *   files           input files, as given
  *   inputUnit       unit the files were read in ("mm", ...); unitAssumed: true when it was the default
- *   ok              true when no pair is an error
+ *   ok              true when no pair is an error and no conductor covers itself
  *   triangles, vertices        totals after welding and dropping degenerate triangles
  *   welded          vertices merged by welding; dropped: degenerate triangles removed on loading
  *   warnings        [{ file, message }] from loading
@@ -26,6 +26,9 @@
  *     worstAspect   largest radius ratio R/(2r), 1 = equilateral; null if a triangle is degenerate
  *     worstAspectAt centroid of that triangle (m)
  *     degenerateTriangles
+ *     selfOverlap   null, or where the conductor covers itself (an error): { repeated (triangles
+ *                   repeating another, same three corners), overlapping (pairs overlapping in one
+ *                   plane), lowerBound (the search stopped early), position (first one, m) }
  *   pairs           findings between conductors, worst first:
  *     kind          "intersect" | "touch" (errors) | "inside" (warning: inside the closed surface of b, taken as a shell) | "gap" (warning: narrower than the local panel size)
  *     severity      "error" | "warning"

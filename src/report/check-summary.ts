@@ -7,7 +7,7 @@ import { type LengthUnit, metresPer } from "../io/units.js";
 import type { CheckReport, ConductorCheck, PairCheck } from "../mesh/check.js";
 import { THIN_ASPECT } from "../mesh/check.js";
 import { formatNumber, formatLength, formatPoint, lengthValue, unitLabel } from "../io/si.js";
-import { pairSentence } from "../extract/scene-check.js";
+import { pairSentence, selfOverlapSentence } from "../extract/scene-check.js";
 import { displayText } from "../io/display-text.js";
 
 export { pairSentence };
@@ -95,7 +95,9 @@ export function formatCheckSummary(report: CheckReport, opts: CheckSummaryOption
   if (report.conductors.length < 2) out.push("between conductors: only one conductor");
   else if (report.pairs.length === 0) out.push("between conductors: no intersections, touches or narrow gaps");
   for (const w of warnings) out.push(`warning: ${pairSentence(w, u)}`);
+  const covering = report.conductors.filter((c) => c.selfOverlap !== null);
+  for (const c of covering) out.push(`FAILED: ${selfOverlapSentence(c.name, c.selfOverlap!, u)}`);
   for (const e of errors) out.push(`FAILED: ${pairSentence(e, u)}`);
-  if (errors.length === 0) out.push(`OK: mesh can be solved${warnings.length + notes.length > 0 ? " (see notes and warnings above)" : ""}`);
+  if (errors.length === 0 && covering.length === 0) out.push(`OK: mesh can be solved${warnings.length + notes.length > 0 ? " (see notes and warnings above)" : ""}`);
   return out.map(displayText).join("\n") + "\n";
 }

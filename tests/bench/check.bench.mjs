@@ -8,6 +8,7 @@ import { buildEdgeTable, conductorTopology, orientSurfaces } from "../../dist/sr
 import { conductorQuality } from "../../dist/src/mesh/quality.js";
 import { conductorProximity } from "../../dist/src/mesh/proximity.js";
 import { checkMesh, checkMeshParallel } from "../../dist/src/mesh/check.js";
+import { selfOverlaps } from "../../dist/src/mesh/self-overlap.js";
 import { closeSharedPool } from "../../dist/src/linalg/pool.js";
 
 const r = 1e-3, pitch = 2 * r + 0.5e-3;
@@ -32,6 +33,8 @@ time("orientation", () => orientSurfaces(mesh, table));
 time("quality", () => conductorQuality(mesh));
 const found = time("proximity (BVH)", () => conductorProximity(mesh));
 console.log(`  findings: ${found.map((f) => `${mesh.names[f.a]}/${mesh.names[f.b]} ${f.kind} ${(f.distance * 1e6).toFixed(3)} µm`).join("; ")}`);
+const covering = time("self-overlaps (hash + BVH)", () => selfOverlaps(mesh));
+console.log(`  conductors covering themselves: ${covering.length}`);
 globalThis.gc?.();
 const rep = time("checkMesh total", () => checkMesh(mesh));
 console.log(`  failed: ${rep.failed}, pairs: ${rep.pairs.length}, closed: ${rep.conductors.every((c) => c.closed)}, orientation: ${[...new Set(rep.conductors.map((c) => c.orientation))].join(",")}`);
@@ -42,5 +45,17 @@ globalThis.gc?.();
   console.log(`${"checkMeshParallel (2 threads)".padEnd(28)} ${((performance.now() - t0) / 1000).toFixed(3)} s`);
   console.log(`  same report as checkMesh: ${JSON.stringify(par) === JSON.stringify(rep)}`);
   await closeSharedPool();
+}
+{
+  // Ten million copies of one face (issue 13): refused by the hash alone; the other stages run on
+  // the one face left.
+  const n = 10_000_000;
+  const many = { positions: new Float64Array([0, 0, 0, 1e-3, 0, 0, 0, 1e-3, 0]), triangles: new Uint32Array(3 * n), conductor: new Uint32Array(n), names: ["many"] };
+  for (let t = 0; t < n; t++) { many.triangles[3 * t + 1] = 1; many.triangles[3 * t + 2] = 2; }
+  globalThis.gc?.();
+  const f = time("10M repeated faces: found", () => selfOverlaps(many));
+  console.log(`  repeated: ${f[0].repeated}`);
+  const c = time("10M repeated faces: check", () => checkMesh(many));
+  console.log(`  failed: ${c.failed}`);
 }
 console.log(`peak RSS ${(process.resourceUsage().maxRSS / 1024).toFixed(0)} MiB`);
