@@ -13,6 +13,7 @@
  */
 import { type SurfaceMesh, triangleCount } from "./model.js";
 import { buildBoxTree, forEachOverlappingPair } from "./bvh.js";
+import { loadTrianglePair, longestEdgeSquared } from "./triangle-distance.js";
 
 export interface SelfOverlap {
   /** Conductor index, into `mesh.names`. */
@@ -198,19 +199,8 @@ const Q = new Float64Array(12);
  * is beyond the tolerance, so neighbours sharing an edge or a corner do not count.
  */
 export function coplanarOverlap(positions: Float64Array, triangles: Uint32Array, ta: number, tb: number): boolean {
-  for (let j = 0; j < 3; j++) {
-    const a = 3 * triangles[3 * ta + j], b = 3 * triangles[3 * tb + j];
-    V[3 * j] = positions[a]; V[3 * j + 1] = positions[a + 1]; V[3 * j + 2] = positions[a + 2];
-    V[9 + 3 * j] = positions[b]; V[10 + 3 * j] = positions[b + 1]; V[11 + 3 * j] = positions[b + 2];
-  }
-  let h2 = 0;
-  for (let k = 0; k < 3; k++) {
-    const k2 = k === 2 ? 0 : k + 1;
-    for (let o = 0; o <= 9; o += 9) {
-      const l = (V[o + 3 * k2] - V[o + 3 * k]) ** 2 + (V[o + 3 * k2 + 1] - V[o + 3 * k + 1]) ** 2 + (V[o + 3 * k2 + 2] - V[o + 3 * k + 2]) ** 2;
-      if (l > h2) h2 = l;
-    }
-  }
+  loadTrianglePair(positions, triangles, ta, tb, V);
+  const h2 = longestEdgeSquared(V);
   const tol = OVERLAP_TOLERANCE * Math.sqrt(h2);
   // Normals (twice the area vectors; the formula of geometry/triangle.ts triangleAreaVector, inlined).
   const n1x = (V[4] - V[1]) * (V[8] - V[2]) - (V[5] - V[2]) * (V[7] - V[1]);

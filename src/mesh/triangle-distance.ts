@@ -25,6 +25,19 @@ export function loadTrianglePair(p: Float64Array, tr: Uint32Array, ta: number, t
   }
 }
 
+/** The longest edge of the two triangles loaded by loadTrianglePair, squared. */
+export function longestEdgeSquared(V: Float64Array): number {
+  let h2 = 0;
+  for (let k = 0; k < 3; k++) {
+    const k2 = k === 2 ? 0 : k + 1;
+    for (let o = 0; o <= 9; o += 9) {
+      const l = (V[o + 3 * k2] - V[o + 3 * k]) ** 2 + (V[o + 3 * k2 + 1] - V[o + 3 * k + 1]) ** 2 + (V[o + 3 * k2 + 2] - V[o + 3 * k + 2]) ** 2;
+      if (l > h2) h2 = l;
+    }
+  }
+  return h2;
+}
+
 /**
  * Distance between triangles ta and tb of (positions, triangles); metres when positions are.
  * The closest points are written into out[0..2] (on ta) and out[3..5] (on tb).

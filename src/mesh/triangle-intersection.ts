@@ -7,7 +7,7 @@
  * the rest of src/mesh: the mesh arrays and triangle indices first.
  */
 import { triangleAreaVector } from "../geometry/triangle.js";
-import { loadTrianglePair, triangleTriangleDistance } from "./triangle-distance.js";
+import { loadTrianglePair, longestEdgeSquared, triangleTriangleDistance } from "./triangle-distance.js";
 
 // Corners of the two triangles under test: A0 A1 A2 B0 B1 B2, 3 numbers each.
 const V = new Float64Array(18);
@@ -28,14 +28,7 @@ const COPLANAR_EPS = 1e-9;
  */
 export function trianglesIntersect(positions: Float64Array, triangles: Uint32Array, ta: number, tb: number): boolean {
   loadTrianglePair(positions, triangles, ta, tb, V);
-  let h2 = 0;
-  for (let k = 0; k < 3; k++) {
-    const k2 = k === 2 ? 0 : k + 1;
-    for (let o = 0; o <= 9; o += 9) {
-      const l = (V[o + 3 * k2] - V[o + 3 * k]) ** 2 + (V[o + 3 * k2 + 1] - V[o + 3 * k + 1]) ** 2 + (V[o + 3 * k2 + 2] - V[o + 3 * k + 2]) ** 2;
-      if (l > h2) h2 = l;
-    }
-  }
+  const h2 = longestEdgeSquared(V);
   const eps = COPLANAR_EPS * Math.sqrt(h2);
   const n1l = planeDistances(0, 9, eps);
   const du0 = DIST[0], du1 = DIST[1], du2 = DIST[2];
