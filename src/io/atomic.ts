@@ -208,21 +208,46 @@ export function outputOfHidden(path: string): string | undefined {
 const HELD_SIGNALS: NodeJS.Signals[] = ["SIGINT", "SIGTERM", "SIGHUP"];
 
 /**
- * Hold SIGINT, SIGTERM and SIGHUP that would end the process at once (no listener): a listener notes
- * them, and once the write is done they are raised again with their default action. The
- * signal reaches the listener only on the event loop, after the synchronous write; the
- * release waits two turns of the loop so that its poll phase has run in between.
+ * Hold SIGINT, SIGTERM and SIGHUP that would end the process at once (no listener of their own):
+ * while a write is held, a listener notes them, and once the write is done they are raised again
+ * with their default action. A signal reaches the listener only on the event loop, after the
+ * synchronous write, so the release waits two turns of the loop (its poll phase runs in
+ * between). The listener then stays installed and, for a signal no write holds, removes itself
+ * and raises the signal again: a signal that arrives just after the release is not lost (with
+ * the listener removed at release, one arriving in that very turn used to vanish, and the
+ * process ended normally). Where some other listener has taken the signal since, it is left to it.
  */
+let installed: NodeJS.Signals[] | undefined;
+let holding = 0;
+const caught: NodeJS.Signals[] = [];
+
+function onHeldSignal(signal: NodeJS.Signals): void {
+  if (holding > 0) { caught.push(signal); return; }
+  const others = process.listenerCount(signal) > 1;
+  uninstallSignals();
+  if (!others) process.kill(process.pid, signal);
+}
+
+function uninstallSignals(): void {
+  for (const s of installed ?? []) process.off(s, onHeldSignal);
+  installed = undefined;
+}
+
 function holdSignals(): () => void {
   if (!isMainThread) return () => undefined;
-  const caught: NodeJS.Signals[] = [];
-  const note = (signal: NodeJS.Signals): void => { caught.push(signal); };
-  const held = HELD_SIGNALS.filter((s) => process.listenerCount(s) === 0);
-  for (const s of held) process.on(s, note);
+  if (!installed) {
+    installed = HELD_SIGNALS.filter((s) => process.listenerCount(s) === 0);
+    for (const s of installed) process.on(s, onHeldSignal);
+  }
+  holding++;
   return () => {
     setImmediate(() => setImmediate(() => {
-      for (const s of held) process.off(s, note);
-      if (caught.length > 0) process.kill(process.pid, caught[0]);
+      holding--;
+      if (holding > 0 || caught.length === 0) return;
+      const signal = caught[0];
+      caught.length = 0;
+      uninstallSignals();
+      process.kill(process.pid, signal);
     }));
   };
 }
