@@ -6,6 +6,8 @@
  * of 50 bytes: normal (3 × float32), three vertices (9 × float32), uint16 attribute; all
  * little-endian. A file is taken as binary when its size is exactly 84 + 50·n; the word
  * `solid` at the start proves nothing, since many binary exporters put it in the header.
+ * Several such blocks end to end (Gmsh writes one per physical group) are several groups,
+ * each named from its header, when the blocks fill the file exactly; see `binaryBlocks`.
  *
  * ASCII: `solid NAME` … `facet normal nx ny nz` / `outer loop` / `vertex x y z` ×3 /
  * `endloop` / `endfacet` … `endsolid NAME`. Several solids in one file are several groups
@@ -29,6 +31,10 @@ export function readStl(bytes: Uint8Array, file: string): RawMesh {
   if (size >= HEADER + 4) {
     const n = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength).getUint32(HEADER, true);
     if (HEADER + 4 + RECORD * n === size) return readStlBinary(bytes, file, n);
+    // An ASCII file never gets here: its bytes 80..83 are text, a count of at least
+    // 0x09090909 triangles (7.5 GB), which no file of the allowed sizes can hold.
+    const blocks = binaryBlocks(bytes);
+    if (blocks) return readStlBlocks(bytes, file, blocks);
   }
   if (looksLikeAsciiStl(bytes)) return readStlAscii(bytes, file);
   if (isBlank(bytes)) throw new InputError("empty file (only white space)", file);
@@ -65,26 +71,93 @@ function looksLikeAsciiStl(bytes: Uint8Array): boolean {
 }
 
 function readStlBinary(bytes: Uint8Array, file: string, n: number): RawMesh {
-  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
   const positions = new Float64Array(9 * n);
   const triangles = new Uint32Array(3 * n);
-  for (let t = 0; t < n; t++) {
-    const rec = HEADER + 4 + RECORD * t + 12;
-    const o = 9 * t;
-    for (let k = 0; k < 9; k++) {
-      const v = view.getFloat32(rec + 4 * k, true);
-      if (v - v !== 0) {
-        throw new InputError(`triangle ${t + 1}: vertex ${Math.floor(k / 3) + 1} coordinate ${"xyz"[k % 3]} is ${v} (not a finite number)`, file, atByte(rec + 4 * k));
-      }
-      positions[o + k] = v;
-    }
-    triangles[3 * t] = 3 * t;
-    triangles[3 * t + 1] = 3 * t + 1;
-    triangles[3 * t + 2] = 3 * t + 2;
-  }
+  readRecords(bytes, file, HEADER + 4, n, positions, triangles, 0, "");
   const warnings: string[] = [];
   if (n === 0) warnings.push("binary STL holds no triangles");
   return { positions, triangles, group: new Uint32Array(n), groupNames: [""], warnings };
+}
+
+/**
+ * n records from byte `start` into triangle slots `first` … `first + n - 1` (one unshared
+ * vertex triple each; welding comes later). `label` prefixes fault messages ("block 2, ").
+ */
+function readRecords(bytes: Uint8Array, file: string, start: number, n: number, positions: Float64Array, triangles: Uint32Array, first: number, label: string): void {
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  for (let t = 0; t < n; t++) {
+    const rec = start + RECORD * t + 12;
+    const o = 9 * (first + t);
+    for (let k = 0; k < 9; k++) {
+      const v = view.getFloat32(rec + 4 * k, true);
+      if (v - v !== 0) {
+        throw new InputError(`${label}triangle ${t + 1}: vertex ${Math.floor(k / 3) + 1} coordinate ${"xyz"[k % 3]} is ${v} (not a finite number)`, file, atByte(rec + 4 * k));
+      }
+      positions[o + k] = v;
+    }
+    const a = 3 * (first + t);
+    triangles[a] = a;
+    triangles[a + 1] = a + 1;
+    triangles[a + 2] = a + 2;
+  }
+}
+
+/** One block of a multi-block binary STL: where it starts and how many triangles it counts. */
+interface Block { start: number; count: number }
+
+/**
+ * The blocks of a binary STL written as several solids end to end (80-byte header, uint32
+ * count, count records, then the next block), or null unless the whole file is two or more
+ * such blocks, each count at least 1 and fitting the bytes left, the last ending exactly at
+ * the end of the file. Anything else keeps the single-block reading (trailing bytes ignored
+ * with a warning). Only counts are read here: nothing is allocated per block until the
+ * chain is known to fill the file.
+ */
+function binaryBlocks(bytes: Uint8Array): Block[] | null {
+  const size = bytes.length;
+  const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
+  const blocks: Block[] = [];
+  let p = 0;
+  while (p < size) {
+    if (size - p < HEADER + 4) return null;
+    const n = view.getUint32(p + HEADER, true);
+    if (n === 0 || n > (size - p - HEADER - 4) / RECORD) return null;
+    blocks.push({ start: p, count: n });
+    p += HEADER + 4 + RECORD * n;
+  }
+  return blocks.length >= 2 ? blocks : null;
+}
+
+function readStlBlocks(bytes: Uint8Array, file: string, blocks: Block[]): RawMesh {
+  let total = 0;
+  for (const b of blocks) total += b.count;
+  const positions = new Float64Array(9 * total);
+  const triangles = new Uint32Array(3 * total);
+  const group = new Uint32Array(total);
+  const groupNames: string[] = [];
+  let first = 0;
+  blocks.forEach((b, i) => {
+    readRecords(bytes, file, b.start + HEADER + 4, b.count, positions, triangles, first, `block ${i + 1} (byte ${b.start}), `);
+    group.fill(i, first, first + b.count);
+    groupNames.push(headerName(bytes.subarray(b.start, b.start + HEADER)));
+    first += b.count;
+  });
+  return { positions, triangles, group, groupNames, warnings: [] };
+}
+
+/**
+ * A block's name from its 80-byte header: the text before the first NUL, a leading `solid`
+ * keyword dropped, trimmed. A header with other control characters in that text is binary
+ * data, not a name, and gives "" (the loader then generates one).
+ */
+export function headerName(header: Uint8Array): string {
+  let end = header.indexOf(0);
+  if (end < 0) end = header.length;
+  const text = header.subarray(0, end);
+  for (const b of text) if ((b < 32 && !isSpace(b)) || b === 127) return "";
+  let s = decodeName(text).trim();
+  if (/^solid(\s|$)/i.test(s)) s = s.slice(5).trim();
+  return /[\x00-\x1f\x7f-\x9f]/.test(s) ? "" : s;
 }
 
 const kw = (s: string): Uint8Array => new TextEncoder().encode(s);

@@ -47,6 +47,78 @@ describe("readStl binary", () => {
   });
 });
 
+/**
+ * Binary STL as several solids end to end, written byte by byte: per block an 80-byte
+ * header (the text, then zero bytes), a uint32 count and count 50-byte records.
+ */
+function stlBlocks(blocks: Array<{ header: string; tris: number[][]; claimed?: number }>): Uint8Array {
+  const parts = blocks.map((b) => binaryStl("", b.tris, b.claimed ?? b.tris.length));
+  blocks.forEach((b, i) => parts[i].set(enc(b.header).subarray(0, 80)));
+  const out = new Uint8Array(parts.reduce((n, p) => n + p.length, 0));
+  let at = 0;
+  for (const p of parts) { out.set(p, at); at += p.length; }
+  return out;
+}
+const tri = (x: number): number[] => [x, 0, 0, x + 1, 0, 0, x, 1, 0];
+const tris = (k: number, x: number): number[][] => Array.from({ length: k }, (_, i) => tri(x + 2 * i));
+
+describe("readStl binary, several solids end to end", () => {
+  const three = () => stlBlocks([
+    { header: "solid electrode", tris: tris(4, 0) },
+    { header: "plate", tris: tris(2, 20) },
+    { header: "\0".repeat(80), tris: tris(3, 40) },
+  ]);
+  it("reads each block as a group named from its header", () => {
+    const m = readStl(three(), "gmsh.stl");
+    expect(m.groupNames).toEqual(["electrode", "plate", ""]);
+    expect(Array.from(m.group)).toEqual([0, 0, 0, 0, 1, 1, 2, 2, 2]);
+    expect(m.triangles.length).toBe(27);
+    // Every vertex lands where its block put it: the first x of each triangle.
+    const xs = Array.from({ length: 9 }, (_, t) => m.positions[9 * t]);
+    expect(xs).toEqual([0, 2, 4, 6, 20, 22, 40, 42, 44]);
+    expect(m.warnings).toEqual([]);
+  });
+  it("names blocks by the header text: 'solid' dropped, case-blind, trimmed; binary junk gives no name", () => {
+    const junk = "\x01\x02abc";
+    const m = readStl(stlBlocks([
+      { header: "SOLID  pin 3  ", tris: tris(1, 0) },
+      { header: "solidity", tris: tris(1, 5) },
+      { header: junk, tris: tris(1, 10) },
+      { header: "solid", tris: tris(1, 15) },
+    ]), "n.stl");
+    expect(m.groupNames).toEqual(["pin 3", "solidity", "", ""]);
+  });
+  it("names block, triangle and byte offset of a non-finite coordinate in a later block", () => {
+    const b = stlBlocks([{ header: "a", tris: tris(2, 0) }, { header: "b", tris: [tri(9), [0, 0, 0, 1, 0, 0, 0, Infinity, 0]] }]);
+    let err: unknown;
+    try { readStl(b, "inf.stl"); } catch (e) { err = e; }
+    expect(err).toBeInstanceOf(InputError);
+    const second = 84 + 100;
+    expect((err as InputError).place).toBe(`byte ${second + 84 + 50 + 12 + 28}`);
+    expect((err as InputError).fault).toMatch(new RegExp(`^block 2 \\(byte ${second}\\), triangle 2: vertex 3 coordinate y is Infinity`));
+  });
+  it("a later block whose count overruns the file keeps the old reading: first block, trailing bytes ignored", () => {
+    const b = stlBlocks([{ header: "solid a", tris: tris(2, 0) }, { header: "solid b", tris: tris(2, 9), claimed: 3 }]);
+    const m = readStl(b, "over.stl");
+    expect(m.groupNames).toEqual([""]);
+    expect(m.triangles.length).toBe(6);
+    expect(m.warnings).toEqual([`byte 184: ${b.length - 184} bytes after the 2 triangles the header counts (184 bytes of ${b.length}) ignored`]);
+  });
+  it("a count that falls short of the end, or a zero count, keeps the old reading too", () => {
+    const short = stlBlocks([{ header: "a", tris: tris(2, 0) }, { header: "b", tris: tris(3, 9), claimed: 2 }]);
+    expect(readStl(short, "s.stl").groupNames).toEqual([""]);
+    expect(readStl(short, "s.stl").warnings[0]).toMatch(/^byte 184: /);
+    const zero = stlBlocks([{ header: "a", tris: tris(2, 0) }, { header: "b", tris: [] }]);
+    expect(readStl(zero, "z.stl").triangles.length).toBe(6);
+    expect(readStl(zero, "z.stl").warnings[0]).toMatch(/^byte 184: 84 bytes after/);
+  });
+  it("a single block reads as before: one unnamed group, whatever its header says", () => {
+    const m = readStl(stlBlocks([{ header: "solid electrode", tris: tris(3, 0) }]), "one.stl");
+    expect(m.groupNames).toEqual([""]);
+    expect(m.warnings).toEqual([]);
+  });
+});
+
 describe("readStl ASCII", () => {
   it("reads several named solids as groups, ignoring facet normals (even nan)", () => {
     const m = readStl(fixtureBytes("two_solids.stl"), "two.stl");
