@@ -9,8 +9,8 @@ const root = fileURLToPath(new URL("../..", import.meta.url));
 const cli = join(root, "dist/cli/main.js");
 let dir = "";
 
-/** ASCII STL of the box [o, o+s] (12 facets, outward unless inward). */
-function boxStl(name: string, o: number[], s: number, inward = false): string {
+/** The 12 facets of the box [o, o+s], outward unless inward. */
+function boxFaces(o: number[], s: number, inward = false): number[][][] {
   const v = (dx: number, dy: number, dz: number) => [o[0] + dx * s, o[1] + dy * s, o[2] + dz * s];
   const faces: number[][][] = [];
   for (let k = 0; k < 3; k++) {
@@ -22,8 +22,30 @@ function boxStl(name: string, o: number[], s: number, inward = false): string {
       faces.push(out ? [q[0], q[1], q[2]] : [q[0], q[2], q[1]], out ? [q[0], q[2], q[3]] : [q[0], q[3], q[2]]);
     }
   }
+  return faces;
+}
+
+/** ASCII STL of the box [o, o+s] (12 facets, outward unless inward). */
+function boxStl(name: string, o: number[], s: number, inward = false): string {
+  const faces = boxFaces(o, s, inward);
   const body = faces.map((f) => `  facet normal 0 0 0\n    outer loop\n${f.map((p) => `      vertex ${p.join(" ")}\n`).join("")}    endloop\n  endfacet\n`).join("");
   return `solid ${name}\n${body}endsolid ${name}\n`;
+}
+
+/**
+ * Binary STL of several boxes as blocks end to end, as Gmsh writes one solid per physical
+ * group: per block an 80-byte header (text, zero padded), a uint32 count, 50-byte records.
+ */
+function boxBlocksStl(blocks: Array<{ header: string; o: number[] }>): Uint8Array {
+  const size = 84 + 50 * 12;
+  const out = new Uint8Array(size * blocks.length);
+  const dv = new DataView(out.buffer);
+  blocks.forEach((b, i) => {
+    out.set(new TextEncoder().encode(b.header).subarray(0, 80), size * i);
+    dv.setUint32(size * i + 80, 12, true);
+    boxFaces(b.o, 1).forEach((f, t) => f.flat().forEach((v, k) => dv.setFloat32(size * i + 84 + 50 * t + 12 + 4 * k, v, true)));
+  });
+  return out;
 }
 
 function run(args: string[]) {
@@ -38,6 +60,9 @@ beforeAll(() => {
   writeFileSync(join(dir, "far.stl"), boxStl("far", [3, 0, 0], 1, true));
   writeFileSync(join(dir, "over.stl"), boxStl("over", [0.5, 0.5, 0.5], 1));
   writeFileSync(join(dir, "near.stl"), boxStl("near", [1.05, 0, 0], 1));
+  writeFileSync(join(dir, "solids.stl"), boxBlocksStl([
+    { header: "solid electrode", o: [0, 0, 0] }, { header: "plate", o: [3, 0, 0] }, { header: "\0".repeat(80), o: [6, 0, 0] },
+  ]));
   writeFileSync(join(dir, "broken.stl"), "solid x\n  facet normal 0 0 1\n    outer loop\n      vertex 0 0 0\n      vertex 1 zero 0\n      vertex 0 1 0\n    endloop\n  endfacet\nendsolid x\n");
 });
 
@@ -49,6 +74,16 @@ describe("sigmesh check", () => {
     expect(r.out).toMatch(/^far .* inward-flipped/m);
     expect(r.out).toContain("OK:");
     expect(r.err).toBe("");
+  });
+
+  it("lists each solid of a binary STL written as blocks end to end as a conductor", () => {
+    const r = run(["check", "solids.stl", "--json", "-"]);
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.out);
+    expect(j.conductors.map((c: { name: string }) => c.name)).toEqual(["electrode", "plate", "solids_1"]);
+    expect(j.conductors.map((c: { triangles: number }) => c.triangles)).toEqual([12, 12, 12]);
+    expect(j.ok).toBe(true);
+    expect(r.err).not.toMatch(/ignored/);
   });
 
   it("writes JSON to stdout with --json - in SI units", () => {
