@@ -102,46 +102,54 @@ function readRecords(bytes: Uint8Array, file: string, start: number, n: number, 
   }
 }
 
-/** One block of a multi-block binary STL: where it starts and how many triangles it counts. */
-interface Block { start: number; count: number }
+/** The blocks of a multi-block binary STL: where each starts, and how many triangles it counts. */
+interface Blocks { start: Float64Array; count: Uint32Array }
 
 /**
  * The blocks of a binary STL written as several solids end to end (80-byte header, uint32
  * count, count records, then the next block), or null unless the whole file is two or more
  * such blocks, each count at least 1 and fitting the bytes left, the last ending exactly at
  * the end of the file. Anything else keeps the single-block reading (trailing bytes ignored
- * with a warning). Only counts are read here: nothing is allocated per block until the
- * chain is known to fill the file.
+ * with a warning). A first pass only reads counts, so nothing is allocated until the chain
+ * is known to fill the file; the second fills typed arrays (no object per block).
  */
-function binaryBlocks(bytes: Uint8Array): Block[] | null {
+function binaryBlocks(bytes: Uint8Array): Blocks | null {
   const size = bytes.length;
   const view = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength);
-  const blocks: Block[] = [];
-  let p = 0;
+  let p = 0, k = 0;
   while (p < size) {
     if (size - p < HEADER + 4) return null;
     const n = view.getUint32(p + HEADER, true);
     if (n === 0 || n > (size - p - HEADER - 4) / RECORD) return null;
-    blocks.push({ start: p, count: n });
     p += HEADER + 4 + RECORD * n;
+    k++;
   }
-  return blocks.length >= 2 ? blocks : null;
+  if (k < 2) return null;
+  const start = new Float64Array(k), count = new Uint32Array(k);
+  p = 0;
+  for (let i = 0; i < k; i++) {
+    start[i] = p;
+    count[i] = view.getUint32(p + HEADER, true);
+    p += HEADER + 4 + RECORD * count[i];
+  }
+  return { start, count };
 }
 
-function readStlBlocks(bytes: Uint8Array, file: string, blocks: Block[]): RawMesh {
+function readStlBlocks(bytes: Uint8Array, file: string, blocks: Blocks): RawMesh {
+  const { start, count } = blocks;
   let total = 0;
-  for (const b of blocks) total += b.count;
+  for (let i = 0; i < count.length; i++) total += count[i];
   const positions = new Float64Array(9 * total);
   const triangles = new Uint32Array(3 * total);
   const group = new Uint32Array(total);
   const groupNames: string[] = [];
   let first = 0;
-  blocks.forEach((b, i) => {
-    readRecords(bytes, file, b.start + HEADER + 4, b.count, positions, triangles, first, `block ${i + 1} (byte ${b.start}), `);
-    group.fill(i, first, first + b.count);
-    groupNames.push(headerName(bytes.subarray(b.start, b.start + HEADER)));
-    first += b.count;
-  });
+  for (let i = 0; i < count.length; i++) {
+    readRecords(bytes, file, start[i] + HEADER + 4, count[i], positions, triangles, first, `block ${i + 1} (byte ${start[i]}), `);
+    group.fill(i, first, first + count[i]);
+    groupNames.push(headerName(bytes.subarray(start[i], start[i] + HEADER)));
+    first += count[i];
+  }
   return { positions, triangles, group, groupNames, warnings: [] };
 }
 
@@ -150,7 +158,7 @@ function readStlBlocks(bytes: Uint8Array, file: string, blocks: Block[]): RawMes
  * keyword dropped, trimmed. A header with other control characters in that text is binary
  * data, not a name, and gives "" (the loader then generates one).
  */
-export function headerName(header: Uint8Array): string {
+function headerName(header: Uint8Array): string {
   let end = header.indexOf(0);
   if (end < 0) end = header.length;
   const text = header.subarray(0, end);
