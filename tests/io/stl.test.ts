@@ -112,6 +112,22 @@ describe("readStl binary, several solids end to end", () => {
     expect(readStl(zero, "z.stl").triangles.length).toBe(6);
     expect(readStl(zero, "z.stl").warnings[0]).toMatch(/^byte 184: 84 bytes after/);
   });
+  it("reads a file written by Gmsh itself, one solid per physical group", () => {
+    // Written by Debian's Gmsh 4.8.4 from tests/fixtures/gmsh_two_solids.geo
+    // (`gmsh gmsh_two_solids.geo -2 -format stl -o gmsh_two_solids.stl`, Mesh.Binary = 1,
+    // Mesh.StlOneSolidPerSurface = 2): a unit cube "electrode" and a sphere of radius 0.5
+    // "ground plate". Gmsh's own block counts are 156 and 80 triangles.
+    const m = readStl(fixtureBytes("gmsh_two_solids.stl"), "gmsh.stl");
+    expect(m.groupNames).toEqual(["electrode", "ground plate"]);
+    expect(Array.from(m.group).filter((g) => g === 0)).toHaveLength(156);
+    expect(Array.from(m.group).filter((g) => g === 1)).toHaveLength(80);
+    expect(m.warnings).toEqual([]);
+    // The cube's faces are flat, so its triangles add up to the box's area, 6, to float32 rounding.
+    expect(rawArea(m, 0)).toBeCloseTo(6, 5);
+    // Triangles inscribed in the sphere: less than 4π·0.5², by the coarse mesh's chord error.
+    expect(rawArea(m, 1)).toBeLessThan(Math.PI);
+    expect(rawArea(m, 1)).toBeGreaterThan(0.9 * Math.PI);
+  });
   it("a single block reads as before: one unnamed group, whatever its header says", () => {
     const m = readStl(stlBlocks([{ header: "solid electrode", tris: tris(3, 0) }]), "one.stl");
     expect(m.groupNames).toEqual([""]);
