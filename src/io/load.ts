@@ -4,7 +4,9 @@
  * components or merged into one).
  *
  * Naming: a file holding one body gives one conductor named after the file stem (or
- * `name`); named solids, objects, groups or physical surfaces give conductors by those
+ * `name`), unless the reader marks its one name as chosen by the user (`RawMesh.groupNamed`:
+ * a Gmsh `$PhysicalNames` name; STL `solid` and OBJ `o`/`g` names are not kept, as exporters
+ * fill them with generic text); `name` still wins over it. Named solids, objects, groups or physical surfaces give conductors by those
  * names, unnamed ones `stem_1`, `stem_2`, ... With `split`, a group falling apart into k > 1
  * connected pieces gives `group_1` … `group_k` (`stem_1` … for a one-body file).
  */
@@ -98,8 +100,10 @@ export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOption
     throw new InputError(`no triangles in the file${raw.warnings.length ? ` (${raw.warnings[raw.warnings.length - 1]})` : ""}`, file);
   }
   let unnamed = 0;
-  const shown = present.length === 1
-    ? [base]
+  const single = present.length === 1 ? present[0] : -1;
+  const keep = single >= 0 && (opts.name === undefined || opts.name.trim() === "") && raw.groupNamed?.[single] === true;
+  const shown = single >= 0
+    ? [keep ? raw.groupNames[single].trim() : base]
     : uniqueNames(present.map((g) => raw.groupNames[g].trim() !== "" ? raw.groupNames[g].trim() : `${base}_${++unnamed}`));
 
   // Conductor of each raw group (-1: not kept), before splitting.
@@ -107,6 +111,8 @@ export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOption
   let names: string[];
   if (opts.groups !== undefined) {
     const wanted = new Set(opts.groups);
+    // A one-body file named by the file still answers to its stem, as before the name was kept.
+    if (keep && wanted.delete(base)) wanted.add(shown[0]);
     for (const w of wanted) {
       if (!shown.includes(w)) throw new InputError(`no group "${w}" in the file; it has: ${shown.map((s) => `"${s}"`).join(", ")}`, file);
     }

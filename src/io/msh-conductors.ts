@@ -3,7 +3,8 @@
  * dimension 2; unnamed physical groups become `physical_N`). Without any physical group each
  * surface entity would be one face of a body, and calling the faces of a box six conductors
  * would be wrong physics; so surface entities that share nodes are joined into one body, named
- * after its lowest entity tag (`surface_7`), with a warning.
+ * after its lowest entity tag (`surface_7`), with a warning. `groupNamed` marks the groups named
+ * in `$PhysicalNames`: a file with one body keeps such a name, and takes its stem otherwise.
  */
 
 /**
@@ -13,13 +14,14 @@
 export function conductorGroups(
   triangles: Uint32Array, phys: Uint32Array, entity: Uint32Array, nt: number,
   physicalNames: Map<number, string>, nodeCount: number, warnings: string[],
-): { group: Uint32Array; groupNames: string[] } {
+): { group: Uint32Array; groupNames: string[]; groupNamed: boolean[] } {
   const group = new Uint32Array(nt);
   const groupNames: string[] = [];
+  const groupNamed: boolean[] = [];
   const byKey = new Map<string, number>();
-  const use = (key: string, name: string): number => {
+  const use = (key: string, name: string, named = false): number => {
     let g = byKey.get(key);
-    if (g === undefined) { g = groupNames.length; groupNames.push(name); byKey.set(key, g); }
+    if (g === undefined) { g = groupNames.length; groupNames.push(name); groupNamed.push(named); byKey.set(key, g); }
     return g;
   };
   let anyPhysical = false;
@@ -30,12 +32,13 @@ export function conductorGroups(
     for (let t = 0; t < nt; t++) {
       const p = phys[t], e = p !== 0 ? 0 : entity[t];
       if (p !== lastP || e !== lastE) {
-        lastG = p !== 0 ? use(`p${p}`, physicalNames.get(p) ?? `physical_${p}`) : use(`e${e}`, `surface_${e}`);
+        const given = p !== 0 ? physicalNames.get(p) : undefined;
+        lastG = p !== 0 ? use(`p${p}`, given ?? `physical_${p}`, given !== undefined && given.trim() !== "") : use(`e${e}`, `surface_${e}`);
         lastP = p; lastE = e;
       }
       group[t] = lastG;
     }
-    return { group, groupNames };
+    return { group, groupNames, groupNamed };
   }
   // No physical groups: join entities through shared nodes (union-find over entity tags).
   const entities = new Map<number, number>();
@@ -71,5 +74,5 @@ export function conductorGroups(
   if (entities.size > groupNames.length) {
     warnings.push(`no physical groups: ${entities.size} surface entities joined into ${groupNames.length} conductor(s) by shared nodes; define physical surfaces in Gmsh to choose conductors and their names`);
   }
-  return { group, groupNames };
+  return { group, groupNames, groupNamed };
 }

@@ -147,8 +147,8 @@ export class MeshBuilder {
         .filter(([n]) => (n as number) > 0).map(([n, what]) => `${n} ${what} element(s)`).join(", ");
       warnings.push(`no surface elements (triangles or quadrangles) in the file${other ? `; skipped: ${other}` : ""}`);
     }
-    const { group, groupNames } = conductorGroups(triangles, phys, entity, nt, this.physicalNames, positions.length / 3, warnings);
-    return { positions, triangles, group, groupNames, warnings };
+    const { group, groupNames, groupNamed } = conductorGroups(triangles, phys, entity, nt, this.physicalNames, positions.length / 3, warnings);
+    return { positions, triangles, group, groupNames, groupNamed, warnings };
   }
 }
 

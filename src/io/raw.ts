@@ -11,6 +11,13 @@ export interface RawMesh {
   group: Uint32Array;
   /** Name of each group as the file gives it; "" when unnamed. */
   groupNames: string[];
+  /**
+   * Per group, whether its name is one the user chose and a one-body file keeps: true for a
+   * Gmsh `$PhysicalNames` name, false for the reader's made-up `surface_7`/`physical_101`.
+   * Absent: no name is kept for a one-body file (STL and OBJ, whose exporters often write
+   * generic names such as "Mesh" or the tool's name there).
+   */
+  groupNamed?: boolean[];
   /** Things a user should know, each with its place, e.g. "line 12: ...". */
   warnings: string[];
 }

@@ -97,6 +97,66 @@ describe("loadMeshFile", () => {
   });
 });
 
+/** One unit tetrahedron, all four faces in surface entity 1; `phys` 0 for no physical group. */
+const TET = [[1, 3, 2], [1, 2, 4], [1, 4, 3], [2, 3, 4]];
+const NODE_XYZ = ["0 0 0", "1 0 0", "0 1 0", "0 0 1"];
+const names22 = (names: string) => names === "" ? "" : `$PhysicalNames\n${names.split("\n").length}\n${names}\n$EndPhysicalNames\n`;
+/** Gmsh MSH 2.2 ASCII (legacy format in the Gmsh reference manual): element "id 2 2 phys entity n1 n2 n3". */
+function msh22(phys: number, names: string): Uint8Array {
+  return enc("$MeshFormat\n2.2 0 8\n$EndMeshFormat\n" + names22(names) +
+    `$Nodes\n4\n${NODE_XYZ.map((x, i) => `${i + 1} ${x}`).join("\n")}\n$EndNodes\n` +
+    `$Elements\n4\n${TET.map((t, i) => `${i + 1} 2 2 ${phys} 1 ${t.join(" ")}`).join("\n")}\n$EndElements\n`);
+}
+/** Gmsh MSH 4.1 ASCII ("MSH file format" in the Gmsh reference manual): one surface entity, its physical tag in $Entities. */
+function msh41(phys: number, names: string): Uint8Array {
+  const physList = phys === 0 ? "0" : `1 ${phys}`;
+  return enc("$MeshFormat\n4.1 0 8\n$EndMeshFormat\n" + names22(names) +
+    `$Entities\n0 0 1 0\n1 0 0 0 1 1 1 ${physList} 0\n$EndEntities\n` +
+    `$Nodes\n1 4 1 4\n2 1 0 4\n1\n2\n3\n4\n${NODE_XYZ.join("\n")}\n$EndNodes\n` +
+    `$Elements\n1 4 1 4\n2 1 2 4\n${TET.map((t, i) => `${i + 1} ${t.join(" ")}`).join("\n")}\n$EndElements\n`);
+}
+
+describe("a one-body file's conductor name", () => {
+  const variants = [["2.2", msh22], ["4.1", msh41]] as const;
+  for (const [version, write] of variants) {
+    it(`MSH ${version}: one named physical surface gives its name; unnamed ones and none give the stem`, () => {
+      expect(parseMeshBytes(write(101, '2 101 "electrode"'), "part.msh", mm).mesh.names).toEqual(["electrode"]);
+      // Spaces kept, surrounding blanks trimmed, as for files with several bodies.
+      expect(parseMeshBytes(write(101, '2 101 " hv electrode "'), "part.msh", mm).mesh.names).toEqual(["hv electrode"]);
+      // A physical group with no name in $PhysicalNames, an empty name, or no physical group at all.
+      expect(parseMeshBytes(write(101, ""), "part.msh", mm).mesh.names).toEqual(["part"]);
+      expect(parseMeshBytes(write(101, '2 101 ""'), "part.msh", mm).mesh.names).toEqual(["part"]);
+      expect(parseMeshBytes(write(101, '1 101 "a curve"'), "part.msh", mm).mesh.names).toEqual(["part"]);
+      expect(parseMeshBytes(write(0, ""), "part.msh", mm).mesh.names).toEqual(["part"]);
+    });
+  }
+  it("MSH: name wins over the physical name; groups select by it; merge names after the stem; split numbers it", () => {
+    const b = msh41(101, '2 101 "electrode"');
+    expect(parseMeshBytes(b, "part.msh", { ...mm, name: "hv" }).mesh.names).toEqual(["hv"]);
+    expect(parseMeshBytes(b, "part.msh", { ...mm, groups: ["electrode"] }).mesh.names).toEqual(["electrode"]);
+    expect(parseMeshBytes(b, "part.msh", { ...mm, groups: ["part"] }).mesh.names).toEqual(["electrode"]);
+    expect(err(() => parseMeshBytes(b, "part.msh", { ...mm, groups: ["other"] })).fault).toMatch(/no group "other" in the file; it has: "electrode"/);
+    expect(parseMeshBytes(b, "part.msh", { ...mm, merge: true }).mesh.names).toEqual(["part"]);
+    // Two separate tetrahedra in the one physical surface: split gives electrode_1, electrode_2.
+    const two = new TextDecoder().decode(msh22(101, '2 101 "electrode"'))
+      .replace("$Nodes\n4\n", "$Nodes\n8\n").replace("$EndNodes", `${NODE_XYZ.map((x, i) => `${i + 5} ${x.replace(/^\S+/, (v) => String(Number(v) + 3))}`).join("\n")}\n$EndNodes`)
+      .replace("$Elements\n4\n", "$Elements\n8\n").replace("$EndElements", `${TET.map((t, i) => `${i + 5} 2 2 101 1 ${t.map((n) => n + 4).join(" ")}`).join("\n")}\n$EndElements`);
+    expect(parseMeshBytes(enc(two), "part.msh", mm).mesh.names).toEqual(["electrode"]);
+    expect(parseMeshBytes(enc(two), "part.msh", { ...mm, split: true }).mesh.names).toEqual(["electrode_1", "electrode_2"]);
+  });
+  it("MSH with two named physical surfaces keeps both names, as before", () => {
+    expect(parseMeshBytes(fixtureBytes("two_tets_41.msh"), "part.msh", mm).mesh.names).toEqual(["anode", "cathode"]);
+    expect(parseMeshBytes(fixtureBytes("two_tets_22.msh"), "part.msh", mm).mesh.names).toEqual(["anode", "cathode"]);
+  });
+  it("STL and OBJ: a one-body file is named after the stem whatever solid, o or g name it carries", () => {
+    const tri = "facet normal 0 0 1\nouter loop\nvertex 0 0 0\nvertex 1 0 0\nvertex 0 1 0\nendloop\nendfacet\n";
+    expect(parseMeshBytes(enc(`solid electrode\n${tri}endsolid electrode\n`), "part.stl", mm).mesh.names).toEqual(["part"]);
+    expect(parseMeshBytes(enc(`solid\n${tri}endsolid\n`), "part.stl", mm).mesh.names).toEqual(["part"]);
+    expect(parseMeshBytes(enc("o electrode\nv 0 0 0\nv 1 0 0\nv 0 1 0\nf 1 2 3\n"), "part.obj", mm).mesh.names).toEqual(["part"]);
+    expect(parseMeshBytes(enc("g electrode\nv 0 0 0\nv 1 0 0\nv 0 1 0\nf 1 2 3\n"), "part.obj", mm).mesh.names).toEqual(["part"]);
+  });
+});
+
 describe("detectFormat", () => {
   it("extension first, then content", () => {
     expect(detectFormat("a.STL", new Uint8Array())).toBe("stl");

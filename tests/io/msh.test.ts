@@ -35,6 +35,13 @@ describe("readMsh 2.2", () => {
   it("physical tag 0 everywhere: elementary entities joined by shared nodes", () => {
     expect(names(readMsh(fixtureBytes("two_tets_22_nophys.msh"), "t.msh"))).toEqual(["surface_1", "surface_3"]);
   });
+  it("groupNamed marks the names $PhysicalNames gives, not the made-up ones", () => {
+    const named = (f: string) => { const m = readMsh(fixtureBytes(f), "t.msh"); return m.groupNamed; };
+    expect(named("two_tets_22.msh")).toEqual([true, true]);
+    expect(named("two_tets_41.msh")).toEqual([true, true]);
+    expect(named("two_tets_22_unnamed.msh")).toEqual([false, false]);
+    expect(named("two_tets_22_nophys.msh")).toEqual([false, false]);
+  });
 });
 
 describe("readMsh errors", () => {
