@@ -9,6 +9,12 @@ import { formatLength, formatPoint } from "../io/si.js";
 import type { LengthUnit } from "../io/units.js";
 import type { SurfaceMesh } from "../mesh/model.js";
 import { physicalSizeFault } from "../mesh/physical-size.js";
+import { triangleCount } from "../mesh/model.js";
+import { conductorTopology } from "../mesh/topology.js";
+import type { LoadedScene } from "../io/inputs.js";
+import { kernelPlanes, conductorRanges, checkSides, trianglesInSymmetryPlanes, type AxisPlane, type SymmetryPlane, type KernelSpec } from "../bem/images.js";
+import { prepareBodies } from "./dielectric-bodies.js";
+import { symmetryLayout, withoutTriangles } from "./symmetry-unfold.js";
 
 /** One finding between two conductors as a sentence, positions and lengths in `unit`. */
 export function pairSentence(p: PairCheck, unit: LengthUnit): string {
@@ -52,4 +58,76 @@ export function checkConductors(mesh: SurfaceMesh, unit: LengthUnit, source: str
     throw new InputError(`${pairSentence(errors[0], unit)}${errors.length > 1 ? ` (and ${errors.length - 1} more; run sigmesh check)` : ""}`, source);
   }
   return pairs.filter((p) => p.severity === "warning").map((p) => pairSentence(p, unit));
+}
+
+/** A dielectric body as `sigmesh check` reports it. */
+export interface DielectricCheck {
+  name: string;
+  permittivity: number;
+  triangles: number;
+  /** Every edge shared by exactly two of its triangles. */
+  closed: boolean;
+  /** Enclosed volume (m³) once oriented outward; null when the body would be refused. */
+  volume: number | null;
+  /** Why an extraction would refuse the body, or null. */
+  fault: string | null;
+}
+
+/** The ground plane and symmetry planes of a scene against its conductors, as `sigmesh check` reports them. */
+export interface SceneSurroundingsCheck {
+  groundPlane: AxisPlane | null;
+  symmetry: SymmetryPlane[];
+  /** Triangles lying in a symmetry plane (the cut face of a half model), dropped by a solve. */
+  inSymmetryPlane: number;
+  /** Why an extraction would refuse the conductors against the planes (crossing, touching), or null. */
+  fault: string | null;
+  dielectrics: DielectricCheck[];
+}
+
+/**
+ * What `extract` would refuse of a scene besides its conductors' contacts: dielectric bodies
+ * that are open, non-manifold or enclose nothing (`prepareBodies`), and conductors crossing the
+ * ground plane or a symmetry plane (the same `symmetryLayout` check kernel, cut-face removal and
+ * `checkSides` as the solve). Nothing is thrown for these faults: they are returned as sentences
+ * in `unit`.
+ */
+export function checkSceneSurroundings(scene: LoadedScene): SceneSurroundingsCheck {
+  const unit = scene.unit;
+  const dielectrics = scene.dielectrics.map((d): DielectricCheck => {
+    const n = triangleCount(d.mesh);
+    const single: SurfaceMesh = { positions: d.mesh.positions, triangles: d.mesh.triangles, conductor: new Uint32Array(n), names: [d.name] };
+    const topo = n > 0 ? conductorTopology(single)[0] : undefined;
+    let volume: number | null = null, fault: string | null = null;
+    fault = physicalSizeFault(d.mesh.positions, d.mesh.triangles, 1, () => `dielectric ${d.name} as placed`) ?? null;
+    if (fault === null) {
+      try { volume = prepareBodies([d], scene.permittivity)[0].volume; } catch (e) {
+        if (!(e instanceof InputError)) throw e;
+        fault = e.fault;
+      }
+    }
+    return { name: d.name, permittivity: d.permittivity, triangles: n, closed: topo !== undefined && topo.boundaryEdges === 0 && topo.nonManifoldEdges === 0, volume, fault };
+  });
+  const out: SceneSurroundingsCheck = { groundPlane: scene.groundPlane ?? null, symmetry: scene.symmetry, inSymmetryPlane: 0, fault: null, dielectrics };
+  let checkKernel: KernelSpec | undefined;
+  try {
+    checkKernel = symmetryLayout(scene.mesh.names, scene.symmetry, scene.groundPlane).checkKernel;
+    if (checkKernel) kernelPlanes(checkKernel);
+  } catch (e) {
+    // kernelPlanes throws a plain Error for a plane it cannot image; extract-mesh refuses it as input.
+    if (!(e instanceof Error)) throw e;
+    out.fault = e instanceof InputError ? e.fault : e.message;
+    return out;
+  }
+  if (!checkKernel) return out;
+  const mesh = scene.mesh;
+  const cut = trianglesInSymmetryPlanes(checkKernel, mesh.positions, mesh.triangles);
+  out.inSymmetryPlane = cut.count;
+  const kept = cut.count > 0 ? withoutTriangles(mesh, cut.flags) : mesh;
+  const ranges = conductorRanges(kept.positions, kept.triangles, kept.conductor, kept.names.length);
+  const sides = checkSides(checkKernel, ranges, mesh.names, (m) => formatLength(m, unit));
+  if (sides.fault) {
+    const both = scene.symmetry.some((p) => p.images === "both");
+    out.fault = both ? sides.fault.replace("odd symmetry plane", "symmetry plane with both images") : sides.fault;
+  }
+  return out;
 }
