@@ -10,7 +10,7 @@
  *   inputUnit       unit the files were read in ("mm", ...); unitAssumed: true when it was the default
  *   ok              true when no pair is an error and no conductor covers itself
  *   triangles, vertices        totals after welding and dropping degenerate triangles
- *   welded          vertices merged by welding; dropped: degenerate triangles removed on loading
+ *   welded          vertices merged by welding (null for a scene: not kept); dropped: degenerate triangles removed on loading
  *   warnings        [{ file, message }] from loading
  *   conductors      one entry per conductor:
  *     name, triangles, area (m²),
