@@ -104,4 +104,21 @@ describe("sigmesh check on a scene file", () => {
     expect(r.code).toBe(2);
     expect(r.err).toMatch(/built\.ply: cannot write mesh format "\.ply"; use \.stl or \.obj/);
   });
+
+  it("with a symmetry plane, judges a half dielectric body unfolded, as extract does, and refuses one reaching across", () => {
+    const half = (x: number, width: number) => JSON.stringify({
+      unit: "mm", symmetry: [{ x: 0 }],
+      conductors: [{ name: "pad", shape: { box: { size: [2, 2, 1], divisions: 2 } }, place: { translate: [1, 0, 2] } }],
+      dielectrics: [{ name: "slab", shape: { box: { size: [width, 4, 1], divisions: 2 } }, place: { translate: [x, 0, 4] }, permittivity: 4 }],
+    });
+    writeFileSync(join(dir, "half.json"), half(1, 2)); // x from 0 to 2: the half of a 4×4×1 box
+    writeFileSync(join(dir, "across.json"), half(0, 4)); // x from -2 to 2: the whole box, across the plane
+    const ok = run(["check", "half.json"]);
+    expect(ok.code).toBe(0);
+    expect(ok.out).toContain("symmetry plane: x = 0.000 mm, images even");
+    expect(ok.out).toContain("dielectric slab: εr 4.000, 48 triangles, closed, volume 16.00 mm³");
+    const bad = run(["check", "across.json", "--quiet"]);
+    expect(bad.code).toBe(2);
+    expect(bad.err).toMatch(/^sigmesh: FAILED: across\.json: dielectric slab reaches across the symmetry plane x = 0 m/);
+  });
 });
