@@ -25,6 +25,7 @@ export { parseProbeOption, type ProbeSpec } from "./io/probe-spec.js";
 export type { SurfaceMesh } from "./mesh/model.js";
 export { concatMeshes, conductorSubmesh, conductorAreas, boundingBox, triangleCount } from "./mesh/model.js";
 export { checkMesh, checkMeshParallel, type CheckReport } from "./mesh/check.js";
+export { checkConductors, checkSceneSurroundings, type SceneSurroundingsCheck, type DielectricCheck } from "./extract/scene-check.js";
 export { refineUniform } from "./mesh/refine.js";
 export { surfaceArea, signedVolume } from "./mesh/measure.js";
 export * from "./mesh/primitives/index.js";
@@ -46,7 +47,7 @@ export {
 export { writeOutputs, extractionFiles, checkOutputTargets, sceneReport, jsonText, type OutputTargets, type OutputFile, type WrittenOutputs } from "./report/outputs.js";
 export { extractionReport } from "./report/json.js";
 export { extractionSummary } from "./report/extract-summary.js";
-export { checkReport, type CheckReportJson } from "./report/check-report.js";
+export { checkReport, type CheckReportJson, type SceneCheckJson } from "./report/check-report.js";
 export { formatCheckSummary } from "./report/check-summary.js";
 export { sweepCsv, sweepSvg, sweepFiles, mergeSweepCsv } from "./report/sweep-table.js";
 export { planResume, runResumable, finishResumable, type ResumePlan } from "./extract/sweep-resume.js";

@@ -9,6 +9,12 @@ import { formatLength, formatPoint } from "../io/si.js";
 import type { LengthUnit } from "../io/units.js";
 import type { SurfaceMesh } from "../mesh/model.js";
 import { physicalSizeFault } from "../mesh/physical-size.js";
+import { triangleCount } from "../mesh/model.js";
+import { conductorTopology } from "../mesh/topology.js";
+import type { LoadedScene } from "../io/inputs.js";
+import { kernelPlanes, conductorRanges, checkSides, trianglesInSymmetryPlanes, type AxisPlane, type SymmetryPlane } from "../bem/images.js";
+import { prepareBodies } from "./dielectric-bodies.js";
+import { symmetryLayout, withoutTriangles, unfolding, type SymmetryLayout } from "./symmetry-unfold.js";
 
 /** One finding between two conductors as a sentence, positions and lengths in `unit`. */
 export function pairSentence(p: PairCheck, unit: LengthUnit): string {
@@ -52,4 +58,84 @@ export function checkConductors(mesh: SurfaceMesh, unit: LengthUnit, source: str
     throw new InputError(`${pairSentence(errors[0], unit)}${errors.length > 1 ? ` (and ${errors.length - 1} more; run sigmesh check)` : ""}`, source);
   }
   return pairs.filter((p) => p.severity === "warning").map((p) => pairSentence(p, unit));
+}
+
+/** A dielectric body as `sigmesh check` reports it. */
+export interface DielectricCheck {
+  name: string;
+  permittivity: number;
+  triangles: number;
+  /** Every edge shared by exactly two of its triangles (with symmetry planes: of the body unfolded across them, as a solve takes it). */
+  closed: boolean;
+  /** Enclosed volume (m³) once oriented outward (with symmetry planes: of the unfolded body); null when the body would be refused or the planes are. */
+  volume: number | null;
+  /** Why an extraction would refuse the body, or null. */
+  fault: string | null;
+}
+
+/** The ground plane and symmetry planes of a scene against its conductors, as `sigmesh check` reports them. */
+export interface SceneSurroundingsCheck {
+  groundPlane: AxisPlane | null;
+  symmetry: SymmetryPlane[];
+  /** Triangles lying in a symmetry plane (the cut face of a half model), dropped by a solve. */
+  inSymmetryPlane: number;
+  /** Why an extraction would refuse the conductors against the planes (crossing, touching), or null. */
+  fault: string | null;
+  dielectrics: DielectricCheck[];
+}
+
+/**
+ * What `extract` would refuse of a scene besides its conductors' contacts: dielectric bodies
+ * that are open, non-manifold or enclose nothing (`prepareBodies`), and conductors crossing the
+ * ground plane or a symmetry plane (the same `symmetryLayout` check kernel, cut-face removal and
+ * `checkSides` as the solve), and bodies reaching across a symmetry plane (`unfolding`, which a
+ * half body passes through before `prepareBodies`, as in the solve). Nothing is thrown for these faults: they are returned as sentences
+ * in `unit`.
+ */
+export function checkSceneSurroundings(scene: LoadedScene): SceneSurroundingsCheck {
+  const unit = scene.unit, mesh = scene.mesh;
+  const out: SceneSurroundingsCheck = { groundPlane: scene.groundPlane ?? null, symmetry: scene.symmetry, inSymmetryPlane: 0, fault: null, dielectrics: [] };
+  // The planes against the conductors, as extract-mesh.ts `surroundings` checks them.
+  let layout: SymmetryLayout | undefined, sides: Int8Array | undefined;
+  try {
+    layout = symmetryLayout(mesh.names, scene.symmetry, scene.groundPlane);
+    if (layout.checkKernel) kernelPlanes(layout.checkKernel);
+  } catch (e) {
+    // kernelPlanes throws a plain Error for a plane it cannot image; extract-mesh refuses it as input.
+    if (!(e instanceof Error)) throw e;
+    out.fault = e instanceof InputError ? e.fault : e.message;
+    layout = undefined;
+  }
+  const checkKernel = layout?.checkKernel;
+  if (checkKernel) {
+    const cut = trianglesInSymmetryPlanes(checkKernel, mesh.positions, mesh.triangles);
+    out.inSymmetryPlane = cut.count;
+    const kept = cut.count > 0 ? withoutTriangles(mesh, cut.flags) : mesh;
+    const ranges = conductorRanges(kept.positions, kept.triangles, kept.conductor, kept.names.length);
+    const checked = checkSides(checkKernel, ranges, mesh.names, (m) => formatLength(m, unit));
+    if (checked.fault) {
+      out.fault = layout!.both.length > 0 ? checked.fault.replace("odd symmetry plane", "symmetry plane with both images") : checked.fault;
+    } else sides = checked.sides;
+  }
+  // The bodies as extract-mesh.ts `dielectricBodies` prepares them: with symmetry planes, the
+  // half body meshed on the conductors' side unfolded into the whole one first.
+  const unfold = layout && layout.planes.length > 0 && checkKernel && sides ? unfolding(checkKernel, sides) : undefined;
+  const planesUnknown = out.fault !== null && scene.symmetry.length > 0;
+  out.dielectrics = scene.dielectrics.map((d): DielectricCheck => {
+    const n = triangleCount(d.mesh);
+    let whole = d.mesh, volume: number | null = null;
+    let fault: string | null = physicalSizeFault(d.mesh.positions, d.mesh.triangles, 1, () => `dielectric ${d.name} as placed`) ?? null;
+    try {
+      if (fault === null && unfold) whole = unfold.body(d.mesh, d.name);
+      // With the planes refused, a half body cannot be unfolded: it is reported, not judged.
+      if (fault === null && !planesUnknown) volume = prepareBodies([{ ...d, mesh: whole }], scene.permittivity)[0].volume;
+    } catch (e) {
+      if (!(e instanceof InputError)) throw e;
+      fault = e.fault;
+    }
+    const nw = triangleCount(whole);
+    const topo = nw > 0 ? conductorTopology({ positions: whole.positions, triangles: whole.triangles, conductor: new Uint32Array(nw), names: [d.name] })[0] : undefined;
+    return { name: d.name, permittivity: d.permittivity, triangles: n, closed: topo !== undefined && topo.boundaryEdges === 0 && topo.nonManifoldEdges === 0, volume, fault };
+  });
+  return out;
 }

@@ -10,7 +10,7 @@
  *   inputUnit       unit the files were read in ("mm", ...); unitAssumed: true when it was the default
  *   ok              true when no pair is an error and no conductor covers itself
  *   triangles, vertices        totals after welding and dropping degenerate triangles
- *   welded          vertices merged by welding; dropped: degenerate triangles removed on loading
+ *   welded          vertices merged by welding (null for a scene: not kept); dropped: degenerate triangles removed on loading
  *   warnings        [{ file, message }] from loading
  *   conductors      one entry per conductor:
  *     name, triangles, area (m²),
@@ -35,11 +35,29 @@
  *     a, b          conductor names (for inside: a lies inside b)
  *     distance      smallest distance found (m); position: where (m)
  *     panelSize     local panel size there (m), null for inside
+ *   scene           only when the input was a scene file:
+ *     file          the scene file, as given
+ *     dielectrics   one entry per dielectric body: name, permittivity (relative), triangles,
+ *                   closed (every edge shared by exactly two triangles), volume (m³, null when
+ *                   refused), fault (why extract would refuse the body, or null)
+ *     planes        { groundPlane: { axis, offset (m) } | null,
+ *                     symmetry: [{ axis, offset (m), images "even" | "odd" | "both", mirrored? }],
+ *                     inSymmetryPlane (triangles in a symmetry plane, dropped by a solve),
+ *                     fault (a conductor crossing or touching a plane where that is refused, or null) }
+ *                   ok is false when any fault is set
  */
 import type { LoadedMesh } from "../io/load.js";
 import type { LengthUnit } from "../io/units.js";
 import type { CheckReport } from "../mesh/check.js";
 import { version } from "../version.js";
+import type { SceneSurroundingsCheck, DielectricCheck } from "../extract/scene-check.js";
+
+/** The `scene` object of the check report (field list above). */
+export interface SceneCheckJson {
+  file: string;
+  dielectrics: DielectricCheck[];
+  planes: { groundPlane: SceneSurroundingsCheck["groundPlane"]; symmetry: SceneSurroundingsCheck["symmetry"]; inSymmetryPlane: number; fault: string | null };
+}
 
 /** The check report as written to JSON (SI units; field list above). */
 export interface CheckReportJson {
@@ -57,15 +75,26 @@ export interface CheckReportJson {
   warnings: LoadedMesh["warnings"];
   conductors: CheckReport["conductors"];
   pairs: CheckReport["pairs"];
+  scene?: SceneCheckJson;
 }
 
 /** The JSON report of `report`, the check of the mesh `loaded` read in `unit`. */
-export function checkReport(loaded: LoadedMesh, report: CheckReport, unit: LengthUnit, unitAssumed: boolean): CheckReportJson {
-  return {
+export function checkReport(loaded: LoadedMesh, report: CheckReport, unit: LengthUnit, unitAssumed: boolean,
+  scene?: { file: string; check: SceneSurroundingsCheck }): CheckReportJson {
+  const out: CheckReportJson = {
     tool: "sigmesh", command: "check", version: version(),
     files: loaded.files, inputUnit: unit, unitAssumed,
     ok: !report.failed, triangles: report.triangles, vertices: report.vertices,
     welded: loaded.welded, dropped: loaded.dropped, warnings: loaded.warnings,
     conductors: report.conductors, pairs: report.pairs,
   };
+  if (scene) {
+    const s = scene.check;
+    out.scene = {
+      file: scene.file, dielectrics: s.dielectrics,
+      planes: { groundPlane: s.groundPlane, symmetry: s.symmetry, inSymmetryPlane: s.inSymmetryPlane, fault: s.fault },
+    };
+    if (s.fault !== null || s.dielectrics.some((d) => d.fault !== null)) out.ok = false;
+  }
+  return out;
 }

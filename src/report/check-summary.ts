@@ -9,6 +9,7 @@ import { THIN_ASPECT } from "../mesh/check.js";
 import { formatNumber, formatLength, formatPoint, lengthValue, unitLabel } from "../io/si.js";
 import { pairSentence, selfOverlapSentence } from "../extract/scene-check.js";
 import { displayText } from "../io/display-text.js";
+import type { SceneSurroundingsCheck } from "../extract/scene-check.js";
 
 export { pairSentence };
 
@@ -17,6 +18,8 @@ export interface CheckSummaryOptions {
   /** True when the unit is the default rather than chosen by the user. */
   unitAssumed: boolean;
   files?: string[];
+  /** A scene's dielectric bodies and planes (`checkSceneSurroundings`), reported before the verdict. */
+  scene?: { file: string; check: SceneSurroundingsCheck };
 }
 
 /**
@@ -66,7 +69,7 @@ export function formatCheckSummary(report: CheckReport, opts: CheckSummaryOption
   const out: string[] = [];
   const files = opts.files && opts.files.length > 0 ? ` from ${opts.files.join(", ")}` : "";
   out.push(`mesh check: ${report.conductors.length} conductor${report.conductors.length === 1 ? "" : "s"}, ${report.triangles} triangles, ${report.vertices} vertices${files}`);
-  out.push(`unit: ${ul} (${opts.unitAssumed ? "assumed; set with --unit" : "given with --unit"})`);
+  out.push(`unit: ${ul} (${opts.scene && opts.unitAssumed ? "the scene's; --unit overrides it" : opts.unitAssumed ? "assumed; set with --unit" : "given with --unit"})`);
   out.push("");
   const header = ["conductor", "triangles", `area (${ul}²)`, `bbox x (${ul})`, `y (${ul})`, `z (${ul})`, "closed", "boundary", "non-manifold", "orientation", `edge (${ul})`, "worst aspect"];
   const rows = report.conductors.map((c) => {
@@ -98,6 +101,35 @@ export function formatCheckSummary(report: CheckReport, opts: CheckSummaryOption
   const covering = report.conductors.filter((c) => c.selfOverlap !== null);
   for (const c of covering) out.push(`FAILED: ${selfOverlapSentence(c.name, c.selfOverlap!, u)}`);
   for (const e of errors) out.push(`FAILED: ${pairSentence(e, u)}`);
-  if (errors.length === 0 && covering.length === 0) out.push(`OK: mesh can be solved${warnings.length + notes.length > 0 ? " (see notes and warnings above)" : ""}`);
+  const sceneFaults = opts.scene ? sceneLines(opts.scene.file, opts.scene.check, u, out) : 0;
+  if (errors.length === 0 && covering.length === 0 && sceneFaults === 0) out.push(`OK: ${opts.scene ? "scene" : "mesh"} can be solved${warnings.length + notes.length > 0 ? " (see notes and warnings above)" : ""}`);
   return out.map(displayText).join("\n") + "\n";
+}
+
+/** An axis plane as `z = 0 mm`. */
+function planeText(p: { axis: string; offset: number }, unit: LengthUnit): string {
+  return `${p.axis} = ${formatLength(p.offset, unit)}`;
+}
+
+/**
+ * The scene's surroundings: one line per dielectric body, the ground plane and each symmetry
+ * plane, then a FAILED line per refusal; pushed onto `out`. Returns the number of refusals.
+ */
+function sceneLines(file: string, s: SceneSurroundingsCheck, u: LengthUnit, out: string[]): number {
+  let faults = 0;
+  out.push("", `scene ${file}:`);
+  if (s.dielectrics.length === 0) out.push("dielectric: none");
+  for (const d of s.dielectrics) {
+    const volume = d.volume === null ? "no volume" : `volume ${formatNumber(d.volume / metresPer(u) ** 3)} ${unitLabel(u)}³`;
+    out.push(`dielectric ${d.name}: εr ${formatNumber(d.permittivity)}, ${d.triangles} triangles, ${d.closed ? "closed" : "not closed"}, ${volume}`);
+  }
+  out.push(`ground plane: ${s.groundPlane ? planeText(s.groundPlane, u) : "none"}`);
+  if (s.symmetry.length === 0) out.push("symmetry plane: none");
+  for (const p of s.symmetry) {
+    out.push(`symmetry plane: ${planeText(p, u)}, images ${p.images}${p.mirrored ? ` (mirrored conductors ${p.mirrored})` : ""}`);
+  }
+  if (s.inSymmetryPlane > 0) out.push(`note: ${s.inSymmetryPlane} triangle(s) lie in a symmetry plane and are dropped by a solve (the cut face of a half model)`);
+  for (const d of s.dielectrics) if (d.fault !== null) { out.push(`FAILED: ${file}: ${d.fault}`); faults++; }
+  if (s.fault !== null) { out.push(`FAILED: ${file}: ${s.fault}`); faults++; }
+  return faults;
 }
