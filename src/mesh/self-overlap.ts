@@ -14,6 +14,7 @@
 import { type SurfaceMesh, triangleCount } from "./model.js";
 import { buildBoxTree, forEachOverlappingPair } from "./bvh.js";
 import { loadTrianglePair, longestEdgeSquared } from "./triangle-distance.js";
+import { triangleCentroid, triangleNormal } from "../geometry/triangle.js";
 
 export interface SelfOverlap {
   /** Conductor index, into `mesh.names`. */
@@ -162,26 +163,22 @@ function planes(p: Float64Array, tr: Uint32Array, items: Uint32Array): Float64Ar
   for (let i = 0; i < items.length; i++) {
     const t = items[i];
     const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], c = 3 * tr[3 * t + 2];
+    const o = 8 * i;
+    triangleNormal(out, o, p, a, b, c);
+    triangleCentroid(out, o + 4, p, a, b, c);
+    out[o + 3] = out[o] * out[o + 4] + out[o + 1] * out[o + 5] + out[o + 2] * out[o + 6];
     const ux = p[b] - p[a], uy = p[b + 1] - p[a + 1], uz = p[b + 2] - p[a + 2];
     const vx = p[c] - p[a], vy = p[c + 1] - p[a + 1], vz = p[c + 2] - p[a + 2];
-    // The normal of geometry/triangle.ts triangleNormal, inlined.
-    let nx = uy * vz - uz * vy, ny = uz * vx - ux * vz, nz = ux * vy - uy * vx;
-    const l = Math.hypot(nx, ny, nz);
-    if (l > 0) { nx /= l; ny /= l; nz /= l; } else { nx = ny = nz = 0; }
-    const cx = (p[a] + p[b] + p[c]) / 3, cy = (p[a + 1] + p[b + 1] + p[c + 1]) / 3, cz = (p[a + 2] + p[b + 2] + p[c + 2]) / 3;
     const wx = p[c] - p[b], wy = p[c + 1] - p[b + 1], wz = p[c + 2] - p[b + 2];
     const h2 = Math.max(ux * ux + uy * uy + uz * uz, vx * vx + vy * vy + vz * vz, wx * wx + wy * wy + wz * wz);
-    const o = 8 * i;
-    out[o] = nx; out[o + 1] = ny; out[o + 2] = nz; out[o + 3] = nx * cx + ny * cy + nz * cz;
-    out[o + 4] = cx; out[o + 5] = cy; out[o + 6] = cz; out[o + 7] = OVERLAP_TOLERANCE * Math.sqrt(h2);
+    out[o + 7] = OVERLAP_TOLERANCE * Math.sqrt(h2);
   }
   return out;
 }
 
 function centroid(mesh: SurfaceMesh, t: number): [number, number, number] {
-  const p = mesh.positions, tr = mesh.triangles;
-  const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], c = 3 * tr[3 * t + 2];
-  return [(p[a] + p[b] + p[c]) / 3, (p[a + 1] + p[b + 1] + p[c + 1]) / 3, (p[a + 2] + p[b + 2] + p[c + 2]) / 3];
+  const tr = mesh.triangles, c = triangleCentroid(new Float64Array(3), 0, mesh.positions, 3 * tr[3 * t], 3 * tr[3 * t + 1], 3 * tr[3 * t + 2]);
+  return [c[0], c[1], c[2]];
 }
 
 // Corners of the pair under test: A at 0..8, B at 9..17; their 2D projections in Q (A 0..5, B 6..11).
