@@ -7,11 +7,8 @@ import { type LengthUnit, metresPer } from "../io/units.js";
 import type { CheckReport, ConductorCheck, PairCheck } from "../mesh/check.js";
 import { THIN_ASPECT } from "../mesh/check.js";
 import { formatNumber, formatLength, formatPoint, lengthValue, unitLabel } from "../io/si.js";
-import { pairSentence, selfOverlapSentence } from "../extract/scene-check.js";
+import { pairSentence, selfOverlapSentence, type SceneSurroundingsCheck } from "../extract/scene-check.js";
 import { displayText } from "../io/display-text.js";
-import type { SceneSurroundingsCheck } from "../extract/scene-check.js";
-
-export { pairSentence };
 
 export interface CheckSummaryOptions {
   unit: LengthUnit;

@@ -20,7 +20,7 @@ import { fieldAlongLineSvg, convergencePlotSvg } from "./svg-plot.js";
 import { unitLabel } from "../io/si.js";
 import { jsonDisplaySafe } from "../io/display-text.js";
 import { htmlReport } from "./html.js";
-import { viewerData, viewerDataJson } from "./viewer-data.js";
+import { viewerData, viewerDataJson, packViewerData } from "./viewer-data.js";
 import { extractionReport } from "./json.js";
 
 /** One file of the set; `option` is the option that named it, for messages. */
@@ -102,7 +102,9 @@ function safeStem(name: string): string {
 /** Every file of the set, in memory (paths as given; `-` for the caller). */
 export function extractionFiles(result: SceneExtraction, req: OutputTargets): OutputFile[] {
   const unit = result.input.unit, title = result.input.source;
-  const report = sceneReport(result, { panels: req.jsonPanels });
+  const report = sceneReport(result);
+  // The panel data is computed once, for the HTML and for the JSON report's `viewer` field.
+  const viewer = req.html || req.jsonPanels ? viewerData(result) : undefined;
   const files: OutputFile[] = [];
   const plots: Array<{ title: string; svg: string }> = [];
   if (req.spice) {
@@ -147,7 +149,7 @@ export function extractionFiles(result: SceneExtraction, req: OutputTargets): Ou
     if (req.convergenceSvg) files.push({ path: req.convergenceSvg, option: "--convergence-svg", data: svg });
     plots.push({ title: `Convergence of C(${result.names[0]}) under refinement`, svg });
   }
-  if (req.html) files.push({ path: req.html, option: "--html", data: htmlReport(report, viewerData(result), undefined, plots) });
-  if (req.json !== undefined) files.push({ path: req.json, option: "--json", data: jsonText(report) });
+  if (req.html) files.push({ path: req.html, option: "--html", data: htmlReport(report, viewer!, undefined, plots) });
+  if (req.json !== undefined) files.push({ path: req.json, option: "--json", data: jsonText(req.jsonPanels ? { ...report, viewer: packViewerData(viewer!) } : report) });
   return files;
 }
