@@ -14,6 +14,7 @@ import { createHash } from "node:crypto";
 import { fileURLToPath } from "node:url";
 import type { ExtractionResult } from "../extract/result.js";
 import { writeFileAtomic } from "../io/atomic.js";
+import { nonFiniteAsNull } from "./json.js";
 import { packViewerData, viewerData, VIEWER_FORMAT, type ViewerData, type ViewerDataOptions } from "./viewer-data.js";
 
 export interface ViewerBundle {
@@ -44,7 +45,7 @@ export function viewerBundle(): ViewerBundle {
 
 /** JSON that can sit inside a <script> element whatever strings it holds. */
 export function scriptSafeJson(value: unknown): string {
-  const text = JSON.stringify(value, (_k, v) => (typeof v === "number" && !Number.isFinite(v) ? null : v));
+  const text = JSON.stringify(value, nonFiniteAsNull);
   return text.replace(/[<>&\u2028\u2029]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, "0")}`);
 }
 

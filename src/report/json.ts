@@ -18,6 +18,11 @@ export interface ReportContext {
 
 export const REPORT_FORMAT = "sigmesh-extraction/1";
 
+/** JSON.stringify replacer: NaN and ±Infinity, which JSON cannot hold, as null. */
+export function nonFiniteAsNull(_key: string, v: unknown): unknown {
+  return typeof v === "number" && !Number.isFinite(v) ? null : v;
+}
+
 function finiteOrNull(x: number): number | null {
   return Number.isFinite(x) ? x : null;
 }

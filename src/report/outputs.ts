@@ -21,7 +21,7 @@ import { unitLabel } from "../io/si.js";
 import { jsonDisplaySafe } from "../io/display-text.js";
 import { htmlReport } from "./html.js";
 import { viewerData, viewerDataJson, packViewerData } from "./viewer-data.js";
-import { extractionReport } from "./json.js";
+import { extractionReport, nonFiniteAsNull } from "./json.js";
 
 /** One file of the set; `option` is the option that named it, for messages. */
 export type OutputFile = OutputData;
@@ -78,7 +78,7 @@ export function sceneReport(result: SceneExtraction, opts: { panels?: boolean } 
  * format characters in strings as `\u` escapes: the same names when read, safe to show.
  */
 export function jsonText(value: unknown): string {
-  return jsonDisplaySafe(JSON.stringify(value, (_k, v) => (typeof v === "number" && !Number.isFinite(v) ? null : v), 2)) + "\n";
+  return jsonDisplaySafe(JSON.stringify(value, nonFiniteAsNull, 2)) + "\n";
 }
 
 /** What `writeOutputs` did: the files written, and the text of the output sent to `-`, if any. */
@@ -116,7 +116,7 @@ export function extractionFiles(result: SceneExtraction, req: OutputTargets): Ou
     }) });
   }
   if (req.csv || req.markdown) {
-    const data = reportData(JSON.parse(JSON.stringify(report, (_k, v) => (typeof v === "number" && !Number.isFinite(v) ? null : v))));
+    const data = reportData(JSON.parse(JSON.stringify(report, nonFiniteAsNull)));
     if (req.csv) files.push({ path: req.csv, option: "--csv", data: csvReport(data) });
     if (req.markdown) files.push({ path: req.markdown, option: "--markdown", data: markdownReport(data, { title }) });
   }
