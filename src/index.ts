@@ -17,7 +17,9 @@ export { loadMeshFile, loadMeshFiles, parseMeshBytes, type LoadOptions, type Loa
 export { encodeMesh, writeMeshFile, outputFormatFromPath, type OutputFormat } from "./io/write.js";
 export { InputError, type Warning } from "./errors.js";
 export { parseUnit, metresPer, DEFAULT_UNIT, type LengthUnit } from "./io/units.js";
-export { formatSI } from "./io/si.js";
+export { formatSI, formatArea, formatLength, formatPoint, unitLabel } from "./io/si.js";
+export { readInputBytes, readInputText } from "./io/input-file.js";
+export { writeFileAtomic, writeFilesAtomic, checkOutputPaths, fileFault, outputOfHidden } from "./io/atomic.js";
 export { displayText } from "./io/display-text.js";
 export { parseProbeOption, type ProbeSpec } from "./io/probe-spec.js";
 
@@ -25,7 +27,7 @@ export { parseProbeOption, type ProbeSpec } from "./io/probe-spec.js";
 export type { SurfaceMesh } from "./mesh/model.js";
 export { concatMeshes, conductorSubmesh, conductorAreas, boundingBox, triangleCount } from "./mesh/model.js";
 export { checkMesh, checkMeshParallel, type CheckReport } from "./mesh/check.js";
-export { checkConductors, checkSceneSurroundings, type SceneSurroundingsCheck, type DielectricCheck } from "./extract/scene-check.js";
+export { checkConductors, checkSceneSurroundings, pairSentence, selfOverlapSentence, type SceneSurroundingsCheck, type DielectricCheck } from "./extract/scene-check.js";
 export { refineUniform } from "./mesh/refine.js";
 export { surfaceArea, signedVolume } from "./mesh/measure.js";
 export * from "./mesh/primitives/index.js";
