@@ -17,6 +17,36 @@ export interface SurfaceMesh {
   conductor: Uint32Array;
   /** Conductor names, unique. */
   names: string[];
+  /**
+   * The true surface each triangle lies on, when the input knows it (a CAD face, a generated
+   * shape's face): `faces[t]` is triangle t's face number in `reference`. Operations that keep
+   * triangles keep these; refinement places its new points on the reference surface.
+   */
+  faces?: Uint32Array;
+  /** The true surface the triangles approximate (see `ReferenceSurface`); present with `faces`. */
+  reference?: ReferenceSurface;
+}
+
+/**
+ * A true surface given as data, so it moves with placements and joins with other meshes:
+ * a fine triangulation of every face with the exact unit normal at each of its vertices (a CAD
+ * kernel's evaluation, or a generated shape's formula). A point projected onto a reference
+ * triangle and then lifted by the normals (Curved PN Triangles) lies on the true face to
+ * O(h^4) in the reference's edge length h. Faces are numbered from 0 within one reference;
+ * two reference triangles of different faces that share an edge run along the curve where
+ * those faces meet (a CAD edge), which is where new points of mesh edges between them go.
+ */
+export interface ReferenceSurface {
+  /** Vertex coordinates of the fine triangulation, metres, 3 per vertex. */
+  positions: Float64Array;
+  /** Exact outward unit normal at each vertex of its face, 3 per vertex (a vertex on an edge between faces appears once per face). */
+  normals: Float64Array;
+  /** Vertex indices, 3 per reference triangle. */
+  triangles: Uint32Array;
+  /** Face number of each reference triangle. */
+  face: Uint32Array;
+  /** Number of faces (one more than the largest face number). */
+  faceCount: number;
 }
 
 export function vertexCount(mesh: SurfaceMesh): number {
