@@ -1,5 +1,6 @@
 import { describe, it, expect } from "vitest";
-import { refineUniform, meshEdges } from "../../src/mesh/refine.js";
+import { refineUniform } from "../../src/mesh/refine.js";
+import { meshEdges } from "../../src/mesh/edges.js";
 import { sphereMesh, boxMesh, plateMesh, diskMesh, cylinderMesh } from "../../src/mesh/primitives/index.js";
 import { surfaceArea, signedVolume } from "../../src/mesh/measure.js";
 import { concatMeshes, type SurfaceMesh } from "../../src/mesh/model.js";
