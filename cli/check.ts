@@ -56,7 +56,7 @@ export function registerCheck(program: Command): void {
     .option("--weld-tolerance <relative>", "weld vertices closer than this fraction of the bounding-box diagonal (default 1e-6)")
     .option("--json <path>", "write the report as JSON to a file, or - for standard output")
     .option("--write-mesh <file>", "write the meshes checked (.stl as ASCII with one named solid per body, or .obj; in the input unit): conductors by name, a scene's dielectric bodies as dielectric:NAME")
-    .option("--quiet", "print nothing but errors")
+    .option("--quiet", "print only the failures, one line each (no summary, no warnings)")
     .action(action(async (files: string[], opts: CheckCliOptions, cmd: Command) => {
       const unit = parseUnit(opts.unit, "--unit");
       const unitAssumed = cmd.getOptionValueSource("unit") === "default";

@@ -56,6 +56,13 @@ export function buildProgram(): Command {
   return program;
 }
 
-buildProgram()
+// No command at all is a usage error like any other: one line pointing at the help (commander
+// would print the whole help to stderr).
+const program = buildProgram();
+if (process.argv.slice(2).every((a) => a === "--debug")) {
+  process.stderr.write(`sigmesh: error: no command given: one of ${program.commands.map((c) => c.name()).join(", ")} (see sigmesh --help)\n`);
+  process.exit(2);
+}
+program
   .parseAsync(process.argv)
   .catch((err) => { process.exitCode = reportFailure(err); });

@@ -76,10 +76,13 @@ describe("usage errors", () => {
     expect(r.err).toMatch(re);
     expect(r.out).toBe("");
   });
-  it("no command at all is a usage error (help on stderr, exit 2); help and version asked for exit 0", () => {
-    const bare = run([]);
-    expect(bare.code).toBe(2);
-    expect(bare.err).toMatch(/Usage: sigmesh/);
+  it("no command at all is a usage error (one line naming the commands, exit 2); help and version asked for exit 0", () => {
+    for (const args of [[], ["--debug"]]) {
+      const bare = run(args);
+      expect(bare.code).toBe(2);
+      expect(bare.err).toMatch(/^sigmesh: error: no command given: one of check, mesh, extract, demo, view, sweep \(see sigmesh --help\)\n$/);
+      expect(bare.out).toBe("");
+    }
     expect(run(["help"]).code).toBe(0);
     expect(run(["help", "extract"]).code).toBe(0);
     const v = run(["--version"]);
