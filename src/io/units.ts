@@ -20,8 +20,8 @@ export const METRES_PER_UNIT: Readonly<Record<LengthUnit, number>> = {
   mil: 25.4e-6,
 };
 
-/** Spellings accepted for each unit, compared after trimming and lower-casing. */
-const SPELLINGS: Readonly<Record<LengthUnit, readonly string[]>> = {
+/** Spellings accepted for each unit, compared after trimming and lower-casing (the scene schema's `unit` lists them). */
+export const UNIT_SPELLINGS: Readonly<Record<LengthUnit, readonly string[]>> = {
   m: ["m", "meter", "meters", "metre", "metres"],
   cm: ["cm", "centimeter", "centimeters", "centimetre", "centimetres"],
   mm: ["mm", "millimeter", "millimeters", "millimetre", "millimetres"],
@@ -32,7 +32,7 @@ const SPELLINGS: Readonly<Record<LengthUnit, readonly string[]>> = {
 };
 
 const ALIASES = new Map<string, LengthUnit>();
-for (const [u, names] of Object.entries(SPELLINGS) as Array<[LengthUnit, readonly string[]]>) for (const n of names) ALIASES.set(n, u);
+for (const [u, names] of Object.entries(UNIT_SPELLINGS) as Array<[LengthUnit, readonly string[]]>) for (const n of names) ALIASES.set(n, u);
 
 /** The accepted set, for messages: "m, cm, mm, um (µm, micron), in (inch), mil (thou)". */
 export const UNIT_CHOICES = "m, cm, mm, um (µm, micron), in (inch), mil (thou); full names such as millimetre(s) or millimeter(s) also";

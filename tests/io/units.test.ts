@@ -1,5 +1,6 @@
 import { describe, it, expect } from "vitest";
-import { parseUnit, metresPer } from "../../src/io/units.js";
+import { readFileSync } from "node:fs";
+import { parseUnit, metresPer, UNIT_SPELLINGS } from "../../src/io/units.js";
 import { parseScene } from "../../src/io/scene.js";
 import { InputError } from "../../src/errors.js";
 
@@ -37,5 +38,16 @@ describe("scene unit", () => {
     try { parseScene(scene("parsec"), "s.json"); } catch (x) { e = x; }
     expect(e).toBeInstanceOf(InputError);
     expect((e as InputError).message).toMatch(/s\.json.*unit.*unknown length unit "parsec" \(use m, cm, mm/);
+  });
+});
+
+describe("the scene schema's units", () => {
+  it("lists exactly the spellings the reader accepts, and each one parses", () => {
+    const schema = JSON.parse(readFileSync(new URL("../../schema/scene.schema.json", import.meta.url), "utf8"));
+    const listed: string[] = schema.properties.unit.enum;
+    const accepted = Object.values(UNIT_SPELLINGS).flat();
+    expect([...listed].sort()).toEqual([...accepted].sort());
+    for (const name of listed) expect(() => parseUnit(name)).not.toThrow();
+    expect(listed).toContain("millimetre");
   });
 });
