@@ -156,11 +156,15 @@ function orientedConductors(input: SurfaceMesh, checkKernel: KernelSpec | undefi
 
   const oriented = orientSurfaces(input);
   let flippedComponents = 0, unorientable = 0;
+  const flippedIn = new Map<number, number>();
   for (const c of oriented.components) {
-    if (c.status === "inward-flipped" || c.status === "repaired") flippedComponents++;
+    if (c.status === "inward-flipped" || c.status === "repaired") { flippedComponents++; flippedIn.set(c.conductor, (flippedIn.get(c.conductor) ?? 0) + 1); }
     if (c.status === "non-orientable" || c.status === "non-manifold") unorientable++;
   }
-  if (flippedComponents > 0) warnings.push(`${flippedComponents} surface component(s) were wound inward or inconsistently and have been reoriented`);
+  if (flippedComponents > 0) {
+    const which = [...flippedIn].map(([c, n]) => (n > 1 ? `${input.names[c]} (${n} pieces)` : input.names[c]));
+    warnings.push(`the surface of ${which.length === 1 ? "conductor" : "conductors"} ${which.join(", ")} was wound inward or inconsistently and has been reoriented`);
+  }
   let mesh = oriented.mesh;
   const table = buildEdgeTable(mesh);
   const topo = conductorTopology(mesh, table);

@@ -308,7 +308,8 @@ export function orientSurfaces(mesh: SurfaceMesh, table: EdgeTable = buildEdgeTa
     c.flippedTriangles = flipped;
     if (c.status === "outward" && flipped > 0) c.status = flipped === c.triangles ? "inward-flipped" : "repaired";
   }
-  return { mesh: { positions: mesh.positions, triangles, conductor: mesh.conductor, names: mesh.names }, components, componentOf };
+  // Everything but the windings is shared with the input, the true faces and reference surface too.
+  return { mesh: { ...mesh, triangles }, components, componentOf };
 }
 
 /**

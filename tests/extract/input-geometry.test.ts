@@ -102,3 +102,19 @@ describe("loading refuses a model outside the physical range of sizes, naming th
     expect(loadScene(edge, { unit: "um" }).mesh.triangles.length).toBe(3);
   });
 });
+
+describe("reoriented surfaces", () => {
+  it("the warning names the conductor whose surface was wound inward", async () => {
+    const inward = (name: string, x: number): SurfaceMesh => {
+      const m = sphereMesh({ radius: 1e-3, level: 1, center: [x, 0, 0], name });
+      const tri = m.triangles.slice();
+      for (let t = 0; t < tri.length; t += 3) { const b = tri[t + 1]; tri[t + 1] = tri[t + 2]; tri[t + 2] = b; }
+      return { ...m, triangles: tri };
+    };
+    const good = sphereMesh({ radius: 1e-3, level: 1, center: [0, 0, 0], name: "good" });
+    const scene = loadScene([stl("good.stl", good), stl("inside-out.stl", inward("x", 4e-3))], { unit: "mm" });
+    const r = await extract(scene);
+    const w = r.warnings.filter((s) => s.includes("reoriented"));
+    expect(w).toEqual(["the surface of conductor inside-out was wound inward or inconsistently and has been reoriented"]);
+  });
+});
