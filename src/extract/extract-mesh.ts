@@ -39,7 +39,7 @@ import { richardson } from "./accuracy.js";
 import { peakResidentBytes } from "./memory.js";
 import { eliminateFloating, withFloatingPotentials } from "./floating.js";
 import { prepareBodies, type PreparedBody } from "./dielectric-bodies.js";
-import { resolveOptions, type MeshExtractOptions, type ResolvedOptions } from "./options.js";
+import { resolveOptions, lengthDescriber, type MeshExtractOptions, type ResolvedOptions } from "./options.js";
 import type { Accuracy, ConductorResult, ExtractionResult, LevelResult } from "./result.js";
 import { symmetryLayout, unfoldedFinest, withoutTriangles, closeBySymmetry, unfolding, type SymmetryLayout, type BodyUnfolding } from "./symmetry-unfold.js";
 import { solveLevels, type LevelSolves } from "./levels.js";
@@ -68,12 +68,13 @@ export async function extractMesh(input: SurfaceMesh, opts: MeshExtractOptions =
   const t0 = performance.now();
   const k = input.names.length;
   if (k === 0 || triangleCount(input) === 0) throw new InputError("nothing to extract: no conductor with triangles");
-  const layout = symmetryLayout(input.names, opts.symmetry ?? [], opts.groundPlane);
+  const describe = lengthDescriber(opts.lengthUnit);
+  const layout = symmetryLayout(input.names, opts.symmetry ?? [], opts.groundPlane, describe);
   const o = resolveOptions(opts, k, layout.nets, layout.copySign);
   const K = k * layout.nets;
   const warnings: string[] = [];
 
-  const cut = surroundings(input, layout, warnings);
+  const cut = surroundings(input, layout, warnings, describe);
   const { bodies, unfold } = dielectricBodies(o, layout, cut.sides, warnings);
   const oriented = orientedConductors(cut.mesh, layout.checkKernel, warnings);
 
@@ -103,7 +104,7 @@ interface Surroundings {
  * dropped (they are no conductor surface), every conductor on one side of each plane and off the
  * odd planes (checked as if every both-plane were odd: its odd solve needs that).
  */
-function surroundings(input: SurfaceMesh, layout: SymmetryLayout, warnings: string[]): Surroundings {
+function surroundings(input: SurfaceMesh, layout: SymmetryLayout, warnings: string[], describe: (metres: number) => string): Surroundings {
   const { checkKernel } = layout;
   if (!checkKernel) return { mesh: input, removedInSymmetryPlane: 0 };
   try { kernelPlanes(checkKernel); } catch (e) { throw new InputError((e as Error).message); }
@@ -115,7 +116,7 @@ function surroundings(input: SurfaceMesh, layout: SymmetryLayout, warnings: stri
     warnings.push(`${cut.count} triangle(s) lying in a symmetry plane were removed (the cut face of a half model is not a conductor surface)`);
   }
   const ranges = conductorRanges(mesh.positions, mesh.triangles, mesh.conductor, mesh.names.length);
-  const sides = checkSides(checkKernel, ranges, mesh.names);
+  const sides = checkSides(checkKernel, ranges, mesh.names, describe);
   if (sides.fault) throw new InputError(layout.both.length > 0 ? sides.fault.replace("odd symmetry plane", "symmetry plane with both images") : sides.fault);
   return { mesh, removedInSymmetryPlane, sides: sides.sides };
 }
@@ -127,7 +128,7 @@ function surroundings(input: SurfaceMesh, layout: SymmetryLayout, warnings: stri
 function dielectricBodies(o: ResolvedOptions, layout: SymmetryLayout, sides: Int8Array | undefined, warnings: string[]):
   { bodies?: PreparedBody[]; unfold?: BodyUnfolding } {
   if (o.dielectrics.length === 0) return {};
-  const unfold = layout.planes.length > 0 && layout.checkKernel ? unfolding(layout.checkKernel, sides!) : undefined;
+  const unfold = layout.planes.length > 0 && layout.checkKernel ? unfolding(layout.checkKernel, sides!, o.describeLength) : undefined;
   const given = unfold ? o.dielectrics.map((b, i) => ({ ...b, mesh: unfold.body(b.mesh, typeof b.name === "string" && b.name !== "" ? b.name : `dielectric ${i + 1}`) })) : o.dielectrics;
   const bodies = prepareBodies(given, o.relativePermittivity);
   const flipped = bodies.filter((b) => b.flipped).map((b) => b.name);

@@ -114,6 +114,7 @@ export async function extract(scene: LoadedScene, settings: ExtractSettings = {}
     memoryLimit: settings.memoryLimit,
     pool: settings.pool,
     interfaceTesting: settings.interfaceTesting,
+    lengthUnit: scene.unit,
     progress: (phase, fraction, level, levels) => {
       signal?.throwIfAborted();
       settings.progress?.(phase, fraction, level, levels);

@@ -11,6 +11,8 @@ import { InputError } from "../errors.js";
 import { EPSILON_0, AIR_BREAKDOWN_FIELD } from "./constants.js";
 import type { SolverChoice } from "./solve.js";
 import type { DielectricBody } from "./dielectric-bodies.js";
+import type { LengthUnit } from "../io/units.js";
+import { formatLength } from "../io/si.js";
 
 export interface MeshExtractOptions {
   /** Relative permittivity of the uniform medium (default 1). */
@@ -49,6 +51,8 @@ export interface MeshExtractOptions {
   dielectrics?: Array<DielectricBody & { breakdownField?: number }>;
   /** Testing of the interface rows (default galerkin: measured more accurate, bem/interface.ts). */
   interfaceTesting?: InterfaceTesting;
+  /** The unit in which faults and warnings state lengths (the input's; default metres). */
+  lengthUnit?: LengthUnit;
 }
 
 /** The options checked, with their defaults filled in, over the K = k·nets nets of the unfolded model. */
@@ -76,6 +80,8 @@ export interface ResolvedOptions {
   testing: InterfaceTesting;
   /** Breakdown strength per dielectric body; V/m. */
   strengths: Float64Array;
+  /** Lengths in messages, in the input's unit. */
+  describeLength: (metres: number) => string;
 }
 
 /**
@@ -116,8 +122,13 @@ export function resolveOptions(opts: MeshExtractOptions, k: number, nets: number
   return {
     floating, potentials, relativePermittivity: er, permittivity: eps, method, solver: opts.solver ?? "auto", tolerance, refine, breakdownField,
     pool, memoryLimit: opts.memoryLimit, groundPlane: opts.groundPlane, assumedOrder: opts.assumedOrder, progress: opts.progress,
-    dielectrics, testing, strengths,
+    dielectrics, testing, strengths, describeLength: lengthDescriber(opts.lengthUnit),
   };
+}
+
+/** Lengths for messages: in `unit` with engineering digits, or as given in metres without one. */
+export function lengthDescriber(unit: LengthUnit | undefined): (metres: number) => string {
+  return unit === undefined ? (m) => `${m} m` : (m) => formatLength(m, unit);
 }
 
 /** The number of uniform refinements (default 0); InputError unless a whole number from 0 to 4. */

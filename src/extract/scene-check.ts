@@ -98,7 +98,7 @@ export function checkSceneSurroundings(scene: LoadedScene): SceneSurroundingsChe
   // The planes against the conductors, as extract-mesh.ts `surroundings` checks them.
   let layout: SymmetryLayout | undefined, sides: Int8Array | undefined;
   try {
-    layout = symmetryLayout(mesh.names, scene.symmetry, scene.groundPlane);
+    layout = symmetryLayout(mesh.names, scene.symmetry, scene.groundPlane, (m) => formatLength(m, unit));
     if (layout.checkKernel) kernelPlanes(layout.checkKernel);
   } catch (e) {
     // kernelPlanes throws a plain Error for a plane it cannot image; extract-mesh refuses it as input.
@@ -119,7 +119,7 @@ export function checkSceneSurroundings(scene: LoadedScene): SceneSurroundingsChe
   }
   // The bodies as extract-mesh.ts `dielectricBodies` prepares them: with symmetry planes, the
   // half body meshed on the conductors' side unfolded into the whole one first.
-  const unfold = layout && layout.planes.length > 0 && checkKernel && sides ? unfolding(checkKernel, sides) : undefined;
+  const unfold = layout && layout.planes.length > 0 && checkKernel && sides ? unfolding(checkKernel, sides, (m) => formatLength(m, unit)) : undefined;
   const planesUnknown = out.fault !== null && scene.symmetry.length > 0;
   out.dielectrics = scene.dielectrics.map((d): DielectricCheck => {
     const n = triangleCount(d.mesh);

@@ -24,6 +24,9 @@ import { freeCharges } from "./dielectric-charges.js";
 import type { DielectricModel } from "./dielectric-model.js";
 import type { FinestSolution } from "./result.js";
 
+/** Lengths in messages when no unit is known: metres, as given. */
+const inMetres = (m: number): string => `${m} m`;
+
 /**
  * The planes of a model and what they make of it. Copy h of the meshed part is reflected in the
  * planes with images "both" of the set bits of h (bit b ↔ both[b]); solve pattern s makes the
@@ -54,8 +57,9 @@ export interface SymmetryLayout {
 }
 
 /** The layout of these planes over conductors named `names`; InputError for a bad plane or a net name taken. */
-export function symmetryLayout(names: string[], symmetry: SymmetryPlane[], groundPlane: AxisPlane | undefined): SymmetryLayout {
-  const planes = checkedSymmetry(symmetry);
+export function symmetryLayout(names: string[], symmetry: SymmetryPlane[], groundPlane: AxisPlane | undefined,
+  describe: (metres: number) => string = inMetres): SymmetryLayout {
+  const planes = checkedSymmetry(symmetry, describe);
   const both = planes.filter((p) => p.images === "both");
   const nets = 1 << both.length;
   const unfoldedNets = mirrorNets(names, planes);
@@ -84,10 +88,10 @@ export function symmetryLayout(names: string[], symmetry: SymmetryPlane[], groun
 }
 
 /** Symmetry planes with their images filled in and checked; InputError naming the plane. */
-function checkedSymmetry(list: SymmetryPlane[]): SymmetryPlane[] {
+function checkedSymmetry(list: SymmetryPlane[], describe: (metres: number) => string): SymmetryPlane[] {
   return list.map((p) => {
     const images = p.images ?? "even";
-    const at = `symmetry plane ${p.axis} = ${p.offset} m`;
+    const at = `symmetry plane ${p.axis} = ${describe(p.offset)}`;
     if (images !== "even" && images !== "odd" && images !== "both") throw new InputError(`${at}: images must be even, odd or both, got ${String(images)}`);
     if (p.mirrored !== undefined) {
       if (images !== "both") throw new InputError(`${at}: "mirrored" (the mirror conductors' working potentials) needs images "both"`);
@@ -183,18 +187,20 @@ function popcount(x: number): number {
   return c;
 }
 
-/** The mesh without the flagged triangles (vertices kept: unused ones are harmless). */
+/** The mesh without the flagged triangles (vertices kept: unused ones are harmless; true faces kept with their triangles). */
 export function withoutTriangles(mesh: SurfaceMesh, drop: Uint8Array): SurfaceMesh {
   const nt = mesh.conductor.length;
   let keep = 0;
   for (let t = 0; t < nt; t++) if (!drop[t]) keep++;
   const triangles = new Uint32Array(3 * keep), conductor = new Uint32Array(keep);
+  const faces = mesh.faces ? new Uint32Array(keep) : undefined;
   for (let t = 0, a = 0; t < nt; t++) {
     if (drop[t]) continue;
     triangles[3 * a] = mesh.triangles[3 * t]; triangles[3 * a + 1] = mesh.triangles[3 * t + 1]; triangles[3 * a + 2] = mesh.triangles[3 * t + 2];
+    if (faces) faces[a] = mesh.faces![t];
     conductor[a++] = mesh.conductor[t];
   }
-  return { ...mesh, triangles, conductor };
+  return faces ? { ...mesh, triangles, conductor, faces } : { ...mesh, triangles, conductor };
 }
 
 /**
@@ -262,7 +268,7 @@ export function closeBySymmetry(spec: KernelSpec, mesh: SurfaceMesh, table: Retu
  * image kernel as for the conductors (even or odd: the polarisation charge mirrors with the
  * free charge).
  */
-export function unfolding(spec: KernelSpec, sides: Int8Array) {
+export function unfolding(spec: KernelSpec, sides: Int8Array, describe: (metres: number) => string = inMetres) {
   const { offsets } = kernelPlanes(spec);
   const axes = (spec.symmetry ?? []).map((p) => axisIndex(p.axis));
   const copies = 1 << axes.length;
@@ -296,7 +302,7 @@ export function unfolding(spec: KernelSpec, sides: Int8Array) {
           if (d < -tol) across = true; else if (d > tol) along = true;
         }
         if (across) {
-          throw new InputError(`dielectric ${name} reaches across the symmetry plane ${AXES[a]} = ${offsets[a]} m${along ? "" : " (it lies on the other side)"}: `
+          throw new InputError(`dielectric ${name} reaches across the symmetry plane ${AXES[a]} = ${describe(offsets[a])}${along ? "" : " (it lies on the other side)"}: `
             + "with symmetry planes, mesh the part of each body on the conductors' side only");
         }
       }

@@ -97,6 +97,10 @@ describe("sigmesh check on a scene file", () => {
     expect(full.code).toBe(2);
     expect(full.out).toMatch(/^FAILED: sunk\.json: conductor pad crosses the ground plane/m);
     expect(full.out).not.toContain("OK:");
+    // extract refuses the same scene with the same lengths, in the scene's unit.
+    const ex = run(["extract", "sunk.json", "--quiet"]);
+    expect(ex.code).toBe(2);
+    expect(ex.err).toMatch(/^sigmesh: error: sunk\.json: conductor pad crosses the ground plane z = 0\.000 mm \(its lowest point is at z = -0\.3000 mm\)/);
   });
 
   it("refuses a bad --write-mesh target before any work", () => {
@@ -119,6 +123,9 @@ describe("sigmesh check on a scene file", () => {
     expect(ok.out).toContain("dielectric slab: εr 4.000, 48 triangles, closed, volume 16.00 mm³");
     const bad = run(["check", "across.json", "--quiet"]);
     expect(bad.code).toBe(2);
-    expect(bad.err).toMatch(/^sigmesh: FAILED: across\.json: dielectric slab reaches across the symmetry plane x = 0 m/);
+    expect(bad.err).toMatch(/^sigmesh: FAILED: across\.json: dielectric slab reaches across the symmetry plane x = 0\.000 mm/);
+    const ex = run(["extract", "across.json", "--quiet"]);
+    expect(ex.code).toBe(2);
+    expect(ex.err).toMatch(/^sigmesh: error: across\.json: dielectric slab reaches across the symmetry plane x = 0\.000 mm/);
   });
 });
