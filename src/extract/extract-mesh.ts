@@ -130,7 +130,7 @@ function dielectricBodies(o: ResolvedOptions, layout: SymmetryLayout, sides: Int
   if (o.dielectrics.length === 0) return {};
   const unfold = layout.planes.length > 0 && layout.checkKernel ? unfolding(layout.checkKernel, sides!, o.describeLength) : undefined;
   const given = unfold ? o.dielectrics.map((b, i) => ({ ...b, mesh: unfold.body(b.mesh, typeof b.name === "string" && b.name !== "" ? b.name : `dielectric ${i + 1}`) })) : o.dielectrics;
-  const bodies = prepareBodies(given, o.relativePermittivity);
+  const bodies = prepareBodies(given, o.relativePermittivity, o.describePoint);
   const flipped = bodies.filter((b) => b.flipped).map((b) => b.name);
   if (flipped.length > 0) warnings.push(`dielectric interface(s) ${flipped.join(", ")} were wound inward or inconsistently and have been reoriented`);
   return { bodies, unfold };

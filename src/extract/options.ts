@@ -12,7 +12,7 @@ import { EPSILON_0, AIR_BREAKDOWN_FIELD } from "./constants.js";
 import type { SolverChoice } from "./solve.js";
 import type { DielectricBody } from "./dielectric-bodies.js";
 import type { LengthUnit } from "../io/units.js";
-import { formatLength } from "../io/si.js";
+import { formatLength, formatPoint } from "../io/si.js";
 
 export interface MeshExtractOptions {
   /** Relative permittivity of the uniform medium (default 1). */
@@ -82,6 +82,8 @@ export interface ResolvedOptions {
   strengths: Float64Array;
   /** Lengths in messages, in the input's unit. */
   describeLength: (metres: number) => string;
+  /** Points in messages, in the input's unit. */
+  describePoint: (metres: [number, number, number]) => string;
 }
 
 /**
@@ -123,6 +125,7 @@ export function resolveOptions(opts: MeshExtractOptions, k: number, nets: number
     floating, potentials, relativePermittivity: er, permittivity: eps, method, solver: opts.solver ?? "auto", tolerance, refine, breakdownField,
     pool, memoryLimit: opts.memoryLimit, groundPlane: opts.groundPlane, assumedOrder: opts.assumedOrder, progress: opts.progress,
     dielectrics, testing, strengths, describeLength: lengthDescriber(opts.lengthUnit),
+    describePoint: opts.lengthUnit === undefined ? (p) => `(${p.join(", ")}) m` : (p) => formatPoint(p, opts.lengthUnit!),
   };
 }
 

@@ -13,7 +13,7 @@ import { triangleCount } from "../mesh/model.js";
 import { conductorTopology } from "../mesh/topology.js";
 import type { LoadedScene } from "../io/inputs.js";
 import { kernelPlanes, conductorRanges, checkSides, trianglesInSymmetryPlanes, type AxisPlane, type SymmetryPlane } from "../bem/images.js";
-import { prepareBodies } from "./dielectric-bodies.js";
+import { prepareBodies, bodyOverlaps, overlapSentence } from "./dielectric-bodies.js";
 import { symmetryLayout, withoutTriangles, unfolding, type SymmetryLayout } from "./symmetry-unfold.js";
 
 /** One finding between two conductors as a sentence, positions and lengths in `unit`. */
@@ -121,6 +121,7 @@ export function checkSceneSurroundings(scene: LoadedScene): SceneSurroundingsChe
   // half body meshed on the conductors' side unfolded into the whole one first.
   const unfold = layout && layout.planes.length > 0 && checkKernel && sides ? unfolding(checkKernel, sides, (m) => formatLength(m, unit)) : undefined;
   const planesUnknown = out.fault !== null && scene.symmetry.length > 0;
+  const judged: Array<{ name: string; mesh: SurfaceMesh }> = [];
   out.dielectrics = scene.dielectrics.map((d): DielectricCheck => {
     const n = triangleCount(d.mesh);
     let whole = d.mesh, volume: number | null = null;
@@ -128,7 +129,11 @@ export function checkSceneSurroundings(scene: LoadedScene): SceneSurroundingsChe
     try {
       if (fault === null && unfold) whole = unfold.body(d.mesh, d.name);
       // With the planes refused, a half body cannot be unfolded: it is reported, not judged.
-      if (fault === null && !planesUnknown) volume = prepareBodies([{ ...d, mesh: whole }], scene.permittivity)[0].volume;
+      if (fault === null && !planesUnknown) {
+        const prepared = prepareBodies([{ ...d, mesh: whole }], scene.permittivity)[0];
+        volume = prepared.volume;
+        judged.push({ name: d.name, mesh: prepared.mesh });
+      }
     } catch (e) {
       if (!(e instanceof InputError)) throw e;
       fault = e.fault;
@@ -137,5 +142,10 @@ export function checkSceneSurroundings(scene: LoadedScene): SceneSurroundingsChe
     const topo = nw > 0 ? conductorTopology({ positions: whole.positions, triangles: whole.triangles, conductor: new Uint32Array(nw), names: [d.name] })[0] : undefined;
     return { name: d.name, permittivity: d.permittivity, triangles: n, closed: topo !== undefined && topo.boundaryEdges === 0 && topo.nonManifoldEdges === 0, volume, fault };
   });
+  // Bodies that are sound each on their own (oriented outward), against each other, as prepareBodies
+  // does for a solve (which refuses the first overlap).
+  for (const o of bodyOverlaps(judged)) {
+    for (const d of out.dielectrics) if ((d.name === o.a || d.name === o.b) && d.fault === null) d.fault = overlapSentence(o, (p) => formatPoint(p, unit));
+  }
   return out;
 }
