@@ -16,7 +16,7 @@ import { extname } from "node:path";
 import { loadScene } from "../src/io/inputs.js";
 import { concatMeshes, type SurfaceMesh } from "../src/mesh/model.js";
 import { outputFormatFromPath, writeMeshFile } from "../src/io/write.js";
-import { checkSceneSurroundings, type SceneSurroundingsCheck } from "../src/extract/scene-check.js";
+import { checkSceneSurroundings, implausibleSize, type SceneSurroundingsCheck } from "../src/extract/scene-check.js";
 import { parseUnit, DEFAULT_UNIT } from "../src/io/units.js";
 import { InputError } from "../src/errors.js";
 import { checkMeshParallel } from "../src/mesh/check.js";
@@ -88,6 +88,8 @@ export function registerCheck(program: Command): void {
         inspection = loaded.mesh;
       }
       const u = loaded.unit, assumed = isScene ? false : unitAssumed;
+      const size = implausibleSize(loaded.mesh, u, assumed);
+      if (size) loaded.warnings.unshift({ file: loaded.files.join(", "), message: size });
       printWarnings(loaded.warnings, opts.quiet);
       const report = await checkMeshParallel(loaded.mesh);
       const summary = formatCheckSummary(report, { unit: u, unitAssumed: isScene ? unitAssumed : assumed, files: loaded.files, scene });

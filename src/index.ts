@@ -27,7 +27,7 @@ export { parseProbeOption, type ProbeSpec } from "./io/probe-spec.js";
 export type { SurfaceMesh } from "./mesh/model.js";
 export { concatMeshes, conductorSubmesh, conductorAreas, boundingBox, triangleCount } from "./mesh/model.js";
 export { checkMesh, checkMeshParallel, type CheckReport } from "./mesh/check.js";
-export { checkConductors, checkSceneSurroundings, pairSentence, selfOverlapSentence, type SceneSurroundingsCheck, type DielectricCheck } from "./extract/scene-check.js";
+export { checkConductors, checkSceneSurroundings, implausibleSize, PLAUSIBLE_SIZE, pairSentence, selfOverlapSentence, type SceneSurroundingsCheck, type DielectricCheck } from "./extract/scene-check.js";
 export { refineUniform } from "./mesh/refine.js";
 export { surfaceArea, signedVolume } from "./mesh/measure.js";
 export * from "./mesh/primitives/index.js";

@@ -24,7 +24,7 @@ import type { SolverChoice } from "./solve.js";
 import { extractMesh } from "./extract-mesh.js";
 import { checkedRefine } from "./options.js";
 import type { ExtractionResult } from "./result.js";
-import { checkConductors } from "./scene-check.js";
+import { checkConductors, implausibleSize } from "./scene-check.js";
 import { physicalSizeFault } from "../mesh/physical-size.js";
 import { InputError } from "../errors.js";
 
@@ -93,6 +93,8 @@ export async function extract(scene: LoadedScene, settings: ExtractSettings = {}
     if (fault) throw new InputError(fault, source);
   }
   const found = checkConductors(scene.mesh, scene.unit, source);
+  const size = implausibleSize(scene.mesh, scene.unit, scene.unitAssumed);
+  if (size) found.unshift(`${source}: ${size}`);
   for (const w of found) settings.warn?.(w);
   warnings.push(...found);
   signal?.throwIfAborted();

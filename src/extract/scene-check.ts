@@ -5,11 +5,11 @@
  */
 import { checkMesh, type PairCheck, type SelfOverlapCheck } from "../mesh/check.js";
 import { InputError } from "../errors.js";
-import { formatLength, formatPoint } from "../io/si.js";
+import { formatLength, formatPoint, unitLabel } from "../io/si.js";
 import type { LengthUnit } from "../io/units.js";
 import type { SurfaceMesh } from "../mesh/model.js";
 import { physicalSizeFault } from "../mesh/physical-size.js";
-import { triangleCount } from "../mesh/model.js";
+import { triangleCount, boundingDiagonal } from "../mesh/model.js";
 import { conductorTopology } from "../mesh/topology.js";
 import type { LoadedScene } from "../io/inputs.js";
 import { kernelPlanes, conductorRanges, checkSides, trianglesInSymmetryPlanes, type AxisPlane, type SymmetryPlane } from "../bem/images.js";
@@ -58,6 +58,29 @@ export function checkConductors(mesh: SurfaceMesh, unit: LengthUnit, source: str
     throw new InputError(`${pairSentence(errors[0], unit)}${errors.length > 1 ? ` (and ${errors.length - 1} more; run sigmesh check)` : ""}`, source);
   }
   return pairs.filter((p) => p.severity === "warning").map((p) => pairSentence(p, unit));
+}
+
+/**
+ * Overall sizes (bounding-box diagonal of the conductors) taken as plausible for the parts
+ * sigmesh serves, from MEMS combs to high-voltage electrodes: our own bounds, not a standard.
+ * With the unit assumed (mm) the range is narrower, since a file in metres read as mm (a 90 mm
+ * part shrunk to 90 µm) is the common slip.
+ */
+export const PLAUSIBLE_SIZE = { assumed: [0.5e-3, 10], given: [1e-6, 100] } as const;
+
+/**
+ * A warning when the model's overall size is implausible for its unit, naming the unit and how
+ * to set it; null when it is plausible.
+ */
+export function implausibleSize(mesh: SurfaceMesh, unit: LengthUnit, assumed: boolean): string | null {
+  if (mesh.triangles.length === 0) return null;
+  const d = boundingDiagonal(mesh.positions);
+  const [lo, hi] = assumed ? PLAUSIBLE_SIZE.assumed : PLAUSIBLE_SIZE.given;
+  if (!(d < lo || d > hi)) return null;
+  const how = `set the unit with --unit (in a scene, its "unit")`;
+  const label = unitLabel(unit);
+  return `the model is ${formatLength(d, unit)} across with lengths read in ${label}${assumed ? " (assumed)" : ""}, `
+    + `${d < lo ? "unusually small" : "unusually large"} for a part: if the file's lengths are in another unit, ${how}`;
 }
 
 /** A dielectric body as `sigmesh check` reports it. */

@@ -8,6 +8,7 @@ import { join } from "node:path";
 import { loadScene } from "../../src/io/inputs.js";
 import { writeStlBinary } from "../../src/io/stl.js";
 import { extract } from "../../src/extract/extract.js";
+import { implausibleSize } from "../../src/extract/scene-check.js";
 import { sphereMesh } from "../../src/mesh/primitives/index.js";
 import type { SurfaceMesh } from "../../src/mesh/model.js";
 import { InputError } from "../../src/errors.js";
@@ -116,5 +117,20 @@ describe("reoriented surfaces", () => {
     const r = await extract(scene);
     const w = r.warnings.filter((s) => s.includes("reoriented"));
     expect(w).toEqual(["the surface of conductor inside-out was wound inward or inconsistently and has been reoriented"]);
+  });
+});
+
+describe("implausible overall size", () => {
+  it("warns when a file in metres is read in the assumed millimetres, naming the unit and the option; not once the unit is given", async () => {
+    // A 90 mm ball written in metres (coordinates ~0.045).
+    const path = join(dir, "ball-in-metres.stl");
+    writeFileSync(path, writeStlBinary(sphereMesh({ radius: 0.045, level: 1 }), 1));
+    const assumed = await extract(loadScene([path], {}));
+    const w = assumed.input.warnings.filter((s) => s.includes("unusually"));
+    expect(w).toHaveLength(1);
+    expect(w[0]).toMatch(/ball-in-metres\.stl: the model is 0\.\d+ mm across with lengths read in mm \(assumed\), unusually small .*--unit/);
+    const given = await extract(loadScene([path], { unit: "m" }));
+    expect(given.input.warnings.some((s) => s.includes("unusually"))).toBe(false);
+    expect(implausibleSize(sphereMesh({ radius: 1000, level: 0 }), "m", false)).toMatch(/^the model is \d+ m across with lengths read in m, unusually large/);
   });
 });
