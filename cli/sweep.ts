@@ -9,7 +9,7 @@ import { InputError } from "../src/errors.js";
 import { writeFilesAtomic, checkOutputPaths } from "../src/io/atomic.js";
 import { readInputText } from "../src/io/input-file.js";
 import { closeSharedPool } from "../src/linalg/pool.js";
-import { parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, sceneConductorNames } from "../src/extract/sweep.js";
+import { parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, sceneConductorNames, describePoint } from "../src/extract/sweep.js";
 import { planResume, runResumable, finishResumable } from "../src/extract/sweep-resume.js";
 import { sweepFiles, mergeSweepCsv } from "../src/report/sweep-table.js";
 import { displayText } from "../src/io/display-text.js";
@@ -72,6 +72,12 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
   try {
     outcome = await runResumable(scene, points, plan, {
       ...runOpts, signal: controller.signal,
+      // Each point's warnings once, with its parameter values (a gap narrower than the panels, say).
+      onResult: (k, r) => {
+        if (!r.warnings || r.warnings.length === 0) return;
+        if (shown > 0) process.stderr.write("\n");
+        printWarnings(r.warnings.map((w) => ({ message: `${describePoint(k, points[k])}: ${w}` })), false);
+      },
       // A live counter only on a terminal; logs get the closing line alone.
       onPoint: opts.quiet || !process.stderr.isTTY ? undefined : (done, total) => { shown = done; process.stderr.write(`\rsigmesh: ${done}/${total} points`); },
     });

@@ -33,7 +33,7 @@ export { surfaceArea, signedVolume } from "./mesh/measure.js";
 export * from "./mesh/primitives/index.js";
 
 // Extraction
-export { extract, runProbes, type ExtractSettings, type SceneExtraction, type ExtractionInput, type ProbeRun } from "./extract/extract.js";
+export { extract, extractionWarnings, runProbes, type ExtractSettings, type SceneExtraction, type ExtractionInput, type ProbeRun } from "./extract/extract.js";
 export { extractMesh } from "./extract/extract-mesh.js";
 export type { MeshExtractOptions } from "./extract/options.js";
 export type { ExtractionResult, ConductorResult } from "./extract/result.js";
@@ -41,7 +41,7 @@ export { probeField, probeExtraction, type ProbeResult } from "./extract/probe.j
 export { EPSILON_0, AIR_BREAKDOWN_FIELD } from "./extract/constants.js";
 export {
   parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, entryValue, entryLabel, sceneConductorNames,
-  extractPoint, runSweep, runSweepPoints, isPointFailure, sweepPointKey,
+  extractPoint, runSweep, runSweepPoints, isPointFailure, sweepPointKey, describePoint,
   type SweepAxis, type Shard, type MatrixEntry, type PointMatrices, type SweepRunOptions, type SweepPointsOptions, type PointFailure,
 } from "./extract/sweep.js";
 

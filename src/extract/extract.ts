@@ -82,6 +82,11 @@ export interface SceneExtraction extends ExtractionResult {
   probes: ProbeRun[];
 }
 
+/** A scene extraction's warnings, each once: the input's (the checks before the solve), then the solve's. */
+export function extractionWarnings(r: { warnings: readonly string[]; input: { warnings: readonly string[] } }): string[] {
+  return [...new Set([...r.input.warnings, ...r.warnings])];
+}
+
 /** Extract everything the scene holds. Bad input is an InputError naming the file and the fault. */
 export async function extract(scene: LoadedScene, settings: ExtractSettings = {}): Promise<SceneExtraction> {
   const signal = settings.signal;

@@ -4,13 +4,13 @@
  *
  *   node sweep-point.js <scene.json> '<settings as JSON>'
  *
- * Standard output receives one JSON object: `{ "names", "maxwell", "mutual" }` (F, row-major)
- * on success (exit 0), or `{ "inputError": { "fault", "file", "place" } }` for bad input (exit 2).
+ * Standard output receives one JSON object: `{ "names", "maxwell", "mutual", "warnings" }` (F,
+ * row-major; the extraction's warnings as text) on success (exit 0), or `{ "inputError": { "fault", "file", "place" } }` for bad input (exit 2).
  * Any other failure is an internal error: its message on standard error, exit 1.
  */
 import { loadScene } from "../io/inputs.js";
 import { InputError } from "../errors.js";
-import { extract, type ExtractSettings } from "./extract.js";
+import { extract, extractionWarnings, type ExtractSettings } from "./extract.js";
 
 /** The settings a sweep passes to each point (plain JSON). */
 export type PointSettings = Pick<ExtractSettings, "method" | "solver" | "tolerance" | "refine">;
@@ -20,7 +20,7 @@ async function main(argv: string[]): Promise<number> {
   try {
     const settings = JSON.parse(settingsText ?? "{}") as PointSettings;
     const result = await extract(loadScene(scene), settings);
-    process.stdout.write(JSON.stringify({ names: result.names, maxwell: Array.from(result.maxwell), mutual: Array.from(result.mutual) }));
+    process.stdout.write(JSON.stringify({ names: result.names, maxwell: Array.from(result.maxwell), mutual: Array.from(result.mutual), warnings: extractionWarnings(result) }));
     return 0;
   } catch (err) {
     if (err instanceof InputError) {

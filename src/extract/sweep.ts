@@ -24,7 +24,7 @@ import { InputError } from "../errors.js";
 import { loadScene } from "../io/inputs.js";
 import { substituteScene, loadSceneFile } from "../io/scene.js";
 import { compiledUrl } from "../linalg/pool.js";
-import { extract } from "./extract.js";
+import { extract, extractionWarnings } from "./extract.js";
 import type { PointSettings } from "./sweep-point.js";
 import { fileURLToPath } from "node:url";
 
@@ -159,8 +159,15 @@ export function entryValue(e: MatrixEntry, names: readonly string[], maxwell: Ar
   return (e.matrix === "C" ? maxwell : mutual)[i * k + j];
 }
 
-/** What one point yields: the conductor names and both matrices (F, row-major). */
-export interface PointMatrices { names: string[]; maxwell: ArrayLike<number>; mutual: ArrayLike<number> }
+/**
+ * What one point yields: the conductor names, both matrices (F, row-major) and the warnings its
+ * extraction raised (input and solve, each once; absent for a point taken from a journal).
+ */
+export interface PointMatrices { names: string[]; maxwell: ArrayLike<number>; mutual: ArrayLike<number>; warnings?: string[] }
+
+/** A sweep point as people read it: its number and parameter values. */
+export const describePoint = (k: number, p: Record<string, number>): string =>
+  `sweep point ${k} (${Object.entries(p).map(([n, v]) => `${n}=${v}`).join(", ")})`;
 
 export interface SweepRunOptions {
   /** Extraction settings passed to every point. */
@@ -173,9 +180,6 @@ export interface SweepRunOptions {
   /** Called after each point (for progress). */
   onPoint?: (done: number, total: number) => void;
 }
-
-const describePoint = (k: number, p: Record<string, number>): string =>
-  `sweep point ${k} (${Object.entries(p).map(([n, v]) => `${n}=${v}`).join(", ")})`;
 
 /** The settings every point is extracted with. */
 function pointSettings(opts: SweepRunOptions): Required<PointSettings> {
@@ -191,7 +195,7 @@ function atPoint(err: InputError, scene: string, k: number, point: Record<string
 export async function extractPoint(scene: string, point: Record<string, number>, opts: SweepRunOptions = {}, k = 0): Promise<PointMatrices> {
   try {
     const r = await extract(loadScene(scene, { parameters: point }), pointSettings(opts));
-    return { names: r.names, maxwell: r.maxwell, mutual: r.mutual };
+    return { names: r.names, maxwell: r.maxwell, mutual: r.mutual, warnings: extractionWarnings(r) };
   } catch (err) {
     if (err instanceof InputError) throw atPoint(err, scene, k, point);
     throw err;
@@ -235,7 +239,7 @@ function childResult(r: { code: number | null; out: string; err: string }, file:
   if (r.code === 0 || r.code === 2) {
     const answer = JSON.parse(r.out) as PointMatrices & { inputError?: { fault: string; file: string | null; place: string | null } };
     const e = answer.inputError;
-    if (!e) return { names: answer.names, maxwell: answer.maxwell, mutual: answer.mutual };
+    if (!e) return { names: answer.names, maxwell: answer.maxwell, mutual: answer.mutual, warnings: (answer.warnings ?? []).map((w) => own(w)!) };
     throw atPoint(new InputError(own(e.fault)!, own(e.file) ?? scene, own(e.place)), scene, k, point);
   }
   throw new Error(`${describePoint(k, point)}: ${r.err.trim().split("\n")[0] || `the point's process ended with code ${r.code}`}`);

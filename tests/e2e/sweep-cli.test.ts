@@ -31,9 +31,23 @@ beforeAll(() => {
 afterAll(() => { if (dir) rmSync(dir, { recursive: true, force: true }); });
 
 describe("sigmesh sweep", () => {
+  it("shows each point's warnings once, with its parameter values, in this process and in child processes", () => {
+    for (const processes of ["0", "2"]) {
+      // gap 0.1 mm under panels of about 2 mm: a narrow-gap warning at that point only.
+      const r = run(["sweep", "s.json", "--vary", "gap=3,0.1", "--csv", `warn${processes}.csv`, "--processes", processes, "--quiet"]);
+      expect(r.code, r.err).toBe(0);
+      const lines = r.err.split("\n").filter((l) => l.startsWith("sigmesh: warning:"));
+      expect(lines.length, r.err).toBeGreaterThan(0);
+      for (const l of lines) expect(l).toMatch(/^sigmesh: warning: sweep point 1 \(gap=0\.1\): /);
+      expect(lines.some((l) => /conductors pad and lid are only 0\.1000 mm apart/.test(l)), r.err).toBe(true);
+      expect(new Set(lines).size).toBe(lines.length);
+    }
+  });
+
   it("gives the entries of single extractions of the hand-written scenes, exactly", () => {
     const r = run(["sweep", "s.json", "--vary", "gap=1,2.5", "--entries", "C(pad,pad),Cm(pad,lid),C(lid,pad)", "--csv", "one.csv", "--svg", "one.svg", "--quiet"]);
-    expect(r.err).toBe("");
+    // Quiet: nothing but the points' warnings (both gaps are narrower than the coarse panels).
+    expect(r.err.split("\n").filter((l) => l !== "" && !l.startsWith("sigmesh: warning: sweep point "))).toEqual([]);
     expect(r.code).toBe(0);
     const rows = parseCsv(readFileSync(join(dir, "one.csv"), "utf8"));
     expect(rows[0]).toEqual(["point (of 2)", "gap", "C(pad,pad) (F)", "Cm(pad,lid) (F)", "C(lid,pad) (F)"]);
@@ -82,7 +96,7 @@ describe("sigmesh sweep", () => {
       const r = run(["sweep", "s.json", ...args, "--csv", "bad.csv"]);
       expect(r.code, args.join(" ")).toBe(2);
       expect(r.err.split("\n").filter((l) => l.startsWith("sigmesh: error")).length).toBe(1);
-      expect(r.err.replace(/^sigmesh: sweep of[^\n]*\n|^\r?sigmesh: \d+\/\d+ points[^\n]*\n/gm, "").replace(/(\rsigmesh: \d+\/\d+ points)+\n?/g, ""), args.join(" ")).toMatch(re);
+      expect(r.err.replace(/^sigmesh: warning: [^\n]*\n/gm, "").replace(/^sigmesh: sweep of[^\n]*\n|^\r?sigmesh: \d+\/\d+ points[^\n]*\n/gm, "").replace(/(\rsigmesh: \d+\/\d+ points)+\n?/g, ""), args.join(" ")).toMatch(re);
       expect(existsSync(join(dir, "bad.csv"))).toBe(false);
     }
   });
