@@ -10,7 +10,8 @@ import { InputError } from "../src/errors.js";
 import { extract } from "../src/extract/extract.js";
 import { parseProbeOption } from "../src/io/probe-spec.js";
 import { extractionSummary } from "../src/report/extract-summary.js";
-import { writeOutputs, checkOutputTargets, type OutputTargets } from "../src/report/outputs.js";
+import { writeOutputs, checkOutputTargets, defaultProbeCsv, type OutputTargets } from "../src/report/outputs.js";
+import { displayText } from "../src/io/display-text.js";
 import { closeSharedPool } from "../src/linalg/pool.js";
 import { action, printWarnings } from "./common.js";
 import { collect, numberOption, parsePotentials, solveSettings } from "./options.js";
@@ -69,7 +70,7 @@ export function registerExtract(program: Command): void {
     .option("--csv <file>", "write the matrices and conductor results as CSV")
     .option("--markdown <file>", "write Markdown tables for a design review")
     .option("--probe <spec>", "potential and field at points: point:x,y,z | line:x0,y0,z0:x1,y1,z1:n | grid:ox,oy,oz:ux,uy,uz:vx,vy,vz:nu,nv (user unit; NAME= prefix optional; repeatable)", collect, [])
-    .option("--probe-csv <file>", "where the probe results go (default probes.csv); line probes also get an SVG field plot beside it")
+    .option("--probe-csv <file>", "where the probe results go (default: NAME-probes.csv beside the first report file, NAME the input's; else in the current folder); line probes also get an SVG field plot beside it")
     .option("--convergence-svg <file>", "with --refine: plot the first conductor's capacitance against panel count")
     .option("--quiet", "print only errors and warnings")
     .action(action((inputs: string[], opts: ExtractCliOptions) => runExtract(inputs, opts)));
@@ -97,9 +98,9 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
     permittivity, breakdownField,
   });
   printWarnings(scene.warnings, false);
-  // Probe results go to probes.csv unless told otherwise.
+  // Probe results go beside the report, named after the input, unless told otherwise.
   if (targets.probeCsv === undefined && scene.probes.length + probes.length > 0) {
-    targets.probeCsv = "probes.csv";
+    targets.probeCsv = defaultProbeCsv(targets, scene.scene ?? scene.files[0]);
     checkOutputTargets(targets, settings.refine);
   }
 
@@ -115,12 +116,13 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
     bar.stop();
     await closeSharedPool();
   }
-  const { piped } = writeOutputs(result, targets);
+  const { piped, written } = writeOutputs(result, targets);
   // "-" is standard output (one output at most); the summary then goes to stderr.
   if (piped !== undefined) process.stdout.write(piped);
   if (!opts.quiet) {
     const text = extractionSummary(result, { unit: scene.unit, unitAssumed: scene.unitAssumed, source: result.input.source });
-    (piped !== undefined ? process.stderr : process.stdout).write(text);
+    const files = written.length > 0 ? `Written: ${written.map(displayText).join(", ")}\n` : "";
+    (piped !== undefined ? process.stderr : process.stdout).write(text + files);
   } else {
     printWarnings(result.warnings.map((message) => ({ message })), false);
   }

@@ -46,7 +46,7 @@ export {
 } from "./extract/sweep.js";
 
 // Outputs
-export { writeOutputs, extractionFiles, checkOutputTargets, sceneReport, jsonText, type OutputTargets, type OutputFile, type WrittenOutputs } from "./report/outputs.js";
+export { writeOutputs, extractionFiles, checkOutputTargets, defaultProbeCsv, sceneReport, jsonText, type OutputTargets, type OutputFile, type WrittenOutputs } from "./report/outputs.js";
 export { extractionReport } from "./report/json.js";
 export { extractionSummary } from "./report/extract-summary.js";
 export { checkReport, type CheckReportJson, type SceneCheckJson } from "./report/check-report.js";

@@ -51,6 +51,18 @@ const TARGET_OPTIONS: Array<[keyof OutputTargets, string]> = [
 ];
 
 /**
+ * Where probe results go when no `probeCsv` is given: beside the first report written to a file
+ * (JSON, HTML, CSV, Markdown, SPICE), else in the current folder, named after the input
+ * (`board.json` → `board-probes.csv`), so that runs of different scenes do not overwrite each
+ * other's results.
+ */
+export function defaultProbeCsv(targets: OutputTargets, input: string): string {
+  const report = [targets.json, targets.html, targets.csv, targets.markdown, targets.spice].find((p) => typeof p === "string" && p !== "-");
+  const stem = basename(input, extname(input)) || "sigmesh";
+  return join(report === undefined ? "." : dirname(report), `${stem}-probes.csv`);
+}
+
+/**
  * Refuse targets that cannot all be written, before any work: two outputs to the caller (`-`),
  * a convergence plot without refinement (`refine` = the run's refinements), and any path that
  * `checkOutputPaths` refuses (a missing folder above the output's own, a folder not writable,

@@ -89,6 +89,23 @@ describe("sigmesh extract", () => {
     expect(Math.abs(Number(rows[8][v]) / (5 / 20) - 1)).toBeLessThan(0.02);
   });
 
+  it("without --probe-csv, a scene's probes go beside the report, named after the scene, and the summary lists every file written", () => {
+    mkdirSync(join(dir, "out"), { recursive: true });
+    const r = run(["extract", "probed.json", "--json", "out/r.json", "--html", "out/r.html"], dir);
+    expect(r.code, r.err).toBe(0);
+    expect(existsSync(join(dir, "out", "probed-probes.csv"))).toBe(true);
+    expect(existsSync(join(dir, "out", "probed-probes-axis.svg"))).toBe(true);
+    expect(existsSync(join(dir, "probes.csv"))).toBe(false);
+    const line = r.out.split("\n").find((l) => l.startsWith("Written: "));
+    expect(line).toBeDefined();
+    expect(line!.slice("Written: ".length).split(", ").sort()).toEqual(["out/probed-probes-axis.svg", "out/probed-probes.csv", "out/r.html", "out/r.json"]);
+    // Without a report file, into the current folder, still named after the scene.
+    const bare = run(["extract", "probed.json", "--quiet"], dir);
+    expect(bare.code, bare.err).toBe(0);
+    expect(existsSync(join(dir, "probed-probes.csv"))).toBe(true);
+    expect(bare.out).toBe("");
+  });
+
   it("a scene with a dielectric coat matches two spherical capacitors in series (exact closed form)", () => {
     // C = 4π ε0 / ((1/a − 1/b)/εr + 1/b) for a sphere of radius a coated out to b with εr.
     writeFileSync(join(dir, "coat.json"), JSON.stringify({ unit: "mm",
