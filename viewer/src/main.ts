@@ -62,7 +62,8 @@ function start(root: HTMLElement, data: PageData): void {
   wirePointer(picking);
   if (sv.renderer) {
     wireControls(detail);
-    new ResizeObserver(() => { loop.sizeBuffer(); loop.requestRender(); }).observe(page.stage);
+    // A resize clears the canvas: draw again at once, so no blank frame is ever shown.
+    new ResizeObserver(() => { if (loop.sizeBuffer()) loop.render(); }).observe(page.stage);
     loop.sizeBuffer();
     loop.requestRender();
   }

@@ -41,7 +41,7 @@ export function mutualCaption(report: Record<string, any>, v: ViewerData): strin
   const odd = ((report.model?.symmetry as Array<{ images?: string }> | undefined) ?? []).some((p) => p.images === "odd");
   const ref = referenceOf(report, v) === "ground plane" ? "the ground plane"
     : odd ? "infinity and the odd symmetry plane (0 V)" : "the reference at infinity (no ground plane)";
-  return `Two-terminal capacitances (circuit values; diagonal: to ${ref})`;
+  return `Two-terminal capacitances (circuit values); diagonal: to ${ref}`;
 }
 
 /**
