@@ -349,7 +349,9 @@ export function markdownReport(data: ReportData, opts: { title?: string } = {}):
   out.push("");
   const ref = data.capacitance.reference ?? "infinity";
   const mrows: string[][] = [];
-  for (let i = 0; i < k; i++) mrows.push([`${names[i]} – reference (${markdownText(ref)})`, formatSI(data.capacitance.mutual[i][i], "F")]);
+  // The reference named as the terminal summary names it.
+  const refName = ref === "ground plane" ? "ground plane" : `reference (${markdownText(ref)})`;
+  for (let i = 0; i < k; i++) mrows.push([`${names[i]} – ${refName}`, formatSI(data.capacitance.mutual[i][i], "F")]);
   for (let i = 0; i < k; i++) for (let j = i + 1; j < k; j++) mrows.push([`${names[i]} – ${names[j]}`, formatSI(data.capacitance.mutual[i][j], "F")]);
   out.push(...markdownTable(["between", "capacitance"], mrows, [false, true]));
   out.push("");

@@ -50,7 +50,8 @@ describe("a scene's title, parameters, ground plane and bodies in the reports", 
     const md = extractionFiles(result, { markdown: join(dir, "r.md") })[0].data as string;
     expect(md.split("\n")[0]).toBe("# Two pads on a \\<slab\\> over ground");
     expect(md).toContain("parameters gap = 2, w = 3");
-    expect(md).toContain("reference (ground plane)");
+    // As the terminal summary says it: "left – ground plane".
+    expect(md).toContain("| left – ground plane |");
     expect(md.toLowerCase()).not.toContain("infinity");
   });
 
