@@ -72,6 +72,8 @@ export interface ExtractionInput {
   unitAssumed: boolean;
   /** The scene's named parameters with the values used. */
   parameters: Record<string, number>;
+  /** The scene's title, if it gives one. */
+  title?: string;
   /** Warnings from loading and checking, before the solve. */
   warnings: string[];
 }
@@ -135,7 +137,7 @@ export async function extract(scene: LoadedScene, settings: ExtractSettings = {}
   const probes = runProbes(result, [...scene.probes, ...(settings.probes ?? [])], scene.unit);
   return {
     ...result,
-    input: { files: scene.files, scene: scene.scene, source, unit: scene.unit, unitAssumed: scene.unitAssumed, parameters: { ...scene.parameters }, warnings },
+    input: { files: scene.files, scene: scene.scene, source, unit: scene.unit, unitAssumed: scene.unitAssumed, parameters: { ...scene.parameters }, warnings, ...(scene.title !== undefined ? { title: scene.title } : {}) },
     probes,
   };
 }

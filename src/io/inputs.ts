@@ -37,6 +37,8 @@ export interface LoadedScene {
   floating: boolean[];
   /** The scene's named parameters with the values used (empty for mesh files). */
   parameters: Record<string, number>;
+  /** The scene's title, if it gives one. */
+  title?: string;
   files: string[];
   scene?: string;
   warnings: Warning[];
@@ -117,6 +119,7 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
       mesh: sm.mesh, potentials: resolvePotentials(sm.mesh.names, sm.potentials, baseOverrides, floating), unit: scene.unit, unitAssumed: false, permittivity: scene.permittivity,
       breakdownField: scene.breakdownField, groundPlane: scene.groundPlane, symmetry: scene.symmetry, floating,
       files: sm.files, scene: list[0], warnings: sm.warnings, dropped: sm.dropped, probes: scene.probes, dielectrics: sm.dielectrics, parameters: scene.parameters,
+      ...(scene.title !== undefined ? { title: scene.title } : {}),
     };
   } else {
     if (opts.parameters && Object.keys(opts.parameters).length > 0) throw new InputError("parameters belong to a scene file (.json); mesh files have none", list[0]);

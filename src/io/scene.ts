@@ -59,6 +59,8 @@ export interface Scene {
   probes: ProbeSpec[];
   /** Values of the named parameters used for this reading (the scene's, or a sweep point's). */
   parameters: Record<string, number>;
+  /** The scene's `title`, shown in the reports. */
+  title?: string;
 }
 
 export interface SceneParseOptions {
@@ -141,7 +143,9 @@ export function parseScene(text: string, file: string, opts: SceneParseOptions =
     if (j !== undefined) fail(`dielectrics[${i}].name`, `"${d.name}" is already the name of dielectrics[${j}]`);
     dseen.set(d.name, i);
   });
-  return { file, unit, permittivity, breakdownField, groundPlane, symmetry, conductors, dielectrics, probes, parameters };
+  if (top.title !== undefined && typeof top.title !== "string") fail("title", "expected a string");
+  const title = typeof top.title === "string" && top.title.trim() !== "" ? top.title : undefined;
+  return { file, unit, permittivity, breakdownField, groundPlane, symmetry, conductors, dielectrics, probes, parameters, ...(title !== undefined ? { title } : {}) };
 }
 
 /** Read and validate a scene file. */

@@ -49,7 +49,7 @@ export interface ReportConductor {
 
 /** The fields of a JSON extraction report that the tables use. */
 export interface ReportData {
-  input?: { files?: string[]; scene?: string | null; unit?: string };
+  input?: { files?: string[]; scene?: string | null; unit?: string; title?: string; parameters?: Record<string, number> };
   medium?: { relativePermittivity?: number; permittivity?: number; breakdownField?: number };
   conductors: ReportConductor[];
   capacitance: { maxwell: number[][]; mutual: number[][]; reference?: string; extrapolated?: boolean };
@@ -312,11 +312,15 @@ export function markdownReport(data: ReportData, opts: { title?: string } = {}):
   const names = data.conductors.map((c) => markdownText(c.name));
   const k = names.length;
   const out: string[] = [];
-  out.push(`# ${markdownText(opts.title ?? "Capacitance extraction")}`);
+  // The scene's own title first; else the caller's (the input's name).
+  const title = typeof data.input?.title === "string" && data.input.title.trim() !== "" ? data.input.title : opts.title;
+  out.push(`# ${markdownText(title ?? "Capacitance extraction")}`);
   out.push("");
   const facts: string[] = [];
   if (data.input?.scene) facts.push(`scene ${markdownText(data.input.scene)}`);
   else if (data.input?.files?.length) facts.push(`mesh ${data.input.files.map(markdownText).join(", ")}`);
+  const params = data.input?.parameters && typeof data.input.parameters === "object" ? Object.entries(data.input.parameters) : [];
+  if (params.length > 0) facts.push(`parameters ${params.map(([n, x]) => `${markdownText(n)} = ${String(x)}`).join(", ")}`);
   facts.push(`${k} conductor${k === 1 ? "" : "s"}`);
   if (data.medium?.relativePermittivity !== undefined) facts.push(`εr = ${formatNumber(data.medium.relativePermittivity)}`);
   facts.push(`lengths in ${unitLabel(unit)}`);
@@ -345,7 +349,9 @@ export function markdownReport(data: ReportData, opts: { title?: string } = {}):
   out.push("");
   const ref = data.capacitance.reference ?? "infinity";
   const mrows: string[][] = [];
-  for (let i = 0; i < k; i++) mrows.push([`${names[i]} – reference (${markdownText(ref)})`, formatSI(data.capacitance.mutual[i][i], "F")]);
+  // The reference named as the terminal summary names it.
+  const refName = ref === "ground plane" ? "ground plane" : `reference (${markdownText(ref)})`;
+  for (let i = 0; i < k; i++) mrows.push([`${names[i]} – ${refName}`, formatSI(data.capacitance.mutual[i][i], "F")]);
   for (let i = 0; i < k; i++) for (let j = i + 1; j < k; j++) mrows.push([`${names[i]} – ${names[j]}`, formatSI(data.capacitance.mutual[i][j], "F")]);
   out.push(...markdownTable(["between", "capacitance"], mrows, [false, true]));
   out.push("");

@@ -81,8 +81,11 @@ export function htmlReport(report: object, data: ViewerData | PackedViewerData, 
     "base-uri 'none'",
     "form-action 'none'",
   ].join("; ");
-  const files = ((report as { input?: { files?: unknown } }).input?.files as string[] | undefined) ?? [];
-  const title = `sigmesh report${files.length ? " — " + files.map(String).join(", ") : ""}`;
+  const input = (report as { input?: { files?: unknown; title?: unknown } }).input;
+  const files = (input?.files as string[] | undefined) ?? [];
+  const title = typeof input?.title === "string" && input.title.trim() !== ""
+    ? `${input.title} — sigmesh report`
+    : `sigmesh report${files.length ? " — " + files.map(String).join(", ") : ""}`;
   return [
     "<!doctype html>",
     '<html lang="en">',

@@ -14,6 +14,9 @@ export interface ReportContext {
   unit: LengthUnit;
   /** Warnings from loading and checking, before extraction. */
   inputWarnings: string[];
+  /** The scene's title and the parameter values used, reported when given. */
+  title?: string;
+  parameters?: Record<string, number>;
 }
 
 export const REPORT_FORMAT = "sigmesh-extraction/1";
@@ -34,7 +37,11 @@ export function extractionReport(r: ExtractionResult, ctx: ReportContext): Recor
     format: REPORT_FORMAT,
     sigmesh: ctx.version,
     created: new Date().toISOString(),
-    input: { files: ctx.files, scene: ctx.scene ?? null, unit: ctx.unit },
+    input: {
+      files: ctx.files, scene: ctx.scene ?? null, unit: ctx.unit,
+      ...(ctx.title !== undefined ? { title: ctx.title } : {}),
+      ...(ctx.parameters && Object.keys(ctx.parameters).length > 0 ? { parameters: ctx.parameters } : {}),
+    },
     medium: { relativePermittivity: r.relativePermittivity, permittivity: r.permittivity, breakdownField: r.breakdownField },
     conductors: r.conductors.map((c) => ({
       name: c.name,

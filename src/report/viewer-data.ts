@@ -14,6 +14,7 @@ import type { ExtractionResult } from "../extract/result.js";
 import { panelExcitation } from "../extract/excitation.js";
 import { centroidFields } from "../extract/probe.js";
 import { boundingBox } from "../mesh/model.js";
+import type { DielectricResult } from "../extract/result.js";
 
 export interface HotSpot {
   /** Panel index (triangle of the finest mesh). */
@@ -68,6 +69,25 @@ export interface ViewerData {
   /** Absolute permittivity; F/m. */
   permittivity: number;
   excitations: ViewerExcitation[];
+  /** What the two-terminal matrix's diagonal refers to (as `ExtractionResult.reference`). */
+  reference?: "ground plane" | "infinity";
+  /** The grounded plane: axis 0 x, 1 y, 2 z, and its offset in metres (absolute, not relative to `origin`). */
+  groundPlane?: { axis: 0 | 1 | 2; offset: number };
+  /** Dielectric bodies as solved (their interface panels on the finest mesh), drawn translucent. */
+  bodies?: ViewerBodies;
+}
+
+/** The surfaces of the dielectric bodies: an indexed mesh of their own, in the frame of `positions`. */
+export interface ViewerBodies {
+  names: string[];
+  /** Relative permittivity inside each body. */
+  permittivity: number[];
+  /** Vertex positions relative to the data's `origin`, 3 per vertex; metres. */
+  positions: Float32Array;
+  /** Vertex indices, 3 per triangle. */
+  triangles: Uint32Array;
+  /** Body index of each triangle. */
+  body: Uint32Array;
 }
 
 export interface ViewerDataOptions {
@@ -192,10 +212,40 @@ export function viewerData(result: ExtractionResult, opts: ViewerDataOptions = {
     potentials[j] = 1;
     add(`unit:${j}`, potentials, ex.sigma, ex.field, nOpen > 0 && !exactSheets);
   }
+  const axisIndex = { x: 0, y: 1, z: 2 } as const;
   return {
     names: result.names.slice(), closed, origin, positions,
     triangles: mesh.triangles, panelConductor: result.panelConductor, areas: Float32Array.from(P.areas),
     breakdownField: result.breakdownField, permittivity: result.permittivity, excitations,
+    reference: result.reference,
+    ...(result.groundPlane ? { groundPlane: { axis: axisIndex[result.groundPlane.axis], offset: result.groundPlane.offset } } : {}),
+    ...(result.dielectric ? { bodies: bodySurfaces(result.dielectric, origin) } : {}),
+  };
+}
+
+/**
+ * The interface panels of the dielectric model (the bodies' surfaces as solved, without the
+ * panels a conductor covers), with only the vertices they use. No values ride on them, so
+ * they cost about 20 bytes per triangle in the page.
+ */
+function bodySurfaces(d: DielectricResult, origin: [number, number, number]): ViewerBodies {
+  const m = d.model;
+  const map = new Int32Array(m.positions.length / 3).fill(-1);
+  const triangles = new Uint32Array(3 * m.ni);
+  let nv = 0;
+  for (let t = 0; t < 3 * m.ni; t++) {
+    const v = m.triangles[3 * m.nc + t];
+    if (map[v] < 0) map[v] = nv++;
+    triangles[t] = map[v];
+  }
+  const positions = new Float32Array(3 * nv);
+  for (let v = 0; v < map.length; v++) {
+    if (map[v] < 0) continue;
+    for (let i = 0; i < 3; i++) positions[3 * map[v] + i] = m.positions[3 * v + i] - origin[i];
+  }
+  return {
+    names: d.bodies.map((b) => b.name), permittivity: d.bodies.map((b) => b.permittivity),
+    positions, triangles, body: Uint32Array.from(m.interfaceBody),
   };
 }
 
@@ -256,6 +306,14 @@ export function packViewerData(d: ViewerData): Record<string, unknown> {
       sheetFieldBound: e.sheetFieldBound,
       hotSpots: e.hotSpots,
     })),
+    ...(d.reference ? { reference: d.reference } : {}),
+    ...(d.groundPlane ? { groundPlane: d.groundPlane } : {}),
+    ...(d.bodies ? {
+      bodies: {
+        names: d.bodies.names, permittivity: d.bodies.permittivity, positions: pack(d.bodies.positions),
+        triangles: pack(d.bodies.triangles), body: packIndices(d.bodies.body, d.bodies.names.length),
+      },
+    } : {}),
   };
 }
 

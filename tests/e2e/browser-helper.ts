@@ -42,6 +42,30 @@ export async function sampleExtraction(): Promise<{ result: ExtractionResult; re
   return { result, report };
 }
 
+/** The title of the grounded sample's scene: it must head the page. */
+export const GROUNDED_TITLE = "Three electrodes over an insulating slab and a ground plane";
+
+/**
+ * The same three conductors over an insulating slab (εr 4) and a ground plane at z = -13 mm,
+ * with a scene title and a parameter: the page draws the slab and the plane, names the
+ * ground plane as the two-terminal reference and shows the title.
+ */
+export async function groundedExtraction(): Promise<{ result: ExtractionResult; report: Record<string, unknown> }> {
+  const mesh = concatMeshes([
+    sphereMesh({ radius: 4e-3, level: 2, center: [-8e-3, 0, 0], name: "electrode" }),
+    boxMesh({ size: [6e-3, 6e-3, 6e-3], divisions: 3, center: [6e-3, 0, 0], name: "ground box" }),
+    plateMesh({ size: [10e-3, 10e-3], divisions: 6, center: [0, 0, -9e-3], name: MARKUP_NAME }),
+  ]);
+  const slab = boxMesh({ size: [30e-3, 14e-3, 2e-3], divisions: 2, center: [0, 0, -11e-3], name: "slab" });
+  const result = await extractMesh(mesh, {
+    potentials: [2000, 0, 0], groundPlane: { axis: "z", offset: -13e-3 }, dielectrics: [{ name: "slab", mesh: slab, permittivity: 4 }],
+  });
+  const report = extractionReport(result, {
+    version: "test", files: ["grounded.json"], scene: "grounded.json", unit: "mm", inputWarnings: [], title: GROUNDED_TITLE, parameters: { gap: 1 },
+  });
+  return { result, report };
+}
+
 export function writeSampleHtml(path: string, report: Record<string, unknown>, result: ExtractionResult): void {
   mkdirSync(join(path, ".."), { recursive: true });
   writeFileSync(path, htmlReport(report, viewerData(result)));

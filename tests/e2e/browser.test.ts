@@ -2,13 +2,15 @@
 // `sigmesh view` over HTTP. Screenshots go to tests/artifacts/ (git-ignored).
 import { describe, it, expect, beforeAll, afterAll } from "vitest";
 import { spawn, type ChildProcess } from "node:child_process";
-import { mkdirSync, writeFileSync, existsSync } from "node:fs";
+import { mkdirSync, writeFileSync, existsSync, readFileSync } from "node:fs";
 import { request } from "node:http";
 import { networkInterfaces } from "node:os";
 import { join } from "node:path";
 import { fileURLToPath, pathToFileURL } from "node:url";
 import type { Browser, Page } from "playwright-core";
-import { chromiumMissing, launchChromium, sampleExtraction, writeSampleHtml, ARTIFACTS, MARKUP_NAME } from "./browser-helper.js";
+import {
+  chromiumMissing, launchChromium, sampleExtraction, groundedExtraction, writeSampleHtml, ARTIFACTS, MARKUP_NAME, CHROMIUM, GROUNDED_TITLE,
+} from "./browser-helper.js";
 import type { ExtractionResult } from "../../src/extract/result.js";
 import { viewerData, viewerDataJson, hotSpots, type ViewerData } from "../../src/report/viewer-data.js";
 import { formatSI } from "../../src/io/si.js";
@@ -258,7 +260,9 @@ describe.skipIf(missing !== undefined)("HTML report in Chromium", () => {
     const proxyPanels = Number(await app.getAttribute("data-proxy-panels"));
     expect(proxyPanels).toBeGreaterThan(1000);
     expect(proxyPanels).toBeLessThan(0.6 * panels);
-    expect(await app.getAttribute("data-detail")).toBe("full");
+    // The first frame, drawn before the load event, is the proxy; the full mesh follows at rest.
+    expect(await app.getAttribute("data-first-frame")).toBe("proxy");
+    await page.waitForFunction(() => document.querySelector(".sm-app")?.getAttribute("data-detail") === "full", null, { timeout: 20_000 });
     const stat = () => page.evaluate(() => (window as any).__stats() as { foreground: number; luma: number; hash: number; width: number; height: number });
     const still = await stat();
     expect(still.foreground).toBeGreaterThan(0.05);
@@ -312,6 +316,152 @@ describe.skipIf(missing !== undefined)("HTML report in Chromium", () => {
     expect(requests.filter((u) => u !== pathToFileURL(path).href && !u.startsWith("data:") && !u.startsWith("blob:"))).toEqual([]);
     await page.close();
   });
+
+  it("at 1280 × 720 and 1920 × 1080: first frame before load, title, ground-plane reference, folded cautions, hot spots and matrix in view, tables that fit, slab and plane drawn and toggled", async () => {
+    const { result: gr, report: grep } = await groundedExtraction();
+    const path = join(ARTIFACTS, "report-grounded.html");
+    writeSampleHtml(path, grep, gr);
+    const page = await browser!.newPage({ viewport: { width: 1280, height: 720 } });
+    const errors: string[] = [];
+    page.on("pageerror", (e) => errors.push(e.message));
+    // When the page says it is ready (the microtask after its start-up, before any animation
+    // frame) and at the load event itself: how many frames are drawn and what the canvas shows.
+    await page.addInitScript(() => {
+      new MutationObserver((_, obs) => {
+        const app = document.querySelector(".sm-app");
+        if (app?.getAttribute("data-ready") !== "1") return;
+        (window as any).__framesAtReady = Number(app.getAttribute("data-frames") ?? 0);
+        obs.disconnect();
+      }).observe(document, { subtree: true, attributes: true, attributeFilter: ["data-ready"] });
+      window.addEventListener("load", () => {
+        const c = document.getElementById("sm-canvas") as HTMLCanvasElement | null;
+        let fg = 0, n = 1;
+        if (c && c.width > 0) {
+          const off = document.createElement("canvas");
+          off.width = c.width; off.height = c.height;
+          const g = off.getContext("2d")!;
+          g.drawImage(c, 0, 0);
+          const d = g.getImageData(0, 0, off.width, off.height).data;
+          n = d.length / 4;
+          for (let i = 0; i < d.length; i += 4) if (Math.abs(d[i] - d[0]) + Math.abs(d[i + 1] - d[1]) + Math.abs(d[i + 2] - d[2]) > 12) fg++;
+        }
+        (window as any).__atLoad = { frames: Number(document.querySelector(".sm-app")?.getAttribute("data-frames") ?? 0), foreground: fg / n };
+      });
+    });
+    await page.goto(pathToFileURL(path).href, { waitUntil: "load" });
+    const atLoad = await page.evaluate(() => (window as any).__atLoad as { frames: number; foreground: number });
+    expect(await page.evaluate(() => (window as any).__framesAtReady)).toBeGreaterThanOrEqual(1);
+    expect(atLoad.frames).toBeGreaterThanOrEqual(1);
+    expect(atLoad.foreground).toBeGreaterThan(0.05);
+    await page.waitForSelector(".sm-app[data-ready='1']");
+
+    // The scene's title heads the page and names the tab; the parameter is in the line below.
+    expect(await page.locator("#sm-title").textContent()).toBe(GROUNDED_TITLE);
+    expect(await page.title()).toBe(`${GROUNDED_TITLE} — sigmesh report`);
+    expect(await page.locator(".sm-sub").textContent()).toContain("gap = 1");
+
+    // Over a ground plane the two-terminal table names it, and nothing on the page says infinity.
+    expect(await page.locator("#sm-mutual caption").textContent()).toBe("Two-terminal capacitances (circuit values); diagonal: to the ground plane");
+    expect((await page.locator("body").innerText()).toLowerCase()).not.toContain("infinity");
+    expect(JSON.stringify(grep).toLowerCase()).not.toContain("infinity");
+
+    // Cautions: a folded banner whose visible line defers to standards, codes and licensed practice.
+    const cautions = page.locator("#sm-cautions");
+    expect(await cautions.evaluate((d) => (d as HTMLDetailsElement).open)).toBe(false);
+    expect(await cautions.locator("summary").innerText()).toMatch(/standards, local codes and licensed practice/);
+    expect((await cautions.boundingBox())!.height).toBeLessThan(90);
+
+    const inView = async (selector: string, w: number, h: number): Promise<void> => {
+      const b = (await page.locator(selector).first().boundingBox())!;
+      expect(b.y, selector).toBeGreaterThanOrEqual(0);
+      expect(b.y + b.height, `${selector} bottom at ${w} × ${h}`).toBeLessThanOrEqual(h);
+      expect(b.x + b.width, selector).toBeLessThanOrEqual(w);
+    };
+    for (const [w, h] of [[1280, 720], [1920, 1080]]) {
+      await page.setViewportSize({ width: w, height: h });
+      await inView("#sm-hotspots", w, h);
+      await inView("#sm-hotspots button", w, h);
+      await inView("#sm-maxwell", w, h);
+      // The conductor tables: no cell cut, headings on at most two lines, nothing wider than the panel.
+      const fit = await page.evaluate(() => {
+        const side = document.querySelector(".sm-side") as HTMLElement;
+        const cut: string[] = [];
+        let tallest = 0;
+        for (const t of ["#sm-summary", "#sm-mesh"]) {
+          for (const c of document.querySelectorAll(`${t} th, ${t} td`)) {
+            const e = c as HTMLElement;
+            if (e.scrollWidth > e.clientWidth) cut.push(e.textContent ?? "");
+            if (e.tagName === "TH") {
+              const cs = getComputedStyle(e);
+              const lines = (e.clientHeight - parseFloat(cs.paddingTop) - parseFloat(cs.paddingBottom)) / parseFloat(cs.lineHeight);
+              tallest = Math.max(tallest, lines);
+            }
+          }
+        }
+        const right = side.getBoundingClientRect().right;
+        const tables = ["#sm-summary", "#sm-mesh"].map((t) => document.querySelector(t)!.getBoundingClientRect().right);
+        return { cut, tallest, sideScroll: side.scrollWidth - side.clientWidth, overhang: Math.max(...tables) - right };
+      });
+      expect(fit.cut).toEqual([]);
+      expect(fit.tallest).toBeGreaterThan(0.9);
+      expect(fit.tallest).toBeLessThan(2.1);
+      expect(fit.sideScroll).toBeLessThanOrEqual(0);
+      expect(fit.overhang).toBeLessThanOrEqual(0);
+      expect(await page.locator("#sm-mesh th").allTextContents()).toEqual(["conductor", "area", "input triangles", "solved panels"]);
+      await page.screenshot({ path: join(ARTIFACTS, `browser-grounded-${w}.png`) });
+    }
+    // The solved panels per conductor add up to the panels drawn.
+    const solved = (await page.locator("#sm-mesh td:nth-child(4)").allTextContents()).map(Number);
+    expect(solved.reduce((a, b) => a + b, 0)).toBe(gr.panelConductor.length);
+    expect((await page.locator("#sm-mesh td:nth-child(3)").allTextContents()).map(Number)).toEqual(gr.conductors.map((c) => c.triangles));
+
+    // Opened, every caution is there in full.
+    await cautions.locator("summary").click();
+    for (const c of grep.fieldCheck.cautions) await expect(cautions.locator("li", { hasText: c }).isVisible()).resolves.toBe(true);
+
+    // The slab and the ground plane: named rows that show and hide them.
+    const rows = page.locator("#sm-surroundings .sm-body");
+    expect(await rows.locator(".sm-name").allTextContents()).toEqual(["slab (εr = 4.000)", "ground plane z = -13.00 mm"]);
+    const shown = await canvasStats(page);
+    let f = await frames(page);
+    await rows.nth(1).locator(".sm-visible").uncheck();
+    await afterRedraw(page, f);
+    const noPlane = await canvasStats(page);
+    expect(noPlane.foreground).toBeLessThan(shown.foreground - 0.02 * shown.pixels);
+    f = await frames(page);
+    await rows.nth(0).locator(".sm-visible").uncheck();
+    await afterRedraw(page, f);
+    expect((await canvasStats(page)).foreground).toBeLessThan(noPlane.foreground);
+    expect(errors).toEqual([]);
+    await page.close();
+
+    // The literal check: Chromium's own headless screenshot, taken as the page loads, shows the model.
+    const png = join(ARTIFACTS, "chromium-screenshot.png");
+    await new Promise<void>((resolve, reject) => {
+      const child = spawn(CHROMIUM, ["--headless", "--no-sandbox", "--disable-gpu", "--disable-background-networking", "--disable-component-update",
+        "--no-first-run", "--use-angle=swiftshader", "--enable-unsafe-swiftshader", "--window-size=1280,720", `--screenshot=${png}`, pathToFileURL(path).href],
+      { stdio: "ignore" });
+      child.on("exit", (code) => (code === 0 ? resolve() : reject(new Error(`chromium --screenshot exited ${code}`))));
+    });
+    const viewer = await browser!.newPage({ viewport: { width: 1280, height: 720 } });
+    await viewer.setContent(`<img id="shot" src="data:image/png;base64,${readFileSync(png).toString("base64")}">`);
+    const stageShare = await viewer.evaluate(async () => {
+      const img = document.getElementById("shot") as HTMLImageElement;
+      await img.decode();
+      const c = document.createElement("canvas");
+      c.width = img.naturalWidth; c.height = img.naturalHeight;
+      const g = c.getContext("2d")!;
+      g.drawImage(img, 0, 0);
+      // The stage right of the colour bar and below the header: pixels unlike the page's paper colour.
+      const x0 = 200, x1 = Math.floor(0.6 * c.width), y0 = 80, y1 = c.height - 60;
+      const d = g.getImageData(x0, y0, x1 - x0, y1 - y0).data;
+      let fg = 0;
+      for (let i = 0; i < d.length; i += 4) if (Math.abs(d[i] - 0xf4) + Math.abs(d[i + 1] - 0xf1) + Math.abs(d[i + 2] - 0xea) > 24) fg++;
+      return fg / (d.length / 4);
+    });
+    expect(stageShare).toBeGreaterThan(0.05);
+    await viewer.close();
+  }, 120_000);
 
   it("draws mesh edges without building lines, and the same picture again without them", async () => {
     const page = await openReport(pathToFileURL(htmlPath).href, [], []);

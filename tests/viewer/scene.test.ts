@@ -9,13 +9,13 @@ import { sphereMesh, plateMesh } from "../../src/mesh/primitives/index.js";
 import { concatMeshes } from "../../src/mesh/model.js";
 import {
   panelLists, createScene, applyVisibility, applyClip, applyEdges, recolourMeshes, fit, fitDistance, markerPositions,
-  placeMarkers, shownMeshes, type SceneView,
+  placeMarkers, shownMeshes, groundRectangle, applySurrounding, GROUND_MARGIN, type SceneView,
 } from "../../viewer/src/scene.js";
 import {
   usesProxies, pixelRatio, buildProxies, motion, settle, endInteraction, PROXY_ABOVE_PANELS, PROXY_ABOVE_PANELS_GPU,
   MOVING_PIXELS, type DetailContext, type RenderLoop,
 } from "../../viewer/src/detail.js";
-import { createViewerState, type ViewerState } from "../../viewer/src/state.js";
+import { createViewerState, SURROUNDING_OPACITY, type ViewerState } from "../../viewer/src/state.js";
 import { colourScale, colourTables, wordsOf } from "../../viewer/src/colour-scale.js";
 import type { ViewerData, HotSpot } from "../../viewer/src/data.js";
 
@@ -218,7 +218,7 @@ describe("proxies while the view moves", () => {
   const state = createViewerState(2);
   const { sv, root, counts } = scene(v, state);
   const calls: string[] = [];
-  const loop: RenderLoop = { render: () => calls.push("render"), requestRender: () => calls.push("request"), sizeBuffer: () => calls.push("size") };
+  const loop: RenderLoop = { render: () => calls.push("render"), requestRender: () => calls.push("request"), sizeBuffer: () => { calls.push("size"); return true; } };
   const ctx: DetailContext = { root, v, state, sv, loop, counts, useProxies: true };
 
   it("builds a coarse proxy for the large sphere only, once", () => {
@@ -267,5 +267,66 @@ describe("proxies while the view moves", () => {
     settle(c2);
     expect(s2.motion.moving).toBe(false);
     expect(small.sv.views[0].proxy).toBeNull();
+  });
+});
+
+describe("dielectric bodies and the ground plane", () => {
+  // The sample with a slab under the ball (a box's six faces, two triangles each, body 0) and a
+  // ground plane at z = -3 (the data's origin at z = 0.5: drawn at -3.5).
+  function withSurroundings(): ViewerData {
+    const v = sample();
+    v.origin = [0, 0, 0.5];
+    const c = [[-2, -1, -1.5], [2, 1, -0.5]];
+    const positions = new Float32Array(24);
+    for (let i = 0; i < 8; i++) { positions[3 * i] = c[i & 1][0]; positions[3 * i + 1] = c[(i >> 1) & 1][1]; positions[3 * i + 2] = c[(i >> 2) & 1][2]; }
+    const triangles = Uint32Array.of(0, 1, 3, 0, 3, 2, 4, 7, 5, 4, 6, 7, 0, 5, 1, 0, 4, 5, 2, 3, 7, 2, 7, 6, 0, 2, 6, 0, 6, 4, 1, 5, 7, 1, 7, 3);
+    v.bodies = { names: ["slab"], permittivity: [4], positions, triangles, body: new Uint32Array(12) };
+    v.groundPlane = { axis: 2, offset: -3 };
+    return v;
+  }
+
+  it("draws the ground plane as a rectangle at its height around everything, with a margin", () => {
+    const v = withSurroundings();
+    const r = groundRectangle(v);
+    // The plate (30 wide) is the widest part: the rectangle spans it and a margin on each side.
+    const half = 15 + GROUND_MARGIN * 30;
+    for (let i = 0; i < 4; i++) {
+      expect(r[3 * i + 2]).toBeCloseTo(-3.5, 6);
+      expect(Math.abs(r[3 * i])).toBeCloseTo(half, 4);
+      expect(Math.abs(r[3 * i + 1])).toBeCloseTo(half, 4);
+    }
+    // A plane across x: the rectangle lies in y and z at that x.
+    v.groundPlane = { axis: 0, offset: 7 };
+    const q = groundRectangle(v);
+    for (let i = 0; i < 4; i++) expect(q[3 * i]).toBe(7);
+  });
+
+  it("adds one translucent mesh per body and one for the plane, never picked or fitted, each shown and hidden by its state", () => {
+    const v = withSurroundings();
+    const state = createViewerState(2, 2);
+    const { sv } = scene(v, state);
+    expect(sv.surroundings.map((s) => s.body)).toEqual([0, -1]);
+    const [slab, ground] = sv.surroundings;
+    expect(slab.mesh.geometry.index.count).toBe(36);
+    expect(ground.mesh.geometry.index.count).toBe(6);
+    for (const s of sv.surroundings) {
+      expect(sv.scene.children).toContain(s.mesh);
+      expect(s.material.transparent).toBe(true);
+      expect(s.material.opacity).toBe(SURROUNDING_OPACITY);
+      expect(s.material.side).toBe(THREE.DoubleSide);
+      expect(shownMeshes(sv, state)).not.toContain(s.mesh);
+    }
+    state.surroundings[1].visible = false;
+    applySurrounding(ground, state.surroundings[1]);
+    expect(ground.mesh.visible).toBe(false);
+    state.surroundings[0].opacity = 1;
+    applySurrounding(slab, state.surroundings[0]);
+    expect(slab.material.opacity).toBe(1);
+    expect(slab.material.depthWrite).toBe(true);
+    // The clipping plane cuts them as it cuts the conductors.
+    state.clip.on = true;
+    applyClip(sv, state);
+    expect(slab.material.clippingPlanes).toEqual([sv.clipPlane]);
+    expect(ground.material.clippingPlanes).toEqual([sv.clipPlane]);
   });
 });

@@ -5,7 +5,7 @@
 import { describe, it, expect } from "vitest";
 import {
   createViewerState, chooseExcitation, axisOf, takeReadout, releaseReadout, pinnedPanel, startMotion, endMotion, frameDrawn,
-  settleDelay, conductorDetail, frontFacesOnly, clipPlaneOf, SETTLE_MS, SETTLE_HELD_MS, type ClipState,
+  settleDelay, conductorDetail, frontFacesOnly, clipPlaneOf, SETTLE_MS, SETTLE_HELD_MS, SURROUNDING_OPACITY, type ClipState,
 } from "../../viewer/src/state.js";
 
 describe("createViewerState", () => {
@@ -15,6 +15,15 @@ describe("createViewerState", () => {
     expect(s.conductors).toEqual([{ visible: true, opacity: 1 }, { visible: true, opacity: 1 }, { visible: true, opacity: 1 }]);
     expect(s.clip).toEqual({ on: false, axis: 0, position: 0.5, flip: false });
     expect(s.motion).toMatchObject({ moving: false, interacting: false, drewCoarse: false, flying: false, flight: 0, proxiesBuilt: false });
+  });
+
+  it("shows the dielectric bodies and the ground plane translucent, each with its own record", () => {
+    expect(createViewerState(2).surroundings).toEqual([]);
+    const s = createViewerState(1, 2);
+    expect(s.surroundings).toEqual([{ visible: true, opacity: SURROUNDING_OPACITY }, { visible: true, opacity: SURROUNDING_OPACITY }]);
+    expect(SURROUNDING_OPACITY).toBeLessThan(1);
+    s.surroundings[1].visible = false;
+    expect(s.surroundings[0].visible).toBe(true);
   });
 
   it("gives each conductor its own record (hiding one hides only that one)", () => {

@@ -5,8 +5,11 @@
 import { describe, it, expect, beforeEach, afterEach } from "vitest";
 import {
   subtitle, excitationLabel, accuracyNote, capacitanceCell, summaryRows, hotSpotText, hotSpotClass, hotSpotNote,
-  sheetBoundNote, panelCentroid, readoutLines, matrixTable, summaryTable, fillHotSpots, markSelectedSpot, showReadout, SUMMARY_HEADS,
+  sheetBoundNote, panelCentroid, readoutLines, matrixTable, summaryTables, fillHotSpots, markSelectedSpot, showReadout, SUMMARY_HEADS,
+  MESH_HEADS, meshRows, solvedPanels, heading, parameterText, referenceOf, mutualCaption, cautionGist, cautionSummary,
 } from "../../viewer/src/tables.js";
+import { surroundingLabels } from "../../viewer/src/panels.js";
+import { cautionsFor } from "../../src/report/cautions.js";
 import type { Excitation, HotSpot, ViewerData } from "../../viewer/src/data.js";
 
 const MARKUP = "<img src=x onerror=alert(1)>";
@@ -37,9 +40,54 @@ describe("content", () => {
   it("sums up the run under the title", () => {
     const v = viewer();
     expect(subtitle({ input: { files: ["a.stl", "b <c>.stl"] }, created: "2026-01-02T03:04:05Z" }, v))
-      .toBe("a.stl, b <c>.stl · 2 panels · 2 conductors · 2026-01-02T03:04:05Z");
+      .toBe("a.stl, b <c>.stl · 2 solved panels · 2 conductors · 2026-01-02T03:04:05Z");
+    expect(subtitle({ input: { files: ["s.json"], parameters: { gap: 0.25, n: 3 } } }, v)).toBe("s.json · gap = 0.25, n = 3 · 2 solved panels · 2 conductors");
     v.names = ["one"];
-    expect(subtitle({}, v)).toBe("extraction · 2 panels · 1 conductor");
+    expect(subtitle({}, v)).toBe("extraction · 2 solved panels · 1 conductor");
+  });
+
+  it("heads the page with the scene's title, else the tool's own line", () => {
+    expect(heading({ input: { title: `Pads ${MARKUP}` } })).toBe(`Pads ${MARKUP}`);
+    expect(heading({ input: { title: "  " } })).toBe("sigmesh · surface charge and field");
+    expect(heading({})).toBe("sigmesh · surface charge and field");
+    expect(parameterText({ input: {} })).toBe("");
+  });
+
+  it("names the two-terminal reference: the ground plane when there is one, never infinity then", () => {
+    const v = viewer();
+    const grounded = { capacitance: { reference: "ground plane" } };
+    expect(referenceOf(grounded, v)).toBe("ground plane");
+    expect(mutualCaption(grounded, v)).toBe("Two-terminal capacitances (circuit values); diagonal: to the ground plane");
+    expect(mutualCaption(grounded, v)).not.toMatch(/infinity/i);
+    // The data's own word comes first (a JSON report's viewer data carries it too).
+    v.reference = "ground plane";
+    expect(mutualCaption({}, v)).toBe("Two-terminal capacitances (circuit values); diagonal: to the ground plane");
+    v.reference = "infinity";
+    expect(mutualCaption(grounded, v)).toBe("Two-terminal capacitances (circuit values); diagonal: to the reference at infinity (no ground plane)");
+    expect(mutualCaption({ model: { symmetry: [{ images: "odd" }] } }, v)).toMatch(/to infinity and the odd symmetry plane \(0 V\)$/);
+    delete v.reference;
+    expect(referenceOf({}, v)).toBe("infinity");
+  });
+
+  it("folds the cautions to a line that keeps the deference to standards, codes and licensed practice", () => {
+    for (const potentials of [[15000, 0], [3, 0]]) {
+      const cautions = cautionsFor(potentials);
+      const gist = cautionGist(cautions);
+      expect(gist).toMatch(/standards, local codes and licensed practice/);
+      expect(gist.length).toBeLessThan(110);
+      expect(cautionSummary(cautions)).toBe(`Cautions (${cautions.length}, click to read):`);
+    }
+    expect(cautionGist(["First sentence. Second one.", "Other."])).toBe("First sentence.");
+  });
+
+  it("labels the dielectric bodies with their permittivity and the ground plane with its place", () => {
+    const v = viewer();
+    expect(surroundingLabels(v, "mm")).toEqual([]);
+    v.bodies = { names: ["board", MARKUP], permittivity: [4.4, 2], positions: new Float32Array(0), triangles: new Uint32Array(0), body: new Uint32Array(0) };
+    v.groundPlane = { axis: 2, offset: -1.6e-3 };
+    expect(surroundingLabels(v, "mm")).toEqual([
+      { body: 0, text: "board (εr = 4.400)" }, { body: 1, text: `${MARKUP} (εr = 2.000)` }, { body: -1, text: "ground plane z = -1.600 mm" },
+    ]);
   });
 
   it("names the working-potential excitation by its potentials and a unit one by its conductor", () => {
@@ -69,12 +117,24 @@ describe("content", () => {
         { name: "ignored", potential: 0, charge: -3.3e-11, peakField: null, fieldRatio: null, area: 2.5e-5, triangles: 12 },
       ],
     };
-    expect(SUMMARY_HEADS).toHaveLength(7);
-    expect(summaryRows(report, ["ball", MARKUP], "mm")).toEqual([
-      ["ball", "2.000 kV", "33.00 pC", "1.500 MV/m", "50.0 %", "1.000 mm²", "320"],
-      [MARKUP, "0.000 V", "-33.00 pC", "—", "—", "25.00 mm²", "12"],
+    expect(SUMMARY_HEADS).toEqual(["conductor", "potential", "charge", "peak |E|", "of breakdown"]);
+    expect(summaryRows(report, ["ball", MARKUP])).toEqual([
+      ["ball", "2.000 kV", "33.00 pC", "1.500 MV/m", "50.0 %"],
+      [MARKUP, "0.000 V", "-33.00 pC", "—", "—"],
     ]);
-    expect(summaryRows({}, ["a"], "mm")).toEqual([]);
+    expect(summaryRows({}, ["a"])).toEqual([]);
+    // Input triangles (the report's) and solved panels (the drawn mesh's), both named.
+    expect(MESH_HEADS).toEqual(["conductor", "area", "input triangles", "solved panels"]);
+    expect(meshRows(report, ["ball", MARKUP], "mm", [1280, 48])).toEqual([
+      ["ball", "1.000 mm²", "320", "1280"],
+      [MARKUP, "25.00 mm²", "12", "48"],
+    ]);
+  });
+
+  it("counts the solved panels of each conductor", () => {
+    const v = viewer();
+    v.panelConductor = Uint32Array.of(1, 1, 0, 1);
+    expect(solvedPanels(v)).toEqual([1, 3]);
   });
 
   it("describes a hot spot with its margin to breakdown, and marks one at or past breakdown", () => {
@@ -152,12 +212,16 @@ describe("elements", () => {
     expect(tds.map((td) => Number(td.dataset.value))).toEqual([1.25e-12, -3.3e-13, -3.3e-13, 8e-13]);
   });
 
-  it("builds the summary table from the report's conductors", () => {
+  it("builds the summary tables from the report's conductors", () => {
     const report = { conductors: [{ name: "x", potential: 1, charge: 1e-12, peakField: null, fieldRatio: null, area: 1e-6, triangles: 2 }] };
-    const t = summaryTable(report, [MARKUP], "mm") as unknown as FakeElement;
+    const [t, m] = summaryTables(report, [MARKUP], "mm", [8]) as unknown as FakeElement[];
     expect(t.id).toBe("sm-summary");
     expect(t.all("th").map((th) => th.textContent)).toEqual(SUMMARY_HEADS);
-    expect(t.all("td").map((td) => td.textContent)).toEqual([MARKUP, "1.000 V", "1.000 pC", "—", "—", "1.000 mm²", "2"]);
+    expect(t.all("td").map((td) => td.textContent)).toEqual([MARKUP, "1.000 V", "1.000 pC", "—", "—"]);
+    expect(m.id).toBe("sm-mesh");
+    expect(m.all("th").map((th) => th.textContent)).toEqual(MESH_HEADS);
+    expect(m.all("td").map((td) => td.textContent)).toEqual([MARKUP, "1.000 mm²", "2", "8"]);
+    expect(m.all("td")[0].className).toBe("sm-name-cell");
   });
 
   it("lists the hot spots as buttons carrying field, conductor and panel, and reports a click by rank", () => {

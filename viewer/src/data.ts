@@ -21,6 +21,17 @@ export interface ViewerData {
   names: string[]; closed: boolean[]; origin: [number, number, number];
   positions: Float32Array; triangles: Uint32Array; panelConductor: Uint32Array; areas: Float32Array;
   breakdownField: number; permittivity: number; excitations: Excitation[];
+  /** The two-terminal diagonal's reference (absent in data written before it was carried: the report's is used). */
+  reference?: "ground plane" | "infinity";
+  /** The grounded plane: axis index (0 x, 1 y, 2 z) and offset in metres, absolute. */
+  groundPlane?: { axis: 0 | 1 | 2; offset: number };
+  bodies?: Bodies;
+}
+
+/** Dielectric bodies' surfaces: positions relative to the data's origin, a body index per triangle. */
+export interface Bodies {
+  names: string[]; permittivity: number[];
+  positions: Float32Array; triangles: Uint32Array; body: Uint32Array;
 }
 
 export interface PageData {
@@ -67,5 +78,15 @@ export function readPageData(doc: Document): PageData {
     breakdownField: v.breakdownField, permittivity: v.permittivity,
     excitations: v.excitations.map((e: any) => ({ ...e, sigma: unpack(e.sigma), field: unpack(e.field) })),
   };
+  if (v.reference === "ground plane" || v.reference === "infinity") viewer.reference = v.reference;
+  if (v.groundPlane) viewer.groundPlane = v.groundPlane;
+  if (v.bodies) {
+    const b = unpack(v.bodies.body);
+    viewer.bodies = {
+      names: v.bodies.names, permittivity: v.bodies.permittivity,
+      positions: unpack(v.bodies.positions) as Float32Array, triangles: unpack(v.bodies.triangles) as Uint32Array,
+      body: b instanceof Uint32Array ? b : Uint32Array.from(b),
+    };
+  }
   return { report: raw.report ?? {}, viewer };
 }

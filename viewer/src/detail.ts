@@ -43,11 +43,12 @@ export interface RenderLoop {
   render(): void;
   /** Draws a frame at the next animation frame (once, however often asked). */
   requestRender(): void;
-  /** The drawing buffer to the stage's size (and the pixel ratio of the state's motion). */
-  sizeBuffer(): void;
+  /** The drawing buffer to the stage's size (and the pixel ratio of the state's motion); true when it changed (and so was cleared). */
+  sizeBuffer(): boolean;
 }
 
 export function renderLoop(root: HTMLElement, stage: HTMLElement, sv: SceneView, state: ViewerState): RenderLoop {
+  const size = { w: 0, h: 0, ratio: 0 };
   const render = (): void => {
     if (!sv.renderer) return;
     sv.renderer.render(sv.scene, sv.camera);
@@ -62,12 +63,17 @@ export function renderLoop(root: HTMLElement, stage: HTMLElement, sv: SceneView,
       requestAnimationFrame(() => { state.renderQueued = false; render(); });
     },
     sizeBuffer: () => {
-      if (!sv.renderer) return;
+      if (!sv.renderer) return false;
       const w = Math.max(1, stage.clientWidth), h = Math.max(1, stage.clientHeight);
-      sv.renderer.setPixelRatio(pixelRatio(state.motion.moving, sv.software, window.devicePixelRatio, w, h));
+      const ratio = pixelRatio(state.motion.moving, sv.software, window.devicePixelRatio, w, h);
+      // Setting a canvas's size clears it, even to the same size: only when something changed.
+      if (w === size.w && h === size.h && ratio === size.ratio) return false;
+      size.w = w; size.h = h; size.ratio = ratio;
+      sv.renderer.setPixelRatio(ratio);
       sv.renderer.setSize(w, h, false);
       sv.camera.aspect = w / h;
       sv.camera.updateProjectionMatrix();
+      return true;
     },
   };
 }

@@ -17,15 +17,15 @@ import { colourScale, colourTables, tableOf, wordsOf } from "./colour-scale.js";
 import { buildPage, inputUnit, readClipControls } from "./panels.js";
 import { fillHotSpots, sheetBoundNote } from "./tables.js";
 import { drawColourBar, saveSnapshot } from "./legend.js";
-import { applyClip, applyEdges, applyVisibility, createScene, fit, panelLists, placeMarkers, recolourMeshes } from "./scene.js";
-import { buildProxies, renderLoop, usesProxies, wireControls, type DetailContext } from "./detail.js";
+import { applyClip, applyEdges, applySurrounding, applyVisibility, createScene, fit, panelLists, placeMarkers, recolourMeshes } from "./scene.js";
+import { motion, renderLoop, usesProxies, wireControls, type DetailContext } from "./detail.js";
 import { flyTo, wirePointer, refreshPinned, type PickingContext } from "./picking.js";
 import "./style.css";
 
 function start(root: HTMLElement, data: PageData): void {
   const { report, viewer: v } = data;
   const unit = inputUnit(report);
-  const state = createViewerState(v.names.length);
+  const state = createViewerState(v.names.length, (v.bodies?.names.length ?? 0) + (v.groundPlane ? 1 : 0));
   const page = buildPage(root, data);
   const tables = colourTables();
   const { counts, lists } = panelLists(v.panelConductor, v.names.length);
@@ -54,10 +54,16 @@ function start(root: HTMLElement, data: PageData): void {
     row.visible.addEventListener("change", () => { state.conductors[c].visible = row.visible.checked; changed(); });
     row.opacity.addEventListener("input", () => { state.conductors[c].opacity = Number(row.opacity.value); changed(); });
   });
+  page.surroundings.forEach((row, i) => {
+    const changed = (): void => { applySurrounding(sv.surroundings[i], state.surroundings[i]); loop.requestRender(); };
+    row.visible.addEventListener("change", () => { state.surroundings[i].visible = row.visible.checked; changed(); });
+    row.opacity.addEventListener("input", () => { state.surroundings[i].opacity = Number(row.opacity.value); changed(); });
+  });
   wirePointer(picking);
   if (sv.renderer) {
     wireControls(detail);
-    new ResizeObserver(() => { loop.sizeBuffer(); loop.requestRender(); }).observe(page.stage);
+    // A resize clears the canvas: draw again at once, so no blank frame is ever shown.
+    new ResizeObserver(() => { if (loop.sizeBuffer()) loop.render(); }).observe(page.stage);
     loop.sizeBuffer();
     loop.requestRender();
   }
@@ -78,9 +84,15 @@ function start(root: HTMLElement, data: PageData): void {
   sv.camera.position.set(1, -1.3, 0.9);
   refit();
   recolour();
+  // The first frame is drawn now, before the page's load event (a screenshot taken at load
+  // shows the model): on a large model the coarse proxies first, the full mesh once the view
+  // has rested a moment (detail.ts), as after any motion.
+  if (sv.renderer) {
+    if (detail.useProxies) motion(detail);
+    loop.render();
+    root.dataset.firstFrame = root.dataset.detail ?? "";
+  }
   root.dataset.ready = "1";
-  // Build the proxies once the first frame is up (or at the first motion, if sooner).
-  if (sv.renderer && detail.useProxies) requestAnimationFrame(() => setTimeout(() => buildProxies(detail), 0));
 }
 
 function boot(): void {

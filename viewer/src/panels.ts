@@ -9,9 +9,13 @@ import { el, section, labelled, select, checkbox, slider } from "./dom.js";
 import { LUT_SIZE } from "./colormap.js";
 import type { PageData } from "./data.js";
 import type { ClipState } from "./state.js";
-import { axisOf } from "./state.js";
-import { subtitle, excitationLabel, accuracyNote, matrixTable, summaryTable, messageList } from "./tables.js";
+import { axisOf, SURROUNDING_OPACITY } from "./state.js";
+import {
+  heading, subtitle, excitationLabel, accuracyNote, matrixTable, summaryTables, solvedPanels, messageList, mutualCaption,
+  cautionGist, cautionSummary,
+} from "./tables.js";
 import type { LengthUnit } from "../../src/io/units.js";
+import { formatLength, formatNumber } from "../../src/io/si.js";
 
 export interface ColourBarElements {
   bar: HTMLDivElement;
@@ -25,6 +29,11 @@ export interface ConductorRow {
   opacity: HTMLInputElement;
 }
 
+/** A dielectric body's or the ground plane's row (`body` -1: the ground plane). */
+export interface SurroundingRow extends ConductorRow {
+  body: number;
+}
+
 export interface PageElements {
   stage: HTMLDivElement;
   quantity: HTMLSelectElement;
@@ -32,6 +41,8 @@ export interface PageElements {
   excitation: HTMLSelectElement;
   boundNote: HTMLParagraphElement;
   conductors: ConductorRow[];
+  /** A row per dielectric body (data order), then the ground plane's when there is one. */
+  surroundings: SurroundingRow[];
   edges: HTMLInputElement;
   clip: HTMLInputElement;
   clipAxis: HTMLSelectElement;
@@ -61,7 +72,9 @@ export function buildPage(root: HTMLElement, data: PageData): PageElements {
   root.replaceChildren();
   root.classList.add("sm-app");
   const header = el("header", "sm-header");
-  header.appendChild(el("h1", undefined, "sigmesh · surface charge and field"));
+  const h1 = el("h1", undefined, heading(report));
+  h1.id = "sm-title";
+  header.appendChild(h1);
   header.appendChild(el("p", "sm-sub", subtitle(report, v)));
   root.appendChild(header);
   const main = el("div", "sm-main");
@@ -71,15 +84,30 @@ export function buildPage(root: HTMLElement, data: PageData): PageElements {
   const side = el("aside", "sm-side");
   main.appendChild(side);
 
-  // Cautions first: they must not be missed.
+  // Cautions first, folded to a banner whose visible line defers to the standards, codes and
+  // licensed practice; the full text is one click away (and in the page's text as it is).
   const cautions = (report.fieldCheck?.cautions as string[] | undefined) ?? [];
   if (cautions.length > 0) {
-    const box = el("div", "sm-cautions");
+    const box = el("details", "sm-cautions");
     box.id = "sm-cautions";
-    box.appendChild(el("h2", undefined, "Cautions"));
+    const summary = el("summary");
+    summary.appendChild(el("strong", undefined, cautionSummary(cautions)));
+    summary.appendChild(el("span", "sm-gist", cautionGist(cautions)));
+    box.appendChild(summary);
     box.appendChild(messageList(cautions));
     side.appendChild(box);
   }
+
+  // What an engineer opens the report for comes next, in view without scrolling: the hot
+  // spots (the list scrolls within its own box) and the capacitance matrices.
+  const hotSec = section(side, "Hot spots (strongest normal field)");
+  const hotNote = el("p", "sm-note");
+  hotSec.appendChild(hotNote);
+  const hotList = el("ol", "sm-hotspots");
+  hotList.id = "sm-hotspots";
+  hotSec.appendChild(hotList);
+
+  capacitanceSections(side, report, v, names);
 
   const display = section(side, "Display");
   const quantity = select([["field", "|E| normal field"], ["sigma", "σ surface charge density"]]);
@@ -103,6 +131,7 @@ export function buildPage(root: HTMLElement, data: PageData): PageElements {
   condList.id = "sm-conductor-list";
   condSec.appendChild(condList);
   const conductors = names.map((n, c) => conductorRow(condList, n, c));
+  const surroundings = surroundingRows(side, v, unit);
 
   const tools = section(side, "View");
   const edges = checkbox(false);
@@ -125,14 +154,13 @@ export function buildPage(root: HTMLElement, data: PageData): PageElements {
   buttons.append(fit, snapshot);
   tools.appendChild(buttons);
 
-  const hotSec = section(side, "Hot spots (strongest normal field)");
-  const hotNote = el("p", "sm-note");
-  hotSec.appendChild(hotNote);
-  const hotList = el("ol", "sm-hotspots");
-  hotList.id = "sm-hotspots";
-  hotSec.appendChild(hotList);
-
-  capacitanceSections(side, report, names, unit);
+  const summarySec = section(side, "Conductor summary");
+  for (const t of summaryTables(report, names, unit, solvedPanels(v))) summarySec.appendChild(t);
+  const warnings = (report.warnings as string[] | undefined) ?? [];
+  if (warnings.length > 0) {
+    const w = section(side, "Warnings");
+    w.appendChild(messageList(warnings));
+  }
 
   // Stage: canvas, colour bar, read-out.
   const canvas = el("canvas", "sm-canvas");
@@ -155,7 +183,7 @@ export function buildPage(root: HTMLElement, data: PageData): PageElements {
   stage.appendChild(glNote);
 
   return {
-    stage, quantity, scale, excitation, boundNote, conductors, edges, clip, clipAxis, clipPosition, clipFlip,
+    stage, quantity, scale, excitation, boundNote, conductors, surroundings, edges, clip, clipAxis, clipPosition, clipFlip,
     fit, snapshot, hotNote, hotList, canvas, colourBar: { bar, title, gradient, labels }, readout, glNote,
   };
 }
@@ -164,11 +192,15 @@ export function buildPage(root: HTMLElement, data: PageData): PageElements {
 function conductorRow(list: HTMLElement, name: string, c: number): ConductorRow {
   const row = el("div", "sm-conductor");
   row.dataset.conductor = String(c);
+  return visibilityRow(list, row, name, 1);
+}
+
+function visibilityRow(list: HTMLElement, row: HTMLElement, name: string, opacityValue: number): ConductorRow {
   const visible = checkbox(true);
   visible.className = "sm-visible";
   visible.title = "show or hide";
   const label = el("span", "sm-name", name);
-  const opacity = slider(0.1, 1, 0.05, 1);
+  const opacity = slider(0.1, 1, 0.05, opacityValue);
   opacity.className = "sm-opacity";
   opacity.title = "opacity";
   row.append(visible, label, opacity);
@@ -176,22 +208,40 @@ function conductorRow(list: HTMLElement, name: string, c: number): ConductorRow 
   return { visible, opacity };
 }
 
-/** Capacitance matrices, the conductor summary and the report's warnings. */
-function capacitanceSections(side: HTMLElement, report: Record<string, any>, names: string[], unit: LengthUnit): void {
+/** Rows of the dielectric bodies and the ground plane (none: no section). */
+function surroundingRows(side: HTMLElement, v: PageData["viewer"], unit: LengthUnit): SurroundingRow[] {
+  const rows: SurroundingRow[] = [];
+  const labels = surroundingLabels(v, unit);
+  if (labels.length === 0) return rows;
+  const sec = section(side, "Dielectrics and ground plane");
+  const list = el("div", "sm-conductors");
+  list.id = "sm-surroundings";
+  sec.appendChild(list);
+  for (const { body, text } of labels) {
+    const row = el("div", "sm-conductor sm-body");
+    row.dataset.body = body < 0 ? "ground" : String(body);
+    rows.push({ body, ...visibilityRow(list, row, text, SURROUNDING_OPACITY) });
+  }
+  return rows;
+}
+
+/** "name (εr = 4.4)" per body, then "ground plane z = 0.000 mm". */
+export function surroundingLabels(v: PageData["viewer"], unit: LengthUnit): Array<{ body: number; text: string }> {
+  const out = (v.bodies?.names ?? []).map((n, i) => ({ body: i, text: `${n} (εr = ${formatNumber(v.bodies!.permittivity[i])})` }));
+  if (v.groundPlane) out.push({ body: -1, text: `ground plane ${"xyz"[v.groundPlane.axis]} = ${formatLength(v.groundPlane.offset, unit)}` });
+  return out;
+}
+
+/** Capacitance matrices and the accuracy note; each matrix scrolls sideways in its own box when wide. */
+function capacitanceSections(side: HTMLElement, report: Record<string, any>, v: PageData["viewer"], names: string[]): void {
   const tables = section(side, "Capacitance");
   const maxwell = report.capacitance?.maxwell as number[][] | undefined;
   const mutual = report.capacitance?.mutual as number[][] | undefined;
-  if (maxwell) tables.appendChild(matrixTable("Maxwell matrix (short-circuit capacitances)", maxwell, names, "sm-maxwell"));
-  if (mutual) tables.appendChild(matrixTable("Mutual capacitances (two-terminal, to circuit nodes; diagonal: to infinity)", mutual, names, "sm-mutual"));
+  const boxed = (t: HTMLElement): HTMLElement => { const d = el("div", "sm-scroll"); d.appendChild(t); return d; };
+  if (maxwell) tables.appendChild(boxed(matrixTable("Maxwell matrix (short-circuit capacitances)", maxwell, names, "sm-maxwell")));
+  if (mutual) tables.appendChild(boxed(matrixTable(mutualCaption(report, v), mutual, names, "sm-mutual")));
   const accuracy = accuracyNote(report);
   if (accuracy !== undefined) tables.appendChild(el("p", "sm-note", accuracy));
-  const summarySec = section(side, "Conductor summary");
-  summarySec.appendChild(summaryTable(report, names, unit));
-  const warnings = (report.warnings as string[] | undefined) ?? [];
-  if (warnings.length > 0) {
-    const w = section(side, "Warnings");
-    w.appendChild(messageList(warnings));
-  }
 }
 
 /** The clipping controls, read into the state. */

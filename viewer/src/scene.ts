@@ -13,7 +13,7 @@ import { OrbitControls } from "three/examples/jsm/controls/OrbitControls.js";
 import type { HotSpot, ViewerData } from "./data.js";
 import { panelMaterial, type PanelMaterial } from "./panel-material.js";
 import { fillPanelColours, copyProxyColours, type ColourScale } from "./colour-scale.js";
-import { clipPlaneOf, conductorDetail, frontFacesOnly, type ViewerState } from "./state.js";
+import { clipPlaneOf, conductorDetail, frontFacesOnly, type ConductorState, type ViewerState } from "./state.js";
 
 const MARKER_COLOUR = 0xff00ff;
 
@@ -51,7 +51,21 @@ export interface SceneView {
   closed: boolean[];
   /** Cut at a symmetry plane: a closed part is open in the drawn half. */
   symmetric: boolean;
+  /** Dielectric bodies (data order), then the ground plane: translucent, never picked or fitted. */
+  surroundings: SurroundingView[];
 }
+
+export interface SurroundingView {
+  /** Body index, -1 for the ground plane. */
+  body: number;
+  mesh: any;
+  material: any;
+}
+
+const BODY_COLOUR = 0x6f8fb0;
+const GROUND_COLOUR = 0x8c8272;
+/** Margin of the drawn ground plane around the model, as a share of the model's larger extent in the plane. */
+export const GROUND_MARGIN = 0.3;
 
 /** The panels of each conductor (indices into the page data's panels), in panel order. */
 export function panelLists(panelConductor: Uint32Array, k: number): { counts: Uint32Array; lists: Uint32Array[] } {
@@ -116,12 +130,82 @@ export function createScene(v: ViewerData, report: Record<string, any>, state: V
   const symmetric = ((report.model?.symmetry as unknown[] | undefined)?.length ?? 0) > 0;
   const sv: SceneView = {
     scene, camera, box, radius, clipPlane, markers, ring: null, views: [], renderer, software,
-    controls: null, closed: v.closed, symmetric,
+    controls: null, closed: v.closed, symmetric, surroundings: [],
   };
   for (let c = 0; c < lists.length; c++) sv.views.push(conductorMesh(sv, v, state, c, lists[c]));
+  sv.surroundings = surroundingMeshes(v);
+  sv.surroundings.forEach((s, i) => { applySurrounding(s, state.surroundings[i]); scene.add(s.mesh); });
   sv.controls = renderer ? new OrbitControls(camera, canvas) : null;
   if (renderer) renderer.localClippingEnabled = true;
   return sv;
+}
+
+/**
+ * The ground plane as a rectangle at its offset, around everything drawn (conductors and
+ * bodies) with a margin: four corners in the frame of the drawn positions, 3 numbers each.
+ */
+export function groundRectangle(v: ViewerData): Float32Array {
+  const g = v.groundPlane!;
+  const a = g.axis, u = (a + 1) % 3, w = (a + 2) % 3;
+  const lo = [Infinity, Infinity, Infinity], hi = [-Infinity, -Infinity, -Infinity];
+  for (const P of [v.positions, v.bodies?.positions ?? new Float32Array(0)]) {
+    for (let i = 0; i < P.length; i += 3) for (let j = 0; j < 3; j++) { lo[j] = Math.min(lo[j], P[i + j]); hi[j] = Math.max(hi[j], P[i + j]); }
+  }
+  const span = Math.max(hi[u] - lo[u], hi[w] - lo[w], 1e-12);
+  const m = GROUND_MARGIN * span;
+  const at = g.offset - v.origin[a];
+  const corners = [[lo[u] - m, lo[w] - m], [hi[u] + m, lo[w] - m], [hi[u] + m, hi[w] + m], [lo[u] - m, hi[w] + m]];
+  const out = new Float32Array(12);
+  corners.forEach(([x, y], i) => { out[3 * i + a] = at; out[3 * i + u] = x; out[3 * i + w] = y; });
+  return out;
+}
+
+/** One translucent mesh per dielectric body and one for the ground plane. */
+function surroundingMeshes(v: ViewerData): SurroundingView[] {
+  const out: SurroundingView[] = [];
+  const material = (colour: number): any => new THREE.MeshLambertMaterial({
+    color: colour, transparent: true, depthWrite: false, side: THREE.DoubleSide,
+  });
+  const b = v.bodies;
+  if (b) {
+    const count = new Uint32Array(b.names.length);
+    for (let t = 0; t < b.body.length; t++) count[b.body[t]]++;
+    for (let i = 0; i < b.names.length; i++) {
+      const tri = new Uint32Array(3 * count[i]);
+      for (let t = 0, a = 0; t < b.body.length; t++) if (b.body[t] === i) { tri[a++] = b.triangles[3 * t]; tri[a++] = b.triangles[3 * t + 1]; tri[a++] = b.triangles[3 * t + 2]; }
+      const g = new THREE.BufferGeometry();
+      g.setAttribute("position", new THREE.BufferAttribute(b.positions, 3));
+      g.setIndex(new THREE.BufferAttribute(tri, 1));
+      g.computeVertexNormals();
+      g.computeBoundingSphere();
+      const m = material(BODY_COLOUR);
+      const mesh = new THREE.Mesh(g, m);
+      mesh.userData.body = i;
+      out.push({ body: i, mesh, material: m });
+    }
+  }
+  if (v.groundPlane) {
+    const g = new THREE.BufferGeometry();
+    g.setAttribute("position", new THREE.BufferAttribute(groundRectangle(v), 3));
+    g.setIndex([0, 1, 2, 0, 2, 3]);
+    g.computeVertexNormals();
+    g.computeBoundingSphere();
+    const m = material(GROUND_COLOUR);
+    const mesh = new THREE.Mesh(g, m);
+    mesh.userData.body = -1;
+    out.push({ body: -1, mesh, material: m });
+  }
+  return out;
+}
+
+/** A dielectric body's or the ground plane's visibility and opacity, from its state. */
+export function applySurrounding(s: SurroundingView, st: ConductorState): void {
+  const { visible, opacity } = st;
+  s.mesh.visible = visible;
+  s.material.opacity = opacity;
+  s.material.depthWrite = opacity >= 1;
+  s.material.transparent = opacity < 1;
+  s.material.needsUpdate = true;
 }
 
 function conductorMesh(sv: SceneView, v: ViewerData, state: ViewerState, c: number, list: Uint32Array): ConductorView {
@@ -205,6 +289,7 @@ export function applyClip(sv: SceneView, state: ViewerState): void {
   clipPlane.normal.set(plane.normal[0], plane.normal[1], plane.normal[2]);
   clipPlane.constant = plane.constant;
   const planes = state.clip.on ? [clipPlane] : [];
+  for (const s of sv.surroundings) { s.material.clippingPlanes = planes; s.material.needsUpdate = true; }
   for (const cv of sv.views) {
     for (const m of [cv.material, cv.proxyMaterial]) {
       if (!m) continue;

@@ -54,17 +54,23 @@ export interface ViewerState {
   /** The panel the read-out shows, -1 none (a pinned one is shown again for another excitation). */
   readoutPanel: number;
   conductors: ConductorState[];
+  /** Dielectric bodies (data order), then the ground plane: drawn translucent at first. */
+  surroundings: ConductorState[];
   clip: ClipState;
   motion: MotionState;
   /** A frame is already requested for the next animation frame. */
   renderQueued: boolean;
 }
 
-/** The state of a freshly opened page with `conductors` conductors. */
-export function createViewerState(conductors: number): ViewerState {
+/** Opacity of the dielectric bodies and the ground plane on opening: the conductors inside and beyond stay in view. */
+export const SURROUNDING_OPACITY = 0.3;
+
+/** The state of a freshly opened page with `conductors` conductors and `surroundings` bodies and planes. */
+export function createViewerState(conductors: number, surroundings = 0): ViewerState {
   return {
     excitation: 0, quantity: "field", scale: "linear", edges: false, selectedSpot: -1, pinned: false, readoutPanel: -1,
     conductors: Array.from({ length: conductors }, () => ({ visible: true, opacity: 1 })),
+    surroundings: Array.from({ length: surroundings }, () => ({ visible: true, opacity: SURROUNDING_OPACITY })),
     clip: { on: false, axis: 0, position: 0.5, flip: false },
     motion: { moving: false, interacting: false, drewCoarse: false, flying: false, flight: 0, settleTimer: 0, proxiesBuilt: false },
     renderQueued: false,

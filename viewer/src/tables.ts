@@ -11,11 +11,52 @@ import type { LengthUnit } from "../../src/io/units.js";
 
 // ---- Content ----
 
-/** The line under the title: input files, panels, conductors, date. */
+/** The page's heading: the scene's title when it has one. */
+export function heading(report: Record<string, any>): string {
+  const t = report.input?.title;
+  return typeof t === "string" && t.trim() !== "" ? t : "sigmesh · surface charge and field";
+}
+
+/** The scene's parameters with the values used ("gap = 2, width = 0.5"), or "" when it has none. */
+export function parameterText(report: Record<string, any>): string {
+  const p = report.input?.parameters as Record<string, number> | undefined;
+  return p ? Object.entries(p).map(([n, x]) => `${n} = ${String(x)}`).join(", ") : "";
+}
+
+/** The line under the title: input files, parameters, solved panels, conductors, date. */
 export function subtitle(report: Record<string, any>, v: ViewerData): string {
   const k = v.names.length;
   const files = (report.input?.files as string[] | undefined) ?? [];
-  return `${files.join(", ") || "extraction"} · ${v.triangles.length / 3} panels · ${k} conductor${k === 1 ? "" : "s"}${report.created ? " · " + String(report.created) : ""}`;
+  const params = parameterText(report);
+  return `${files.join(", ") || "extraction"}${params ? " · " + params : ""} · ${v.triangles.length / 3} solved panels · ${k} conductor${k === 1 ? "" : "s"}${report.created ? " · " + String(report.created) : ""}`;
+}
+
+/** What the two-terminal diagonal refers to: the data's own word, else the report's. */
+export function referenceOf(report: Record<string, any>, v: ViewerData): "ground plane" | "infinity" {
+  return v.reference ?? (report.capacitance?.reference === "ground plane" ? "ground plane" : "infinity");
+}
+
+/** The caption of the two-terminal table, naming its reference as the terminal summary does. */
+export function mutualCaption(report: Record<string, any>, v: ViewerData): string {
+  const odd = ((report.model?.symmetry as Array<{ images?: string }> | undefined) ?? []).some((p) => p.images === "odd");
+  const ref = referenceOf(report, v) === "ground plane" ? "the ground plane"
+    : odd ? "infinity and the odd symmetry plane (0 V)" : "the reference at infinity (no ground plane)";
+  return `Two-terminal capacitances (circuit values); diagonal: to ${ref}`;
+}
+
+/**
+ * The line shown of the folded cautions. Whenever the report defers to standards, local codes
+ * and licensed practice (it always does: cautions.ts), that deference stays in view.
+ */
+export function cautionGist(cautions: string[]): string {
+  if (cautions.some((c) => /standards/i.test(c))) return "Estimates, not measurements; follow the applicable standards, local codes and licensed practice.";
+  const m = /^.*?\.(?=\s|$)/.exec(cautions[0] ?? "");
+  return m ? m[0] : cautions[0] ?? "";
+}
+
+/** The folded banner's own words: how many cautions, and that they open. */
+export function cautionSummary(cautions: string[]): string {
+  return `Cautions (${cautions.length}, click to read):`;
 }
 
 /** The excitation's name in the drop-down: the working potentials, or which conductor is at 1 V. */
@@ -35,10 +76,12 @@ export function capacitanceCell(x: number): { text: string; value: string } {
   return { text: formatSI(x, "F"), value: String(x) };
 }
 
-export const SUMMARY_HEADS = ["conductor", "potential", "charge", "peak |E|", "of breakdown", "area", "panels"];
+/** The conductor summary's two tables: charge and field, then the mesh (narrow enough for the side panel each). */
+export const SUMMARY_HEADS = ["conductor", "potential", "charge", "peak |E|", "of breakdown"];
+export const MESH_HEADS = ["conductor", "area", "input triangles", "solved panels"];
 
 /** Rows of the conductor summary, one per conductor of the report, as cell texts. */
-export function summaryRows(report: Record<string, any>, names: string[], unit: LengthUnit): string[][] {
+export function summaryRows(report: Record<string, any>, names: string[]): string[][] {
   const rows = (report.conductors as any[] | undefined) ?? [];
   return rows.map((c, i) => [
     names[i] ?? String(c.name),
@@ -46,9 +89,20 @@ export function summaryRows(report: Record<string, any>, names: string[], unit: 
     formatSI(c.charge, "C"),
     c.peakField === null ? "—" : formatSI(c.peakField, "V/m"),
     c.fieldRatio === null ? "—" : `${formatNumber(100 * c.fieldRatio, 3)} %`,
-    formatArea(c.area, unit),
-    String(c.triangles),
   ]);
+}
+
+/** Solved panels per conductor (the finest mesh the page draws). */
+export function solvedPanels(v: ViewerData): number[] {
+  const n = new Array<number>(v.names.length).fill(0);
+  for (let p = 0; p < v.panelConductor.length; p++) n[v.panelConductor[p]]++;
+  return n;
+}
+
+/** Rows of the mesh table: area, the triangles read from the input, the panels solved (after refinement). */
+export function meshRows(report: Record<string, any>, names: string[], unit: LengthUnit, solved: number[]): string[][] {
+  const rows = (report.conductors as any[] | undefined) ?? [];
+  return rows.map((c, i) => [names[i] ?? String(c.name), formatArea(c.area, unit), String(c.triangles), solved[i] === undefined ? "—" : String(solved[i])]);
 }
 
 /** One hot spot in the list: rank, conductor, field, share of breakdown, margin and place. */
@@ -111,18 +165,27 @@ export function matrixTable(caption: string, m: number[][], names: string[], id:
   return t;
 }
 
-export function summaryTable(report: Record<string, any>, names: string[], unit: LengthUnit): HTMLTableElement {
+/** A table of text rows under `heads`; the first column holds names (they may wrap anywhere). */
+function textTable(id: string, heads: string[], rows: string[][]): HTMLTableElement {
   const t = el("table", "sm-summary");
-  t.id = "sm-summary";
+  t.id = id;
   const head = el("tr");
-  for (const h of SUMMARY_HEADS) head.appendChild(el("th", undefined, h));
+  for (const h of heads) head.appendChild(el("th", undefined, h));
   t.appendChild(head);
-  for (const cells of summaryRows(report, names, unit)) {
+  for (const cells of rows) {
     const tr = el("tr");
-    for (const x of cells) tr.appendChild(el("td", undefined, x));
+    cells.forEach((x, i) => tr.appendChild(el("td", i === 0 ? "sm-name-cell" : undefined, x)));
     t.appendChild(tr);
   }
   return t;
+}
+
+/** The conductor summary: charge and field (`sm-summary`), then area, input triangles and solved panels (`sm-mesh`). */
+export function summaryTables(report: Record<string, any>, names: string[], unit: LengthUnit, solved: number[]): HTMLTableElement[] {
+  return [
+    textTable("sm-summary", SUMMARY_HEADS, summaryRows(report, names)),
+    textTable("sm-mesh", MESH_HEADS, meshRows(report, names, unit, solved)),
+  ];
 }
 
 /** A bulleted list of messages (cautions, warnings). */
