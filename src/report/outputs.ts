@@ -123,7 +123,9 @@ export function extractionFiles(result: SceneExtraction, req: OutputTargets): Ou
   if (req.spice) {
     // With floating conductors the circuit sees only the driven ones: the reduced matrix.
     files.push({ path: req.spice, option: "--spice", data: spiceSubcircuit(result.reducedNames, result.reducedMutual, {
-      reference: result.reference, relativeThreshold: req.spiceThreshold, title, eliminated: result.floatingNames,
+      // The deck's first line: the scene's own title with the input's name, else the name alone.
+      reference: result.reference, relativeThreshold: req.spiceThreshold, eliminated: result.floatingNames,
+      title: result.input.title && result.input.title.trim() !== "" ? `${result.input.title} (${title})` : title,
       // Named after the file, so that several extracted netlists can be included in one deck.
       subcktName: req.spice === "-" ? undefined : basename(req.spice, extname(req.spice)),
     }) });

@@ -55,6 +55,11 @@ describe("a scene's title, parameters, ground plane and bodies in the reports", 
     expect(md.toLowerCase()).not.toContain("infinity");
   });
 
+  it("opens the SPICE deck with the title and the scene's file name, on one line", () => {
+    const net = extractionFiles(result, { spice: join(dir, "r.cir") })[0].data as string;
+    expect(net.split("\n")[0]).toBe(`* ${TITLE} (${join(dir, "pads.json")})`);
+  });
+
   it("names the HTML page after the title and embeds it with the viewer data's reference, plane and bodies", () => {
     const html = extractionFiles(result, { html: join(dir, "r.html") })[0].data as string;
     expect(html).toContain("<title>Two pads on a &#60;slab&#62; over ground — sigmesh report</title>");
