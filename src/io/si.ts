@@ -103,12 +103,31 @@ export function formatFieldStrength(voltsPerMetre: number, digits = 3): string {
 }
 
 /**
- * Significant digits a value supports given its absolute error estimate: the last digit
- * printed is the first uncertain one (digitsFor(352.4, 3.5) → 3, "352"). Clamped to [1, max];
- * a zero or missing error gives `fallback`.
+ * Significant digits a value supports given its absolute error estimate: the fewest whose
+ * rounding (half a unit in the last digit) stays within the estimate, so that the printed
+ * value is as trustworthy as the estimate says (digitsFor(352.4, 3.5) → 3, "352";
+ * digitsFor(127.52, 0.128) → 4, "127.5", where "128" would be off by more than its own
+ * estimate). Clamped to [1, max]; a zero or missing error gives `fallback`.
  */
 export function digitsFor(value: number, absError: number | undefined, fallback = 3, max = 6): number {
   if (absError === undefined || !Number.isFinite(absError) || absError <= 0 || !Number.isFinite(value) || value === 0) return fallback;
-  const d = Math.floor(Math.log10(Math.abs(value) / absError)) + 1;
+  // Half a unit in digit d of |value| = 10^e is 0.5·10^(e − d + 1) ≤ absError.
+  const e = Math.floor(Math.log10(Math.abs(value)));
+  const d = Math.ceil(e + 1 - Math.log10(2 * absError) - 1e-12);
   return Math.min(max, Math.max(1, d));
+}
+
+/**
+ * Error estimates of the values derived from a Maxwell matrix, given its entries' estimates
+ * `maxwell` (k×k, absolute) and the working potentials: a two-terminal diagonal (a row sum) and
+ * a conductor's charge (Σ_j C_ij V_j) take the sums of their row's estimates, weighted by |V_j|
+ * for the charge; the off-diagonal two-terminal values those of their Maxwell entries. Every
+ * report prints these values to `digitsFor` their estimates.
+ */
+export function derivedErrors(maxwell: readonly (readonly number[])[], potentials: readonly number[]): { maxwell: number[][]; mutual: number[][]; charge: number[] } {
+  return {
+    maxwell: maxwell.map((row) => [...row]),
+    mutual: maxwell.map((row, i) => row.map((x, j) => (i === j ? row.reduce((s, y) => s + y, 0) : x))),
+    charge: maxwell.map((row) => row.reduce((s, y, j) => s + y * Math.abs(potentials[j] ?? 0), 0)),
+  };
 }

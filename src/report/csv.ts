@@ -25,7 +25,7 @@
  */
 import { InputError } from "../errors.js";
 import type { LengthUnit } from "../io/units.js";
-import { formatSI, formatNumber, formatFieldStrength, formatPoint, formatArea, unitLabel } from "../io/si.js";
+import { formatSI, formatNumber, formatFieldStrength, formatPoint, formatArea, unitLabel, digitsFor, derivedErrors } from "../io/si.js";
 import { displayText } from "../io/display-text.js";
 
 export interface ReportConductor {
@@ -329,21 +329,24 @@ export function markdownReport(data: ReportData, opts: { title?: string } = {}):
 
   out.push("## Conductors");
   out.push("");
+  // Capacitances and charges to the digits their estimates support, as the terminal prints them (three without).
+  const errors = data.accuracy?.errorEstimate ? derivedErrors(data.accuracy.errorEstimate, data.conductors.map((c) => c.potential)) : undefined;
+  const cap = (x: number, e: number | undefined): string => formatSI(x, "F", digitsFor(x, e));
   const crow = data.conductors.map((c, i) => {
     const at = c.peakFieldAt.every((x) => x !== null) ? formatPoint(c.peakFieldAt as number[], unit, 4) : "n/a";
     const f = Math.hypot(c.force[0], c.force[1], c.force[2]);
-    return [names[i], formatSI(c.potential, "V"), formatSI(c.charge, "C"), field(c.peakField), markdownText(at), ratio(c.fieldRatio),
+    return [names[i], formatSI(c.potential, "V"), formatSI(c.charge, "C", digitsFor(c.charge, errors?.charge[i])), field(c.peakField), markdownText(at), ratio(c.fieldRatio),
       formatSI(f, "N"), c.area === undefined ? "" : formatArea(c.area, unit)];
   });
   out.push(...markdownTable(["conductor", "potential", "charge", "peak \\|E\\|", "at", "E/Eb", "\\|force\\|", "area"], crow,
     [false, true, true, true, false, true, true, true]));
   out.push("");
 
-  const matrixTable = (m: number[][]): string[] =>
-    markdownTable(["", ...names], m.map((row, i) => [names[i], ...row.map((x) => formatSI(x, "F"))]), [false, ...names.map(() => true)]);
+  const matrixTable = (m: number[][], e: number[][] | undefined): string[] =>
+    markdownTable(["", ...names], m.map((row, i) => [names[i], ...row.map((x, j) => cap(x, e?.[i][j]))]), [false, ...names.map(() => true)]);
   out.push(`## Maxwell capacitance matrix${data.capacitance.extrapolated ? " (extrapolated)" : ""}`);
   out.push("");
-  out.push(...matrixTable(data.capacitance.maxwell));
+  out.push(...matrixTable(data.capacitance.maxwell, errors?.maxwell));
   out.push("");
   out.push("## Two-terminal (mutual) capacitances");
   out.push("");
@@ -351,11 +354,17 @@ export function markdownReport(data: ReportData, opts: { title?: string } = {}):
   const mrows: string[][] = [];
   // The reference named as the terminal summary names it.
   const refName = ref === "ground plane" ? "ground plane" : `reference (${markdownText(ref)})`;
-  for (let i = 0; i < k; i++) mrows.push([`${names[i]} – ${refName}`, formatSI(data.capacitance.mutual[i][i], "F")]);
-  for (let i = 0; i < k; i++) for (let j = i + 1; j < k; j++) mrows.push([`${names[i]} – ${names[j]}`, formatSI(data.capacitance.mutual[i][j], "F")]);
+  for (let i = 0; i < k; i++) mrows.push([`${names[i]} – ${refName}`, cap(data.capacitance.mutual[i][i], errors?.mutual[i][i])]);
+  for (let i = 0; i < k; i++) for (let j = i + 1; j < k; j++) mrows.push([`${names[i]} – ${names[j]}`, cap(data.capacitance.mutual[i][j], errors?.mutual[i][j])]);
   out.push(...markdownTable(["between", "capacitance"], mrows, [false, true]));
   out.push("");
-  if (data.energy !== undefined) { out.push(`Stored energy at the working potentials: ${formatSI(data.energy, "J")}.`); out.push(""); }
+  if (data.energy !== undefined) {
+    // W = ½ VᵀCV: its estimate ½ Σ |V_i||V_j| e_ij.
+    const v = data.conductors.map((c) => c.potential);
+    const e = data.accuracy?.errorEstimate ? 0.5 * data.accuracy.errorEstimate.reduce((s, row, i) => s + row.reduce((t, x, j) => t + x * Math.abs(v[i] * v[j]), 0), 0) : undefined;
+    out.push(`Stored energy at the working potentials: ${formatSI(data.energy, "J", digitsFor(data.energy, e))}.`);
+    out.push("");
+  }
 
   out.push("## Accuracy");
   out.push("");
@@ -365,7 +374,7 @@ export function markdownReport(data: ReportData, opts: { title?: string } = {}):
     out.push("");
     out.push(...markdownTable(["panels", ...names.map((n) => `C(${n})`)],
       [...a.levels.map((l) => [String(l.panels), ...l.maxwell.map((row, i) => formatSI(row[i], "F"))]),
-        ["extrapolated", ...data.capacitance.maxwell.map((row, i) => formatSI(row[i], "F"))]],
+        ["extrapolated", ...data.capacitance.maxwell.map((row, i) => cap(row[i], errors?.maxwell[i][i]))]],
       [true, ...names.map(() => true)]));
   } else {
     out.push("Not estimated: the extraction ran on one mesh (refine it for an error estimate).");

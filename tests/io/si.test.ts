@@ -66,6 +66,14 @@ describe("digits supported by an error estimate", () => {
   it("print up to the first uncertain digit", () => {
     expect(digitsFor(352.4, 3.5)).toBe(3);     // ±1 %: "352"
     expect(digitsFor(352.4, 0.25)).toBe(4);    // ±0.07 %: "352.4"
+    expect(digitsFor(127.52, 0.128)).toBe(4);  // "128" would be 0.48 off, beyond ±0.128: "127.5"
+    // Whatever the value and estimate, the printed value is within the estimate of the value.
+    for (const [v, e] of [[127.52, 0.128], [1.11268, 2e-4], [9.996, 0.003], [0.0123456, 1e-6], [5.55e-13, 4e-16]]) {
+      const d = digitsFor(v, e);
+      expect(Math.abs(Number(v.toPrecision(d)) - v), `${v} ± ${e} to ${d} digits`).toBeLessThanOrEqual(e);
+      // One digit fewer, rounding could move a value by more than the estimate (half a unit in its last digit).
+      if (d > 1) expect(0.5 * 10 ** (Math.floor(Math.log10(v)) - (d - 1) + 1), `${d} digits is the fewest for ${v} ± ${e}`).toBeGreaterThan(e);
+    }
     expect(digitsFor(1.431e-16, 6e-14)).toBe(1); // error larger than the value: one digit at most
     expect(digitsFor(1, 1e-12)).toBe(6);       // clamped
     expect(digitsFor(5, undefined)).toBe(3);   // no estimate: the fallback

@@ -4,7 +4,7 @@
 // as text.
 import { describe, it, expect, beforeEach, afterEach } from "vitest";
 import {
-  subtitle, excitationLabel, accuracyNote, capacitanceCell, summaryRows, hotSpotText, hotSpotClass, hotSpotNote,
+  subtitle, excitationLabel, accuracyNote, capacitanceCell, reportErrors, summaryRows, hotSpotText, hotSpotClass, hotSpotNote,
   sheetBoundNote, panelCentroid, readoutLines, matrixTable, summaryTables, fillHotSpots, markSelectedSpot, showReadout, SUMMARY_HEADS,
   MESH_HEADS, meshRows, solvedPanels, heading, parameterText, referenceOf, mutualCaption, cautionGist, cautionSummary,
 } from "../../viewer/src/tables.js";
@@ -102,12 +102,27 @@ describe("content", () => {
     expect(accuracyNote({ accuracy: { relativeError: 0.0123 } })).toBe("Estimated relative error of the matrix (Richardson): 0.012");
   });
 
-  it("shows a capacitance with its prefix and keeps the exact value beside it", () => {
+  it("shows a capacitance with its prefix, to the digits its estimate supports as the terminal does, and keeps the exact value beside it", () => {
     const x = 1.2345678901234567e-12;
     const c = capacitanceCell(x);
-    expect(c.text).toBe("1.235 pF");
+    // No estimate: three digits, as the terminal summary prints them.
+    expect(c.text).toBe("1.23 pF");
     expect(Number(c.value)).toBe(x);
-    expect(capacitanceCell(-3.3e-14).text).toBe("-33.00 fF");
+    expect(capacitanceCell(-3.3e-14).text).toBe("-33.0 fF");
+    // 127.52 ± 0.128 fF: "127.5 fF", not "128 fF" (off by more than its estimate).
+    expect(capacitanceCell(127.52e-15, 0.128e-15).text).toBe("127.5 fF");
+    expect(capacitanceCell(x, 6e-16).text).toBe("1.235 pF");
+    expect(capacitanceCell(x, 2e-17).text).toBe("1.23457 pF");
+  });
+
+  it("reads the error estimates of the matrices and charges from the report", () => {
+    const report = { conductors: [{ potential: 2 }, { potential: -1 }], accuracy: { errorEstimate: [[1e-15, 2e-16], [2e-16, 3e-15]] } };
+    const e = reportErrors(report)!;
+    expect(e.maxwell).toEqual(report.accuracy.errorEstimate);
+    expect(e.mutual[0][0]).toBeCloseTo(1.2e-15, 30);
+    expect(e.mutual[0][1]).toBe(2e-16);
+    expect(e.charge[0]).toBeCloseTo(2 * 1e-15 + 1 * 2e-16, 30);
+    expect(reportErrors({ conductors: [] })).toBeUndefined();
   });
 
   it("formats the conductor summary, with a dash where a conductor has no field", () => {
@@ -119,8 +134,8 @@ describe("content", () => {
     };
     expect(SUMMARY_HEADS).toEqual(["conductor", "potential", "charge", "peak |E|", "of breakdown"]);
     expect(summaryRows(report, ["ball", MARKUP])).toEqual([
-      ["ball", "2.000 kV", "33.00 pC", "1.500 MV/m", "50.0 %"],
-      [MARKUP, "0.000 V", "-33.00 pC", "—", "—"],
+      ["ball", "2.000 kV", "33.0 pC", "1.500 MV/m", "50.0 %"],
+      [MARKUP, "0.000 V", "-33.0 pC", "—", "—"],
     ]);
     expect(summaryRows({}, ["a"])).toEqual([]);
     // Input triangles (the report's) and solved panels (the drawn mesh's), both named.
@@ -208,7 +223,7 @@ describe("elements", () => {
     expect(ths).toEqual([null, "ball", MARKUP, "ball", MARKUP]);
     expect(t.all("img")).toHaveLength(0);
     const tds = t.all("td");
-    expect(tds.map((td) => td.textContent)).toEqual(["1.250 pF", "-330.0 fF", "-330.0 fF", "800.0 fF"]);
+    expect(tds.map((td) => td.textContent)).toEqual(["1.25 pF", "-330 fF", "-330 fF", "800 fF"]);
     expect(tds.map((td) => Number(td.dataset.value))).toEqual([1.25e-12, -3.3e-13, -3.3e-13, 8e-13]);
   });
 
@@ -217,7 +232,7 @@ describe("elements", () => {
     const [t, m] = summaryTables(report, [MARKUP], "mm", [8]) as unknown as FakeElement[];
     expect(t.id).toBe("sm-summary");
     expect(t.all("th").map((th) => th.textContent)).toEqual(SUMMARY_HEADS);
-    expect(t.all("td").map((td) => td.textContent)).toEqual([MARKUP, "1.000 V", "1.000 pC", "—", "—"]);
+    expect(t.all("td").map((td) => td.textContent)).toEqual([MARKUP, "1.000 V", "1.00 pC", "—", "—"]);
     expect(m.id).toBe("sm-mesh");
     expect(m.all("th").map((th) => th.textContent)).toEqual(MESH_HEADS);
     expect(m.all("td").map((td) => td.textContent)).toEqual([MARKUP, "1.000 mm²", "2", "8"]);

@@ -11,7 +11,7 @@ import type { PageData } from "./data.js";
 import type { ClipState } from "./state.js";
 import { axisOf, SURROUNDING_OPACITY } from "./state.js";
 import {
-  heading, subtitle, excitationLabel, accuracyNote, matrixTable, summaryTables, solvedPanels, messageList, mutualCaption,
+  heading, subtitle, excitationLabel, accuracyNote, matrixTable, reportErrors, summaryTables, solvedPanels, messageList, mutualCaption,
   cautionGist, cautionSummary,
 } from "./tables.js";
 import type { LengthUnit } from "../../src/io/units.js";
@@ -238,8 +238,9 @@ function capacitanceSections(side: HTMLElement, report: Record<string, any>, v: 
   const maxwell = report.capacitance?.maxwell as number[][] | undefined;
   const mutual = report.capacitance?.mutual as number[][] | undefined;
   const boxed = (t: HTMLElement): HTMLElement => { const d = el("div", "sm-scroll"); d.appendChild(t); return d; };
-  if (maxwell) tables.appendChild(boxed(matrixTable("Maxwell matrix (short-circuit capacitances)", maxwell, names, "sm-maxwell")));
-  if (mutual) tables.appendChild(boxed(matrixTable(mutualCaption(report, v), mutual, names, "sm-mutual")));
+  const errors = reportErrors(report);
+  if (maxwell) tables.appendChild(boxed(matrixTable("Maxwell matrix (short-circuit capacitances)", maxwell, names, "sm-maxwell", errors?.maxwell)));
+  if (mutual) tables.appendChild(boxed(matrixTable(mutualCaption(report, v), mutual, names, "sm-mutual", errors?.mutual)));
   const accuracy = accuracyNote(report);
   if (accuracy !== undefined) tables.appendChild(el("p", "sm-note", accuracy));
 }

@@ -6,7 +6,7 @@
  */
 import { el } from "./dom.js";
 import type { Excitation, HotSpot, ViewerData } from "./data.js";
-import { formatSI, formatPoint, formatNumber, formatArea } from "../../src/io/si.js";
+import { formatSI, formatPoint, formatNumber, formatArea, digitsFor, derivedErrors } from "../../src/io/si.js";
 import type { LengthUnit } from "../../src/io/units.js";
 
 // ---- Content ----
@@ -71,9 +71,20 @@ export function accuracyNote(report: Record<string, any>): string | undefined {
   return `Estimated relative error of the matrix (Richardson): ${formatNumber(report.accuracy.relativeError, 2)}`;
 }
 
-/** A capacitance-matrix cell: its text, and the exact value kept beside it (a data attribute). */
-export function capacitanceCell(x: number): { text: string; value: string } {
-  return { text: formatSI(x, "F"), value: String(x) };
+/**
+ * A capacitance-matrix cell: its text, and the exact value kept beside it (a data attribute).
+ * Digits as the terminal summary prints them: as many as the entry's error estimate supports
+ * (`digitsFor`), three without one.
+ */
+export function capacitanceCell(x: number, error?: number): { text: string; value: string } {
+  return { text: formatSI(x, "F", digitsFor(x, error)), value: String(x) };
+}
+
+/** The error estimates of the report's matrices and charges (`derivedErrors`); undefined without an estimate. */
+export function reportErrors(report: Record<string, any>): { maxwell: number[][]; mutual: number[][]; charge: number[] } | undefined {
+  const e = report.accuracy?.errorEstimate as number[][] | undefined;
+  if (!Array.isArray(e)) return undefined;
+  return derivedErrors(e, ((report.conductors as any[] | undefined) ?? []).map((c) => Number(c.potential)));
 }
 
 /** The conductor summary's two tables: charge and field, then the mesh (narrow enough for the side panel each). */
@@ -83,10 +94,11 @@ export const MESH_HEADS = ["conductor", "area", "input triangles", "solved panel
 /** Rows of the conductor summary, one per conductor of the report, as cell texts. */
 export function summaryRows(report: Record<string, any>, names: string[]): string[][] {
   const rows = (report.conductors as any[] | undefined) ?? [];
+  const errors = reportErrors(report);
   return rows.map((c, i) => [
     names[i] ?? String(c.name),
     formatSI(c.potential, "V"),
-    formatSI(c.charge, "C"),
+    formatSI(c.charge, "C", digitsFor(c.charge, errors?.charge[i])),
     c.peakField === null ? "—" : formatSI(c.peakField, "V/m"),
     c.fieldRatio === null ? "—" : `${formatNumber(100 * c.fieldRatio, 3)} %`,
   ]);
@@ -148,7 +160,7 @@ export function readoutLines(v: ViewerData, e: Excitation, p: number, pin: boole
 
 // ---- Elements ----
 
-export function matrixTable(caption: string, m: number[][], names: string[], id: string): HTMLTableElement {
+export function matrixTable(caption: string, m: number[][], names: string[], id: string, errors?: number[][]): HTMLTableElement {
   const t = el("table", "sm-matrix");
   t.id = id;
   t.appendChild(el("caption", undefined, caption));
@@ -159,7 +171,7 @@ export function matrixTable(caption: string, m: number[][], names: string[], id:
   m.forEach((row, i) => {
     const tr = el("tr");
     tr.appendChild(el("th", undefined, names[i]));
-    for (const x of row) { const cell = capacitanceCell(x); const td = el("td", undefined, cell.text); td.dataset.value = cell.value; tr.appendChild(td); }
+    row.forEach((x, j) => { const cell = capacitanceCell(x, errors?.[i]?.[j]); const td = el("td", undefined, cell.text); td.dataset.value = cell.value; tr.appendChild(td); });
     t.appendChild(tr);
   });
   return t;
