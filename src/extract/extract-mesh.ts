@@ -36,7 +36,7 @@ import { kernelPlanes, symmetryCopies, conductorRanges, checkSides, trianglesInS
 import { EPSILON_0 } from "./constants.js";
 import { capacitanceMatrices, chargesAt, storedEnergy, mutualFromMaxwell } from "./capacitance.js";
 import { richardson } from "./accuracy.js";
-import { peakResidentBytes } from "./memory.js";
+import { runPeakMeter } from "./memory.js";
 import { eliminateFloating, withFloatingPotentials } from "./floating.js";
 import { prepareBodies, type PreparedBody } from "./dielectric-bodies.js";
 import { resolveOptions, lengthDescriber, type MeshExtractOptions, type ResolvedOptions } from "./options.js";
@@ -66,6 +66,15 @@ export function assumedOrder(hasSharpFeatures: boolean): number {
  */
 export async function extractMesh(input: SurfaceMesh, opts: MeshExtractOptions = {}): Promise<ExtractionResult> {
   const t0 = performance.now();
+  const meter = runPeakMeter();
+  try {
+    return await extractMeshMetered(input, opts, t0, meter);
+  } finally {
+    meter.stop();
+  }
+}
+
+async function extractMeshMetered(input: SurfaceMesh, opts: MeshExtractOptions, t0: number, meter: ReturnType<typeof runPeakMeter>): Promise<ExtractionResult> {
   const k = input.names.length;
   if (k === 0 || triangleCount(input) === 0) throw new InputError("nothing to extract: no conductor with triangles");
   const describe = lengthDescriber(opts.lengthUnit);
@@ -88,7 +97,7 @@ export async function extractMesh(input: SurfaceMesh, opts: MeshExtractOptions =
   const reduced = floatingElimination(matrices.maxwell, K, o.floating, o.potentials, layout.names);
   const point = await workingPointFields(finest, K, reduced.working, netClosed, layout.kernel, o, warnings);
 
-  return assembledResult({ t0, layout, o, cut, oriented, netClosed, netCounts, solves, finest, matrices, reduced, point, warnings });
+  return assembledResult({ t0, peakMemory: meter.stop(), layout, o, cut, oriented, netClosed, netCounts, solves, finest, matrices, reduced, point, warnings });
 }
 
 interface Surroundings {
@@ -239,6 +248,8 @@ function floatingElimination(maxwell: Float64Array, K: number, floating: boolean
 /** The phases' outputs, in the order they ran. */
 interface Phases {
   t0: number;
+  /** The run's own peak resident memory (runPeakMeter); bytes. */
+  peakMemory: number;
   layout: SymmetryLayout;
   o: ResolvedOptions;
   cut: Surroundings;
@@ -295,7 +306,7 @@ function assembledResult(r: Phases): ExtractionResult {
     excitation: point.excitation, panels: finest.unit.panels,
     unitCharges: scaleCopy(finest.unit.x, 4 * Math.PI * (model ? EPSILON_0 : o.permittivity)), peaks, forcesComplete: point.forcesComplete,
     accuracy: matrices.accuracy,
-    solver: { ...lastInfo, seconds, peakMemory: peakResidentBytes(), levels },
+    solver: { ...lastInfo, seconds, peakMemory: r.peakMemory, levels },
     orientation: { flippedComponents: r.oriented.flippedComponents, unorientable: r.oriented.unorientable },
     reference: layout.kernel?.groundPlane ? "ground plane" : "infinity",
     groundPlane: o.groundPlane, symmetry: layout.planes, symmetryCopies: symmetryCopies(layout.checkKernel), mirrorNets: layout.nets,

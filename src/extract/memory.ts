@@ -25,6 +25,30 @@ export function assertDenseFits(n: number, k: number, limit = usableMemory()): v
   }
 }
 
+/**
+ * The peak resident memory of one run, not of the process (a second run in one process, such as
+ * the demo's, would otherwise report the first's): when the process-wide peak (getrusage's
+ * maxRSS) rose during the run, the run reached it; when it did not, the run stayed below an
+ * earlier one and its own peak is the largest resident size sampled (every `intervalMs` while
+ * the event loop is free, as it is while the workers solve, and at each `sample()`).
+ */
+export function runPeakMeter(intervalMs = 20): { sample(): void; stop(): number } {
+  const before = peakResidentBytes();
+  let peak = process.memoryUsage.rss();
+  const sample = (): void => { const r = process.memoryUsage.rss(); if (r > peak) peak = r; };
+  const timer = setInterval(sample, intervalMs);
+  timer.unref();
+  return {
+    sample,
+    stop(): number {
+      clearInterval(timer);
+      sample();
+      const after = peakResidentBytes();
+      return after > before ? Math.max(after, peak) : peak;
+    },
+  };
+}
+
 /** Peak resident set size of this process so far; bytes. */
 export function peakResidentBytes(): number {
   // resourceUsage().maxRSS is in kilobytes (getrusage ru_maxrss on Linux).
