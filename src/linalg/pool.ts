@@ -61,7 +61,9 @@ export class WorkerPool {
   constructor(size: number = defaultThreads()) {
     this.size = Math.max(1, size);
     for (let i = 0; i < this.size; i++) {
-      const w = new Worker(WORKER_SOURCE, { eval: true });
+      // The worker's source is CommonJS: a parent started with --input-type=module (a script
+      // given with -e) must not pass that flag on, or the source would be read as a module.
+      const w = new Worker(WORKER_SOURCE, { eval: true, execArgv: process.execArgv.filter((a) => !a.startsWith("--input-type")) });
       w.on("message", (msg: { id: number; ok: boolean; result?: unknown; error?: string }) => {
         const p = this.pending.get(msg.id);
         if (!p) return;

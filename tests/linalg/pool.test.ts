@@ -69,3 +69,22 @@ describe("compiled modules for the workers", () => {
     } finally { await pool.close(); }
   });
 });
+
+describe("WorkerPool in a script given with -e", () => {
+  it("works when the parent runs with --input-type=module (the workers' CommonJS source is not read as a module)", async () => {
+    const { spawnSync } = await import("node:child_process");
+    const url = new URL("../../dist/src/linalg/pool.js", import.meta.url).href;
+    const selftest = new URL("../../dist/src/linalg/pool-selftest.js", import.meta.url).href;
+    const script = `import { WorkerPool, sharedFloat64 } from ${JSON.stringify(url)};
+      import { fillRangeTask } from ${JSON.stringify(selftest)};
+      const pool = new WorkerPool(1);
+      const out = sharedFloat64(4);
+      await pool.run(fillRangeTask, 0, [out, 0, 4, 2]);
+      await pool.close();
+      process.stdout.write(Array.from(out).join(","));`;
+    const r = spawnSync(process.execPath, ["--input-type=module", "-e", script], { encoding: "utf8" });
+    expect(r.stderr).toBe("");
+    expect(r.status).toBe(0);
+    expect(r.stdout).toBe("2,2,2,2");
+  });
+});
