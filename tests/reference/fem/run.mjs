@@ -12,8 +12,8 @@
 // Every run is started under `nice`. Work files go to a temporary directory, removed at
 // the end. Each solved mesh's row is kept in runs.json beside this script (the raw record)
 // and reused by later runs with the same geometry file, size and radius; `--fresh`
-// recomputes all. About 25 minutes on the shared 2-core machine under a load of 15
-// (3 minutes unloaded).
+// recomputes all. From scratch: 27 minutes on the shared 2-core machine under a load
+// average of 5–16; peak memory of one GetDP run about 1.5 GB.
 import { spawnSync } from "node:child_process";
 import { mkdtempSync, readFileSync, rmSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
