@@ -214,4 +214,6 @@ try {
 } catch {}
 writeFileSync(target, lines.join("\n") + "\n" + kept);
 rmSync(work, { recursive: true, force: true });
+// GetDP leaves its pre-processing file beside the .pro.
+rmSync(join(here, "filleted-electrode.pre"), { force: true });
 console.error(`wrote ${target}`);
