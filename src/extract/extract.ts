@@ -26,6 +26,7 @@ import { checkedRefine } from "./options.js";
 import type { ExtractionResult } from "./result.js";
 import { checkConductors, implausibleSize } from "./scene-check.js";
 import { physicalSizeFault } from "../mesh/physical-size.js";
+import { locatePoints, type PointLocations } from "../mesh/point-location.js";
 import { InputError } from "../errors.js";
 
 /** What a run adds to the scene: how to solve it, and how to follow and stop it. */
@@ -57,7 +58,8 @@ export interface ExtractSettings {
 }
 
 /** A probe request with its points (metres) and the potential and field there. */
-export interface ProbeRun { spec: ProbeSpec; points: Float64Array; result: ProbeResult }
+/** A probe request evaluated: its points (metres), the potential and field there, and where the points lie against the conductors. */
+export interface ProbeRun { spec: ProbeSpec; points: Float64Array; result: ProbeResult; location: PointLocations }
 
 /** What was read: enough to name the input in every output. */
 export interface ExtractionInput {
@@ -135,6 +137,7 @@ export async function extract(scene: LoadedScene, settings: ExtractSettings = {}
   });
   signal?.throwIfAborted();
   const probes = runProbes(result, [...scene.probes, ...(settings.probes ?? [])], scene.unit);
+  for (const w of probeWarnings(probes, result.mesh.names)) { settings.warn?.(w); warnings.push(w); }
   return {
     ...result,
     input: { files: scene.files, scene: scene.scene, source, unit: scene.unit, unitAssumed: scene.unitAssumed, parameters: { ...scene.parameters }, warnings, ...(scene.title !== undefined ? { title: scene.title } : {}) },
@@ -144,8 +147,33 @@ export async function extract(scene: LoadedScene, settings: ExtractSettings = {}
 
 /** Evaluate probe requests on an extraction (request coordinates in `unit`). */
 export function runProbes(result: ExtractionResult, specs: readonly ProbeSpec[], unit: LengthUnit): ProbeRun[] {
+  const closed = result.mesh.names.map((_, c) => result.conductors[c]?.closed ?? false);
   return specs.map((spec) => {
     const points = probePoints(spec, metresPer(unit));
-    return { spec, points, result: probeExtraction(result, points) };
+    return { spec, points, result: probeExtraction(result, points), location: locatePoints(result.mesh, closed, points) };
   });
+}
+
+/**
+ * A warning per probe request with points on a conductor's surface (they read about half the
+ * surface field: the principal value) or inside a closed conductor (the model's interior:
+ * the conductor's potential, a field near zero), naming the conductors and the point numbers.
+ */
+export function probeWarnings(runs: readonly ProbeRun[], names: readonly string[]): string[] {
+  const out: string[] = [];
+  const list = (ix: number[]): string => (ix.length <= 8 ? ix.join(", ") : `${ix.slice(0, 8).join(", ")}, ... (${ix.length} in all)`);
+  for (const r of runs) {
+    const m = r.points.length / 3;
+    const parts: string[] = [];
+    for (const [kind, at, note] of [
+      ["on the surface of", r.location.onSurface, "they read about half the surface field there"],
+      ["inside", r.location.inside, "they read the conductor's interior: its potential and a field near zero"],
+    ] as const) {
+      const by = new Map<number, number[]>();
+      for (let i = 0; i < m; i++) if (at[i] >= 0) { const l = by.get(at[i]) ?? []; l.push(i); by.set(at[i], l); }
+      for (const [c, ix] of by) parts.push(`point${ix.length === 1 ? "" : "s"} ${list(ix)} ${ix.length === 1 ? "lies" : "lie"} ${kind} conductor ${names[c]} (${note})`);
+    }
+    if (parts.length > 0) out.push(`probe ${r.spec.name}: ${parts.join("; ")}`);
+  }
+  return out;
 }

@@ -78,3 +78,32 @@ describe("probes against closed forms", async () => {
     }
   });
 });
+
+describe("probe points inside or on a conductor", () => {
+  it("are named in a warning per request: inside a closed conductor, on a surface; free points are not", async () => {
+    const { mkdtempSync, writeFileSync, rmSync } = await import("node:fs");
+    const { tmpdir } = await import("node:os");
+    const { join } = await import("node:path");
+    const { loadScene } = await import("../../src/io/inputs.js");
+    const { extract } = await import("../../src/extract/extract.js");
+    const dir = mkdtempSync(join(tmpdir(), "sigmesh-probe-loc-"));
+    try {
+      // A cube of side 2 mm has flat faces, so the line's point at x = 1 mm is exactly on one.
+      writeFileSync(join(dir, "s.json"), JSON.stringify({ unit: "mm",
+        conductors: [{ name: "cube", shape: { box: { size: [2, 2, 2], divisions: 2 } }, potential: 1 },
+          { name: "sheet", shape: { plate: { size: [2, 2], divisions: 2 } }, place: { translate: [0, 0, 5] } }],
+        probes: [{ name: "axis", line: { from: [0, 0, 0], to: [4, 0, 0], points: 5 } },
+          { name: "free", point: [0, 0, 3] }, { name: "onsheet", point: [0.3, 0.2, 5] }] }));
+      const r = await extract(loadScene(join(dir, "s.json")));
+      const w = r.input.warnings.filter((s) => s.startsWith("probe "));
+      expect(w).toEqual([
+        "probe axis: point 1 lies on the surface of conductor cube (they read about half the surface field there); point 0 lies inside conductor cube (they read the conductor's interior: its potential and a field near zero)",
+        "probe onsheet: point 0 lies on the surface of conductor sheet (they read about half the surface field there)",
+      ]);
+      // Inside the cube the potential is the cube's own, to the accuracy of 24 panels.
+      expect(Math.abs(r.probes[0].result.potential[0] - 1)).toBeLessThan(0.05);
+    } finally {
+      rmSync(dir, { recursive: true, force: true });
+    }
+  });
+});
