@@ -92,6 +92,22 @@ export function conductorForces(
   return { force, complete };
 }
 
+/**
+ * A conductor's net force is the small sum of large panel forces that cancel (exactly, by
+ * symmetry, on a sphere alone or centred in a shell); what is left after a solve to a relative
+ * residual of about 1e-6 is noise. A net force below this fraction of the sum of its panels'
+ * force magnitudes is not resolved. One rule for every conductor, whatever surrounds it.
+ */
+export const FORCE_RESOLUTION = 1e-5;
+
+/** Per conductor, FORCE_RESOLUTION × Σ ½ ε E² A over its panels (E the panel's field); N. */
+export function forceResolutions(field: Float64Array, P: PanelSet, conductorOf: Uint32Array, k: number, permittivity: number): Float64Array {
+  const out = new Float64Array(k);
+  for (let p = 0; p < P.n; p++) out[conductorOf[p]] += 0.5 * permittivity * field[p] * field[p] * P.areas[p];
+  for (let c = 0; c < k; c++) out[c] *= FORCE_RESOLUTION;
+  return out;
+}
+
 /** Per conductor, the panel where the field comes closest to the breakdown strength of the medium there. */
 export interface CriticalField {
   /** Largest field / strength over the conductor's panels. */

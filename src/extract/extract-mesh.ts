@@ -34,6 +34,7 @@ import { hasFeatureEdges } from "../mesh/edges.js";
 import { InputError } from "../errors.js";
 import { kernelPlanes, symmetryCopies, conductorRanges, checkSides, trianglesInSymmetryPlanes, evenCopies, type KernelSpec } from "../bem/images.js";
 import { EPSILON_0 } from "./constants.js";
+import { forceResolutions } from "./excitation.js";
 import { capacitanceMatrices, chargesAt, storedEnergy, mutualFromMaxwell } from "./capacitance.js";
 import { richardson } from "./accuracy.js";
 import { runPeakMeter } from "./memory.js";
@@ -277,6 +278,9 @@ function assembledResult(r: Phases): ExtractionResult {
   const areas = conductorAreas(mesh);
   for (let i = 0; i < K; i++) areas[i] *= layout.tied;
   const { peaks, critical, force } = point;
+  // Per meshed conductor; a mirror net (with images "both") takes its original's.
+  const meshed = mesh.names.length;
+  const resolution = forceResolutions(point.excitation.field, finest.unit.panels, mesh.conductor, meshed, o.permittivity);
 
   const conductors: ConductorResult[] = names.map((name, i) => ({
     name,
@@ -293,6 +297,7 @@ function assembledResult(r: Phases): ExtractionResult {
     medium: mediumName(critical[i].medium),
     mediumBreakdownField: critical[i].strength,
     force: [force[3 * i], force[3 * i + 1], force[3 * i + 2]],
+    forceResolution: resolution[i % meshed] * layout.tied,
     floating: o.floating[i],
   }));
   const seconds = (performance.now() - r.t0) / 1e3;

@@ -53,6 +53,8 @@ export interface ConductorResult {
   mediumBreakdownField: number;
   /** Net electrostatic force; newtons. */
   force: [number, number, number];
+  /** The smallest net force resolved on this conductor (FORCE_RESOLUTION of its panels' gross force); newtons. */
+  forceResolution: number;
   /** Zero net charge at a solved potential. */
   floating: boolean;
 }

@@ -110,15 +110,15 @@ export function extractionSummary(r: ExtractionResult | SceneExtraction, given?:
     for (let i = 0; i < k; i++) for (let j = 0; j < k; j++) energyError += 0.5 * err[i * k + j] * Math.abs(potentialsAll[i] * potentialsAll[j]);
   }
   out.push(`Stored energy at the working potentials: ${formatSI(r.energy, "J", cDigits(r.energy, energyError))}`);
-  // A net force far below energy / size is what is left of a sum of large, cancelling panel
-  // forces (an isolated sphere) after a solve to a relative residual of about 1e-6: not a
-  // force, and printed as such rather than as attonewtons.
+  // Dielectric bodies: a net force far below energy / size is what is left of a sum of large,
+  // cancelling panel forces after a solve to a relative residual of about 1e-6.
   const size = Math.sqrt(r.conductors.reduce((a, c) => a + c.area, 0));
   const forceNoise = 1e-5 * Math.abs(r.energy) / Math.max(size, 1e-300);
+  // Conductors: one rule whatever surrounds them (FORCE_RESOLUTION of the panels' gross force).
   for (const c of r.conductors) {
     const f = Math.hypot(...c.force);
-    if (f > forceNoise) out.push(`  force on ${c.name}: ${formatSI(f, "N", 3)} along (${c.force.map((x) => formatNumber(x / f, 3)).join(", ")})`);
-    else if (r.energy !== 0) out.push(`  force on ${c.name}: none resolved (below ${formatSI(forceNoise, "N", 1)}, the resolution of the solve)`);
+    if (f > c.forceResolution) out.push(`  force on ${c.name}: ${formatSI(f, "N", 3)} along (${c.force.map((x) => formatNumber(x / f, 3)).join(", ")})`);
+    else if (r.energy !== 0) out.push(`  force on ${c.name}: none resolved (below ${formatSI(c.forceResolution, "N", 1)}, the resolution of the solve)`);
   }
   if (!r.forcesComplete) out.push("  (forces on open sheets are not included)");
   r.dielectric?.bodies.forEach((b, i) => {

@@ -61,6 +61,7 @@ export function extractionReport(r: ExtractionResult, ctx: ReportContext): Recor
         margin: c.fieldRatio > 0 ? 1 / c.fieldRatio : null,
       },
       force: c.force,
+      forceResolution: c.forceResolution,
       floating: c.floating,
     })),
     capacitance: {
