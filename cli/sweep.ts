@@ -9,10 +9,11 @@ import { InputError } from "../src/errors.js";
 import { writeFilesAtomic, checkOutputPaths } from "../src/io/atomic.js";
 import { readInputText } from "../src/io/input-file.js";
 import { closeSharedPool } from "../src/linalg/pool.js";
-import { parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, sceneConductorNames, describePoint } from "../src/extract/sweep.js";
+import { parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, sceneConductorNames, sceneLengthUnit, describePoint } from "../src/extract/sweep.js";
 import { planResume, runResumable, finishResumable } from "../src/extract/sweep-resume.js";
 import { sweepFiles, mergeSweepCsv } from "../src/report/sweep-table.js";
 import { displayText } from "../src/io/display-text.js";
+import { unitLabel } from "../src/io/si.js";
 import { action, printWarnings, reportFailure } from "./common.js";
 import { collect, countOption, solveSettings } from "./options.js";
 
@@ -98,7 +99,7 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
     process.exitCode = code;
     return;
   }
-  const files = sweepFiles(axes, entries, points, indices, results, { csv: opts.csv, svg: opts.svg, title: `sweep of ${scene}` });
+  const files = sweepFiles(axes, entries, points, indices, results, { csv: opts.csv, svg: opts.svg, title: `sweep of ${scene}`, lengthUnit: unitLabel(sceneLengthUnit(scene, points[0])) });
   writeFilesAtomic(files);
   finishResumable(plan);
   if (!opts.quiet) process.stderr.write(`sigmesh: ${indices.length} points (${toRun.length} run) in ${((Date.now() - start) / 1000).toFixed(1)} s -> ${files.map((f) => displayText(f.path)).join(", ")}\n`);

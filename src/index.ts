@@ -41,7 +41,7 @@ export { probeField, probeExtraction, type ProbeResult } from "./extract/probe.j
 export { EPSILON_0, AIR_BREAKDOWN_FIELD } from "./extract/constants.js";
 export {
   parseVary, sweepGrid, parseShard, shardPoints, parseEntries, defaultEntries, entryValue, entryLabel, sceneConductorNames,
-  extractPoint, runSweep, runSweepPoints, isPointFailure, sweepPointKey, describePoint,
+  extractPoint, runSweep, runSweepPoints, isPointFailure, sweepPointKey, describePoint, sceneLengthUnit,
   type SweepAxis, type Shard, type MatrixEntry, type PointMatrices, type SweepRunOptions, type SweepPointsOptions, type PointFailure,
 } from "./extract/sweep.js";
 

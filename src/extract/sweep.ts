@@ -22,6 +22,7 @@ import { tmpdir } from "node:os";
 import { join, dirname, resolve, isAbsolute } from "node:path";
 import { InputError } from "../errors.js";
 import { loadScene } from "../io/inputs.js";
+import type { LengthUnit } from "../io/units.js";
 import { substituteScene, loadSceneFile } from "../io/scene.js";
 import { compiledUrl } from "../linalg/pool.js";
 import { extract, extractionWarnings } from "./extract.js";
@@ -368,4 +369,9 @@ export function sweepPointKey(scene: string, point: Record<string, number>, opts
 /** Conductor names of the scene at a point, without meshing it (for checking `--entries` before running). */
 export function sceneConductorNames(scene: string, point: Record<string, number>): string[] {
   return loadSceneFile(scene, { parameters: point }).conductors.map((c) => c.name);
+}
+
+/** The scene's length unit (its lengths and length parameters are in it). */
+export function sceneLengthUnit(scene: string, point: Record<string, number>): LengthUnit {
+  return loadSceneFile(scene, { parameters: point }).unit;
 }

@@ -42,7 +42,7 @@ export interface PlotOptions {
    * `inRange: false` does not stretch the axis; it is drawn only when it falls inside.
    */
   references?: Array<{ value: number; label: string; inRange?: boolean }>;
-  /** Corner of the legend inside the plot; default "top-right". */
+  /** Preferred corner of the legend inside the plot (default "top-right"); another corner, or below the plot, where it would cover data. */
   legend?: "top-right" | "bottom-right" | "top-left" | "bottom-left";
 }
 
@@ -156,11 +156,56 @@ function layoutAxis(axis: PlotAxis, values: number[]): AxisLayout {
 const f2 = (x: number): string => (Math.round(x * 100) / 100).toString();
 
 /** A line plot of `series` as a standalone SVG document. */
+type Corner = "top-right" | "bottom-right" | "top-left" | "bottom-left";
+
+/**
+ * Where the legend covers the least data: each corner's box (inside the plot frame) is scored
+ * by the series' polylines sampled every few pixels and the reference lines that cross it; the
+ * preferred corner wins ties. "below" when every corner covers some data.
+ */
+function legendPlace(series: PlotSeries[], refs: ReadonlyArray<{ value: number }>, any: boolean, preferred: Corner, lw: number, lh: number,
+  frame: { x0: number; x1: number; y0: number; y1: number }, px: (v: number) => number, py: (v: number) => number,
+  okX: (v: number) => boolean, okY: (v: number) => boolean): Corner | "below" {
+  if (!any) return preferred;
+  const corners: Corner[] = [preferred, ...(["top-right", "top-left", "bottom-right", "bottom-left"] as Corner[]).filter((c) => c !== preferred)];
+  const margin = 4;
+  const boxOf = (c: Corner) => {
+    const lx = c.endsWith("right") ? frame.x1 - lw - 8 : frame.x0 + 8;
+    const ly = c.startsWith("top") ? frame.y1 + 8 : frame.y0 - lh - 8;
+    return { a: lx - margin, b: lx + lw + margin, c: ly - margin, d: ly + lh + margin };
+  };
+  const boxes = corners.map(boxOf);
+  const hits = new Array<number>(corners.length).fill(0);
+  const mark = (x: number, y: number): void => {
+    boxes.forEach((bx, i) => { if (x >= bx.a && x <= bx.b && y >= bx.c && y <= bx.d) hits[i]++; });
+  };
+  for (const s of series) {
+    const n = Math.min(s.x.length, s.y.length);
+    let prev: [number, number] | undefined;
+    for (let i = 0; i < n; i++) {
+      if (!okX(s.x[i]) || !okY(s.y[i])) { prev = undefined; continue; }
+      const p: [number, number] = [px(s.x[i]), py(s.y[i])];
+      if (prev) {
+        const steps = Math.max(1, Math.ceil(Math.hypot(p[0] - prev[0], p[1] - prev[1]) / 3));
+        for (let t = 1; t <= steps; t++) mark(prev[0] + ((p[0] - prev[0]) * t) / steps, prev[1] + ((p[1] - prev[1]) * t) / steps);
+      } else mark(p[0], p[1]);
+      prev = p;
+    }
+  }
+  for (const r of refs) {
+    if (!okY(r.value)) continue;
+    const y = py(r.value);
+    boxes.forEach((bx, i) => { if (y >= bx.c && y <= bx.d) hits[i]++; });
+  }
+  let best = 0;
+  for (let i = 1; i < corners.length; i++) if (hits[i] < hits[best]) best = i;
+  return hits[best] === 0 ? corners[best] : "below";
+}
+
 export function linePlotSvg(series: PlotSeries[], opts: PlotOptions): string {
-  const W = opts.width ?? 720, H = opts.height ?? 440;
+  const W = opts.width ?? 720;
   const refs = opts.references ?? [];
   const left = 84, right = 24, top = opts.title ? 44 : 20, bottom = 58;
-  const x0 = left, x1 = W - right, y0 = H - bottom, y1 = top;
   const xs: number[] = [], ys: number[] = [];
   for (const s of series) {
     const n = Math.min(s.x.length, s.y.length);
@@ -168,10 +213,22 @@ export function linePlotSvg(series: PlotSeries[], opts: PlotOptions): string {
   }
   for (const r of refs) if (Number.isFinite(r.value) && r.inRange !== false) ys.push(r.value);
   const ax = layoutAxis(opts.x, xs), ay = layoutAxis(opts.y, ys);
-  const px = (v: number): number => ax.map(v, x0, x1);
-  const py = (v: number): number => ay.map(v, y0, y1);
   const okX = (v: number): boolean => Number.isFinite(v) && (!opts.x.log || v > 0);
   const okY = (v: number): boolean => Number.isFinite(v) && (!opts.y.log || v > 0);
+
+  // The legend goes in the corner of the plot where it covers the least of the data (the one
+  // asked for first), or below the plot, growing the picture, when every corner would cover some.
+  const entries = [...series.map((s, k) => ({ label: s.label, colour: PALETTE[k % PALETTE.length], dashed: !!s.dashed })),
+    ...refs.map((r) => ({ label: okY(r.value) && r.value >= ay.lo && r.value <= ay.hi ? r.label : `${r.label} (off scale)`, colour: "#555555", dashed: true }))];
+  const H0 = opts.height ?? 440;
+  const lh = 8 + 18 * entries.length;
+  const legendWidth = (room: number): number => Math.min(room - 16, 36 + 7 * Math.max(0, ...entries.map((e) => [...e.label].length)));
+  const place = legendPlace(series, refs, entries.length > 0, opts.legend ?? "top-right", legendWidth(W - right - left), lh,
+    { x0: left, x1: W - right, y0: H0 - bottom, y1: top }, (v) => ax.map(v, left, W - right), (v) => ay.map(v, H0 - bottom, top), okX, okY);
+  const H = place === "below" ? H0 + lh + 16 : H0;
+  const x0 = left, x1 = W - right, y0 = H0 - bottom, y1 = top;
+  const px = (v: number): number => ax.map(v, x0, x1);
+  const py = (v: number): number => ay.map(v, y0, y1);
 
   const o: string[] = [];
   o.push(`<?xml version="1.0" encoding="UTF-8"?>`);
@@ -223,15 +280,11 @@ export function linePlotSvg(series: PlotSeries[], opts: PlotOptions): string {
   o.push(`</g>`);
   if (xs.length === 0) o.push(`<text x="${f2((x0 + x1) / 2)}" y="${f2((y0 + y1) / 2)}" text-anchor="middle" fill="#888888">no data</text>`);
 
-  // Legend, top right inside the plot.
-  const entries = [...series.map((s, k) => ({ label: s.label, colour: PALETTE[k % PALETTE.length], dashed: !!s.dashed })),
-    ...refs.map((r) => ({ label: okY(r.value) && r.value >= ay.lo && r.value <= ay.hi ? r.label : `${r.label} (off scale)`, colour: "#555555", dashed: true }))];
+  // Legend: in the corner chosen above, or below the plot.
   if (entries.length > 0) {
-    const lw = Math.min(x1 - x0 - 16, 36 + 7 * Math.max(...entries.map((e) => [...e.label].length)));
-    const lh = 8 + 18 * entries.length;
-    const corner = opts.legend ?? "top-right";
-    const lx = corner.endsWith("right") ? x1 - lw - 8 : x0 + 8;
-    const ly = corner.startsWith("top") ? y1 + 8 : y0 - lh - 8;
+    const lw = legendWidth(x1 - x0);
+    const lx = place === "below" ? x0 : place.endsWith("right") ? x1 - lw - 8 : x0 + 8;
+    const ly = place === "below" ? H0 + 4 : place.startsWith("top") ? y1 + 8 : y0 - lh - 8;
     o.push(`<g class="legend">`);
     o.push(`<rect x="${f2(lx)}" y="${f2(ly)}" width="${f2(lw)}" height="${f2(lh)}" fill="#ffffff" fill-opacity="0.9" stroke="#bbbbbb"/>`);
     entries.forEach((e, i) => {

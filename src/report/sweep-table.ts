@@ -71,7 +71,7 @@ export function mergeSweepCsv(files: ReadonlyArray<{ file: string; text: string 
  * parameter, one line per combination of the others' values.
  */
 export function sweepSvg(axes: readonly SweepAxis[], entries: readonly MatrixEntry[], indices: readonly number[],
-  points: ReadonlyArray<Record<string, number>>, results: readonly PointMatrices[], title: string): string {
+  points: ReadonlyArray<Record<string, number>>, results: readonly PointMatrices[], title: string, lengthUnit?: string): string {
   const first = axes[0];
   const others = axes.slice(1);
   const groups = new Map<string, number[]>();
@@ -92,14 +92,16 @@ export function sweepSvg(axes: readonly SweepAxis[], entries: readonly MatrixEnt
       });
     }
   }
-  return linePlotSvg(series, { title, x: { label: first.name, log: first.log, prefix: false }, y: { label: "capacitance", unit: "F" } });
+  // A scene parameter is a plain number in the scene's units: a length in its length unit.
+  const xLabel = lengthUnit ? `${first.name} (scene units; lengths in ${lengthUnit})` : first.name;
+  return linePlotSvg(series, { title, x: { label: xLabel, log: first.log, prefix: false }, y: { label: "capacitance", unit: "F" } });
 }
 
 /** The files of a finished sweep: the table, and the plot when asked for. */
 export function sweepFiles(axes: readonly SweepAxis[], entries: readonly MatrixEntry[], points: ReadonlyArray<Record<string, number>>,
-  indices: readonly number[], results: ReadonlyMap<number, PointMatrices>, targets: { csv: string; svg?: string; title: string }): Array<{ path: string; option: string; data: string }> {
+  indices: readonly number[], results: ReadonlyMap<number, PointMatrices>, targets: { csv: string; svg?: string; title: string; lengthUnit?: string }): Array<{ path: string; option: string; data: string }> {
   const ordered = indices.map((k) => results.get(k)!);
   const files = [{ path: targets.csv, option: "--csv", data: sweepCsv(axes, entries, points.length, indices, points, ordered) }];
-  if (targets.svg) files.push({ path: targets.svg, option: "--svg", data: sweepSvg(axes, entries, indices, points, ordered, targets.title) });
+  if (targets.svg) files.push({ path: targets.svg, option: "--svg", data: sweepSvg(axes, entries, indices, points, ordered, targets.title, targets.lengthUnit) });
   return files;
 }

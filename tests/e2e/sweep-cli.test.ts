@@ -61,6 +61,8 @@ describe("sigmesh sweep", () => {
     expect(Number(rows[1][3])).toBeGreaterThan(Number(rows[2][3])); // closer lid, larger mutual capacitance
     const svg = readFileSync(join(dir, "one.svg"), "utf8");
     expect(svg).toMatch(/^(<\?xml[^>]*>\s*)?<svg[\s\S]*Cm\(pad,lid\)[\s\S]*<\/svg>\s*$/);
+    // The x axis names the parameter and the unit its lengths are in.
+    expect(svg).toContain(">gap (scene units; lengths in mm)</text>");
   });
 
   it("shards merged equal the unsharded table, byte for byte; child processes equal in-process points", () => {

@@ -154,3 +154,32 @@ describe("convergence and field plots", () => {
     expect(xmlText(`a<b>&"c'\u0001`)).toBe("a&lt;b&gt;&amp;&quot;c&apos;");
   });
 });
+
+describe("legend placement", () => {
+  /** The legend box and every data marker's centre, read back from the SVG. */
+  function layout(svg: string): { box: { x: number; y: number; w: number; h: number }; markers: Array<[number, number]>; height: number } {
+    const g = svg.slice(svg.indexOf('<g class="legend">'));
+    const r = /<rect x="([\d.]+)" y="([\d.]+)" width="([\d.]+)" height="([\d.]+)"/.exec(g)!;
+    const markers = [...svg.matchAll(/<circle cx="([\d.]+)" cy="([\d.]+)"/g)].map((m) => [Number(m[1]), Number(m[2])] as [number, number]);
+    const height = Number(/<svg[^>]* height="(\d+)"/.exec(svg)![1]);
+    return { box: { x: Number(r[1]), y: Number(r[2]), w: Number(r[3]), h: Number(r[4]) }, markers, height };
+  }
+  const covered = (l: ReturnType<typeof layout>) => l.markers.filter(([x, y]) => x >= l.box.x && x <= l.box.x + l.box.w && y >= l.box.y && y <= l.box.y + l.box.h);
+
+  it("moves out of a corner the data runs through: a rising curve keeps the top-right free of the legend", () => {
+    const x = Array.from({ length: 20 }, (_, i) => i), y = x.map((v) => v * v);
+    const l = layout(linePlotSvg([{ label: "rising", x, y }], { x: { label: "x" }, y: { label: "y" } }));
+    expect(covered(l)).toEqual([]);
+    expect(l.box.x).toBeLessThan(300); // moved to the left
+  });
+
+  it("goes below the plot, growing the picture, when every corner holds data", () => {
+    const n = 41, x = Array.from({ length: n }, (_, i) => i / (n - 1));
+    // Curves through all four corners.
+    const series = [{ label: "up", x, y: x }, { label: "down", x, y: x.map((v) => 1 - v) }, { label: "top", x, y: x.map(() => 0.98) }, { label: "bottom", x, y: x.map(() => 0.02) }];
+    const l = layout(linePlotSvg(series.map((s) => ({ ...s, markers: true })), { x: { label: "x" }, y: { label: "y" } }));
+    expect(covered(l)).toEqual([]);
+    expect(l.height).toBeGreaterThan(440);
+    expect(l.box.y).toBeGreaterThan(440 - 58);
+  });
+});
