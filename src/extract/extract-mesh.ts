@@ -30,7 +30,7 @@
 import type { SurfaceMesh } from "../mesh/model.js";
 import { triangleCount, conductorAreas } from "../mesh/model.js";
 import { orientSurfaces, conductorTopology, buildEdgeTable } from "../mesh/topology.js";
-import { hasFeatureEdges } from "../mesh/refine.js";
+import { hasFeatureEdges } from "../mesh/edges.js";
 import { InputError } from "../errors.js";
 import { kernelPlanes, symmetryCopies, conductorRanges, checkSides, trianglesInSymmetryPlanes, evenCopies, type KernelSpec } from "../bem/images.js";
 import { EPSILON_0 } from "./constants.js";

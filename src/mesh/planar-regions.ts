@@ -30,6 +30,8 @@ export interface PlanarRegionOptions {
   featureAngle?: number;
   /** Width against the neighbouring facets' heights from which a region is a flat face; default 2. */
   flatWidthRatio?: number;
+  /** When the mesh carries CAD faces (`mesh.faces`), never join triangles of different faces into one region. */
+  byFace?: boolean;
 }
 
 export interface PlanarRegions {
@@ -79,6 +81,7 @@ export function planarRegions(mesh: SurfaceMesh, opts: PlanarRegionOptions = {},
   const region = new Uint32Array(nt).fill(0xffffffff);
   const normal: number[] = [], offset: number[] = [], size: number[] = [], regionArea: number[] = [];
   const stack = new Int32Array(nt);
+  const faces = opts.byFace ? mesh.faces : undefined;
   const onPlane = (t: number, nx: number, ny: number, nz: number, d: number): boolean => {
     for (let j = 0; j < 3; j++) {
       const v = 3 * tr[3 * t + j];
@@ -100,6 +103,7 @@ export function planarRegions(mesh: SurfaceMesh, opts: PlanarRegionOptions = {},
       for (let j = 0; j < 3; j++) {
         const u = across[3 * t + j];
         if (u < 0 || region[u] !== 0xffffffff) continue;
+        if (faces && faces[u] !== faces[t]) continue;
         // Same side of the plane (a fold back onto the plane is a crease, not a region).
         if (tn[3 * u] * nx + tn[3 * u + 1] * ny + tn[3 * u + 2] * nz < 0.5) continue;
         if (!onPlane(u, nx, ny, nz, d)) continue;
