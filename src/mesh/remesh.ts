@@ -62,7 +62,7 @@ export interface RemeshResult {
 }
 
 /** Panel size at most this fraction of the square root of a patch's area. */
-const AREA_CAP = 1 / 6;
+const AREA_CAP = 1 / 4;
 /** Panel size at most this multiple of a patch's width 2A/P. */
 const WIDTH_CAP = 1;
 /** Size on sharp edges: the patch's cap over this. */
