@@ -12,6 +12,7 @@
  * warned of), solve on the scene's mesh with all its surroundings (`extractMesh`), evaluate the
  * probes. `extractMesh` stays available for a bare mesh with loose options.
  */
+import type { RemeshSummary } from "../mesh/remesh.js";
 import type { LoadedScene } from "../io/inputs.js";
 import type { LengthUnit } from "../io/units.js";
 import { metresPer } from "../io/units.js";
@@ -74,6 +75,8 @@ export interface ExtractionInput {
   parameters: Record<string, number>;
   /** Warnings from loading and checking, before the solve. */
   warnings: string[];
+  /** What remeshing the mesh files' CAD-style flat faces changed (src/mesh/remesh.ts); absent when nothing. */
+  remesh?: RemeshSummary;
 }
 
 /** An extraction of a scene: the solve's results, the input it came from and the probes. */
@@ -127,7 +130,7 @@ export async function extract(scene: LoadedScene, settings: ExtractSettings = {}
   const probes = runProbes(result, [...scene.probes, ...(settings.probes ?? [])], scene.unit);
   return {
     ...result,
-    input: { files: scene.files, scene: scene.scene, source, unit: scene.unit, unitAssumed: scene.unitAssumed, parameters: { ...scene.parameters }, warnings },
+    input: { files: scene.files, scene: scene.scene, source, unit: scene.unit, unitAssumed: scene.unitAssumed, parameters: { ...scene.parameters }, warnings, ...(scene.remesh?.applied ? { remesh: remeshFigures(scene.remesh) } : {}) },
     probes,
   };
 }
@@ -138,4 +141,12 @@ export function runProbes(result: ExtractionResult, specs: readonly ProbeSpec[],
     const points = probePoints(spec, metresPer(unit));
     return { spec, points, result: probeExtraction(result, points) };
   });
+}
+
+/** The summary's figures alone (without the preview flag of `LoadedScene.remesh`). */
+function remeshFigures(r: RemeshSummary): RemeshSummary {
+  return {
+    patches: r.patches, neighbours: r.neighbours, panelsBefore: r.panelsBefore, panelsAfter: r.panelsAfter,
+    worstAspectBefore: r.worstAspectBefore, worstAspectAfter: r.worstAspectAfter, trianglesBefore: r.trianglesBefore, trianglesAfter: r.trianglesAfter,
+  };
 }

@@ -61,16 +61,33 @@ export interface RemeshResult {
   summary: RemeshSummary;
 }
 
+/**
+ * The change in words, for a warning: `applied` for what was done, else what would be done
+ * (`sigmesh check`); `scene` names the scene key beside the option that turns it off.
+ */
+export function remeshSentence(s: RemeshSummary, scene: boolean, applied = true): string {
+  const regions = `${s.patches} flat patch${s.patches === 1 ? "" : "es"}${s.neighbours > 0 ? ` and ${s.neighbours} neighbouring planar region${s.neighbours === 1 ? "" : "s"}` : ""}`;
+  const what = `${regions} (${s.panelsBefore} → ${s.panelsAfter} panels; worst aspect ratio ${aspectText(s.worstAspectBefore)} → ${aspectText(s.worstAspectAfter)}; ${s.trianglesBefore} → ${s.trianglesAfter} panels in all)`;
+  const off = scene ? `--keep-mesh or "keepMesh": true` : "--keep-mesh";
+  return applied
+    ? `remeshed ${what} for boundary elements: CAD-style slivers cannot carry the charge; ${off} solves on the mesh as given`
+    : `extract would remesh ${what} for boundary elements (CAD-style slivers); ${off} keeps the mesh as given`;
+}
+
+function aspectText(x: number): string {
+  return Number.isFinite(x) ? (x >= 100 ? x.toFixed(0) : x.toPrecision(2)) : "∞ (degenerate)";
+}
+
 /** Panel size at most this fraction of the square root of a patch's area. */
 const AREA_CAP = 1 / 4;
 /** Panel size at most this multiple of a patch's width 2A/P. */
 const WIDTH_CAP = 1;
 /** Size on sharp edges: the patch's cap over this. */
-const EDGE_RATIO = 3;
+const EDGE_RATIO = 2.5;
 /** Size increase per unit distance from a source. */
-const GROWTH = 0.3;
+const GROWTH = 0.4;
 /** Panels no larger than this multiple of the distance to another conductor. */
-const GAP_FACTOR = 1;
+const GAP_FACTOR = 0.75;
 /** Beside a tessellated curved neighbour: this multiple of its facets' width across the shared edge. */
 const NEIGHBOUR_FACTOR = 1.5;
 /** A patch whose panels exceed the user's panel size by this factor is remeshed. */
@@ -154,7 +171,11 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
         for (let j = 0; j < 3; j++) if (isBoundary(3 * t + j, r)) perimeter += halfLength(3 * t + j);
       }
       const area = regions.area[r];
-      cap = opts.panelSize ?? Math.min(AREA_CAP * Math.sqrt(area), WIDTH_CAP * (2 * area) / perimeter);
+      const areaCap = opts.panelSize ?? AREA_CAP * Math.sqrt(area);
+      cap = Math.min(areaCap, WIDTH_CAP * (2 * area) / perimeter);
+      // On sharp edges a fraction of the patch's own scale: a thin strip (a plate's rim face),
+      // whose cap is its width, is not graded further across that width.
+      const sharp = Math.min(cap, areaCap / EDGE_RATIO);
       for (let k = start[r]; k < start[r + 1]; k++) {
         const t = members[k];
         for (let j = 0; j < 3; j++) {
@@ -162,7 +183,7 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
           if (!isBoundary(h, r)) continue;
           const u = across[h];
           const cos = u < 0 ? -1 : normals[3 * t] * normals[3 * u] + normals[3 * t + 1] * normals[3 * u + 1] + normals[3 * t + 2] * normals[3 * u + 2];
-          if (cos < cosFeature) { addSource(r, h, cap / EDGE_RATIO); continue; }
+          if (cos < cosFeature) { addSource(r, h, sharp); continue; }
           // Beside a smooth neighbour (a fillet facet): about its width across the shared edge.
           const len = halfLength(h);
           const height = len > 0 ? (2 * triangleAreaOf(u)) / len : cap;

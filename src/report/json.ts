@@ -5,6 +5,7 @@
 import type { ExtractionResult } from "../extract/result.js";
 import { toRows } from "../extract/capacitance.js";
 import type { LengthUnit } from "../io/units.js";
+import type { RemeshSummary } from "../mesh/remesh.js";
 import { cautionsFor } from "./cautions.js";
 
 export interface ReportContext {
@@ -14,6 +15,8 @@ export interface ReportContext {
   unit: LengthUnit;
   /** Warnings from loading and checking, before extraction. */
   inputWarnings: string[];
+  /** What remeshing of CAD-style flat faces changed, when it did. */
+  remesh?: RemeshSummary;
 }
 
 export const REPORT_FORMAT = "sigmesh-extraction/1";
@@ -34,7 +37,7 @@ export function extractionReport(r: ExtractionResult, ctx: ReportContext): Recor
     format: REPORT_FORMAT,
     sigmesh: ctx.version,
     created: new Date().toISOString(),
-    input: { files: ctx.files, scene: ctx.scene ?? null, unit: ctx.unit },
+    input: { files: ctx.files, scene: ctx.scene ?? null, unit: ctx.unit, remeshed: ctx.remesh ?? null },
     medium: { relativePermittivity: r.relativePermittivity, permittivity: r.permittivity, breakdownField: r.breakdownField },
     conductors: r.conductors.map((c) => ({
       name: c.name,

@@ -67,7 +67,7 @@ export function checkOutputTargets(targets: OutputTargets, refine?: number): voi
 /** The JSON report of an extraction as an object (SI units; fields documented in README.md). */
 export function sceneReport(result: SceneExtraction, opts: { panels?: boolean } = {}): Record<string, unknown> {
   const report = extractionReport(result, {
-    version: version(), files: result.input.files, scene: result.input.scene, unit: result.input.unit, inputWarnings: result.input.warnings,
+    version: version(), files: result.input.files, scene: result.input.scene, unit: result.input.unit, inputWarnings: result.input.warnings, remesh: result.input.remesh,
   });
   if (opts.panels) report.viewer = viewerDataJson(result);
   return report;
