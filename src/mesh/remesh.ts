@@ -92,6 +92,8 @@ const GAP_FACTOR = 0.75;
 const NEIGHBOUR_FACTOR = 1.5;
 /** A patch whose panels exceed the user's panel size by this factor is remeshed. */
 const SIZE_TRIGGER = 1.5;
+/** A conductor's panels are at least its largest flat patch's cap over this. */
+const FLOOR_RATIO = 10;
 /** Most points one patch may receive. */
 const MAX_PATCH_POINTS = 400_000;
 
@@ -148,6 +150,13 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
   { const fill = start.slice(0, nr); for (let t = 0; t < nt; t++) members[fill[region[t]]++] = t; }
   const isBoundary = (h: number, r: number) => { const u = across[h]; return u < 0 || region[u] !== r; };
 
+  // Smallest size of each conductor's field: its largest flat patch's cap over FLOOR_RATIO.
+  const floors = new Float64Array(mesh.names.length);
+  for (let r = 0; r < nr; r++) {
+    if (!regions.flat[r]) continue;
+    const c = mesh.conductor[members[start[r]]];
+    floors[c] = Math.max(floors[c], (opts.panelSize ?? AREA_CAP * Math.sqrt(regions.area[r])) / FLOOR_RATIO);
+  }
   const others = new Map<number, OtherConductors | undefined>();
   const othersOf = (c: number) => {
     if (!others.has(c)) others.set(c, mesh.names.length > 1 ? otherConductors(p, tr, mesh.conductor, c) : undefined);
@@ -172,10 +181,13 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
       }
       const area = regions.area[r];
       const areaCap = opts.panelSize ?? AREA_CAP * Math.sqrt(area);
-      cap = Math.min(areaCap, WIDTH_CAP * (2 * area) / perimeter);
-      // On sharp edges a fraction of the patch's own scale: a thin strip (a plate's rim face),
-      // whose cap is its width, is not graded further across that width.
-      const sharp = Math.min(cap, areaCap / EDGE_RATIO);
+      // Never below the conductor's floor: the rim face of a thin plate (35 µm of copper) would
+      // otherwise set panels of its own width along the plate's edges and all over its faces.
+      const floor = floors[c];
+      cap = Math.max(floor, Math.min(areaCap, WIDTH_CAP * (2 * area) / perimeter));
+      // On sharp edges a fraction of the patch's own scale: a thin strip, whose cap is its
+      // width, is not graded further across that width.
+      const sharp = Math.max(floor, Math.min(cap, areaCap / EDGE_RATIO));
       for (let k = start[r]; k < start[r + 1]; k++) {
         const t = members[k];
         for (let j = 0; j < 3; j++) {
@@ -187,7 +199,7 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
           // Beside a smooth neighbour (a fillet facet): about its width across the shared edge.
           const len = halfLength(h);
           const height = len > 0 ? (2 * triangleAreaOf(u)) / len : cap;
-          addSource(r, h, Math.min(cap, Math.max(cap / (2 * EDGE_RATIO), NEIGHBOUR_FACTOR * height)));
+          addSource(r, h, Math.min(cap, Math.max(floor, cap / (2 * EDGE_RATIO), NEIGHBOUR_FACTOR * height)));
         }
       }
     } else {
