@@ -94,6 +94,44 @@ describe("remeshFlatPatches", () => {
     expect(nearEdge / nNear).toBeLessThan(0.7 * (middle / nMiddle));
   });
 
+  it("keeps a hole a hole: an open square sheet with a square hole, fanned in slivers from the hole's corners", () => {
+    const k = 40, pos: number[] = [], tri: number[] = [];
+    const ids = new Map<string, number>();
+    const vertex = (x: number, y: number) => {
+      const key = `${x.toFixed(9)},${y.toFixed(9)}`;
+      let v = ids.get(key);
+      if (v === undefined) { v = pos.length / 3; ids.set(key, v); pos.push(x * 1e-3, y * 1e-3, 2e-3); }
+      return v;
+    };
+    const C = [[0, 0], [10, 0], [10, 10], [0, 10]], D = [[4, 4], [6, 4], [6, 6], [4, 6]];
+    for (let s = 0; s < 4; s++) {
+      const [ax, ay] = C[s], [bx, by] = C[(s + 1) % 4];
+      const O = Array.from({ length: k + 1 }, (_, i) => vertex(ax + (i / k) * (bx - ax), ay + (i / k) * (by - ay)));
+      const d0 = vertex(D[s][0], D[s][1]), d1 = vertex(D[(s + 1) % 4][0], D[(s + 1) % 4][1]);
+      for (let i = 0; i < k / 2; i++) tri.push(O[i], O[i + 1], d0);
+      tri.push(O[k / 2], d1, d0);
+      for (let i = k / 2; i < k; i++) tri.push(O[i], O[i + 1], d1);
+    }
+    const sheet: SurfaceMesh = { positions: Float64Array.from(pos), triangles: Uint32Array.from(tri), conductor: new Uint32Array(tri.length / 3), names: ["sheet"] };
+    const { mesh: out, summary } = remeshFlatPatches(sheet);
+    expect(summary.patches).toBe(1);
+    expect(summary.worstAspectAfter).toBeLessThan(4);
+    const topo = conductorTopology(out)[0];
+    expect(topo.inconsistentEdges).toBe(0);
+    expect(topo.nonManifoldEdges).toBe(0);
+    expect(Math.abs(conductorAreas(out)[0] - 96e-6)).toBeLessThan(1e-12 * 96e-6 + 1e-18);
+    for (let t = 0; t < out.triangles.length / 3; t++) {
+      const a = 3 * out.triangles[3 * t], b = 3 * out.triangles[3 * t + 1], c = 3 * out.triangles[3 * t + 2];
+      const x = (out.positions[a] + out.positions[b] + out.positions[c]) / 3e-3, y = (out.positions[a + 1] + out.positions[b + 1] + out.positions[c + 1]) / 3e-3;
+      expect(x > 4 && x < 6 && y > 4 && y < 6).toBe(false);
+      expect(out.positions[a + 2]).toBe(2e-3);
+      // Facing +z, as the sheet did.
+      const ux = out.positions[b] - out.positions[a], uy = out.positions[b + 1] - out.positions[a + 1];
+      const vx = out.positions[c] - out.positions[a], vy = out.positions[c + 1] - out.positions[a + 1];
+      expect(ux * vy - uy * vx).toBeGreaterThan(0);
+    }
+  });
+
   it("leaves good meshes as they are: the same object, byte for byte", () => {
     const box = boxMesh({ size: [1, 2, 3], divisions: 6, grading: 3 });
     const sphere = sphereMesh({ radius: 1, level: 3 });
