@@ -67,7 +67,8 @@ export interface RemeshResult {
  */
 export function remeshSentence(s: RemeshSummary, scene: boolean, applied = true): string {
   const regions = `${s.patches} flat patch${s.patches === 1 ? "" : "es"}${s.neighbours > 0 ? ` and ${s.neighbours} neighbouring planar region${s.neighbours === 1 ? "" : "s"}` : ""}`;
-  const what = `${regions} (${s.panelsBefore} → ${s.panelsAfter} panels; worst aspect ratio ${aspectText(s.worstAspectBefore)} → ${aspectText(s.worstAspectAfter)}; ${s.trianglesBefore} → ${s.trianglesAfter} panels in all)`;
+  const all = s.trianglesBefore === s.panelsBefore ? "" : `; ${s.trianglesBefore} → ${s.trianglesAfter} panels in all`;
+  const what = `${regions} (${s.panelsBefore} → ${s.panelsAfter} panels; worst aspect ratio ${aspectText(s.worstAspectBefore)} → ${aspectText(s.worstAspectAfter)}${all})`;
   const off = scene ? `--keep-mesh or "keepMesh": true` : "--keep-mesh";
   return applied
     ? `remeshed ${what} for boundary elements: CAD-style slivers cannot carry the charge; ${off} solves on the mesh as given`
