@@ -22,7 +22,7 @@
  */
 import type { SurfaceMesh } from "./model.js";
 import { meshEdges, faceNormals } from "./edges.js";
-import { planarRegions } from "./planar-regions.js";
+import { planarRegions, neighboursAcross } from "./planar-regions.js";
 import { triangleAspect } from "./quality.js";
 import { triangulatePatch } from "./remesh-patch.js";
 import { sizeAt, otherConductors, type SizeField, type OtherConductors } from "./size-field.js";
@@ -132,16 +132,7 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
   }
   if (summary.patches === 0) return { mesh, summary };
 
-  // Neighbour across each half-edge: a manifold, consistently oriented edge of one conductor.
-  const across = new Int32Array(3 * nt).fill(-1);
-  for (let e = 0; e < edges.count; e++) {
-    if (edges.faces[e] !== 2) continue;
-    const h0 = edges.half0[e], h1 = edges.half1[e];
-    if (tr[h0] === tr[h1]) continue;
-    const t0 = (h0 - (h0 % 3)) / 3, t1 = (h1 - (h1 % 3)) / 3;
-    if (mesh.conductor[t0] !== mesh.conductor[t1]) continue;
-    across[h0] = t1; across[h1] = t0;
-  }
+  const across = neighboursAcross(mesh, edges);
   const normals = faceNormals(mesh);
   // Triangles of each region (compressed rows).
   const start = new Uint32Array(nr + 1);

@@ -132,6 +132,30 @@ describe("remeshFlatPatches", () => {
     }
   });
 
+  it("makes panels no larger than the gap where another conductor faces a patch", () => {
+    const a = sliverBox([1e-2, 1e-2, 1e-2], [0.1, 0.5], [0, 0, 0], "a");
+    const b = sliverBox([1e-2, 1e-2, 1e-2], [0.1, 0.5], [1.05e-2, 0, 0], "b"); // 0.5 mm away along x
+    const { mesh: out } = remeshFlatPatches(concatMeshes([a, b]));
+    // Mean edge length in the middle of a's face toward b (x = 10 mm) and of its far face (x = 0).
+    const mean = (x0: number) => {
+      let sum = 0, n = 0;
+      const p = out.positions, tr = out.triangles;
+      for (let t = 0; t < tr.length / 3; t++) {
+        if (out.conductor[t] !== 0) continue;
+        const i = 3 * tr[3 * t], j = 3 * tr[3 * t + 1], k = 3 * tr[3 * t + 2];
+        if (![i, j, k].every((v) => Math.abs(p[v] - x0) < 1e-12)) continue;
+        const cy = (p[i + 1] + p[j + 1] + p[k + 1]) / 3, cz = (p[i + 2] + p[j + 2] + p[k + 2]) / 3;
+        if (Math.abs(cy - 5e-3) > 2e-3 || Math.abs(cz - 5e-3) > 2e-3) continue;
+        sum += Math.hypot(p[j + 1] - p[i + 1], p[j + 2] - p[i + 2]); n++;
+      }
+      return sum / n;
+    };
+    const near = mean(1e-2), far = mean(0);
+    expect(near).toBeLessThan(0.8e-3);
+    expect(near).toBeLessThan(0.4 * far);
+    expectFaithful(concatMeshes([a, b]), out);
+  });
+
   it("leaves good meshes as they are: the same object, byte for byte", () => {
     const box = boxMesh({ size: [1, 2, 3], divisions: 6, grading: 3 });
     const sphere = sphereMesh({ radius: 1, level: 3 });
