@@ -68,7 +68,8 @@ export function triangulatePatch(input: PatchInput): PatchOutput {
     return false;
   };
 
-  let cdt = triangulate(pts.subarray(0, 2 * n), seg, domain);
+  let cdt = tryTriangulate(pts.subarray(0, 2 * n), seg, domain);
+  if (!cdt) throw new Error("the constrained triangulation of the patch boundary failed");
   for (let round = 0; round < MAX_ROUNDS && n < input.maxPoints; round++) {
     const bad: Array<{ x: number; y: number; priority: number }> = [];
     const tri = cdt.triangles;
@@ -95,19 +96,51 @@ export function triangulatePatch(input: PatchInput): PatchOutput {
       pts[2 * n] = c.x; pts[2 * n + 1] = c.y; n++; added++;
     }
     if (added === 0) break;
-    cdt = triangulate(pts.subarray(0, 2 * n), seg, domain);
+    // Constrainautor can fail on near-collinear points (it reports an endless loop): then the
+    // round is tried again with the worst half of its points, and so on; with none left the
+    // refinement stops at the last triangulation that worked.
+    let next = tryTriangulate(pts.subarray(0, 2 * n), seg, domain);
+    while (!next && added > 1) {
+      n -= added - (added >> 1); added >>= 1;
+      next = tryTriangulate(pts.subarray(0, 2 * n), seg, domain);
+    }
+    if (!next) { n -= added; break; }
+    cdt = next;
   }
 
   for (let round = 0; round < SMOOTHING_ROUNDS && n > fixed; round++) {
+    const before = pts.slice(0, 2 * n);
     if (!smooth(pts, n, fixed, cdt.triangles, domain, seg)) break;
-    cdt = triangulate(pts.subarray(0, 2 * n), seg, domain);
+    const next = tryTriangulate(pts.subarray(0, 2 * n), seg, domain);
+    if (!next) { pts.set(before); break; }
+    cdt = next;
   }
   return { points: pts.slice(0, 2 * n), triangles: cdt.triangles };
 }
 
+/** Frames tried in turn: the same triangulation in exact arithmetic, other roundings of nearly collinear points. */
+const RETRY_ANGLES = [0, 0.37, 1.13];
+
+function tryTriangulate(coords: Float64Array, segments: Uint32Array, domain: DomainLocator): { triangles: Uint32Array } | undefined {
+  for (const angle of RETRY_ANGLES) {
+    try {
+      return triangulate(coords, segments, domain, angle);
+    } catch {
+      // the next frame
+    }
+  }
+  return undefined;
+}
+
 /** The constrained Delaunay triangulation of the points, keeping the triangles inside the domain, counter-clockwise. */
-function triangulate(coords: Float64Array, segments: Uint32Array, domain: DomainLocator): { triangles: Uint32Array } {
-  const del = new Delaunator(coords);
+function triangulate(coords: Float64Array, segments: Uint32Array, domain: DomainLocator, angle = 0): { triangles: Uint32Array } {
+  let frame = coords;
+  if (angle !== 0) {
+    const c = Math.cos(angle), s = Math.sin(angle);
+    frame = new Float64Array(coords.length);
+    for (let i = 0; i < coords.length; i += 2) { frame[i] = c * coords[i] - s * coords[i + 1]; frame[i + 1] = s * coords[i] + c * coords[i + 1]; }
+  }
+  const del = new Delaunator(frame);
   const edges: [number, number][] = [];
   for (let s = 0; s < segments.length; s += 2) edges.push([segments[s], segments[s + 1]]);
   const con = new Constrainautor(del, edges);
@@ -133,8 +166,14 @@ function triangulate(coords: Float64Array, segments: Uint32Array, domain: Domain
         if (group[u] < 0) { group[u] = g; stack.push(u); }
       }
     }
+    // Its largest triangle is inside when a point of it is strictly inside the patch: the
+    // centroid, or (should that fall on an edge between two of the patch's triangles) a point
+    // between the centroid and a corner. A sliver outside, along the boundary, has none.
     const a = 2 * tri[3 * best], b = 2 * tri[3 * best + 1], c = 2 * tri[3 * best + 2];
-    inside.push(domain.contains((coords[a] + coords[b] + coords[c]) / 3, (coords[a + 1] + coords[b + 1] + coords[c + 1]) / 3));
+    const gx = (coords[a] + coords[b] + coords[c]) / 3, gy = (coords[a + 1] + coords[b + 1] + coords[c + 1]) / 3;
+    let found = domain.containsStrictly(gx, gy);
+    for (const v of [a, b, c]) if (!found) found = domain.containsStrictly(0.75 * gx + 0.25 * coords[v], 0.75 * gy + 0.25 * coords[v + 1]);
+    inside.push(found);
   }
   const out: number[] = [];
   for (let t = 0; t < nt; t++) {
@@ -234,15 +273,24 @@ class DomainLocator {
   }
   private ix(x: number): number { return Math.min(this.nx - 1, Math.max(0, Math.floor((x - this.x0) / this.cw))); }
   private iy(y: number): number { return Math.min(this.ny - 1, Math.max(0, Math.floor((y - this.y0) / this.ch))); }
-  /** Inside or on the boundary of one of the triangles (to a relative 1e-12). */
-  contains(x: number, y: number): boolean {
+  /** Inside or on the boundary of one of the triangles, to a relative 1e-12. */
+  contains(x: number, y: number): boolean { return this.test(x, y, -1); }
+
+  /**
+   * Inside one of the triangles by a relative margin of 1e-12: a point on the patch boundary,
+   * or a sliver's centroid a rounding error outside it (points split from a boundary edge are
+   * off its line by rounding), is not.
+   */
+  containsStrictly(x: number, y: number): boolean { return this.test(x, y, 1); }
+
+  private test(x: number, y: number, sign: number): boolean {
     if (x < this.x0 - this.eps || y < this.y0 - this.eps || x > this.x0 + this.nx * this.cw + this.eps || y > this.y0 + this.ny * this.ch + this.eps) return false;
     const p = this.p, tri = this.tri;
     for (const t of this.cells[this.iy(y) * this.nx + this.ix(x)]) {
       const a = tri[3 * t], b = tri[3 * t + 1], c = tri[3 * t + 2];
       const area = signedArea(p, a, b, c);
       const s = Math.sign(area) || 1;
-      const eps = -this.eps * Math.sqrt(Math.abs(area)) * 4;
+      const eps = sign * this.eps * Math.sqrt(Math.abs(area)) * 4;
       const w0 = s * ((p[2 * b] - x) * (p[2 * c + 1] - y) - (p[2 * b + 1] - y) * (p[2 * c] - x));
       const w1 = s * ((p[2 * c] - x) * (p[2 * a + 1] - y) - (p[2 * c + 1] - y) * (p[2 * a] - x));
       const w2 = s * ((p[2 * a] - x) * (p[2 * b + 1] - y) - (p[2 * a + 1] - y) * (p[2 * b] - x));

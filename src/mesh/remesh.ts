@@ -223,6 +223,8 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
   const newPositions: number[] = [];
   let nextVertex = p.length / 3;
   const edgePoints = new Map<number, number[]>();
+  /** Where each split point lies along its edge, from v0 (0) to v1 (1). */
+  const edgeParams = new Map<number, number[]>();
   const decided = new Uint8Array(edges.count);
   const queue: number[] = [];
   for (let r = 0; r < nr; r++) if (chosen[r]) { makeField(r); queue.push(r); }
@@ -254,6 +256,7 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
         const ids: number[] = [];
         for (let i = 0; i < placed.length; i += 3) { newPositions.push(placed[i], placed[i + 1], placed[i + 2]); ids.push(nextVertex++); }
         edgePoints.set(e, ids);
+        edgeParams.set(e, placed.params);
       }
     }
   }
@@ -333,6 +336,18 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
       uv[2 * i] = (x - ox) * e1x + (y - oy) * e1y + (z - oz) * e1z;
       uv[2 * i + 1] = (x - ox) * e2x + (y - oy) * e2y + (z - oz) * e2z;
     }
+    // Split points on the line of their edge in the plane too, as nearly as rounding allows:
+    // Constrainautor can loop on boundary points a rounding error off a straight chain.
+    for (const [e, ids] of edgePoints) {
+      const i0 = local.get(edges.v0[e]), i1 = local.get(edges.v1[e]);
+      if (i0 === undefined || i1 === undefined || !local.has(ids[0])) continue;
+      const params = edgeParams.get(e)!;
+      ids.forEach((v, k) => {
+        const i = local.get(v)!, t = params[k];
+        uv[2 * i] = uv[2 * i0] + t * (uv[2 * i1] - uv[2 * i0]);
+        uv[2 * i + 1] = uv[2 * i0 + 1] + t * (uv[2 * i1 + 1] - uv[2 * i0 + 1]);
+      });
+    }
     const field = refreshed(r);
     const size = (u: number, v: number) => sizeAt(field, ox + u * e1x + v * e2x, oy + u * e1y + v * e2y, oz + u * e1z + v * e2z);
     let made: { points: Float64Array; triangles: Uint32Array } | undefined;
@@ -411,7 +426,7 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
  * Points strictly inside edge a–b (flat x, y, z), spaced so that each step is about the size
  * there: equal steps of ∫ ds / h, the integral taken on a few samples along the edge.
  */
-function edgeSplit(p: Float64Array, a: number, b: number, size: (x: number, y: number, z: number) => number): number[] {
+function edgeSplit(p: Float64Array, a: number, b: number, size: (x: number, y: number, z: number) => number): number[] & { params: number[] } {
   const ax = p[3 * a], ay = p[3 * a + 1], az = p[3 * a + 2];
   const dx = p[3 * b] - ax, dy = p[3 * b + 1] - ay, dz = p[3 * b + 2] - az;
   const len = Math.hypot(dx, dy, dz);
@@ -422,13 +437,14 @@ function edgeSplit(p: Float64Array, a: number, b: number, size: (x: number, y: n
     cum[i + 1] = cum[i] + len / m / size(ax + s * dx, ay + s * dy, az + s * dz);
   }
   const n = Math.round(cum[m]);
-  const out: number[] = [];
+  const out = Object.assign([] as number[], { params: [] as number[] });
   if (n <= 1) return out;
   for (let k = 1, i = 0; k < n; k++) {
     const target = (k * cum[m]) / n;
     while (cum[i + 1] < target) i++;
     const s = (i + (target - cum[i]) / (cum[i + 1] - cum[i])) / m;
     out.push(ax + s * dx, ay + s * dy, az + s * dz);
+    out.params.push(s);
   }
   return out;
 }

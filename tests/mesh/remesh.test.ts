@@ -156,6 +156,18 @@ describe("remeshFlatPatches", () => {
     expectFaithful(concatMeshes([a, b]), out);
   });
 
+  it("remeshes a tetrahedron's faces to a small panel size, the slanted one too (points split from its edges are off their lines by rounding)", () => {
+    const tet: SurfaceMesh = {
+      positions: Float64Array.from([0, 0, 0, 1e-3, 0, 0, 0, 1e-3, 0, 0, 0, 1e-3]),
+      triangles: Uint32Array.from([0, 2, 1, 0, 1, 3, 0, 3, 2, 1, 2, 3]),
+      conductor: new Uint32Array(4), names: ["tet"],
+    };
+    const { mesh: out, summary } = remeshFlatPatches(tet, { panelSize: 0.2e-3 });
+    expect(summary.patches).toBe(4);
+    expect(summary.worstAspectAfter).toBeLessThan(4);
+    expectFaithful(tet, out);
+  });
+
   it("leaves good meshes as they are: the same object, byte for byte", () => {
     const box = boxMesh({ size: [1, 2, 3], divisions: 6, grading: 3 });
     const sphere = sphereMesh({ radius: 1, level: 3 });
