@@ -311,7 +311,6 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
       const t = members[k];
       domain.push(idx(tr[3 * t]), idx(tr[3 * t + 1]), idx(tr[3 * t + 2]));
     }
-    const chains: number[][] = [];
     for (let k = start[r]; k < start[r + 1]; k++) {
       const t = members[k];
       for (let j = 0; j < 3; j++) {
@@ -321,7 +320,6 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
         const e = edges.edgeOfHalf[h];
         const mid = edgePoints.get(e) ?? [];
         const chain = [a, ...(edges.v0[e] === a ? mid : mid.slice().reverse()), b];
-        chains.push(chain);
         for (let i = 0; i + 1 < chain.length; i++) segments.push(idx(chain[i]), idx(chain[i + 1]));
       }
     }
@@ -360,7 +358,7 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
     const out: number[] = [];
     if (!made) {
       // The libraries refused (collinear or crossing input): split each triangle conformingly instead.
-      fanSplit(r, out, chains);
+      fanSplit(r, out);
       return out;
     }
     const ids = globalOf.slice();
@@ -374,7 +372,7 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
   }
 
   /** Each triangle of region r with points on its boundary edges: a fan from its centroid. */
-  function fanSplit(r: number, out: number[], _chains: number[][]): void {
+  function fanSplit(r: number, out: number[]): void {
     for (let k = start[r]; k < start[r + 1]; k++) {
       const t = members[k];
       const ring: number[] = [];
