@@ -17,7 +17,9 @@ import { loadScene } from "../src/io/inputs.js";
 import { concatMeshes, type SurfaceMesh } from "../src/mesh/model.js";
 import { outputFormatFromPath, writeMeshFile } from "../src/io/write.js";
 import { checkSceneSurroundings, implausibleSize, type SceneSurroundingsCheck } from "../src/extract/scene-check.js";
-import { parseUnit, DEFAULT_UNIT } from "../src/io/units.js";
+import { parseUnit, metresPer, DEFAULT_UNIT } from "../src/io/units.js";
+import { remeshFlatPatches, type RemeshSummary } from "../src/mesh/remesh.js";
+import { numberOption } from "./options.js";
 import { InputError } from "../src/errors.js";
 import { checkMeshParallel } from "../src/mesh/check.js";
 import { formatCheckSummary } from "../src/report/check-summary.js";
@@ -36,6 +38,8 @@ interface CheckCliOptions {
   json?: string;
   quiet?: boolean;
   writeMesh?: string;
+  panelSize?: string;
+  keepMesh?: boolean;
 }
 
 /** The conductors, then each dielectric body as a further body named `dielectric:NAME`. */
@@ -56,6 +60,8 @@ export function registerCheck(program: Command): void {
     .option("--weld-tolerance <relative>", "weld vertices closer than this fraction of the bounding-box diagonal (default 1e-6)")
     .option("--json <path>", "write the report as JSON to a file, or - for standard output")
     .option("--write-mesh <file>", "write the meshes checked (.stl as ASCII with one named solid per body, or .obj; in the input unit): conductors by name, a scene's dielectric bodies as dielectric:NAME")
+    .option("--panel-size <length>", "largest panel where extract would remesh CAD-style flat faces of mesh files, in the input unit")
+    .option("--keep-mesh", "say nothing of remeshing: the mesh is to be solved as given")
     .option("--quiet", "print only the failures, one line each (no summary, no warnings)")
     .action(action(async (files: string[], opts: CheckCliOptions, cmd: Command) => {
       const unit = parseUnit(opts.unit, "--unit");
@@ -73,12 +79,15 @@ export function registerCheck(program: Command): void {
           throw new InputError(`--weld-tolerance "${opts.weldTolerance}" must be a number >= 0`);
         }
       }
+      const panelSize = opts.panelSize === undefined ? undefined : numberOption(opts.panelSize, "--panel-size", (x) => x > 0, "a positive length in the input unit");
       // A .json input is a scene, loaded exactly as extract loads it (--unit overrides its unit).
       const isScene = files.some((f) => extname(f).toLowerCase() === ".json");
       let loaded: LoadedMesh, scene: { file: string; check: SceneSurroundingsCheck } | undefined;
       let inspection: SurfaceMesh;
+      let remesh: RemeshSummary | undefined;
       if (isScene) {
-        const s = loadScene(files, { unit: unitAssumed ? undefined : unit, split: opts.split, merge: opts.merge, weldTolerance });
+        const s = loadScene(files, { unit: unitAssumed ? undefined : unit, split: opts.split, merge: opts.merge, weldTolerance, panelSize, keepMesh: true, previewRemesh: !opts.keepMesh });
+        remesh = s.remesh;
         // Welding counts are not kept per scene: NaN is written as null.
         loaded = { mesh: s.mesh, warnings: s.warnings, files: [s.scene!], unit: s.unit, dropped: s.dropped, welded: NaN };
         scene = { file: s.scene!, check: checkSceneSurroundings(s) };
@@ -86,14 +95,17 @@ export function registerCheck(program: Command): void {
       } else {
         loaded = loadMeshFiles(files, { unit, split: opts.split, merge: opts.merge, weldTolerance });
         inspection = loaded.mesh;
+        // What extract would change (it remeshes the same way in loadScene).
+        const preview = opts.keepMesh ? undefined : remeshFlatPatches(loaded.mesh, { panelSize: panelSize === undefined ? undefined : panelSize * metresPer(unit) }).summary;
+        if (preview && preview.patches > 0) remesh = preview;
       }
       const u = loaded.unit, assumed = isScene ? false : unitAssumed;
       const size = implausibleSize(loaded.mesh, u, assumed);
       if (size) loaded.warnings.unshift({ file: loaded.files.join(", "), message: size });
       printWarnings(loaded.warnings, opts.quiet);
       const report = await checkMeshParallel(loaded.mesh);
-      const summary = formatCheckSummary(report, { unit: u, unitAssumed: isScene ? unitAssumed : assumed, files: loaded.files, scene });
-      const json = checkReport(loaded, report, u, assumed, scene);
+      const summary = formatCheckSummary(report, { unit: u, unitAssumed: isScene ? unitAssumed : assumed, files: loaded.files, scene, remesh });
+      const json = checkReport(loaded, report, u, assumed, scene, remesh);
       if (opts.writeMesh !== undefined) writeMeshFile(opts.writeMesh, inspection, meshFormat!, u);
       if (opts.json !== undefined) writeOutput(opts.json, jsonText(json));
       if (!opts.quiet) (opts.json === "-" ? process.stderr : process.stdout).write(summary);

@@ -42,6 +42,8 @@ export interface ExtractCliOptions {
   groundPlane?: string;
   symmetry?: string[];
   floating?: string[];
+  panelSize?: string;
+  keepMesh?: boolean;
 }
 
 export function registerExtract(program: Command): void {
@@ -60,6 +62,8 @@ export function registerExtract(program: Command): void {
     .option("--ground-plane <axis=pos>", "an infinite grounded plane, e.g. z=0 (user unit); it becomes the reference")
     .option("--symmetry <axis=pos[:images]>", "a mirror symmetry plane of the model, e.g. x=0 (repeatable): mesh only one side; images even (default), odd (mirror half at the opposite potential) or both (mirror half its own conductors, name~x; x=0:both:opposite drives them at the opposite potential)", collect, [])
     .option("--floating <name>", "leave this conductor floating: no net charge, potential solved for (repeatable)", collect, [])
+    .option("--panel-size <length>", "largest panel where CAD-style flat faces of mesh files are remeshed, in the input unit (default: from each face's size, graded toward its edges)")
+    .option("--keep-mesh", "solve on the mesh files exactly as given: no remeshing of CAD-style flat faces (slivers)")
     .option("--split", "mesh files: each connected component is a conductor")
     .option("--merge", "mesh files: all groups of a file are one conductor")
     .option("--json <path>", "write the JSON report to a file, or - for standard output")
@@ -82,6 +86,7 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
   const permittivity = opts.permittivity === undefined ? undefined : numberOption(opts.permittivity, "--permittivity", (x) => x >= 1, "a relative permittivity of at least 1");
   const breakdownField = opts.breakdownField === undefined ? undefined : numberOption(opts.breakdownField, "--breakdown-field", (x) => x > 0, "a positive field in V/m, e.g. 3e6");
   if (opts.split && opts.merge) throw new InputError("--split and --merge cannot be used together");
+  const panelSize = opts.panelSize === undefined ? undefined : numberOption(opts.panelSize, "--panel-size", (x) => x > 0, "a positive length in the input unit");
   const probes = (opts.probe ?? []).map((text, i) => parseProbeOption(text, "--probe", i + 1));
   const spiceThreshold = opts.spiceThreshold === undefined ? undefined : numberOption(opts.spiceThreshold, "--spice-threshold", (x) => x >= 0 && x < 1, "a fraction between 0 and 1");
   const targets: OutputTargets = {
@@ -95,7 +100,7 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
     split: opts.split, merge: opts.merge, potentials: parsePotentials(opts.potential),
     groundPlane: opts.groundPlane, symmetry: opts.symmetry && opts.symmetry.length ? opts.symmetry : undefined,
     floating: opts.floating && opts.floating.length ? opts.floating : undefined,
-    permittivity, breakdownField,
+    permittivity, breakdownField, panelSize, keepMesh: opts.keepMesh,
   });
   printWarnings(scene.warnings, false);
   // Probe results go beside the report, named after the input, unless told otherwise.

@@ -29,6 +29,7 @@ export { concatMeshes, conductorSubmesh, conductorAreas, boundingBox, triangleCo
 export { checkMesh, checkMeshParallel, type CheckReport } from "./mesh/check.js";
 export { checkConductors, checkSceneSurroundings, implausibleSize, PLAUSIBLE_SIZE, pairSentence, selfOverlapSentence, type SceneSurroundingsCheck, type DielectricCheck } from "./extract/scene-check.js";
 export { refineUniform } from "./mesh/refine.js";
+export { remeshFlatPatches, remeshSentence, type RemeshOptions, type RemeshSummary } from "./mesh/remesh.js";
 export { surfaceArea, signedVolume } from "./mesh/measure.js";
 export * from "./mesh/primitives/index.js";
 

@@ -12,6 +12,7 @@
  * warned of), solve on the scene's mesh with all its surroundings (`extractMesh`), evaluate the
  * probes. `extractMesh` stays available for a bare mesh with loose options.
  */
+import type { RemeshSummary } from "../mesh/remesh.js";
 import type { LoadedScene } from "../io/inputs.js";
 import type { LengthUnit } from "../io/units.js";
 import { metresPer } from "../io/units.js";
@@ -78,6 +79,8 @@ export interface ExtractionInput {
   title?: string;
   /** Warnings from loading and checking, before the solve. */
   warnings: string[];
+  /** What remeshing the mesh files' CAD-style flat faces changed (src/mesh/remesh.ts); absent when nothing. */
+  remesh?: RemeshSummary;
 }
 
 /** An extraction of a scene: the solve's results, the input it came from and the probes. */
@@ -140,7 +143,7 @@ export async function extract(scene: LoadedScene, settings: ExtractSettings = {}
   for (const w of probeWarnings(probes, result.mesh.names)) { settings.warn?.(w); warnings.push(w); }
   return {
     ...result,
-    input: { files: scene.files, scene: scene.scene, source, unit: scene.unit, unitAssumed: scene.unitAssumed, parameters: { ...scene.parameters }, warnings, ...(scene.title !== undefined ? { title: scene.title } : {}) },
+    input: { files: scene.files, scene: scene.scene, source, unit: scene.unit, unitAssumed: scene.unitAssumed, parameters: { ...scene.parameters }, warnings, ...(scene.title !== undefined ? { title: scene.title } : {}), ...(scene.remesh?.applied ? { remesh: remeshFigures(scene.remesh) } : {}) },
     probes,
   };
 }
@@ -176,4 +179,12 @@ export function probeWarnings(runs: readonly ProbeRun[], names: readonly string[
     if (parts.length > 0) out.push(`probe ${r.spec.name}: ${parts.join("; ")}`);
   }
   return out;
+}
+
+/** The summary's figures alone (without the preview flag of `LoadedScene.remesh`). */
+function remeshFigures(r: RemeshSummary): RemeshSummary {
+  return {
+    patches: r.patches, neighbours: r.neighbours, panelsBefore: r.panelsBefore, panelsAfter: r.panelsAfter,
+    worstAspectBefore: r.worstAspectBefore, worstAspectAfter: r.worstAspectAfter, trianglesBefore: r.trianglesBefore, trianglesAfter: r.trianglesAfter,
+  };
 }

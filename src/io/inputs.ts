@@ -11,6 +11,7 @@ import { loadSceneMesh } from "./scene-mesh.js";
 import { DEFAULT_UNIT, metresPer, type LengthUnit } from "./units.js";
 import { mirrorNets, type AxisPlane, type Axis, type SymmetryPlane } from "../bem/images.js";
 import type { SurfaceMesh } from "../mesh/model.js";
+import { remeshFlatPatches, remeshSentence, type RemeshSummary } from "../mesh/remesh.js";
 import type { Warning } from "../errors.js";
 
 export interface LoadedScene {
@@ -43,6 +44,12 @@ export interface LoadedScene {
   scene?: string;
   warnings: Warning[];
   dropped: number;
+  /**
+   * Remeshing of the mesh files' CAD-style flat faces (src/mesh/remesh.ts): what it changed
+   * (`applied`), or with `keepMesh` and `previewRemesh` what it would change; absent when it
+   * had nothing to do or was not asked.
+   */
+  remesh?: RemeshSummary & { applied: boolean };
 }
 
 export interface InputOptions {
@@ -65,6 +72,12 @@ export interface InputOptions {
   permittivity?: number;
   /** Breakdown strength of the background medium for the field check, V/m; replaces the scene's. */
   breakdownField?: number;
+  /** Largest panel wanted on remeshed flat faces, in the input unit; replaces the scene's. */
+  panelSize?: number;
+  /** Keep the mesh files exactly as given (no remeshing of CAD-style flat faces). */
+  keepMesh?: boolean;
+  /** With `keepMesh`: still work out what remeshing would change (for `sigmesh check`). */
+  previewRemesh?: boolean;
 }
 
 /** `AXIS=POSITION` (`z=0`, `x=-2.5`) in `unit`, as a plane in metres; `what` names the option in errors. */
@@ -102,6 +115,7 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
   if (list.length === 0) throw new InputError("no input given: name a scene file (.json) or mesh files");
   const scenes = list.filter((f) => extname(f).toLowerCase() === ".json");
   let out: LoadedScene;
+  let remeshing: { only?: Uint8Array; keep: boolean; panelSize?: number } = { keep: false };
   const baseOverrides = opts.potentials;
   if (scenes.length > 0) {
     if (list.length > 1) throw new InputError("give either one scene file or mesh files, not both", scenes[0]);
@@ -110,11 +124,12 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
       // Plane positions were read in the scene's unit: rescale with it.
       const f = metresPer(opts.unit) / metresPer(scene.unit);
       const move = <P extends AxisPlane>(p: P): P => ({ ...p, offset: p.offset * f });
-      scene = { ...scene, unit: opts.unit, groundPlane: scene.groundPlane && move(scene.groundPlane), symmetry: scene.symmetry.map(move) };
+      scene = { ...scene, unit: opts.unit, groundPlane: scene.groundPlane && move(scene.groundPlane), symmetry: scene.symmetry.map(move), panelSize: scene.panelSize && scene.panelSize * f };
     }
     if (opts.split || opts.merge) throw new InputError("--split and --merge apply to mesh files; in a scene, each entry is one conductor", list[0]);
     const sm = loadSceneMesh(scene, { weldTolerance: opts.weldTolerance });
     const floating = floatingFlags(sm.mesh.names, sm.floating, opts.floating);
+    remeshing = { only: sm.fromFile, keep: scene.keepMesh === true, panelSize: scene.panelSize };
     out = {
       mesh: sm.mesh, potentials: resolvePotentials(sm.mesh.names, sm.potentials, baseOverrides, floating), unit: scene.unit, unitAssumed: false, permittivity: scene.permittivity,
       breakdownField: scene.breakdownField, groundPlane: scene.groundPlane, symmetry: scene.symmetry, floating,
@@ -132,6 +147,7 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
       symmetry: [], floating, files: lm.files, warnings: lm.warnings, dropped: lm.dropped, probes: [], dielectrics: [], parameters: {},
     };
   }
+  remeshInput(out, remeshing, opts);
   if (opts.permittivity !== undefined) {
     if (!(opts.permittivity >= 1) || !Number.isFinite(opts.permittivity)) throw new InputError(`relative permittivity must be a number of at least 1, got ${opts.permittivity}`);
     out.permittivity = opts.permittivity;
@@ -152,6 +168,28 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
   const mirrorOverrides = Object.entries(opts.potentials ?? {}).filter(([n]) => n.includes("~") && !out.mesh.names.includes(n));
   if (mirrorOverrides.length > 0) out.potentials = mirrorPotentials(out, mirrorOverrides);
   return out;
+}
+
+/**
+ * Remesh the CAD-style flat faces of the mesh files (never generated shapes), unless the
+ * option or the scene keeps the mesh as given; the change is noted among the warnings.
+ */
+function remeshInput(out: LoadedScene, how: { only?: Uint8Array; keep: boolean; panelSize?: number }, opts: InputOptions): void {
+  if (how.keep) return;
+  const keep = opts.keepMesh === true;
+  if (keep && !opts.previewRemesh) return;
+  if (how.only && how.only.every((x) => x === 0)) return;
+  let panelSize = how.panelSize;
+  if (opts.panelSize !== undefined) {
+    if (!(opts.panelSize > 0) || !Number.isFinite(opts.panelSize)) throw new InputError(`panel size must be a positive length, got ${opts.panelSize}`);
+    panelSize = opts.panelSize * metresPer(out.unit);
+  }
+  const { mesh, summary } = remeshFlatPatches(out.mesh, { panelSize, only: how.only });
+  if (summary.patches === 0) return;
+  out.remesh = { ...summary, applied: !keep };
+  if (keep) return;
+  out.mesh = mesh;
+  out.warnings.push({ file: out.scene ?? out.files.join(", "), message: remeshSentence(summary, out.scene !== undefined) });
 }
 
 /**

@@ -19,6 +19,8 @@ export interface SceneMesh extends LoadedMesh {
   potentials: Array<number | undefined>;
   /** Floating flag of each conductor. */
   floating: boolean[];
+  /** Per conductor triangle: 1 when it comes from a mesh file (remeshing may change it), 0 for generated shapes. */
+  fromFile: Uint8Array;
 }
 
 /** Load every conductor of a scene: one conductor per entry, its parts (and their files' groups) joined. */
@@ -35,6 +37,8 @@ export function loadSceneMesh(scene: Scene, opts: { weldTolerance?: number } = {
     potentials: scene.conductors.map((c) => c.potential),
     floating: scene.conductors.map((c) => c.floating),
     dielectrics: dielectrics.map((b, i) => ({ name: scene.dielectrics[i].name, mesh: b.mesh, permittivity: scene.dielectrics[i].permittivity, breakdownField: scene.dielectrics[i].breakdownField })),
+    // An entry made only of mesh files may be remeshed; one with a generated part is kept whole.
+    fromFile: Uint8Array.from(scene.conductors.flatMap((c, i) => new Array<number>(bodies[i].mesh.triangles.length / 3).fill(c.parts.every((part) => !part.shape) ? 1 : 0))),
   };
 }
 

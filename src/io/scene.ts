@@ -24,6 +24,8 @@
  * half is its own conductors, `name~x`; `"mirrored": "same" | "opposite"` sets their working
  * potentials). A dielectric body may carry its own `breakdownField` (V/m); a floating
  * conductor carries zero net charge at a potential the solver finds, so it takes no potential.
+ * `panelSize` (scene unit) is the largest panel wanted where a mesh file's flat faces are
+ * remeshed (src/mesh/remesh.ts); `"keepMesh": true` solves on the mesh files as given.
  *
  * The schema is kept in `schema/scene.schema.json`; this module (the top-level keys) with
  * ./scene-entries.ts (conductor and dielectric entries, their parts), ./scene-shape.ts (shape
@@ -35,7 +37,7 @@ import { parseSceneProbes, type ProbeSpec } from "./probe-spec.js";
 import { readInputText } from "./input-file.js";
 import { dirname, resolve } from "node:path";
 import { InputError } from "../errors.js";
-import { parseUnit, DEFAULT_UNIT, type LengthUnit } from "./units.js";
+import { parseUnit, metresPer, DEFAULT_UNIT, type LengthUnit } from "./units.js";
 import type { AxisPlane, SymmetryPlane } from "../bem/images.js";
 import { resolveParameters, substituteExpressions } from "./parameters.js";
 import { isObject, parseJson } from "./json-value.js";
@@ -61,6 +63,10 @@ export interface Scene {
   parameters: Record<string, number>;
   /** The scene's `title`, shown in the reports. */
   title?: string;
+  /** Largest panel wanted on remeshed flat faces of mesh files; metres. */
+  panelSize?: number;
+  /** Solve on the mesh files exactly as given (no remeshing of CAD-style flat faces). */
+  keepMesh?: boolean;
 }
 
 export interface SceneParseOptions {
@@ -68,7 +74,7 @@ export interface SceneParseOptions {
   parameters?: Readonly<Record<string, number>>;
 }
 
-const TOP_KEYS = new Set(["$schema", "parameters", "unit", "permittivity", "breakdownField", "groundPlane", "symmetry", "conductors", "dielectrics", "probes", "title", "description"]);
+const TOP_KEYS = new Set(["$schema", "parameters", "unit", "permittivity", "breakdownField", "groundPlane", "symmetry", "conductors", "dielectrics", "probes", "panelSize", "keepMesh", "title", "description"]);
 
 /**
  * The scene as a user would write it by hand with these parameter values: every expression
@@ -111,6 +117,12 @@ export function parseScene(text: string, file: string, opts: SceneParseOptions =
     if (typeof top.breakdownField !== "number" || !Number.isFinite(top.breakdownField) || top.breakdownField <= 0) fail("breakdownField", "expected a positive number in V/m");
     breakdownField = top.breakdownField as number;
   }
+  let panelSize: number | undefined;
+  if (top.panelSize !== undefined) {
+    if (typeof top.panelSize !== "number" || !Number.isFinite(top.panelSize) || top.panelSize <= 0) fail("panelSize", `expected a positive length in ${unit}`);
+    panelSize = (top.panelSize as number) * metresPer(unit);
+  }
+  if (top.keepMesh !== undefined && typeof top.keepMesh !== "boolean") fail("keepMesh", "expected true or false");
   let groundPlane: AxisPlane | undefined;
   if (top.groundPlane !== undefined) {
     const g = planeFromObject(top.groundPlane, unit);
@@ -145,7 +157,10 @@ export function parseScene(text: string, file: string, opts: SceneParseOptions =
   });
   if (top.title !== undefined && typeof top.title !== "string") fail("title", "expected a string");
   const title = typeof top.title === "string" && top.title.trim() !== "" ? top.title : undefined;
-  return { file, unit, permittivity, breakdownField, groundPlane, symmetry, conductors, dielectrics, probes, parameters, ...(title !== undefined ? { title } : {}) };
+  const scene: Scene = { file, unit, permittivity, breakdownField, groundPlane, symmetry, conductors, dielectrics, probes, parameters, ...(title !== undefined ? { title } : {}) };
+  if (panelSize !== undefined) scene.panelSize = panelSize;
+  if (top.keepMesh === true) scene.keepMesh = true;
+  return scene;
 }
 
 /** Read and validate a scene file. */

@@ -30,6 +30,8 @@ export interface PlanarRegionOptions {
   featureAngle?: number;
   /** Width against the neighbouring facets' heights from which a region is a flat face; default 2. */
   flatWidthRatio?: number;
+  /** When the mesh carries CAD faces (`mesh.faces`), never join triangles of different faces into one region. */
+  byFace?: boolean;
 }
 
 export interface PlanarRegions {
@@ -64,21 +66,13 @@ export function planarRegions(mesh: SurfaceMesh, opts: PlanarRegionOptions = {},
     triangleNormal(tn, 3 * t, p, 3 * tr[3 * t], 3 * tr[3 * t + 1], 3 * tr[3 * t + 2]);
     area[t] = triangleArea(p, 3 * tr[3 * t], 3 * tr[3 * t + 1], 3 * tr[3 * t + 2]);
   }
-  // Neighbour of each half-edge across a manifold, consistently oriented edge of the same conductor, or -1.
-  const across = new Int32Array(3 * nt).fill(-1);
-  for (let e = 0; e < edges.count; e++) {
-    if (edges.faces[e] !== 2) continue;
-    const h0 = edges.half0[e], h1 = edges.half1[e];
-    if (tr[h0] === tr[h1]) continue;
-    const t0 = (h0 - (h0 % 3)) / 3, t1 = (h1 - (h1 % 3)) / 3;
-    if (mesh.conductor[t0] !== mesh.conductor[t1]) continue;
-    across[h0] = t1; across[h1] = t0;
-  }
+  const across = neighboursAcross(mesh, edges);
 
   const order = Array.from({ length: nt }, (_, i) => i).sort((a, b) => area[b] - area[a] || a - b);
   const region = new Uint32Array(nt).fill(0xffffffff);
   const normal: number[] = [], offset: number[] = [], size: number[] = [], regionArea: number[] = [];
   const stack = new Int32Array(nt);
+  const faces = opts.byFace ? mesh.faces : undefined;
   const onPlane = (t: number, nx: number, ny: number, nz: number, d: number): boolean => {
     for (let j = 0; j < 3; j++) {
       const v = 3 * tr[3 * t + j];
@@ -100,6 +94,7 @@ export function planarRegions(mesh: SurfaceMesh, opts: PlanarRegionOptions = {},
       for (let j = 0; j < 3; j++) {
         const u = across[3 * t + j];
         if (u < 0 || region[u] !== 0xffffffff) continue;
+        if (faces && faces[u] !== faces[t]) continue;
         // Same side of the plane (a fold back onto the plane is a crease, not a region).
         if (tn[3 * u] * nx + tn[3 * u + 1] * ny + tn[3 * u + 2] * nz < 0.5) continue;
         if (!onPlane(u, nx, ny, nz, d)) continue;
@@ -134,4 +129,19 @@ export function planarRegions(mesh: SurfaceMesh, opts: PlanarRegionOptions = {},
     normal: Float64Array.from(normal), offset: Float64Array.from(offset), flat,
     size: Uint32Array.from(size), area: Float64Array.from(regionArea),
   };
+}
+
+/** The triangle across each half-edge 3t+j: over a manifold, consistently oriented edge of the same conductor; else -1. */
+export function neighboursAcross(mesh: SurfaceMesh, edges: MeshEdges): Int32Array {
+  const tr = mesh.triangles;
+  const across = new Int32Array(tr.length).fill(-1);
+  for (let e = 0; e < edges.count; e++) {
+    if (edges.faces[e] !== 2) continue;
+    const h0 = edges.half0[e], h1 = edges.half1[e];
+    if (tr[h0] === tr[h1]) continue;
+    const t0 = (h0 - (h0 % 3)) / 3, t1 = (h1 - (h1 % 3)) / 3;
+    if (mesh.conductor[t0] !== mesh.conductor[t1]) continue;
+    across[h0] = t1; across[h1] = t0;
+  }
+  return across;
 }

@@ -35,6 +35,11 @@
  *     a, b          conductor names (for inside: a lies inside b)
  *     distance      smallest distance found (m); position: where (m)
  *     panelSize     local panel size there (m), null for inside
+ *   remesh          null, or what extract would change by remeshing CAD-style flat faces of the mesh
+ *                   files (src/mesh/remesh.ts; not with --keep-mesh): { patches (flat patches remeshed),
+ *                   neighbours (planar regions beside them triangulated anew to stay conforming),
+ *                   panelsBefore, panelsAfter (in those regions), worstAspectBefore, worstAspectAfter
+ *                   (radius ratio R/(2r) there), trianglesBefore, trianglesAfter (whole mesh) }
  *   scene           only when the input was a scene file:
  *     file          the scene file, as given
  *     dielectrics   one entry per dielectric body: name, permittivity (relative), triangles,
@@ -49,6 +54,7 @@
 import type { LoadedMesh } from "../io/load.js";
 import type { LengthUnit } from "../io/units.js";
 import type { CheckReport } from "../mesh/check.js";
+import type { RemeshSummary } from "../mesh/remesh.js";
 import { version } from "../version.js";
 import type { SceneSurroundingsCheck, DielectricCheck } from "../extract/scene-check.js";
 
@@ -75,18 +81,21 @@ export interface CheckReportJson {
   warnings: LoadedMesh["warnings"];
   conductors: CheckReport["conductors"];
   pairs: CheckReport["pairs"];
+  remesh: RemeshSummary | null;
   scene?: SceneCheckJson;
 }
 
 /** The JSON report of `report`, the check of the mesh `loaded` read in `unit`. */
 export function checkReport(loaded: LoadedMesh, report: CheckReport, unit: LengthUnit, unitAssumed: boolean,
-  scene?: { file: string; check: SceneSurroundingsCheck }): CheckReportJson {
+  scene?: { file: string; check: SceneSurroundingsCheck }, remesh?: RemeshSummary): CheckReportJson {
   const out: CheckReportJson = {
     tool: "sigmesh", command: "check", version: version(),
     files: loaded.files, inputUnit: unit, unitAssumed,
     ok: !report.failed, triangles: report.triangles, vertices: report.vertices,
     welded: loaded.welded, dropped: loaded.dropped, warnings: loaded.warnings,
     conductors: report.conductors, pairs: report.pairs,
+    remesh: remesh ? { patches: remesh.patches, neighbours: remesh.neighbours, panelsBefore: remesh.panelsBefore, panelsAfter: remesh.panelsAfter,
+      worstAspectBefore: remesh.worstAspectBefore, worstAspectAfter: remesh.worstAspectAfter, trianglesBefore: remesh.trianglesBefore, trianglesAfter: remesh.trianglesAfter } : null,
   };
   if (scene) {
     const s = scene.check;

@@ -9,6 +9,7 @@ import { THIN_ASPECT } from "../mesh/check.js";
 import { formatNumber, formatLength, formatPoint, lengthValue, unitLabel } from "../io/si.js";
 import { pairSentence, selfOverlapSentence, type SceneSurroundingsCheck } from "../extract/scene-check.js";
 import { displayText } from "../io/display-text.js";
+import { remeshSentence, type RemeshSummary } from "../mesh/remesh.js";
 
 export interface CheckSummaryOptions {
   unit: LengthUnit;
@@ -17,6 +18,8 @@ export interface CheckSummaryOptions {
   files?: string[];
   /** A scene's dielectric bodies and planes (`checkSceneSurroundings`), reported before the verdict. */
   scene?: { file: string; check: SceneSurroundingsCheck };
+  /** What extract's remeshing of CAD-style flat faces would change (src/mesh/remesh.ts), when anything. */
+  remesh?: RemeshSummary;
 }
 
 /**
@@ -88,6 +91,7 @@ export function formatCheckSummary(report: CheckReport, opts: CheckSummaryOption
   });
   out.push(...alignTable(header, rows, [false, true, true, false, false, false, false, true, true, false, false, true]));
   const notes = report.conductors.flatMap((c) => conductorNotes(c, u));
+  if (opts.remesh) notes.push(remeshSentence(opts.remesh, opts.scene !== undefined, false));
   if (notes.length > 0) { out.push(""); out.push(...notes.map((n) => `note: ${n}`)); }
   out.push("");
   const errors = report.pairs.filter((p) => p.severity === "error");

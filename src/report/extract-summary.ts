@@ -2,6 +2,7 @@
  * The terminal summary of an extraction: aligned tables with engineering prefixes,
  * the field check with margins, the accuracy estimate and the cautions.
  */
+import { remeshSentence } from "../mesh/remesh.js";
 import type { ExtractionResult } from "../extract/result.js";
 import type { SceneExtraction } from "../extract/extract.js";
 import type { LengthUnit } from "../io/units.js";
@@ -164,10 +165,12 @@ export function extractionSummary(r: ExtractionResult | SceneExtraction, given?:
   out.push("");
   out.push("Cautions");
   for (const line of cautionsFor(r.potentials, { perMedium: r.media.length > 1 })) out.push(`  - ${line}`);
-  if (r.warnings.length) {
+  const remeshed = (r as SceneExtraction).input?.remesh;
+  const warnings = remeshed ? [remeshSentence(remeshed, (r as SceneExtraction).input.scene !== undefined), ...r.warnings] : r.warnings;
+  if (warnings.length) {
     out.push("");
     out.push("Warnings");
-    for (const w of r.warnings) out.push(`  - ${w}`);
+    for (const w of warnings) out.push(`  - ${w}`);
   }
   return out.map(displayText).join("\n") + "\n";
 }

@@ -5,6 +5,7 @@
 import type { ExtractionResult } from "../extract/result.js";
 import { toRows } from "../extract/capacitance.js";
 import type { LengthUnit } from "../io/units.js";
+import type { RemeshSummary } from "../mesh/remesh.js";
 import { cautionsFor } from "./cautions.js";
 
 export interface ReportContext {
@@ -17,6 +18,8 @@ export interface ReportContext {
   /** The scene's title and the parameter values used, reported when given. */
   title?: string;
   parameters?: Record<string, number>;
+  /** What remeshing of CAD-style flat faces changed, when it did. */
+  remesh?: RemeshSummary;
 }
 
 export const REPORT_FORMAT = "sigmesh-extraction/1";
@@ -41,6 +44,7 @@ export function extractionReport(r: ExtractionResult, ctx: ReportContext): Recor
       files: ctx.files, scene: ctx.scene ?? null, unit: ctx.unit,
       ...(ctx.title !== undefined ? { title: ctx.title } : {}),
       ...(ctx.parameters && Object.keys(ctx.parameters).length > 0 ? { parameters: ctx.parameters } : {}),
+      remeshed: ctx.remesh ?? null,
     },
     medium: { relativePermittivity: r.relativePermittivity, permittivity: r.permittivity, breakdownField: r.breakdownField },
     conductors: r.conductors.map((c) => ({

@@ -80,7 +80,7 @@ export function checkOutputTargets(targets: OutputTargets, refine?: number): voi
 export function sceneReport(result: SceneExtraction, opts: { panels?: boolean } = {}): Record<string, unknown> {
   const report = extractionReport(result, {
     version: version(), files: result.input.files, scene: result.input.scene, unit: result.input.unit, inputWarnings: result.input.warnings,
-    title: result.input.title, parameters: result.input.parameters,
+    title: result.input.title, parameters: result.input.parameters, remesh: result.input.remesh,
   });
   if (opts.panels) report.viewer = viewerDataJson(result);
   return report;
