@@ -63,6 +63,8 @@ export interface InputOptions {
   permittivity?: number;
   /** Breakdown strength of the background medium for the field check, V/m; replaces the scene's. */
   breakdownField?: number;
+  /** CAD files (STEP, IGES, BREP): target panel size on curved faces, in the input unit; default from each model's size. */
+  panelSize?: number;
 }
 
 /** `AXIS=POSITION` (`z=0`, `x=-2.5`) in `unit`, as a plane in metres; `what` names the option in errors. */
@@ -111,7 +113,7 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
       scene = { ...scene, unit: opts.unit, groundPlane: scene.groundPlane && move(scene.groundPlane), symmetry: scene.symmetry.map(move) };
     }
     if (opts.split || opts.merge) throw new InputError("--split and --merge apply to mesh files; in a scene, each entry is one conductor", list[0]);
-    const sm = loadSceneMesh(scene, { weldTolerance: opts.weldTolerance });
+    const sm = loadSceneMesh(scene, { weldTolerance: opts.weldTolerance, panelSize: panelMetres(opts.panelSize, scene.unit) });
     const floating = floatingFlags(sm.mesh.names, sm.floating, opts.floating);
     out = {
       mesh: sm.mesh, potentials: resolvePotentials(sm.mesh.names, sm.potentials, baseOverrides, floating), unit: scene.unit, unitAssumed: false, permittivity: scene.permittivity,
@@ -121,7 +123,7 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
   } else {
     if (opts.parameters && Object.keys(opts.parameters).length > 0) throw new InputError("parameters belong to a scene file (.json); mesh files have none", list[0]);
     const unit = opts.unit ?? DEFAULT_UNIT;
-    const lm = loadMeshFiles(list, { unit, split: opts.split, merge: opts.merge, weldTolerance: opts.weldTolerance });
+    const lm = loadMeshFiles(list, { unit, split: opts.split, merge: opts.merge, weldTolerance: opts.weldTolerance, panelSize: panelMetres(opts.panelSize, unit) });
     const given = lm.mesh.names.map(() => undefined);
     const floating = floatingFlags(lm.mesh.names, lm.mesh.names.map(() => false), opts.floating);
     out = {
@@ -170,6 +172,13 @@ function mirrorPotentials(out: LoadedScene, overrides: Array<[string, number]>):
     v[i] = volts;
   }
   return v;
+}
+
+/** A panel size in `unit` as metres; undefined stays undefined. */
+function panelMetres(size: number | undefined, unit: LengthUnit): number | undefined {
+  if (size === undefined) return undefined;
+  if (!(size > 0) || !Number.isFinite(size)) throw new InputError(`panel size must be a positive length in ${unit}, got ${size}`);
+  return size * metresPer(unit);
 }
 
 /** Floating flags from the scene and the names given as floating. */
