@@ -56,18 +56,44 @@ export interface CadReadOptions {
 
 const LABEL: Record<CadFormat, string> = { step: "STEP", iges: "IGES", brep: "BREP" };
 
-/** Read a CAD file: its parts as groups with CAD faces and a reference surface. Faults are InputErrors naming the file. */
+/** The last few reads, by content and options: a scene naming parts of one file in several entries reads it once. */
+const recent = new Map<string, CadRawMesh>();
+const RECENT = 4;
+
+/**
+ * Read a CAD file: its parts as groups with CAD faces and a reference surface. Faults are
+ * InputErrors naming the file. The result may be shared with later reads of the same bytes:
+ * callers treat it as read-only.
+ */
 export function readCad(bytes: Uint8Array, file: string, format: CadFormat, opts: CadReadOptions = {}): CadRawMesh {
-  const solveParams: KernelMeshParams = opts.panelSize !== undefined && opts.panelSize > 0
-    // A chord of length h on a radius of 2h has sagitta h/16: panels of about h where the
-    // curvature radius is twice the panel size, finer on tighter curves (the angle bound).
-    ? { linearUnit: "millimeter", linearDeflectionType: "absolute_value", linearDeflection: opts.panelSize / 16, angularDeflection: CAD_ANGLE }
-    : { linearUnit: "millimeter", linearDeflectionType: "bounding_box_ratio", linearDeflection: CAD_DEFLECTION, angularDeflection: CAD_ANGLE };
-  const solve = kernelRead(bytes, file, format, solveParams);
+  const key = `${format}|${bytes.length}|${contentHash(bytes)}|${opts.panelSize}|${opts.reference?.deflection}|${opts.reference?.angle}`;
+  const hit = recent.get(key);
+  if (hit) return hit;
+  const read = readCadUncached(bytes, file, format, opts);
+  recent.set(key, read);
+  if (recent.size > RECENT) recent.delete(recent.keys().next().value as string);
+  return read;
+}
+
+/** 32-bit FNV-1a over the bytes (a cache key beside the length; not a security measure). */
+function contentHash(b: Uint8Array): number {
+  let h = 0x811c9dc5;
+  for (let i = 0; i < b.length; i++) h = Math.imul(h ^ b[i], 0x01000193);
+  return h >>> 0;
+}
+
+function readCadUncached(bytes: Uint8Array, file: string, format: CadFormat, opts: CadReadOptions): CadRawMesh {
   const fine = kernelRead(bytes, file, format, {
     linearUnit: "millimeter", linearDeflectionType: "bounding_box_ratio",
     linearDeflection: opts.reference?.deflection ?? REFERENCE_DEFLECTION, angularDeflection: opts.reference?.angle ?? REFERENCE_ANGLE,
   });
+  const solveParams: KernelMeshParams = opts.panelSize !== undefined && opts.panelSize > 0
+    // A chord of length h on a radius R has sagitta h²/(8R): with R half the model's diagonal
+    // (the flattest curve that matters), curved faces get panels of at most about h, tighter
+    // curves finer by the angle bound. Flat faces keep the kernel's fans (remeshed elsewhere).
+    ? { linearUnit: "millimeter", linearDeflectionType: "absolute_value", linearDeflection: opts.panelSize ** 2 / (4 * diagonalOf(fine.meshes as KernelMesh[])), angularDeflection: CAD_ANGLE }
+    : { linearUnit: "millimeter", linearDeflectionType: "bounding_box_ratio", linearDeflection: CAD_DEFLECTION, angularDeflection: CAD_ANGLE };
+  const solve = kernelRead(bytes, file, format, solveParams);
   const meshes = solve.meshes as KernelMesh[];
   const parts = partsOf(solve.root as KernelNode, meshes, file);
   const fineMeshes = fine.meshes as KernelMesh[];
@@ -120,7 +146,7 @@ function kernelRead(bytes: Uint8Array, file: string, format: CadFormat, params: 
     // occt's parser says "Line 278: Incorrect syntax: unexpected end of file, ..."
     const said = messages.map((s) => /Line\s+(\d+)\s*:\s*(.*?)\s*\**\s*$/.exec(s)).find((m) => m !== null);
     const place = said ? `line ${said[1]}` : undefined;
-    const why = said ? said[2].replace(/^Incorrect syntax:\s*/i, "") : "the CAD kernel could not read it";
+    const why = said ? said[2].replace(/^Incorrect syntax:\s*/i, "") : "the CAD kernel found no shape in it";
     throw new InputError(`not a readable ${LABEL[format]} file (${why}; a truncated or damaged file?)`, file, place);
   }
   if (result.meshes.length === 0) {
@@ -130,6 +156,18 @@ function kernelRead(bytes: Uint8Array, file: string, format: CadFormat, params: 
 }
 
 interface Part { mesh: number; name: string; path: string }
+
+/** Bounding-box diagonal of all the kernel's vertices. */
+function diagonalOf(meshes: KernelMesh[]): number {
+  let lx = Infinity, ly = Infinity, lz = Infinity, hx = -Infinity, hy = -Infinity, hz = -Infinity;
+  for (const m of meshes) {
+    const p = m.attributes.position.array;
+    for (let i = 0; i < p.length; i += 3) {
+      lx = Math.min(lx, p[i]); hx = Math.max(hx, p[i]); ly = Math.min(ly, p[i + 1]); hy = Math.max(hy, p[i + 1]); lz = Math.min(lz, p[i + 2]); hz = Math.max(hz, p[i + 2]);
+    }
+  }
+  return Math.hypot(hx - lx, hy - ly, hz - lz);
+}
 
 /** Every kernel mesh as a part, in tree order, with its name; a leaf node without geometry is a fault. */
 function partsOf(root: KernelNode, meshes: KernelMesh[], file: string): Part[] {
