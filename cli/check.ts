@@ -17,7 +17,8 @@ import { loadScene } from "../src/io/inputs.js";
 import { concatMeshes, type SurfaceMesh } from "../src/mesh/model.js";
 import { outputFormatFromPath, writeMeshFile } from "../src/io/write.js";
 import { checkSceneSurroundings, type SceneSurroundingsCheck } from "../src/extract/scene-check.js";
-import { parseUnit, DEFAULT_UNIT } from "../src/io/units.js";
+import { parseUnit, DEFAULT_UNIT, metresPer } from "../src/io/units.js";
+import { numberOption } from "./options.js";
 import { InputError } from "../src/errors.js";
 import { checkMeshParallel } from "../src/mesh/check.js";
 import { formatCheckSummary } from "../src/report/check-summary.js";
@@ -33,6 +34,7 @@ interface CheckCliOptions {
   split?: boolean;
   merge?: boolean;
   weldTolerance?: string;
+  panelSize?: string;
   json?: string;
   quiet?: boolean;
   writeMesh?: string;
@@ -53,6 +55,7 @@ export function registerCheck(program: Command): void {
     .option("--unit <unit>", "length unit of the files: m, cm, mm, um, in, mil (or spelled out: millimetre, micron, inch, thou, ...); overrides a scene's", DEFAULT_UNIT)
     .option("--split", "make each connected component a conductor of its own")
     .option("--merge", "make all groups of a file one conductor")
+    .option("--panel-size <length>", "CAD files (STEP, IGES, BREP): target panel size on curved faces, in the input unit (default: from each model's size)")
     .option("--weld-tolerance <relative>", "weld vertices closer than this fraction of the bounding-box diagonal (default 1e-6)")
     .option("--json <path>", "write the report as JSON to a file, or - for standard output")
     .option("--write-mesh <file>", "write the meshes checked (.stl as ASCII with one named solid per body, or .obj; in the input unit): conductors by name, a scene's dielectric bodies as dielectric:NAME")
@@ -66,6 +69,7 @@ export function registerCheck(program: Command): void {
         ...(opts.json !== undefined ? [{ path: opts.json, option: "--json" }] : []),
         ...(opts.writeMesh !== undefined ? [{ path: opts.writeMesh, option: "--write-mesh" }] : []),
       ]);
+      const panelSize = opts.panelSize === undefined ? undefined : numberOption(opts.panelSize, "--panel-size", (x) => x > 0, "a positive length in the input unit");
       let weldTolerance: number | undefined;
       if (opts.weldTolerance !== undefined) {
         weldTolerance = Number(opts.weldTolerance);
@@ -78,13 +82,13 @@ export function registerCheck(program: Command): void {
       let loaded: LoadedMesh, scene: { file: string; check: SceneSurroundingsCheck } | undefined;
       let inspection: SurfaceMesh;
       if (isScene) {
-        const s = loadScene(files, { unit: unitAssumed ? undefined : unit, split: opts.split, merge: opts.merge, weldTolerance });
+        const s = loadScene(files, { unit: unitAssumed ? undefined : unit, split: opts.split, merge: opts.merge, weldTolerance, panelSize });
         // Welding counts are not kept per scene: NaN is written as null.
         loaded = { mesh: s.mesh, warnings: s.warnings, files: [s.scene!], unit: s.unit, dropped: s.dropped, welded: NaN };
         scene = { file: s.scene!, check: checkSceneSurroundings(s) };
         inspection = meshForInspection(s.mesh, s.dielectrics);
       } else {
-        loaded = loadMeshFiles(files, { unit, split: opts.split, merge: opts.merge, weldTolerance });
+        loaded = loadMeshFiles(files, { unit, split: opts.split, merge: opts.merge, weldTolerance, panelSize: panelSize === undefined ? undefined : panelSize * metresPer(unit) });
         inspection = loaded.mesh;
       }
       const u = loaded.unit, assumed = isScene ? false : unitAssumed;

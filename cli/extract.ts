@@ -41,13 +41,14 @@ export interface ExtractCliOptions {
   groundPlane?: string;
   symmetry?: string[];
   floating?: string[];
+  panelSize?: string;
 }
 
 export function registerExtract(program: Command): void {
   program
     .command("extract")
     .description("solve for the capacitance matrices, charges, surface fields, energy and forces of the conductors")
-    .argument("<inputs...>", "a scene file (.json) or mesh files (STL, OBJ, Gmsh MSH) whose bodies are the conductors")
+    .argument("<inputs...>", "a scene file (.json), or mesh or CAD files (STL, OBJ, Gmsh MSH, STEP, IGES, BREP) whose bodies or parts are the conductors")
     .option("--unit <unit>", "length unit of the mesh files: m, cm, mm, um, in, mil, or spelled out (default: the scene's, else mm)")
     .option("--potential <name=volts>", "working potential of a conductor (repeatable)", collect, [])
     .option("--method <method>", "discretisation: galerkin or collocation", "galerkin")
@@ -59,6 +60,7 @@ export function registerExtract(program: Command): void {
     .option("--ground-plane <axis=pos>", "an infinite grounded plane, e.g. z=0 (user unit); it becomes the reference")
     .option("--symmetry <axis=pos[:images]>", "a mirror symmetry plane of the model, e.g. x=0 (repeatable): mesh only one side; images even (default), odd (mirror half at the opposite potential) or both (mirror half its own conductors, name~x; x=0:both:opposite drives them at the opposite potential)", collect, [])
     .option("--floating <name>", "leave this conductor floating: no net charge, potential solved for (repeatable)", collect, [])
+    .option("--panel-size <length>", "CAD files (STEP, IGES, BREP): target panel size on curved faces, in the input unit (default: from each model's size)")
     .option("--split", "mesh files: each connected component is a conductor")
     .option("--merge", "mesh files: all groups of a file are one conductor")
     .option("--json <path>", "write the JSON report to a file, or - for standard output")
@@ -95,6 +97,7 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
     groundPlane: opts.groundPlane, symmetry: opts.symmetry && opts.symmetry.length ? opts.symmetry : undefined,
     floating: opts.floating && opts.floating.length ? opts.floating : undefined,
     permittivity, breakdownField,
+    panelSize: opts.panelSize === undefined ? undefined : numberOption(opts.panelSize, "--panel-size", (x) => x > 0, "a positive length in the input unit"),
   });
   printWarnings(scene.warnings, false);
   // Probe results go to probes.csv unless told otherwise.
