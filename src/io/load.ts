@@ -174,7 +174,8 @@ export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOption
     cleanFaces = Uint32Array.from(clean.group, (t) => keptFaces[t]);
     for (let k = 0; k < clean.group.length; k++) clean.group[k] = cond[clean.group[k]];
   }
-  if (clean.dropped > 0) {
+  // The kernel's own slivers (a sphere's poles, a cone's apex) are no fault of the file's.
+  if (clean.dropped > 0 && !cad) {
     warnings.push({ file, message: `${clean.dropped} degenerate triangle(s) dropped (repeated vertex or zero area after welding)` });
   }
   const left = new Uint32Array(names.length);
