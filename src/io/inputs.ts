@@ -122,12 +122,15 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
     };
   } else {
     if (opts.parameters && Object.keys(opts.parameters).length > 0) throw new InputError("parameters belong to a scene file (.json); mesh files have none", list[0]);
-    const unit = opts.unit ?? DEFAULT_UNIT;
+    let unit = opts.unit ?? DEFAULT_UNIT;
     const lm = loadMeshFiles(list, { unit, split: opts.split, merge: opts.merge, weldTolerance: opts.weldTolerance, panelSize: panelMetres(opts.panelSize, unit) });
+    // CAD files that all declare one unit report in it unless --unit says otherwise (their geometry is already in metres).
+    const declared = opts.unit === undefined ? lm.declaredUnit : undefined;
+    if (declared) unit = declared;
     const given = lm.mesh.names.map(() => undefined);
     const floating = floatingFlags(lm.mesh.names, lm.mesh.names.map(() => false), opts.floating);
     out = {
-      mesh: lm.mesh, potentials: resolvePotentials(lm.mesh.names, given, baseOverrides, floating), unit, unitAssumed: opts.unit === undefined, permittivity: 1,
+      mesh: lm.mesh, potentials: resolvePotentials(lm.mesh.names, given, baseOverrides, floating), unit, unitAssumed: opts.unit === undefined && declared === undefined, permittivity: 1,
       symmetry: [], floating, files: lm.files, warnings: lm.warnings, dropped: lm.dropped, probes: [], dielectrics: [], parameters: {},
     };
   }

@@ -16,7 +16,7 @@ import { weldVertices, dropDegenerate, DEFAULT_WELD_TOLERANCE } from "../mesh/we
 import { connectedComponents } from "../mesh/components.js";
 import { physicalSizeFault } from "../mesh/physical-size.js";
 import { InputError, type Warning } from "../errors.js";
-import { metresPer, UNIT_CHOICES, type LengthUnit } from "./units.js";
+import { metresPer, METRES_PER_UNIT, UNIT_CHOICES, type LengthUnit } from "./units.js";
 import { detectFormat, isCadFormat } from "./format.js";
 import { readCad, type CadRawMesh } from "./cad.js";
 import { describeUnits } from "./cad-units.js";
@@ -54,6 +54,11 @@ export interface LoadedMesh {
   dropped: number;
   /** Vertices removed by welding. */
   welded: number;
+  /**
+   * When every file read is a STEP or IGES file declaring one of our units, and all the same
+   * one: that unit (the geometry is already in metres; this only offers it for reports).
+   */
+  declaredUnit?: LengthUnit;
 }
 
 /** Read and prepare one mesh file. Every failure is an InputError naming the file. */
@@ -74,6 +79,7 @@ export function loadMeshFiles(paths: string[], opts: LoadOptions): LoadedMesh {
     unit: opts.unit,
     dropped: parts.reduce((s, r) => s + r.dropped, 0),
     welded: parts.reduce((s, r) => s + r.welded, 0),
+    declaredUnit: parts.every((r) => r.declaredUnit !== undefined && r.declaredUnit === parts[0].declaredUnit) ? parts[0].declaredUnit : undefined,
   };
 }
 
@@ -208,7 +214,13 @@ export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOption
     const r = restrictReference(scaleReference(cad.reference, scale), cleanFaces);
     mesh = { ...mesh, faces: r.faces, reference: r.reference };
   }
-  return { mesh, warnings, files: [file], unit: opts.unit, dropped: clean.dropped, welded: welded.merged };
+  const declaredUnit = cad && cad.declared.length === 1 ? knownUnit(cad.declared[0].metres) : undefined;
+  return { mesh, warnings, files: [file], unit: opts.unit, dropped: clean.dropped, welded: welded.merged, ...(declaredUnit ? { declaredUnit } : {}) };
+}
+
+/** Our unit of exactly this many metres, if any. */
+function knownUnit(metres: number): LengthUnit | undefined {
+  return (Object.keys(METRES_PER_UNIT) as LengthUnit[]).find((u) => Math.abs(METRES_PER_UNIT[u] / metres - 1) < 1e-12);
 }
 
 /**

@@ -73,6 +73,16 @@ describe("CAD formats and units", () => {
     }
     expect(loads[2].warnings[0].message).toMatch(/length unit inch/);
   });
+  it("CAD files that declare one of our units report in it unless --unit is given", async () => {
+    const { loadScene } = await import("../../src/io/inputs.js");
+    const inch = loadScene(cad("cube-in.step"));
+    expect([inch.unit, inch.unitAssumed]).toEqual(["in", false]);
+    expect(conductorAreas(inch.mesh)[0]).toBeCloseTo(6, 9);
+    expect(loadScene(cad("cube-in.step"), { unit: "mm" }).unit).toBe("mm");
+    // Mixed declared units, or a BREP (none): the default stays, and is said to be assumed.
+    const mixed = loadScene([cad("cube-in.step"), cad("cube-mm.step")]);
+    expect([mixed.unit, mixed.unitAssumed]).toEqual(["mm", true]);
+  });
   it("BREP declares no unit: --unit applies", () => {
     const a = loadMeshFile(cad("as1_pe_203.brep"), { unit: "mm" }), b = loadMeshFile(cad("as1_pe_203.brep"), { unit: "in" });
     expect(conductorAreas(b.mesh)[0] / conductorAreas(a.mesh)[0]).toBeCloseTo(25.4 ** 2, 6);
