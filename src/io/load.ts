@@ -14,6 +14,7 @@ import { basename, extname } from "node:path";
 import { type SurfaceMesh, concatMeshes, uniqueNames } from "../mesh/model.js";
 import { weldVertices, dropDegenerate, DEFAULT_WELD_TOLERANCE } from "../mesh/weld.js";
 import { connectedComponents } from "../mesh/components.js";
+import { conductorTopology } from "../mesh/topology.js";
 import { physicalSizeFault } from "../mesh/physical-size.js";
 import { InputError, type Warning } from "../errors.js";
 import { metresPer, METRES_PER_UNIT, UNIT_CHOICES, type LengthUnit } from "./units.js";
@@ -213,6 +214,12 @@ export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOption
   if (cad && cleanFaces) {
     const r = restrictReference(scaleReference(cad.reference, scale), cleanFaces);
     mesh = { ...mesh, faces: r.faces, reference: r.reference };
+    // A CAD solid arrives closed; an open one is a surface model or lost faces on export.
+    conductorTopology(mesh).forEach((topo, c) => {
+      if (!topo.closed) {
+        warnings.push({ file, message: `part "${names[c]}" is not a closed body (${topo.boundaryEdges} open and ${topo.nonManifoldEdges} non-manifold edges): solved as a sheet; as a dielectric body it is refused` });
+      }
+    });
   }
   const declaredUnit = cad && cad.declared.length === 1 ? knownUnit(cad.declared[0].metres) : undefined;
   return { mesh, warnings, files: [file], unit: opts.unit, dropped: clean.dropped, welded: welded.merged, ...(declaredUnit ? { declaredUnit } : {}) };

@@ -193,6 +193,22 @@ describe("bad CAD input", () => {
   });
 });
 
+describe("open CAD bodies", () => {
+  it("a solid with a face missing from its shell: a warning naming the part; as a dielectric body it is refused", async () => {
+    const open = text("cube-mm.step").replace("CLOSED_SHELL('',(#35,#155,#255,#302,#349,#356))", "CLOSED_SHELL('',(#35,#155,#255,#302,#349))");
+    const r = parseMeshBytes(new TextEncoder().encode(open), "open.step", mm);
+    expect(r.mesh.triangles.length / 3).toBe(10);
+    expect(r.warnings.map((w) => w.message).join("\n")).toMatch(/part "Cube" is not a closed body \(4 open and 0 non-manifold edges\)/);
+    const { loadScene } = await import("../../src/io/inputs.js");
+    const { extract } = await import("../../src/extract/extract.js");
+    const dir = mkdtempSync(join(tmpdir(), "sigmesh-cad-open-"));
+    writeFileSync(join(dir, "open.step"), open);
+    writeFileSync(join(dir, "s.json"), JSON.stringify({ unit: "mm", conductors: [{ name: "ball", shape: { sphere: { radius: 100, center: [500, 500, 2500] } } }], dielectrics: [{ mesh: "open.step", permittivity: 2 }] }));
+    const s = loadScene(join(dir, "s.json"));
+    await expect(extract(s, { solver: "direct" })).rejects.toThrow(/not closed/);
+  });
+});
+
 describe("CAD files in a scene", () => {
   it("a part by name, parts merged into one net, a part as a dielectric body; placement moves the reference", async () => {
     const { loadScene } = await import("../../src/io/inputs.js");
