@@ -8,6 +8,7 @@ import { loadMeshFile, parseMeshBytes } from "../../src/io/load.js";
 import { detectFormat } from "../../src/io/format.js";
 import { stepLengthUnits, igesLengthUnit } from "../../src/io/cad-units.js";
 import { cadKernelLoaded } from "../../src/io/cad-kernel.js";
+import { readCad } from "../../src/io/cad.js";
 import { InputError } from "../../src/errors.js";
 import { conductorAreas, type SurfaceMesh, type ReferenceSurface } from "../../src/mesh/model.js";
 import { fixture, fixtureBytes } from "./helpers.js";
@@ -173,6 +174,26 @@ describe("CAD faces and the reference surface", () => {
       lift = Math.max(lift, Math.abs(Math.hypot(c[0], c[1], c[2]) - R));
     }
     expect(lift).toBeLessThan(1e-6 * R);
+  });
+});
+
+describe("exact normals on planes and quadrics only", () => {
+  it("a rounded block's planes, cylinders and sphere are all fitted; a torus keeps averaged normals, with a note", () => {
+    expect(loadMeshFile(cad("rounded-cube.step"), mm).warnings.map((w) => w.message).join("\n")).not.toMatch(/neither planes nor quadrics/);
+    // A coarser reference than loading makes, to keep the test quick (the fit does not depend on it).
+    const t = readCad(fixtureBytes("cad/torus.step"), "torus.step", "step", { reference: { deflection: 0.01, angle: 0.2 } });
+    expect(t.approximateFaces).toBe(1);
+    expect(t.warnings.join("\n")).toMatch(/1 of 1 CAD faces are neither planes nor quadrics/);
+    // The averaged normals are still close to the torus's own: (p - c)/r with c on the core circle (4 mm).
+    const ref = t.reference, P = ref.positions, N = ref.normals;
+    let worst = 0;
+    for (let v = 0; v < P.length; v += 3) {
+      const rho = Math.hypot(P[v], P[v + 1]);
+      const c = [(4 * P[v]) / rho, (4 * P[v + 1]) / rho, 0];
+      const d = [P[v] - c[0], P[v + 1] - c[1], P[v + 2]], l = Math.hypot(d[0], d[1], d[2]);
+      worst = Math.max(worst, Math.hypot(N[v] - d[0] / l, N[v + 1] - d[1] / l, N[v + 2] - d[2] / l));
+    }
+    expect(worst).toBeLessThan(0.1);
   });
 });
 
