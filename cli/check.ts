@@ -91,10 +91,12 @@ export function registerCheck(program: Command): void {
         loaded = loadMeshFiles(files, { unit, split: opts.split, merge: opts.merge, weldTolerance, panelSize: panelSize === undefined ? undefined : panelSize * metresPer(unit) });
         inspection = loaded.mesh;
       }
-      const u = loaded.unit, assumed = isScene ? false : unitAssumed;
+      // CAD files that all declare one unit are shown in it unless --unit was given (as extract does).
+      const declared = !isScene && unitAssumed ? loaded.declaredUnit : undefined;
+      const u = declared ?? loaded.unit, assumed = isScene ? false : unitAssumed && declared === undefined;
       printWarnings(loaded.warnings, opts.quiet);
       const report = await checkMeshParallel(loaded.mesh);
-      const summary = formatCheckSummary(report, { unit: u, unitAssumed: isScene ? unitAssumed : assumed, files: loaded.files, scene });
+      const summary = formatCheckSummary(report, { unit: u, unitAssumed: isScene ? unitAssumed : assumed, unitDeclared: declared !== undefined, files: loaded.files, scene });
       const json = checkReport(loaded, report, u, assumed, scene);
       if (opts.writeMesh !== undefined) writeMeshFile(opts.writeMesh, inspection, meshFormat!, u);
       if (opts.json !== undefined) writeOutput(opts.json, jsonText(json));
