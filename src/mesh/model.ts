@@ -19,8 +19,10 @@ export interface SurfaceMesh {
   names: string[];
   /**
    * The true surface each triangle lies on, when the input knows it (a CAD face, a generated
-   * shape's face): `faces[t]` is triangle t's face number in `reference`. Operations that keep
-   * triangles keep these; refinement places its new points on the reference surface.
+   * shape's face): `faces[t]` is triangle t's face number in `reference`, or `NO_FACE` for a
+   * triangle of a mesh joined from inputs with and without a reference (`concatMeshes`).
+   * Operations that keep triangles keep these; refinement places its new points on the
+   * reference surface.
    */
   faces?: Uint32Array;
   /** The true surface the triangles approximate (see `ReferenceSurface`); present with `faces`. */
