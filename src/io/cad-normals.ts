@@ -19,11 +19,23 @@ import { jacobiSVD } from "../linalg/svd.js";
 const ON_SURFACE = 1e-9;
 
 /**
+ * The surface of a face as its vertices showed it: Q(u) = 0 with u = (x − centre)·scale and
+ * Q(u) = q0 u² + q1 v² + q2 w² + q3 uv + q4 uw + q5 vw + q6 u + q7 v + q8 w + q9 (a plane has
+ * q0..q5 = 0). Coordinates are those of the reference given to `exactFaceNormals`.
+ */
+export interface FaceSurface {
+  centre: [number, number, number];
+  scale: number;
+  q: Float64Array;
+  plane: boolean;
+}
+
+/**
  * Replace the normals of every plane or quadric face by the exact ones, in place; the
  * normals given (averaged, unit) decide the sense. Returns the number of faces left with
- * averaged normals.
+ * averaged normals, and each face's surface (undefined for those).
  */
-export function exactFaceNormals(positions: Float64Array, normals: Float64Array, triangles: Uint32Array, face: Uint32Array, faceCount: number): number {
+export function exactFaceNormals(positions: Float64Array, normals: Float64Array, triangles: Uint32Array, face: Uint32Array, faceCount: number): { approximate: number; surfaces: Array<FaceSurface | undefined> } {
   const nv = positions.length / 3;
   const faceOf = new Int32Array(nv).fill(-1);
   for (let t = 0; t < face.length; t++) for (let j = 0; j < 3; j++) faceOf[triangles[3 * t + j]] = face[t];
@@ -34,12 +46,43 @@ export function exactFaceNormals(positions: Float64Array, normals: Float64Array,
   const fill = start.slice(0, faceCount);
   for (let v = 0; v < nv; v++) if (faceOf[v] >= 0) members[fill[faceOf[v]]++] = v;
   let approximate = 0;
+  const surfaces: Array<FaceSurface | undefined> = [];
   for (let f = 0; f < faceCount; f++) {
     const vs = members.subarray(start[f], start[f + 1]);
-    if (vs.length === 0) continue;
-    if (!fitPlane(positions, normals, vs) && !fitQuadric(positions, normals, vs)) approximate++;
+    const s = vs.length === 0 ? undefined : fitPlane(positions, normals, vs) ?? fitQuadric(positions, normals, vs);
+    if (vs.length > 0 && s === undefined) approximate++;
+    surfaces.push(s);
   }
-  return approximate;
+  return { approximate, surfaces };
+}
+
+/**
+ * The point of a fitted face's surface nearest `x` (a few Newton steps along the gradient,
+ * enough from a point a chord's sagitta away); written into `out`, same coordinates.
+ */
+export function projectOnFace(out: Float64Array, x: ArrayLike<number>, s: FaceSurface): Float64Array {
+  const q = s.q, k = s.scale;
+  let u = (x[0] - s.centre[0]) * k, v = (x[1] - s.centre[1]) * k, w = (x[2] - s.centre[2]) * k;
+  for (let it = 0; it < 4; it++) {
+    const value = q[0] * u * u + q[1] * v * v + q[2] * w * w + q[3] * u * v + q[4] * u * w + q[5] * v * w + q[6] * u + q[7] * v + q[8] * w + q[9];
+    const gx = 2 * q[0] * u + q[3] * v + q[4] * w + q[6], gy = 2 * q[1] * v + q[3] * u + q[5] * w + q[7], gz = 2 * q[2] * w + q[4] * u + q[5] * v + q[8];
+    const g2 = gx * gx + gy * gy + gz * gz;
+    if (!(g2 > 0)) break;
+    const step = value / g2;
+    u -= step * gx; v -= step * gy; w -= step * gz;
+    if (Math.abs(value) <= 1e-15 * Math.sqrt(g2)) break;
+  }
+  out[0] = u / k + s.centre[0]; out[1] = v / k + s.centre[1]; out[2] = w / k + s.centre[2];
+  return out;
+}
+
+/** Distance-like residual |Q| / |∇Q| of `x` from a fitted face's surface, in the face's own coordinates (not scaled). */
+export function offFace(x: ArrayLike<number>, s: FaceSurface): number {
+  const q = s.q, k = s.scale;
+  const u = (x[0] - s.centre[0]) * k, v = (x[1] - s.centre[1]) * k, w = (x[2] - s.centre[2]) * k;
+  const value = q[0] * u * u + q[1] * v * v + q[2] * w * w + q[3] * u * v + q[4] * u * w + q[5] * v * w + q[6] * u + q[7] * v + q[8] * w + q[9];
+  const gx = 2 * q[0] * u + q[3] * v + q[4] * w + q[6], gy = 2 * q[1] * v + q[3] * u + q[5] * w + q[7], gz = 2 * q[2] * w + q[4] * u + q[5] * v + q[8];
+  return Math.abs(value) / (Math.hypot(gx, gy, gz) * k);
 }
 
 /** Centre and half-extent of a face's vertices (for conditioning and the tolerance). */
@@ -54,11 +97,11 @@ function frame(p: Float64Array, vs: Uint32Array): [number, number, number, numbe
 }
 
 /** A flat face: the mean normal, if every vertex lies in its plane. */
-function fitPlane(p: Float64Array, n: Float64Array, vs: Uint32Array): boolean {
+function fitPlane(p: Float64Array, n: Float64Array, vs: Uint32Array): FaceSurface | undefined {
   let ax = 0, ay = 0, az = 0;
   for (const v of vs) { ax += n[3 * v]; ay += n[3 * v + 1]; az += n[3 * v + 2]; }
   const len = Math.hypot(ax, ay, az);
-  if (!(len > 0)) return false;
+  if (!(len > 0)) return undefined;
   ax /= len; ay /= len; az /= len;
   const [cx, cy, cz, half] = frame(p, vs);
   let lo = Infinity, hi = -Infinity;
@@ -66,16 +109,55 @@ function fitPlane(p: Float64Array, n: Float64Array, vs: Uint32Array): boolean {
     const d = (p[3 * v] - cx) * ax + (p[3 * v + 1] - cy) * ay + (p[3 * v + 2] - cz) * az;
     if (d < lo) lo = d; if (d > hi) hi = d;
   }
-  if (hi - lo > ON_SURFACE * half) return false;
+  if (hi - lo > ON_SURFACE * half) return undefined;
   for (const v of vs) { n[3 * v] = ax; n[3 * v + 1] = ay; n[3 * v + 2] = az; }
-  return true;
+  const q = new Float64Array(10);
+  q[6] = ax; q[7] = ay; q[8] = az; q[9] = -(lo + hi) / 2 / half;
+  return { centre: [cx, cy, cz], scale: 1 / half, q, plane: true };
+}
+
+/** Singular values below this fraction of the largest span the null space. */
+const NULL_SPACE = 1e-10;
+/** Cosine of the largest angle allowed between a fitted normal and the kernel's averaged one. */
+const AGREE = 0.96;
+
+/**
+ * The member of the null space spanned by the right singular vectors `basis` (columns of Z)
+ * whose gradient is most nearly parallel to the averaged normals: the smallest right singular
+ * vector of the stacked cross products ∇Q_α(p_i) × n_i, linear in α.
+ */
+function combination(basis: number[], p: Float64Array, n: Float64Array, vs: Uint32Array, cx: number, cy: number, cz: number, s: number): number[] {
+  const k = basis.length;
+  const vec = (j: number) => Array.from({ length: 10 }, (_, i) => Z[i * 10 + j]);
+  if (k === 1) return vec(basis[0]);
+  const qs = basis.map(vec);
+  const G = new Float64Array(k * k);
+  const c = new Float64Array(3 * k);
+  for (const v of vs) {
+    const x = (p[3 * v] - cx) * s, y = (p[3 * v + 1] - cy) * s, z = (p[3 * v + 2] - cz) * s;
+    const nx = n[3 * v], ny = n[3 * v + 1], nz = n[3 * v + 2];
+    for (let a = 0; a < k; a++) {
+      const q = qs[a];
+      const gx = 2 * q[0] * x + q[3] * y + q[4] * z + q[6], gy = 2 * q[1] * y + q[3] * x + q[5] * z + q[7], gz = 2 * q[2] * z + q[4] * x + q[5] * y + q[8];
+      c[3 * a] = gy * nz - gz * ny; c[3 * a + 1] = gz * nx - gx * nz; c[3 * a + 2] = gx * ny - gy * nx;
+    }
+    for (let a = 0; a < k; a++) for (let b = 0; b < k; b++) G[a * k + b] += c[3 * a] * c[3 * b] + c[3 * a + 1] * c[3 * b + 1] + c[3 * a + 2] * c[3 * b + 2];
+  }
+  const V = new Float64Array(k * k), sv = new Float64Array(k);
+  jacobiSVD(G, k, V, sv);
+  let m = 0;
+  for (let j = 1; j < k; j++) if (sv[j] < sv[m]) m = j;
+  const out = new Array<number>(10).fill(0);
+  for (let a = 0; a < k; a++) for (let i = 0; i < 10; i++) out[i] += V[a * k + m] * qs[a][i];
+  const len = Math.hypot(...out);
+  return out.map((x) => x / len);
 }
 
 const R = new Float64Array(100), Z = new Float64Array(100), S = new Float64Array(10), row = new Float64Array(10);
 
 /** A quadric face: the algebraic fit's null vector, accepted when every vertex lies on it. */
-function fitQuadric(p: Float64Array, n: Float64Array, vs: Uint32Array): boolean {
-  if (vs.length < 10) return false;
+function fitQuadric(p: Float64Array, n: Float64Array, vs: Uint32Array): FaceSurface | undefined {
+  if (vs.length < 10) return undefined;
   const [cx, cy, cz, half] = frame(p, vs);
   const s = 1 / half;
   // R: the triangular factor of the design matrix, built a row at a time by Givens rotations
@@ -96,9 +178,15 @@ function fitQuadric(p: Float64Array, n: Float64Array, vs: Uint32Array): boolean 
     }
   }
   jacobiSVD(R, 10, Z, S);
-  let m = 0;
-  for (let j = 1; j < 10; j++) if (S[j] < S[m]) m = j;
-  const q = Array.from({ length: 10 }, (_, i) => Z[i * 10 + m]);
+  // The null space: one vector for points spread over the surface; more when they are not
+  // (a cylinder or cone meshed with vertices on its two rims only, which a pair of planes
+  // also holds). Within it, the member whose gradients best follow the kernel's averaged
+  // normals; on ruled faces those are exact across the rulings, as every facet contains one.
+  const order = Array.from({ length: 10 }, (_, j) => j).sort((a, b) => S[a] - S[b]);
+  const top = S[order[9]];
+  const basis = order.filter((j) => S[j] <= NULL_SPACE * top).slice(0, 3);
+  if (basis.length === 0) basis.push(order[0]);
+  const q = combination(basis, p, n, vs, cx, cy, cz, s);
   // Every vertex on the surface (distance ≈ |Q| / |∇Q|), with a gradient to take the normal from.
   const out = new Float64Array(3 * vs.length);
   for (let i = 0; i < vs.length; i++) {
@@ -110,10 +198,13 @@ function fitQuadric(p: Float64Array, n: Float64Array, vs: Uint32Array): boolean 
     const gz = 2 * q[2] * z + q[4] * x + q[5] * y + q[8];
     const g = Math.hypot(gx, gy, gz);
     // A vanishing gradient (a cone's apex) or a point off the fit: not this surface.
-    if (!(g > 1e-6) || Math.abs(value) > ON_SURFACE * g) return false;
-    const sense = gx * n[3 * v] + gy * n[3 * v + 1] + gz * n[3 * v + 2] < 0 ? -1 : 1;
+    if (!(g > 1e-6) || Math.abs(value) > ON_SURFACE * g) return undefined;
+    const along = gx * n[3 * v] + gy * n[3 * v + 1] + gz * n[3 * v + 2];
+    // The fit must agree with the averaged normals (within about 15°): else it is not this face's surface.
+    if (Math.abs(along) < AGREE * g) return undefined;
+    const sense = along < 0 ? -1 : 1;
     out[3 * i] = (sense * gx) / g; out[3 * i + 1] = (sense * gy) / g; out[3 * i + 2] = (sense * gz) / g;
   }
   for (let i = 0; i < vs.length; i++) for (let j = 0; j < 3; j++) n[3 * vs[i] + j] = out[3 * i + j];
-  return true;
+  return { centre: [cx, cy, cz], scale: s, q: Float64Array.from(q), plane: false };
 }

@@ -20,7 +20,7 @@ import type { ReferenceSurface } from "../mesh/model.js";
 import type { RawMesh } from "./raw.js";
 import { runKernel, type CadFormat, type KernelMesh, type KernelMeshParams, type KernelNode, type KernelResult } from "./cad-kernel.js";
 import { stepLengthUnits, igesLengthUnit, type DeclaredUnit } from "./cad-units.js";
-import { exactFaceNormals } from "./cad-normals.js";
+import { exactFaceNormals, type FaceSurface } from "./cad-normals.js";
 
 export type { CadFormat } from "./cad-kernel.js";
 
@@ -43,6 +43,8 @@ export interface CadRawMesh extends RawMesh {
   metresPerUnit?: number;
   /** Faces whose reference normals are averaged, not exact (neither planes nor quadrics: tori, B-splines). */
   approximateFaces: number;
+  /** Each face's fitted surface (same units as `positions`), undefined where none fits. */
+  surfaces: Array<FaceSurface | undefined>;
   /** Path of each group in the model's hierarchy (`as1/l-bracket-assembly/nut`), for messages. */
   groupPaths: string[];
 }
@@ -123,7 +125,7 @@ function readCadUncached(bytes: Uint8Array, file: string, format: CadFormat, opt
 
   const text = format === "brep" ? "" : new TextDecoder("latin1").decode(bytes);
   const reference = referenceOf(fineMeshes, faceBase, file);
-  const approximateFaces = exactFaceNormals(reference.positions, reference.normals, reference.triangles, reference.face, reference.faceCount);
+  const { approximate: approximateFaces, surfaces } = exactFaceNormals(reference.positions, reference.normals, reference.triangles, reference.face, reference.faceCount);
   const declared = format === "step" ? stepLengthUnits(text) : format === "iges" ? [igesLengthUnit(text)].filter((u): u is DeclaredUnit => u !== undefined) : [];
   return {
     positions, triangles, group, faces,
@@ -134,7 +136,7 @@ function readCadUncached(bytes: Uint8Array, file: string, format: CadFormat, opt
     warnings: approximateFaces > 0
       ? [`${approximateFaces} of ${reference.faceCount} CAD faces are neither planes nor quadrics (tori, B-splines): refinement follows their fine tessellation with averaged normals, not the exact surface`]
       : [],
-    reference, approximateFaces,
+    reference, approximateFaces, surfaces,
     declared,
     metresPerUnit: format === "brep" ? undefined : 1e-3,
   };

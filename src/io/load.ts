@@ -177,7 +177,8 @@ export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOption
   // Degenerate triangles go with their conductor and CAD face: drop by triangle number.
   const clean = dropDegenerate(welded.positions, welded.triangles, keptFaces ? Uint32Array.from(cond, (_, t) => t) : cond);
   let cleanFaces: Uint32Array | undefined;
-  if (keptFaces) {
+  const vertices = welded.positions;
+  if (keptFaces && cad) {
     cleanFaces = Uint32Array.from(clean.group, (t) => keptFaces[t]);
     for (let k = 0; k < clean.group.length; k++) clean.group[k] = cond[clean.group[k]];
   }
@@ -193,7 +194,7 @@ export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOption
 
   let conductor = clean.group;
   if (opts.split) {
-    const comp = connectedComponents(clean.triangles, welded.positions.length / 3);
+    const comp = connectedComponents(clean.triangles, vertices.length / 3);
     // Number the pieces of each conductor in order of appearance.
     // Groups sharing vertices stay apart: a piece is a (component, conductor) pair.
     const pieceOf = new Map<number, number>();
@@ -209,7 +210,7 @@ export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOption
     }
     names = uniqueNames(pieces.map(({ c, k }) => (countIn[c] > 1 ? `${names[c]}_${k}` : names[c])));
   }
-  const compact = dropUnreferenced(welded.positions, clean.triangles);
+  const compact = dropUnreferenced(vertices, clean.triangles);
   let mesh: SurfaceMesh = { positions: compact, triangles: clean.triangles, conductor, names };
   if (cad && cleanFaces) {
     const r = restrictReference(scaleReference(cad.reference, scale), cleanFaces);

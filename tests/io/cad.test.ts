@@ -197,6 +197,23 @@ describe("exact normals on planes and quadrics only", () => {
   });
 });
 
+describe("exact normals on a cylinder meshed on its rims only", () => {
+  it("the side face's normals are radial: the plane pair through the two rims is not taken for the surface", () => {
+    const r = loadMeshFile(cad("cylinder.step"), mm);
+    const ref = r.mesh.reference as ReferenceSurface, P = ref.positions, N = ref.normals;
+    let worst = 0, side = 0;
+    for (let v = 0; v < P.length; v += 3) {
+      if (Math.abs(N[v + 2]) > 0.5) continue; // the end caps
+      const l = Math.hypot(P[v], P[v + 1]);
+      expect(Math.abs(l - 2e-3)).toBeLessThan(1e-12);
+      side++;
+      worst = Math.max(worst, Math.hypot(N[v] - P[v] / l, N[v + 1] - P[v + 1] / l, N[v + 2]));
+    }
+    expect(side).toBeGreaterThan(100);
+    expect(worst).toBeLessThan(1e-6);
+  });
+});
+
 describe("bad CAD input", () => {
   it("truncated, garbage, empty: one InputError naming the file (and the line when the kernel says)", () => {
     const full = fixtureBytes("cad/rounded-cube.step");
