@@ -56,35 +56,6 @@ export function exactFaceNormals(positions: Float64Array, normals: Float64Array,
   return { approximate, surfaces };
 }
 
-/**
- * The point of a fitted face's surface nearest `x` (a few Newton steps along the gradient,
- * enough from a point a chord's sagitta away); written into `out`, same coordinates.
- */
-export function projectOnFace(out: Float64Array, x: ArrayLike<number>, s: FaceSurface): Float64Array {
-  const q = s.q, k = s.scale;
-  let u = (x[0] - s.centre[0]) * k, v = (x[1] - s.centre[1]) * k, w = (x[2] - s.centre[2]) * k;
-  for (let it = 0; it < 4; it++) {
-    const value = q[0] * u * u + q[1] * v * v + q[2] * w * w + q[3] * u * v + q[4] * u * w + q[5] * v * w + q[6] * u + q[7] * v + q[8] * w + q[9];
-    const gx = 2 * q[0] * u + q[3] * v + q[4] * w + q[6], gy = 2 * q[1] * v + q[3] * u + q[5] * w + q[7], gz = 2 * q[2] * w + q[4] * u + q[5] * v + q[8];
-    const g2 = gx * gx + gy * gy + gz * gz;
-    if (!(g2 > 0)) break;
-    const step = value / g2;
-    u -= step * gx; v -= step * gy; w -= step * gz;
-    if (Math.abs(value) <= 1e-15 * Math.sqrt(g2)) break;
-  }
-  out[0] = u / k + s.centre[0]; out[1] = v / k + s.centre[1]; out[2] = w / k + s.centre[2];
-  return out;
-}
-
-/** Distance-like residual |Q| / |∇Q| of `x` from a fitted face's surface, in the face's own coordinates (not scaled). */
-export function offFace(x: ArrayLike<number>, s: FaceSurface): number {
-  const q = s.q, k = s.scale;
-  const u = (x[0] - s.centre[0]) * k, v = (x[1] - s.centre[1]) * k, w = (x[2] - s.centre[2]) * k;
-  const value = q[0] * u * u + q[1] * v * v + q[2] * w * w + q[3] * u * v + q[4] * u * w + q[5] * v * w + q[6] * u + q[7] * v + q[8] * w + q[9];
-  const gx = 2 * q[0] * u + q[3] * v + q[4] * w + q[6], gy = 2 * q[1] * v + q[3] * u + q[5] * w + q[7], gz = 2 * q[2] * w + q[4] * u + q[5] * v + q[8];
-  return Math.abs(value) / (Math.hypot(gx, gy, gz) * k);
-}
-
 /** Centre and half-extent of a face's vertices (for conditioning and the tolerance). */
 function frame(p: Float64Array, vs: Uint32Array): [number, number, number, number] {
   let lx = Infinity, ly = Infinity, lz = Infinity, hx = -Infinity, hy = -Infinity, hz = -Infinity;
