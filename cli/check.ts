@@ -35,10 +35,10 @@ interface CheckCliOptions {
   split?: boolean;
   merge?: boolean;
   weldTolerance?: string;
+  panelSize?: string;
   json?: string;
   quiet?: boolean;
   writeMesh?: string;
-  panelSize?: string;
   keepMesh?: boolean;
 }
 
@@ -60,7 +60,7 @@ export function registerCheck(program: Command): void {
     .option("--weld-tolerance <relative>", "weld vertices closer than this fraction of the bounding-box diagonal (default 1e-6)")
     .option("--json <path>", "write the report as JSON to a file, or - for standard output")
     .option("--write-mesh <file>", "write the meshes checked (.stl as ASCII with one named solid per body, or .obj; in the input unit): conductors by name, a scene's dielectric bodies as dielectric:NAME")
-    .option("--panel-size <length>", "largest panel where extract would remesh CAD-style flat faces of mesh files, in the input unit")
+    .option("--panel-size <length>", "target panel size as for extract, in the input unit: the largest panel where extract would remesh CAD-style flat faces of mesh files, and the panel size on curved faces of CAD files")
     .option("--keep-mesh", "say nothing of remeshing: the mesh is to be solved as given")
     .option("--quiet", "print only the failures, one line each (no summary, no warnings)")
     .action(action(async (files: string[], opts: CheckCliOptions, cmd: Command) => {
@@ -72,6 +72,7 @@ export function registerCheck(program: Command): void {
         ...(opts.json !== undefined ? [{ path: opts.json, option: "--json" }] : []),
         ...(opts.writeMesh !== undefined ? [{ path: opts.writeMesh, option: "--write-mesh" }] : []),
       ]);
+      const panelSize = opts.panelSize === undefined ? undefined : numberOption(opts.panelSize, "--panel-size", (x) => x > 0, "a positive length in the input unit");
       let weldTolerance: number | undefined;
       if (opts.weldTolerance !== undefined) {
         weldTolerance = Number(opts.weldTolerance);
@@ -79,7 +80,6 @@ export function registerCheck(program: Command): void {
           throw new InputError(`--weld-tolerance "${opts.weldTolerance}" must be a number >= 0`);
         }
       }
-      const panelSize = opts.panelSize === undefined ? undefined : numberOption(opts.panelSize, "--panel-size", (x) => x > 0, "a positive length in the input unit");
       // A .json input is a scene, loaded exactly as extract loads it (--unit overrides its unit).
       const isScene = files.some((f) => extname(f).toLowerCase() === ".json");
       let loaded: LoadedMesh, scene: { file: string; check: SceneSurroundingsCheck } | undefined;
@@ -93,18 +93,20 @@ export function registerCheck(program: Command): void {
         scene = { file: s.scene!, check: checkSceneSurroundings(s) };
         inspection = meshForInspection(s.mesh, s.dielectrics);
       } else {
-        loaded = loadMeshFiles(files, { unit, split: opts.split, merge: opts.merge, weldTolerance });
+        loaded = loadMeshFiles(files, { unit, split: opts.split, merge: opts.merge, weldTolerance, panelSize: panelSize === undefined ? undefined : panelSize * metresPer(unit) });
         inspection = loaded.mesh;
         // What extract would change (it remeshes the same way in loadScene).
         const preview = opts.keepMesh ? undefined : remeshFlatPatches(loaded.mesh, { panelSize: panelSize === undefined ? undefined : panelSize * metresPer(unit) }).summary;
         if (preview && preview.patches > 0) remesh = preview;
       }
-      const u = loaded.unit, assumed = isScene ? false : unitAssumed;
+      // CAD files that all declare one unit are shown in it unless --unit was given (as extract does).
+      const declared = !isScene && unitAssumed ? loaded.declaredUnit : undefined;
+      const u = declared ?? loaded.unit, assumed = isScene ? false : unitAssumed && declared === undefined;
       const size = implausibleSize(loaded.mesh, u, assumed);
       if (size) loaded.warnings.unshift({ file: loaded.files.join(", "), message: size });
       printWarnings(loaded.warnings, opts.quiet);
       const report = await checkMeshParallel(loaded.mesh);
-      const summary = formatCheckSummary(report, { unit: u, unitAssumed: isScene ? unitAssumed : assumed, files: loaded.files, scene, remesh });
+      const summary = formatCheckSummary(report, { unit: u, unitAssumed: isScene ? unitAssumed : assumed, unitDeclared: declared !== undefined, files: loaded.files, scene, remesh });
       const json = checkReport(loaded, report, u, assumed, scene, remesh);
       if (opts.writeMesh !== undefined) writeMeshFile(opts.writeMesh, inspection, meshFormat!, u);
       if (opts.json !== undefined) writeOutput(opts.json, jsonText(json));

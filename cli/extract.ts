@@ -50,7 +50,7 @@ export function registerExtract(program: Command): void {
   program
     .command("extract")
     .description("solve for the capacitance matrices, charges, surface fields, energy and forces of the conductors")
-    .argument("<inputs...>", "a scene file (.json) or mesh files (STL, OBJ, Gmsh MSH) whose bodies are the conductors")
+    .argument("<inputs...>", "a scene file (.json), or mesh or CAD files (STL, OBJ, Gmsh MSH, STEP, IGES, BREP) whose bodies or parts are the conductors")
     .option("--unit <unit>", "length unit of the mesh files: m, cm, mm, um, in, mil, or spelled out (default: the scene's, else mm)")
     .option("--potential <name=volts>", "working potential of a conductor (repeatable)", collect, [])
     .option("--method <method>", "discretisation: galerkin or collocation", "galerkin")
@@ -62,7 +62,7 @@ export function registerExtract(program: Command): void {
     .option("--ground-plane <axis=pos>", "an infinite grounded plane, e.g. z=0 (user unit); it becomes the reference")
     .option("--symmetry <axis=pos[:images]>", "a mirror symmetry plane of the model, e.g. x=0 (repeatable): mesh only one side; images even (default), odd (mirror half at the opposite potential) or both (mirror half its own conductors, name~x; x=0:both:opposite drives them at the opposite potential)", collect, [])
     .option("--floating <name>", "leave this conductor floating: no net charge, potential solved for (repeatable)", collect, [])
-    .option("--panel-size <length>", "largest panel where CAD-style flat faces of mesh files are remeshed, in the input unit (default: from each face's size, graded toward its edges)")
+    .option("--panel-size <length>", "target panel size in the input unit: the largest panel where CAD-style flat faces of mesh files are remeshed, and the panel size on curved faces of CAD files (STEP, IGES, BREP) (default: from each face's and model's size, graded toward edges)")
     .option("--keep-mesh", "solve on the mesh files exactly as given: no remeshing of CAD-style flat faces (slivers)")
     .option("--split", "mesh files: each connected component is a conductor")
     .option("--merge", "mesh files: all groups of a file are one conductor")

@@ -72,7 +72,11 @@ export interface InputOptions {
   permittivity?: number;
   /** Breakdown strength of the background medium for the field check, V/m; replaces the scene's. */
   breakdownField?: number;
-  /** Largest panel wanted on remeshed flat faces, in the input unit; replaces the scene's. */
+  /**
+   * Target panel size in the input unit, replacing the scene's: the largest panel on remeshed
+   * flat faces of mesh files, and the panel size on curved faces of CAD files (STEP, IGES, BREP);
+   * default from each face's and each model's size.
+   */
   panelSize?: number;
   /** Keep the mesh files exactly as given (no remeshing of CAD-style flat faces). */
   keepMesh?: boolean;
@@ -127,7 +131,7 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
       scene = { ...scene, unit: opts.unit, groundPlane: scene.groundPlane && move(scene.groundPlane), symmetry: scene.symmetry.map(move), panelSize: scene.panelSize && scene.panelSize * f };
     }
     if (opts.split || opts.merge) throw new InputError("--split and --merge apply to mesh files; in a scene, each entry is one conductor", list[0]);
-    const sm = loadSceneMesh(scene, { weldTolerance: opts.weldTolerance });
+    const sm = loadSceneMesh(scene, { weldTolerance: opts.weldTolerance, panelSize: opts.panelSize !== undefined ? panelMetres(opts.panelSize, scene.unit) : scene.panelSize });
     const floating = floatingFlags(sm.mesh.names, sm.floating, opts.floating);
     remeshing = { only: sm.fromFile, keep: scene.keepMesh === true, panelSize: scene.panelSize };
     out = {
@@ -138,12 +142,15 @@ export function loadScene(inputs: string | string[], opts: InputOptions = {}): L
     };
   } else {
     if (opts.parameters && Object.keys(opts.parameters).length > 0) throw new InputError("parameters belong to a scene file (.json); mesh files have none", list[0]);
-    const unit = opts.unit ?? DEFAULT_UNIT;
-    const lm = loadMeshFiles(list, { unit, split: opts.split, merge: opts.merge, weldTolerance: opts.weldTolerance });
+    let unit = opts.unit ?? DEFAULT_UNIT;
+    const lm = loadMeshFiles(list, { unit, split: opts.split, merge: opts.merge, weldTolerance: opts.weldTolerance, panelSize: panelMetres(opts.panelSize, unit) });
+    // CAD files that all declare one unit report in it unless --unit says otherwise (their geometry is already in metres).
+    const declared = opts.unit === undefined ? lm.declaredUnit : undefined;
+    if (declared) unit = declared;
     const given = lm.mesh.names.map(() => undefined);
     const floating = floatingFlags(lm.mesh.names, lm.mesh.names.map(() => false), opts.floating);
     out = {
-      mesh: lm.mesh, potentials: resolvePotentials(lm.mesh.names, given, baseOverrides, floating), unit, unitAssumed: opts.unit === undefined, permittivity: 1,
+      mesh: lm.mesh, potentials: resolvePotentials(lm.mesh.names, given, baseOverrides, floating), unit, unitAssumed: opts.unit === undefined && declared === undefined, permittivity: 1,
       symmetry: [], floating, files: lm.files, warnings: lm.warnings, dropped: lm.dropped, probes: [], dielectrics: [], parameters: {},
     };
   }
@@ -211,6 +218,13 @@ function mirrorPotentials(out: LoadedScene, overrides: Array<[string, number]>):
     v[i] = volts;
   }
   return v;
+}
+
+/** A panel size in `unit` as metres; undefined stays undefined. */
+function panelMetres(size: number | undefined, unit: LengthUnit): number | undefined {
+  if (size === undefined) return undefined;
+  if (!(size > 0) || !Number.isFinite(size)) throw new InputError(`panel size must be a positive length in ${unit}, got ${size}`);
+  return size * metresPer(unit);
 }
 
 /** Floating flags from the scene and the names given as floating. */

@@ -14,10 +14,14 @@ import { basename, extname } from "node:path";
 import { type SurfaceMesh, concatMeshes, uniqueNames } from "../mesh/model.js";
 import { weldVertices, dropDegenerate, DEFAULT_WELD_TOLERANCE } from "../mesh/weld.js";
 import { connectedComponents } from "../mesh/components.js";
+import { conductorTopology } from "../mesh/topology.js";
 import { physicalSizeFault } from "../mesh/physical-size.js";
 import { InputError, type Warning } from "../errors.js";
-import { metresPer, UNIT_CHOICES, type LengthUnit } from "./units.js";
-import { detectFormat } from "./format.js";
+import { metresPer, METRES_PER_UNIT, UNIT_CHOICES, type LengthUnit } from "./units.js";
+import { detectFormat, isCadFormat } from "./format.js";
+import { readCad, type CadRawMesh } from "./cad.js";
+import { describeUnits } from "./cad-units.js";
+import { scaleReference, restrictReference } from "../mesh/model.js";
 import { readStl } from "./stl.js";
 import { readObj } from "./obj.js";
 import { readMsh } from "./msh.js";
@@ -37,6 +41,8 @@ export interface LoadOptions {
   weldTolerance?: number;
   /** Name for a single-body file's conductor; also replaces the stem in generated names. */
   name?: string;
+  /** CAD files: target panel size on curved faces, metres (default: from the model's size). */
+  panelSize?: number;
 }
 
 export interface LoadedMesh {
@@ -49,6 +55,11 @@ export interface LoadedMesh {
   dropped: number;
   /** Vertices removed by welding. */
   welded: number;
+  /**
+   * When every file read is a STEP or IGES file declaring one of our units, and all the same
+   * one: that unit (the geometry is already in metres; this only offers it for reports).
+   */
+  declaredUnit?: LengthUnit;
 }
 
 /** Read and prepare one mesh file. Every failure is an InputError naming the file. */
@@ -69,6 +80,7 @@ export function loadMeshFiles(paths: string[], opts: LoadOptions): LoadedMesh {
     unit: opts.unit,
     dropped: parts.reduce((s, r) => s + r.dropped, 0),
     welded: parts.reduce((s, r) => s + r.welded, 0),
+    declaredUnit: parts.every((r) => r.declaredUnit !== undefined && r.declaredUnit === parts[0].declaredUnit) ? parts[0].declaredUnit : undefined,
   };
 }
 
@@ -79,13 +91,24 @@ function readMeshBytes(path: string): Uint8Array {
 /** The same pipeline on bytes already in memory; `file` names them in messages and gives the stem. */
 export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOptions): LoadedMesh {
   if (opts.split && opts.merge) throw new InputError("split and merge cannot both be set for one file", file);
-  const scale = metresPer(opts.unit);
-  if (!(scale > 0)) throw new InputError(`unknown length unit "${String(opts.unit)}" (use ${UNIT_CHOICES})`, file);
+  if (!(metresPer(opts.unit) > 0)) throw new InputError(`unknown length unit "${String(opts.unit)}" (use ${UNIT_CHOICES})`, file);
   if (opts.groups !== undefined && opts.groups.length === 0) throw new InputError("the list of groups to keep is empty", file);
   if (bytes.length === 0) throw new InputError("empty file", file);
   const format = detectFormat(file, bytes);
-  const raw: RawMesh = format === "stl" ? readStl(bytes, file) : format === "obj" ? readObj(bytes, file) : readMsh(bytes, file);
+  let raw: RawMesh;
+  let cad: CadRawMesh | undefined;
+  let scale = metresPer(opts.unit);
+  if (isCadFormat(format)) {
+    if (opts.panelSize !== undefined && !(opts.panelSize > 0 && Number.isFinite(opts.panelSize))) throw new InputError(`panel size ${opts.panelSize} must be a positive length`, file);
+    // STEP and IGES come out of the kernel in millimetres whatever they declare; BREP in its own numbers.
+    const outMetres = format === "brep" ? scale : 1e-3;
+    raw = cad = readCad(bytes, file, format, { panelSize: opts.panelSize !== undefined ? opts.panelSize / outMetres : undefined });
+    scale = outMetres;
+  } else {
+    raw = format === "stl" ? readStl(bytes, file) : format === "obj" ? readObj(bytes, file) : readMsh(bytes, file);
+  }
   const warnings: Warning[] = raw.warnings.map((message) => ({ file, message }));
+  if (cad) warnings.push({ file, message: cadUnitNote(format, cad, opts.unit) });
   const stem = basename(file, extname(file)) || "conductor";
   const base = opts.name !== undefined && opts.name.trim() !== "" ? opts.name.trim() : stem;
 
@@ -132,14 +155,16 @@ export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOption
   for (let t = 0; t < nt; t++) if (conductorOf[raw.group[t]] >= 0) kept++;
   const tri = kept === nt ? raw.triangles : new Uint32Array(3 * kept);
   const cond = new Uint32Array(kept);
+  const keptFaces = cad ? new Uint32Array(kept) : undefined;
   for (let t = 0, k = 0; t < nt; t++) {
     const c = conductorOf[raw.group[t]];
     if (c < 0) continue;
     if (tri !== raw.triangles) { tri[3 * k] = raw.triangles[3 * t]; tri[3 * k + 1] = raw.triangles[3 * t + 1]; tri[3 * k + 2] = raw.triangles[3 * t + 2]; }
+    if (keptFaces && cad) keptFaces[k] = cad.faces[t];
     cond[k++] = c;
   }
   // Before welding: its tolerance is relative to the model's size, which must be a physical one.
-  const vertexPlace = (v: number) => format === "stl" ? `facet ${Math.floor(v / 3) + 1}` : format === "obj" ? `vertex ${v + 1}` : `node ${v + 1} (in file order)`;
+  const vertexPlace = (v: number) => format === "stl" ? `facet ${Math.floor(v / 3) + 1}` : format === "obj" ? `vertex ${v + 1}` : cad ? `vertex ${v + 1} of the kernel's triangulation` : `node ${v + 1} (in file order)`;
   const sizeFault = physicalSizeFault(raw.positions, tri, scale, vertexPlace, opts.unit);
   if (sizeFault) throw new InputError(sizeFault, file);
   const tol = opts.weldTolerance ?? DEFAULT_WELD_TOLERANCE;
@@ -149,8 +174,16 @@ export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOption
   const welded = weldVertices(raw.positions, tri, tol);
   const wp = welded.positions;
   for (let i = 0; i < wp.length; i++) wp[i] *= scale;
-  const clean = dropDegenerate(welded.positions, welded.triangles, cond);
-  if (clean.dropped > 0) {
+  // Degenerate triangles go with their conductor and CAD face: drop by triangle number.
+  const clean = dropDegenerate(welded.positions, welded.triangles, keptFaces ? Uint32Array.from(cond, (_, t) => t) : cond);
+  let cleanFaces: Uint32Array | undefined;
+  const vertices = welded.positions;
+  if (keptFaces && cad) {
+    cleanFaces = Uint32Array.from(clean.group, (t) => keptFaces[t]);
+    for (let k = 0; k < clean.group.length; k++) clean.group[k] = cond[clean.group[k]];
+  }
+  // The kernel's own slivers (a sphere's poles, a cone's apex) are no fault of the file's.
+  if (clean.dropped > 0 && !cad) {
     warnings.push({ file, message: `${clean.dropped} degenerate triangle(s) dropped (repeated vertex or zero area after welding)` });
   }
   const left = new Uint32Array(names.length);
@@ -161,7 +194,7 @@ export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOption
 
   let conductor = clean.group;
   if (opts.split) {
-    const comp = connectedComponents(clean.triangles, welded.positions.length / 3);
+    const comp = connectedComponents(clean.triangles, vertices.length / 3);
     // Number the pieces of each conductor in order of appearance.
     // Groups sharing vertices stay apart: a piece is a (component, conductor) pair.
     const pieceOf = new Map<number, number>();
@@ -177,9 +210,36 @@ export function parseMeshBytes(bytes: Uint8Array, file: string, opts: LoadOption
     }
     names = uniqueNames(pieces.map(({ c, k }) => (countIn[c] > 1 ? `${names[c]}_${k}` : names[c])));
   }
-  const compact = dropUnreferenced(welded.positions, clean.triangles);
-  const mesh: SurfaceMesh = { positions: compact, triangles: clean.triangles, conductor, names };
-  return { mesh, warnings, files: [file], unit: opts.unit, dropped: clean.dropped, welded: welded.merged };
+  const compact = dropUnreferenced(vertices, clean.triangles);
+  let mesh: SurfaceMesh = { positions: compact, triangles: clean.triangles, conductor, names };
+  if (cad && cleanFaces) {
+    const r = restrictReference(scaleReference(cad.reference, scale), cleanFaces);
+    mesh = { ...mesh, faces: r.faces, reference: r.reference };
+    // A CAD solid arrives closed; an open one is a surface model or lost faces on export.
+    conductorTopology(mesh).forEach((topo, c) => {
+      if (!topo.closed) {
+        warnings.push({ file, message: `part "${names[c]}" is not a closed body (${topo.boundaryEdges} open and ${topo.nonManifoldEdges} non-manifold edges): solved as a sheet; as a dielectric body it is refused` });
+      }
+    });
+  }
+  const declaredUnit = cad && cad.declared.length === 1 ? knownUnit(cad.declared[0].metres) : undefined;
+  return { mesh, warnings, files: [file], unit: opts.unit, dropped: clean.dropped, welded: welded.merged, ...(declaredUnit ? { declaredUnit } : {}) };
+}
+
+/** Our unit of exactly this many metres, if any. */
+function knownUnit(metres: number): LengthUnit | undefined {
+  return (Object.keys(METRES_PER_UNIT) as LengthUnit[]).find((u) => Math.abs(METRES_PER_UNIT[u] / metres - 1) < 1e-12);
+}
+
+/**
+ * What the summary says about a CAD file's unit. The file's declared unit wins over `--unit`
+ * and the scene's (the kernel converts STEP and IGES itself); BREP declares none and is read
+ * in `unit`.
+ */
+function cadUnitNote(format: string, cad: CadRawMesh, unit: LengthUnit): string {
+  if (format === "brep") return `BREP declares no length unit: read in ${unit} (the scene's or --unit)`;
+  if (cad.declared.length === 0) return `${format.toUpperCase()} file declares no length unit we could read: read in millimetres, the kernel's assumption`;
+  return `length unit ${describeUnits(cad.declared)} declared by the file and used (--unit and the scene's unit do not rescale a ${format.toUpperCase()} file)`;
 }
 
 /** Positions of the referenced vertices only; `triangles` is renumbered in place. */

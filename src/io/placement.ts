@@ -16,8 +16,11 @@
  *
  * A scale with an odd number of negative factors is a mirror: it turns every triangle's
  * outward normal inward, so the winding of each triangle is reversed to keep it outward.
+ * A reference surface (CAD faces) moves with the mesh: its points as the mesh's, its normals
+ * by the inverse transpose of the linear part, R·S⁻¹ (which maps an outward normal to the
+ * outward normal of the placed body, mirrors included), renormalised.
  */
-import type { SurfaceMesh } from "../mesh/model.js";
+import type { ReferenceSurface, SurfaceMesh } from "../mesh/model.js";
 
 export interface Placement {
   /** Scale factors along x, y, z (dimensionless). */
@@ -73,12 +76,36 @@ export function placeMesh(mesh: SurfaceMesh, p: Placement, metresPerUnit = 1): S
     positions[i + 1] = m[4] * x + m[5] * y + m[6] * z + m[7];
     positions[i + 2] = m[8] * x + m[9] * y + m[10] * z + m[11];
   }
-  let triangles = mesh.triangles;
-  if (p.scale[0] * p.scale[1] * p.scale[2] < 0) {
-    triangles = new Uint32Array(mesh.triangles);
-    for (let t = 0; t < triangles.length; t += 3) { const b = triangles[t + 1]; triangles[t + 1] = triangles[t + 2]; triangles[t + 2] = b; }
+  const mirror = p.scale[0] * p.scale[1] * p.scale[2] < 0;
+  const triangles = mirror ? reversed(mesh.triangles) : mesh.triangles;
+  const placed: SurfaceMesh = { positions, triangles, conductor: mesh.conductor, names: mesh.names };
+  if (!mesh.reference || !mesh.faces) return placed;
+  return { ...placed, faces: mesh.faces, reference: placeReference(mesh.reference, m, p.scale, mirror) };
+}
+
+function reversed(tri: Uint32Array): Uint32Array {
+  const out = new Uint32Array(tri);
+  for (let t = 0; t < out.length; t += 3) { const b = out[t + 1]; out[t + 1] = out[t + 2]; out[t + 2] = b; }
+  return out;
+}
+
+/** The reference surface under the affine map `m` (3×4, scale folded in) with scale factors `scale`. */
+function placeReference(r: ReferenceSurface, m: Float64Array, scale: [number, number, number], mirror: boolean): ReferenceSurface {
+  const src = r.positions, nrm = r.normals;
+  const positions = new Float64Array(src.length), normals = new Float64Array(nrm.length);
+  // Inverse transpose of R·S is R·S⁻¹: column j of m divided by scale[j] twice.
+  const q0 = 1 / (scale[0] * scale[0]), q1 = 1 / (scale[1] * scale[1]), q2 = 1 / (scale[2] * scale[2]);
+  for (let i = 0; i < src.length; i += 3) {
+    const x = src[i], y = src[i + 1], z = src[i + 2];
+    positions[i] = m[0] * x + m[1] * y + m[2] * z + m[3];
+    positions[i + 1] = m[4] * x + m[5] * y + m[6] * z + m[7];
+    positions[i + 2] = m[8] * x + m[9] * y + m[10] * z + m[11];
+    const a = nrm[i] * q0, b = nrm[i + 1] * q1, c = nrm[i + 2] * q2;
+    const nx = m[0] * a + m[1] * b + m[2] * c, ny = m[4] * a + m[5] * b + m[6] * c, nz = m[8] * a + m[9] * b + m[10] * c;
+    const len = Math.hypot(nx, ny, nz) || 1;
+    normals[i] = nx / len; normals[i + 1] = ny / len; normals[i + 2] = nz / len;
   }
-  return { positions, triangles, conductor: mesh.conductor, names: mesh.names };
+  return { positions, normals, triangles: mirror ? reversed(r.triangles) : r.triangles, face: r.face, faceCount: r.faceCount };
 }
 
 /**

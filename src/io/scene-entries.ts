@@ -1,6 +1,7 @@
 /**
  * Conductor and dielectric entries of a scene. An entry is one piece (`"mesh"` with its
- * `group`/`groups`, or `"shape"`, ./scene-shape.ts) or lists `"parts"`, each a mesh file or a
+ * `group`/`groups`, or `"shape"`, ./scene-shape.ts) or lists `"parts"`, where `"mesh"` may
+ * also be a STEP, IGES or BREP file whose parts are its groups (./cad.ts), each a mesh file or a
  * shape with its own placement, joined into one net (./scene-mesh.ts); any entry may be placed
  * (`"place"`, ./placement.ts). A conductor takes a potential or is floating; a dielectric body
  * takes its permittivity and may carry its own breakdown field.

@@ -19,8 +19,10 @@ export interface SurfaceMesh {
   names: string[];
   /**
    * The true surface each triangle lies on, when the input knows it (a CAD face, a generated
-   * shape's face): `faces[t]` is triangle t's face number in `reference`. Operations that keep
-   * triangles keep these; refinement places its new points on the reference surface.
+   * shape's face): `faces[t]` is triangle t's face number in `reference`, or `NO_FACE` for a
+   * triangle of a mesh joined from inputs with and without a reference (`concatMeshes`).
+   * Operations that keep triangles keep these; refinement places its new points on the
+   * reference surface.
    */
   faces?: Uint32Array;
   /** The true surface the triangles approximate (see `ReferenceSurface`); present with `faces`. */
@@ -104,8 +106,17 @@ export function conductorAreas(mesh: SurfaceMesh): Float64Array {
 }
 
 /**
+ * Face number of a triangle that lies on no reference face: in a mesh joined from inputs with
+ * and without a reference surface (a CAD part and an STL), `faces[t] === NO_FACE` marks the
+ * triangles whose true surface is unknown; refinement treats them as mesh input.
+ */
+export const NO_FACE = 0xffffffff;
+
+/**
  * Join meshes into one, appending conductors in order. Names are kept as given;
- * callers make them unique first (see `uniqueNames`).
+ * callers make them unique first (see `uniqueNames`). When any mesh has a reference surface,
+ * the result has one too: the references end to end, face numbers offset, and the triangles
+ * of meshes without one marked `NO_FACE`.
  */
 export function concatMeshes(meshes: SurfaceMesh[]): SurfaceMesh {
   let nv = 0, nt = 0;
@@ -125,7 +136,73 @@ export function concatMeshes(meshes: SurfaceMesh[]): SurfaceMesh {
     vo += m.positions.length;
     to += m.triangles.length;
   }
-  return { positions, triangles, conductor, names };
+  const out: SurfaceMesh = { positions, triangles, conductor, names };
+  if (!meshes.some((m) => m.reference && m.faces)) return out;
+  const faces = new Uint32Array(nt / 3).fill(NO_FACE);
+  let rv = 0, rt = 0, faceCount = 0;
+  for (const m of meshes) if (m.reference && m.faces) { rv += m.reference.positions.length; rt += m.reference.triangles.length; }
+  const ref: ReferenceSurface = {
+    positions: new Float64Array(rv), normals: new Float64Array(rv), triangles: new Uint32Array(rt), face: new Uint32Array(rt / 3), faceCount: 0,
+  };
+  let t0 = 0;
+  rv = 0; rt = 0;
+  for (const m of meshes) {
+    const n = m.triangles.length / 3;
+    if (m.reference && m.faces) {
+      const r = m.reference;
+      for (let t = 0; t < n; t++) faces[t0 + t] = m.faces[t] === NO_FACE ? NO_FACE : m.faces[t] + faceCount;
+      ref.positions.set(r.positions, rv);
+      ref.normals.set(r.normals, rv);
+      for (let i = 0; i < r.triangles.length; i++) ref.triangles[rt + i] = r.triangles[i] + rv / 3;
+      for (let i = 0; i < r.face.length; i++) ref.face[rt / 3 + i] = r.face[i] + faceCount;
+      rv += r.positions.length;
+      rt += r.triangles.length;
+      faceCount += r.faceCount;
+    }
+    t0 += n;
+  }
+  ref.faceCount = faceCount;
+  return { ...out, faces, reference: ref };
+}
+
+/** The reference surface with positions multiplied by `s` (> 0; unit conversion), normals unchanged. */
+export function scaleReference(r: ReferenceSurface, s: number): ReferenceSurface {
+  return { ...r, positions: Float64Array.from(r.positions, (x) => x * s) };
+}
+
+/**
+ * Only the reference faces that `faces` uses, renumbered in order of face number, and
+ * `faces` renumbered to match (`NO_FACE` stays). Unused faces would cost memory only.
+ */
+export function restrictReference(r: ReferenceSurface, faces: Uint32Array): { faces: Uint32Array; reference: ReferenceSurface } {
+  const newFace = new Int32Array(r.faceCount).fill(-1);
+  for (let t = 0; t < faces.length; t++) if (faces[t] !== NO_FACE) newFace[faces[t]] = 0;
+  let count = 0;
+  for (let f = 0; f < r.faceCount; f++) if (newFace[f] === 0) newFace[f] = count++;
+  if (count === r.faceCount) return { faces, reference: r };
+  const nrt = r.face.length;
+  const vmap = new Int32Array(r.positions.length / 3).fill(-1);
+  let kt = 0, kv = 0;
+  for (let t = 0; t < nrt; t++) if (newFace[r.face[t]] >= 0) kt++;
+  const triangles = new Uint32Array(3 * kt), face = new Uint32Array(kt);
+  for (let t = 0, k = 0; t < nrt; t++) {
+    const f = newFace[r.face[t]];
+    if (f < 0) continue;
+    for (let j = 0; j < 3; j++) {
+      const v = r.triangles[3 * t + j];
+      if (vmap[v] < 0) vmap[v] = kv++;
+      triangles[3 * k + j] = vmap[v];
+    }
+    face[k++] = f;
+  }
+  const positions = new Float64Array(3 * kv), normals = new Float64Array(3 * kv);
+  for (let v = 0; v < vmap.length; v++) {
+    const w = vmap[v];
+    if (w < 0) continue;
+    for (let j = 0; j < 3; j++) { positions[3 * w + j] = r.positions[3 * v + j]; normals[3 * w + j] = r.normals[3 * v + j]; }
+  }
+  const outFaces = Uint32Array.from(faces, (f) => (f === NO_FACE ? NO_FACE : newFace[f]));
+  return { faces: outFaces, reference: { positions, normals, triangles, face, faceCount: count } };
 }
 
 /** Make names unique by suffixing `_2`, `_3`, ... to repeats, keeping the first as is. */
@@ -162,5 +239,9 @@ export function conductorSubmesh(mesh: SurfaceMesh, c: number): SurfaceMesh {
     const r = remap[v];
     if (r >= 0) { positions[3 * r] = mesh.positions[3 * v]; positions[3 * r + 1] = mesh.positions[3 * v + 1]; positions[3 * r + 2] = mesh.positions[3 * v + 2]; }
   }
-  return { positions, triangles, conductor: new Uint32Array(nt), names: [mesh.names[c]] };
+  const sub: SurfaceMesh = { positions, triangles, conductor: new Uint32Array(nt), names: [mesh.names[c]] };
+  if (!mesh.faces || !mesh.reference) return sub;
+  const faces = new Uint32Array(nt);
+  for (let t = 0, j = 0; t < n; t++) if (mesh.conductor[t] === c) faces[j++] = mesh.faces[t];
+  return { ...sub, ...restrictReference(mesh.reference, faces) };
 }

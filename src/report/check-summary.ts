@@ -15,6 +15,8 @@ export interface CheckSummaryOptions {
   unit: LengthUnit;
   /** True when the unit is the default rather than chosen by the user. */
   unitAssumed: boolean;
+  /** True when the unit is the one the (CAD) files declare. */
+  unitDeclared?: boolean;
   files?: string[];
   /** A scene's dielectric bodies and planes (`checkSceneSurroundings`), reported before the verdict. */
   scene?: { file: string; check: SceneSurroundingsCheck };
@@ -69,7 +71,7 @@ export function formatCheckSummary(report: CheckReport, opts: CheckSummaryOption
   const out: string[] = [];
   const files = opts.files && opts.files.length > 0 ? ` from ${opts.files.join(", ")}` : "";
   out.push(`mesh check: ${report.conductors.length} conductor${report.conductors.length === 1 ? "" : "s"}, ${report.triangles} triangles, ${report.vertices} vertices${files}`);
-  out.push(`unit: ${ul} (${opts.scene && opts.unitAssumed ? "the scene's; --unit overrides it" : opts.unitAssumed ? "assumed; set with --unit" : "given with --unit"})`);
+  out.push(`unit: ${ul} (${opts.scene && opts.unitAssumed ? "the scene's; --unit overrides it" : opts.unitAssumed ? "assumed; set with --unit" : opts.unitDeclared ? "declared by the files" : "given with --unit"})`);
   out.push("");
   const header = ["conductor", "triangles", `area (${ul}²)`, `bbox x (${ul})`, `y (${ul})`, `z (${ul})`, "closed", "boundary", "non-manifold", "orientation", `edge (${ul})`, "worst aspect"];
   const rows = report.conductors.map((c) => {

@@ -59,6 +59,10 @@ const BROKEN: Array<[string, Uint8Array | string, string, RegExp]> = [
   ["flat.stl", `solid flat\n${FACET("vertex 2 0 0").replace("vertex 0 1 0", "vertex 3 0 0")}endsolid\n`, "", /no valid triangle left.*degenerate/],
   ["lines.msh", MSH22.replace("1 2 2 1 1 1 2 3", "1 1 2 1 1 1 2"), "", /no triangles in the file \(no surface elements .*1 line element/],
   ["junk.dat", "hello world\n", "", /unknown mesh format/],
+  // STEP: the kernel's parser names the line where the file stops making sense.
+  ["cut part.step", readFileSync(fileURLToPath(new URL("../fixtures/cad/rounded-cube.step", import.meta.url)), "latin1").slice(0, 9000), "line", /not a readable STEP file \(unexpected end of file/],
+  ["junk.igs", "not an IGES file\n", "", /not a readable IGES file/],
+  ["external.stp", readFileSync(fileURLToPath(new URL("../fixtures/cad/s1_pe_214-external-parts.stp", import.meta.url)), "latin1"), "", /no part with a solid or surface in the STEP file/],
 ];
 
 beforeAll(() => {
@@ -81,6 +85,7 @@ describe("broken inputs to sigmesh extract", () => {
       expect(lines[0].startsWith(prefix)).toBe(true);
       const rest = lines[0].slice(prefix.length);
       if (place === "byte") expect(rest).toMatch(/^byte \d+: /);
+      else if (place === "line") expect(rest).toMatch(/^line \d+: /);
       else if (place !== "") expect(rest.startsWith(`${place}: `)).toBe(true);
       expect(rest.replace(/^(line|byte) \d+: /, "")).toMatch(fault);
       expect(r.err).not.toMatch(/\n\s+at /);

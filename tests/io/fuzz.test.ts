@@ -70,6 +70,26 @@ describe("fuzzed corruptions of real files", () => {
   }
 });
 
+// CAD files go through the kernel (two triangulations a read): fewer runs.
+describe("fuzzed corruptions of CAD files", () => {
+  for (const f of ["cad/simple-basic-cube.stp", "cad/Cube 10x10.igs"]) {
+    it(`${f}: loads or throws InputError`, () => {
+      const original = fixtureBytes(f);
+      fc.assert(fc.property(corruption, (c) => {
+        try {
+          const r = parseMeshBytes(corrupt(original, c), f, { unit: "mm" });
+          for (const x of r.mesh.positions) expect(Number.isFinite(x)).toBe(true);
+          expect(r.mesh.faces?.length).toBe(r.mesh.conductor.length);
+        } catch (e) {
+          if (!(e instanceof InputError)) throw e;
+          expect(e.file).toBe(f);
+          expect(e.message).not.toMatch(/\n/);
+        }
+      }), { numRuns: 25, seed: 20261205 });
+    });
+  }
+});
+
 describe("arbitrary bytes", () => {
   it("every reader, via every extension, either loads or throws InputError", () => {
     const names = ["r.stl", "r.obj", "r.msh", "r"];
