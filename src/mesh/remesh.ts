@@ -26,6 +26,7 @@ import { planarRegions, neighboursAcross } from "./planar-regions.js";
 import { triangleAspect } from "./quality.js";
 import { triangulatePatch } from "./remesh-patch.js";
 import { sizeAt, otherConductors, type SizeField, type OtherConductors } from "./size-field.js";
+import { nearestTriangle } from "./proximity.js";
 
 export interface RemeshOptions {
   /** Largest panel size wanted on flat faces; metres. Default: from each patch's own size. */
@@ -129,6 +130,30 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
     if (!regions.flat[r] || !allowed[r]) continue;
     const tooLarge = opts.panelSize !== undefined && longest[r] > SIZE_TRIGGER * opts.panelSize;
     if (worst[r] > trigger || tooLarge) { chosen[r] = 1; summary.patches++; }
+  }
+  // A flat patch facing another conductor across a gap narrower than its panels (an electrode's
+  // face of two triangles over a plate) is remeshed too: its panels may be at most GAP_FACTOR
+  // times the gap there, and it is remeshed when one exceeds that by SIZE_TRIGGER.
+  if (mesh.names.length > 1) {
+    const trees = new Map<number, OtherConductors | undefined>();
+    for (let t = 0; t < nt; t++) {
+      const r = region[t];
+      if (chosen[r] || !regions.flat[r] || !allowed[r]) continue;
+      let h = 0;
+      for (let j = 0; j < 3; j++) {
+        const a = 3 * tr[3 * t + j], b = 3 * tr[3 * t + (j + 1) % 3];
+        h = Math.max(h, Math.hypot(p[b] - p[a], p[b + 1] - p[a + 1], p[b + 2] - p[a + 2]));
+      }
+      const c = mesh.conductor[t];
+      if (!trees.has(c)) trees.set(c, otherConductors(p, tr, mesh.conductor, c));
+      const o = trees.get(c);
+      if (!o) continue;
+      const reach = h / (SIZE_TRIGGER * GAP_FACTOR);
+      // The gap measured from the panel's centroid.
+      const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], cc = 3 * tr[3 * t + 2];
+      const near = nearestTriangle(o.tree, o.positions, o.triangles, (p[a] + p[b] + p[cc]) / 3, (p[a + 1] + p[b + 1] + p[cc + 1]) / 3, (p[a + 2] + p[b + 2] + p[cc + 2]) / 3, reach);
+      if (near.triangle >= 0 && near.distance < reach) { chosen[r] = 1; summary.patches++; }
+    }
   }
   if (summary.patches === 0) return { mesh, summary };
 
