@@ -189,12 +189,14 @@ export function withoutTriangles(mesh: SurfaceMesh, drop: Uint8Array): SurfaceMe
   let keep = 0;
   for (let t = 0; t < nt; t++) if (!drop[t]) keep++;
   const triangles = new Uint32Array(3 * keep), conductor = new Uint32Array(keep);
+  const faces = mesh.faces !== undefined ? new Uint32Array(keep) : undefined;
   for (let t = 0, a = 0; t < nt; t++) {
     if (drop[t]) continue;
     triangles[3 * a] = mesh.triangles[3 * t]; triangles[3 * a + 1] = mesh.triangles[3 * t + 1]; triangles[3 * a + 2] = mesh.triangles[3 * t + 2];
+    if (faces) faces[a] = mesh.faces![t];
     conductor[a++] = mesh.conductor[t];
   }
-  return { ...mesh, triangles, conductor };
+  return faces ? { ...mesh, triangles, conductor, faces } : { ...mesh, triangles, conductor };
 }
 
 /**

@@ -19,7 +19,9 @@
  * tangent line at each end: there the tangent is N_f × N_g, the direction that lies in both
  * faces (the PN construction, which projects the chord onto the tangent plane, generalised
  * from one normal to two). Where the faces meet tangentially (a fillet running into a flat
- * face: N_f ∥ N_g) and on a rim, the segment is the PN edge curve of the face's own normals.
+ * face: N_f ∥ N_g) and on a rim, the tangent is the polyline's own by central differences
+ * (the sum of the unit directions of the two segments at a vertex), made square to the face
+ * normal: second-order in the reference's spacing where the chord alone is off by O(h^2).
  * This is exact where alternating projections onto the two faces would only converge, and
  * needs no iteration. A pair of faces with no common curve in the reference falls back to
  * alternating projections.
@@ -35,7 +37,7 @@ export interface ReferenceProjector {
   readonly reference: ReferenceSurface;
   /** Closest point on face f, lifted onto its PN patches: position into out[0..2], unit normal into out[3..5]; returns false when face f has no triangles. */
   projectToFace(f: number, x: number, y: number, z: number, out: Float64Array): boolean;
-  /** A point on the curve where faces f and g meet, near (x, y, z): out[0..2]; false when they do not meet in the reference (alternating projections then). */
+  /** A point on the curve where faces f and g meet, near (x, y, z): out[0..2] (out has 6 entries); where they do not meet in the reference, by alternating projections onto f and g. False when f or g has no triangles. */
   projectToCurve(f: number, g: number, x: number, y: number, z: number, out: Float64Array): boolean;
   /** A point on the free rim of face f (its reference edges used by one triangle and by no other face): out[0..2]; false when f has none. */
   projectToRim(f: number, x: number, y: number, z: number, out: Float64Array): boolean;
@@ -51,6 +53,8 @@ interface FaceTree {
 interface Curve {
   /** 4 per segment: vertex a and b of face f, the same points as vertices of face g (or of f again for a rim). */
   seg: Uint32Array;
+  /** 6 per segment: the polyline's unit tangent at a and at b (central differences over the neighbouring segments; sign arbitrary). */
+  tan: Float64Array;
 }
 
 const cache = new WeakMap<ReferenceSurface, ReferenceProjector>();
@@ -140,7 +144,7 @@ function buildProjector(ref: ReferenceSurface): ReferenceProjector {
       if (d < best) { best = d; bi = i; bu = u; }
     }
     if (bi < 0) return false;
-    curveLift(P, N, s[bi], s[bi + 1], twoFaced ? s[bi + 2] : s[bi], twoFaced ? s[bi + 3] : s[bi + 1], bu, out);
+    curveLift(P, N, s[bi], s[bi + 1], twoFaced ? s[bi + 2] : s[bi], twoFaced ? s[bi + 3] : s[bi + 1], c.tan, 6 * (bi / 4), bu, out);
     return true;
   }
 
@@ -232,7 +236,35 @@ function buildCurves(ref: ReferenceSurface): Map<number, Curve> {
     }
   }
   const out = new Map<number, Curve>();
-  for (const [k, v] of segs) out.set(k, { seg: Uint32Array.from(v) });
+  for (const [k, v] of segs) {
+    const seg = Uint32Array.from(v), ns = seg.length / 4;
+    // Polyline tangents: at each vertex (of face f's side) the sum of its segments' unit
+    // directions, each turned to agree with the first.
+    const sum = new Map<number, [number, number, number]>();
+    for (let i = 0; i < ns; i++) {
+      const a = seg[4 * i], b = seg[4 * i + 1];
+      let dx = P[3 * b] - P[3 * a], dy = P[3 * b + 1] - P[3 * a + 1], dz = P[3 * b + 2] - P[3 * a + 2];
+      const l = Math.hypot(dx, dy, dz);
+      if (l === 0) continue;
+      dx /= l; dy /= l; dz /= l;
+      for (const w of [a, b]) {
+        const acc = sum.get(w);
+        if (acc === undefined) { sum.set(w, [dx, dy, dz]); continue; }
+        const sg = acc[0] * dx + acc[1] * dy + acc[2] * dz < 0 ? -1 : 1;
+        acc[0] += sg * dx; acc[1] += sg * dy; acc[2] += sg * dz;
+      }
+    }
+    const tan = new Float64Array(6 * ns);
+    for (let i = 0; i < ns; i++) {
+      for (let e = 0; e < 2; e++) {
+        const acc = sum.get(seg[4 * i + e]);
+        if (acc === undefined) continue;
+        const l = Math.hypot(acc[0], acc[1], acc[2]);
+        if (l > 0) { tan[6 * i + 3 * e] = acc[0] / l; tan[6 * i + 3 * e + 1] = acc[1] / l; tan[6 * i + 3 * e + 2] = acc[2] / l; }
+      }
+    }
+    out.set(k, { seg, tan });
+  }
   return out;
 }
 
@@ -254,6 +286,11 @@ function pnLift(P: Float64Array, N: Float64Array, i: number, j: number, k: numbe
   if (u < 0) u = 0; if (v < 0) v = 0;
   if (u + v > 1) { const s = u + v; u /= s; v /= s; }
   const w = 1 - u - v;
+  if (N[a] === N[b] && N[a] === N[c] && N[a + 1] === N[b + 1] && N[a + 1] === N[c + 1] && N[a + 2] === N[b + 2] && N[a + 2] === N[c + 2]) {
+    // A flat piece: its patch is the triangle itself, and the closest point is on it exactly.
+    out[0] = x; out[1] = y; out[2] = z; out[3] = N[a]; out[4] = N[a + 1]; out[5] = N[a + 2];
+    return;
+  }
   // w weighs P1 = a, u weighs P2 = b, v weighs P3 = c.
   for (let d = 0; d < 3; d++) {
     const p1 = P[a + d], p2 = P[b + d], p3 = P[c + d];
@@ -284,12 +321,12 @@ function W(P: Float64Array, N: Float64Array, i: number, j: number): number {
  * a, b in face f and a2, b2 in face g), or onto the tangent plane (the PN edge curve) where the
  * normals are parallel or it is a rim (a2 = a, b2 = b).
  */
-function curveLift(P: Float64Array, N: Float64Array, ia: number, ib: number, ia2: number, ib2: number, s: number, out: Float64Array): void {
+function curveLift(P: Float64Array, N: Float64Array, ia: number, ib: number, ia2: number, ib2: number, tan: Float64Array, to: number, s: number, out: Float64Array): void {
   const a = 3 * ia, b = 3 * ib, a2 = 3 * ia2, b2 = 3 * ib2;
   const dx = P[b] - P[a], dy = P[b + 1] - P[a + 1], dz = P[b + 2] - P[a + 2];
   // Control point next to a, written into other[0..2]; next to b into other[3..5].
-  endControl(N, a, a2, dx, dy, dz, P[a], P[a + 1], P[a + 2], 0);
-  endControl(N, b, b2, -dx, -dy, -dz, P[b], P[b + 1], P[b + 2], 3);
+  endControl(N, a, a2, tan, to, dx, dy, dz, P[a], P[a + 1], P[a + 2], 0);
+  endControl(N, b, b2, tan, to + 3, -dx, -dy, -dz, P[b], P[b + 1], P[b + 2], 3);
   const t = 1 - s;
   for (let d = 0; d < 3; d++) {
     out[d] = t * t * t * P[a + d] + 3 * t * t * s * other[d] + 3 * t * s * s * other[3 + d] + s * s * s * P[b + d];
@@ -299,13 +336,21 @@ function curveLift(P: Float64Array, N: Float64Array, ia: number, ib: number, ia2
 /** Sine below which two faces' normals count as parallel (they meet tangentially) at a curve point. */
 const TANGENTIAL = 1e-3;
 
-function endControl(N: Float64Array, v: number, v2: number, dx: number, dy: number, dz: number, px: number, py: number, pz: number, o: number): void {
+function endControl(N: Float64Array, v: number, v2: number, tan: Float64Array, to: number, dx: number, dy: number, dz: number, px: number, py: number, pz: number, o: number): void {
   const nx = N[v], ny = N[v + 1], nz = N[v + 2];
   const mx = N[v2], my = N[v2 + 1], mz = N[v2 + 2];
   let tx = ny * mz - nz * my, ty = nz * mx - nx * mz, tz = nx * my - ny * mx;
   const tl = Math.sqrt(tx * tx + ty * ty + tz * tz);
-  if (tl > TANGENTIAL) {
-    tx /= tl; ty /= tl; tz /= tl;
+  if (tl > TANGENTIAL) { tx /= tl; ty /= tl; tz /= tl; }
+  else {
+    // Tangential meeting or a rim: the polyline's tangent, made square to the face normal.
+    tx = tan[to]; ty = tan[to + 1]; tz = tan[to + 2];
+    const k = tx * nx + ty * ny + tz * nz;
+    tx -= k * nx; ty -= k * ny; tz -= k * nz;
+    const l = Math.sqrt(tx * tx + ty * ty + tz * tz);
+    if (l > 0) { tx /= l; ty /= l; tz /= l; }
+  }
+  if (tx !== 0 || ty !== 0 || tz !== 0) {
     const k = (dx * tx + dy * ty + dz * tz) / 3;
     other[o] = px + k * tx; other[o + 1] = py + k * ty; other[o + 2] = pz + k * tz;
   } else {
