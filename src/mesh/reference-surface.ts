@@ -30,6 +30,7 @@
  */
 import type { ReferenceSurface } from "./model.js";
 import { buildBoxTree, triangleBoxes, type BoxTree } from "./bvh.js";
+import { meshEdges } from "./edges.js";
 import { closestPointTriangle } from "../geometry/closest-point.js";
 
 /** Projection of points onto the faces, curves and rims of one reference surface. */
@@ -186,13 +187,18 @@ function boxDistanceSq(b: Float64Array, o: number, x: number, y: number, z: numb
 function buildCurves(ref: ReferenceSurface): Map<number, Curve> {
   const P = ref.positions, T = ref.triangles, F = ref.face;
   const nt = T.length / 3, nf = ref.faceCount;
-  // Edges keyed by their vertex pair within a face (vertices are shared within a face).
-  const use = new Map<string, number>();
-  for (let t = 0; t < nt; t++) {
-    for (let j = 0; j < 3; j++) {
-      const a = T[3 * t + j], b = T[3 * t + (j + 1) % 3];
-      const key = `${F[t]}:${a < b ? a : b}:${a < b ? b : a}`;
-      use.set(key, (use.get(key) ?? 0) + 1);
+  // The edges of each face used by one of its triangles (vertices are shared within a face;
+  // an edge whose two triangles lie on different faces, if a producer shares vertices across
+  // faces, counts once for each).
+  const edges = meshEdges({ positions: P, triangles: T, conductor: F, names: [] });
+  const boundary: Array<{ face: number; a: number; b: number }> = [];
+  for (let e = 0; e < edges.count; e++) {
+    const h0 = edges.half0[e], h1 = edges.half1[e];
+    const f0 = F[(h0 - (h0 % 3)) / 3];
+    if (edges.faces[e] === 1) boundary.push({ face: f0, a: edges.v0[e], b: edges.v1[e] });
+    else if (edges.faces[e] === 2) {
+      const f1 = F[(h1 - (h1 % 3)) / 3];
+      if (f1 !== f0) { boundary.push({ face: f0, a: edges.v0[e], b: edges.v1[e] }); boundary.push({ face: f1, a: edges.v0[e], b: edges.v1[e] }); }
     }
   }
   // Median edge length sets the matching quantum.
@@ -204,14 +210,8 @@ function buildCurves(ref: ReferenceSurface): Map<number, Curve> {
   lengths.sort((u, v) => u - v);
   const q = Math.max(1e-6 * (lengths[lengths.length >> 1] ?? 0), 1e-300);
   const pointKey = (v: number): string => `${Math.round(P[3 * v] / q)},${Math.round(P[3 * v + 1] / q)},${Math.round(P[3 * v + 2] / q)}`;
-  interface Boundary { face: number; a: number; b: number; done: boolean }
-  const byPoints = new Map<string, Boundary[]>();
-  const boundary: Boundary[] = [];
-  for (const [key, n] of use) {
-    if (n !== 1) continue;
-    const [fs, as, bs] = key.split(":");
-    const e: Boundary = { face: Number(fs), a: Number(as), b: Number(bs), done: false };
-    boundary.push(e);
+  const byPoints = new Map<string, Array<{ face: number; a: number; b: number }>>();
+  for (const e of boundary) {
     const ka = pointKey(e.a), kb = pointKey(e.b);
     const k = ka < kb ? `${ka}|${kb}` : `${kb}|${ka}`;
     const list = byPoints.get(k);
@@ -291,13 +291,14 @@ function pnLift(P: Float64Array, N: Float64Array, i: number, j: number, k: numbe
     out[0] = x; out[1] = y; out[2] = z; out[3] = N[a]; out[4] = N[a + 1]; out[5] = N[a + 2];
     return;
   }
-  // w weighs P1 = a, u weighs P2 = b, v weighs P3 = c.
+  // w weighs P1 = a, u weighs P2 = b, v weighs P3 = c; w_ij = (Pj - Pi)·Ni.
+  const w12 = W(P, N, a, b), w21 = W(P, N, b, a), w23 = W(P, N, b, c), w32 = W(P, N, c, b), w31 = W(P, N, c, a), w13 = W(P, N, a, c);
   for (let d = 0; d < 3; d++) {
     const p1 = P[a + d], p2 = P[b + d], p3 = P[c + d];
-    // Control points b210 = (2P1 + P2 - w12 N1)/3 etc.; w_ij = (Pj - Pi)·Ni (evaluated below once per axis would repeat, so inline).
-    const b210 = (2 * p1 + p2 - W(P, N, a, b) * N[a + d]) / 3, b120 = (2 * p2 + p1 - W(P, N, b, a) * N[b + d]) / 3;
-    const b021 = (2 * p2 + p3 - W(P, N, b, c) * N[b + d]) / 3, b012 = (2 * p3 + p2 - W(P, N, c, b) * N[c + d]) / 3;
-    const b102 = (2 * p3 + p1 - W(P, N, c, a) * N[c + d]) / 3, b201 = (2 * p1 + p3 - W(P, N, a, c) * N[a + d]) / 3;
+    // Control points b210 = (2P1 + P2 - w12 N1)/3 and the like.
+    const b210 = (2 * p1 + p2 - w12 * N[a + d]) / 3, b120 = (2 * p2 + p1 - w21 * N[b + d]) / 3;
+    const b021 = (2 * p2 + p3 - w23 * N[b + d]) / 3, b012 = (2 * p3 + p2 - w32 * N[c + d]) / 3;
+    const b102 = (2 * p3 + p1 - w31 * N[c + d]) / 3, b201 = (2 * p1 + p3 - w13 * N[a + d]) / 3;
     const E = (b210 + b120 + b021 + b012 + b102 + b201) / 6, V = (p1 + p2 + p3) / 3;
     const b111 = E + (E - V) / 2;
     out[d] = p1 * w * w * w + p2 * u * u * u + p3 * v * v * v
