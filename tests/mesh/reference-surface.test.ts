@@ -102,6 +102,9 @@ describe("reference surface projection", () => {
     // Measured 3.75e-6 for R = 2 at level 4 (reference edges of about 0.15).
     expect(errs[1]).toBeLessThan(5e-6);
     expect(referenceProjector(sphereReference(2, 3)).projectToFace(1, 0, 0, 0, out)).toBe(false);
+    // Built once per reference object, so that every refinement level reuses it.
+    const ref = sphereReference(1, 2);
+    expect(referenceProjector(ref)).toBe(referenceProjector(ref));
   });
 
   it("refines a sphere onto its reference: new points on the sphere, faces carried, area converging at second order", () => {

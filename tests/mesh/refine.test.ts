@@ -243,6 +243,15 @@ describe("refineUniform on a CAD-style filleted prism (slivers, no reference)", 
     expect(errs[0]).toBeLessThan(oneSided[0] / 10);
   });
 
+  it("takes the flat normal for the fillet only at a tangent junction, not at a shallow crease", () => {
+    const same = (u: SurfaceMesh, v: SurfaceMesh) => u.positions.every((x, i) => x === v.positions[i]);
+    const tangent = roundedPrism(a, b, r, 6, L).mesh;
+    expect(same(refineUniform(tangent), refineUniform(tangent, { tangentBlends: false }))).toBe(false);
+    // Arcs from 20° to 70°: the sides meet the first facets at 24°, a crease under the feature angle (30°) but over half of it.
+    const crease = roundedPrism(a, b, r, 6, L, false, (20 * Math.PI) / 180).mesh;
+    expect(same(refineUniform(crease), refineUniform(crease, { tangentBlends: false }))).toBe(true);
+  });
+
   it("converges the prism's area at second order toward the true area", () => {
     // Exact area: 2 caps of the rounded rectangle plus the perimeter times the length.
     const capArea = 4 * a * b - (4 - Math.PI) * r * r, perimeter = 4 * (a - r) + 4 * (b - r) + 2 * Math.PI * r;
