@@ -29,7 +29,7 @@
  * Queries allocate nothing: one module-level scratch, a traversal stack grown on demand.
  */
 import type { ReferenceSurface } from "./model.js";
-import { buildBoxTree, triangleBoxes, type BoxTree } from "./bvh.js";
+import { buildBoxTree, triangleBoxes, boxDistanceSq, type BoxTree } from "./bvh.js";
 import { meshEdges } from "./edges.js";
 import { closestPointTriangle } from "../geometry/closest-point.js";
 
@@ -92,7 +92,11 @@ function buildProjector(ref: ReferenceSurface): ReferenceProjector {
   }
   const curves = buildCurves(ref);
 
-  /** Nearest reference triangle of face f to (x, y, z); closest point into scratch; returns the triangle or -1. */
+  /**
+   * Nearest reference triangle of face f to (x, y, z); closest point into scratch; returns the
+   * triangle or -1. The branch and bound of bvh.ts's nearestItem, inlined: that one calls back
+   * per item and returns an object, and this runs several times per new point.
+   */
   function nearestTriangle(f: number, x: number, y: number, z: number): number {
     const ft = trees[f];
     if (ft === undefined) return -1;
@@ -171,13 +175,6 @@ function buildProjector(ref: ReferenceSurface): ReferenceProjector {
   }
 
   return { reference: ref, projectToFace, projectToCurve, projectToRim };
-}
-
-function boxDistanceSq(b: Float64Array, o: number, x: number, y: number, z: number): number {
-  const dx = x < b[o] ? b[o] - x : x > b[o + 3] ? x - b[o + 3] : 0;
-  const dy = y < b[o + 1] ? b[o + 1] - y : y > b[o + 4] ? y - b[o + 4] : 0;
-  const dz = z < b[o + 2] ? b[o + 2] - z : z > b[o + 5] ? z - b[o + 5] : 0;
-  return dx * dx + dy * dy + dz * dz;
 }
 
 /**
