@@ -11,11 +11,17 @@
  *
  * The error estimate reported for the extrapolated value is the size of the correction
  * |C* − C(h_finest)|: the extrapolation normally removes most of that error, so the
- * estimate errs on the safe side. Galerkin capacitances converge from below (the
- * Galerkin solution minimises the energy functional over a subspace, and refinement
- * toward the curved body only adds to the conductor), so for the Galerkin method the
- * finest diagonal entries are also lower bounds, and a diagonal entry that falls under
- * refinement means the meshes are not yet in the asymptotic range: a warning says so.
+ * estimate errs on the safe side.
+ *
+ * Galerkin capacitances converge from below when the levels are nested: the Galerkin
+ * solution minimises the energy functional over a subspace, and each uniform refinement of
+ * the same flat panels enlarges that subspace on the same surface, so each level's diagonal
+ * entries rise and the finest are lower bounds. Then (`fromBelow`) a diagonal entry that falls
+ * under refinement means the meshes are not yet in the asymptotic range: a warning says so.
+ * When refinement moved new points toward the curved surface (refine.ts), each level solves
+ * on a different surface: the entries still converge, but neither monotonically nor from
+ * below (the inscribed polygon of a hole is smaller than the hole, so a plate grows less
+ * than its faceting suggests), and the caller passes fromBelow: false.
  */
 
 export interface RichardsonResult {
@@ -34,7 +40,8 @@ export interface RichardsonResult {
 /**
  * Extrapolate a sequence of k×k matrices from coarse to fine (each level h/2 of the last).
  * `assumedOrder` is used with two levels, and as a fallback when the observed order is not
- * meaningful (differences of changing sign, or growing).
+ * meaningful (differences of changing sign, or growing). `fromBelow`: the levels are nested
+ * Galerkin solves, whose diagonal entries must rise (see the file comment).
  */
 export function richardson(levels: Float64Array[], k: number, opts: { assumedOrder: number; fromBelow: boolean }): RichardsonResult {
   const L = levels.length;

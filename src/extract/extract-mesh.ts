@@ -31,6 +31,7 @@ import type { SurfaceMesh } from "../mesh/model.js";
 import { triangleCount, conductorAreas } from "../mesh/model.js";
 import { orientSurfaces, conductorTopology, buildEdgeTable } from "../mesh/topology.js";
 import { hasFeatureEdges } from "../mesh/edges.js";
+import { NESTED_DISPLACEMENT } from "../mesh/refine.js";
 import { InputError } from "../errors.js";
 import { kernelPlanes, symmetryCopies, conductorRanges, checkSides, trianglesInSymmetryPlanes, evenCopies, type KernelSpec } from "../bem/images.js";
 import { EPSILON_0 } from "./constants.js";
@@ -208,8 +209,12 @@ function reportedMatrices(levels: LevelResult[], K: number, names: string[], ori
   if (o.refine > 0) {
     const sharp = oriented.closed.some((c) => !c) || hasFeatureEdges(oriented.mesh);
     const sym = levels.map((l) => capacitanceMatrices(l.maxwell, K, names).maxwell);
-    const r = richardson(sym, K, { assumedOrder: o.assumedOrder ?? assumedOrder(sharp), fromBelow: o.method === "galerkin" && !withBodies });
-    accuracy = { levels: levels.map((l, i) => ({ panels: l.panels, maxwell: sym[i] })), richardson: r, extrapolated: true };
+    // Galerkin values rise toward the limit only over nested levels (accuracy.ts).
+    const displacement = levels.reduce((m, l) => Math.max(m, l.displacement ?? 0), 0);
+    const nested = displacement <= NESTED_DISPLACEMENT;
+    const lowerBound = o.method === "galerkin" && !withBodies && nested;
+    const r = richardson(sym, K, { assumedOrder: o.assumedOrder ?? assumedOrder(sharp), fromBelow: lowerBound });
+    accuracy = { levels: levels.map((l, i) => ({ panels: l.panels, maxwell: sym[i] })), richardson: r, nested, displacement, lowerBound, extrapolated: true };
     maxwell = r.extrapolated;
     warnings.push(...r.warnings);
   }

@@ -3,9 +3,11 @@
  * mesh and on each uniform refinement of it, once per even/odd pattern of the planes with images
  * "both" (symmetry-unfold.ts), with or without dielectric bodies. Each level yields the Maxwell
  * matrix of the (unfolded) model; the finest keeps its panel solutions for the excitation.
+ * Each level records how far its refinement moved new points off the straight midpoints
+ * (refine.ts), which decides whether the levels are nested (accuracy.ts).
  */
 import type { SurfaceMesh } from "../mesh/model.js";
-import { refineUniform } from "../mesh/refine.js";
+import { refineLevel } from "../mesh/refine.js";
 import { panelSet, type PanelSet } from "../bem/panels.js";
 import { imageSet, type KernelSpec } from "../bem/images.js";
 import { EPSILON_0 } from "./constants.js";
@@ -44,14 +46,26 @@ export async function solveLevels(oriented: SurfaceMesh, bodies: PreparedBody[] 
   let mesh = oriented;
   let solve: LevelSolve | undefined;
   for (let level = 0; level <= o.refine; level++) {
-    if (level > 0) mesh = refineUniform(mesh);
+    // How far this refinement moved the geometry off the coarse panels (conductors and bodies).
+    let displacement = 0;
+    if (level > 0) {
+      const r = refineLevel(mesh);
+      mesh = r.mesh;
+      displacement = r.displacement;
+    }
     if (bodies) {
-      if (level > 0) bodies = bodies.map((b) => ({ ...b, mesh: refineUniform(b.mesh) }));
+      if (level > 0) {
+        bodies = bodies.map((b) => {
+          const r = refineLevel(b.mesh);
+          displacement = Math.max(displacement, r.displacement);
+          return { ...b, mesh: r.mesh };
+        });
+      }
       solve = await solveDielectricLevel(mesh, bodies, unfold, level, layout, o);
     } else {
       solve = await solveConductorLevel(mesh, level, layout, o);
     }
-    levels.push(solve.level);
+    levels.push({ ...solve.level, displacement });
   }
   if (!solve) throw new Error("no level solved");
   return { levels, mesh, unit: solve.unit, patterns: solve.patterns, dielectric: solve.dielectric, bodies };
@@ -59,7 +73,7 @@ export async function solveLevels(oriented: SurfaceMesh, bodies: PreparedBody[] 
 
 /**
  * With refinements, check before the first solve that the finest level fits: n0 panels (conductor
- * and interface) on the first level, 4^refine times as many on the last (refineUniform splits
+ * and interface) on the first level, 4^refine times as many on the last (refineLevel splits
  * each triangle in four), solved on the path the solver choice takes at that size.
  */
 function checkFinestLevel(n0: number, k: number, o: ResolvedOptions, entries: "conductors" | "interfaces"): void {

@@ -63,11 +63,24 @@ export interface LevelResult {
   panels: number;
   maxwell: Float64Array;
   info: SolveInfo;
+  /** Largest distance of a new point from its edge's straight midpoint in the refinement that made this level, over the edge length (0 on the first level; refine.ts). */
+  displacement?: number;
 }
 
 export interface Accuracy {
   levels: Array<{ panels: number; maxwell: Float64Array }>;
   richardson: RichardsonResult;
+  /**
+   * Every refinement split the same flat panels (no new point off its straight midpoint beyond
+   * rounding, `NESTED_DISPLACEMENT`): the levels are nested and, for Galerkin without dielectrics,
+   * the finest diagonal entries are lower bounds. False when refinement moved the geometry
+   * toward the curved surface.
+   */
+  nested: boolean;
+  /** Largest relative displacement over all refinements (see `LevelResult.displacement`). */
+  displacement: number;
+  /** The finest diagonal entries are lower bounds for the model's capacitances (Galerkin, no dielectric bodies, nested levels). */
+  lowerBound: boolean;
   /** The matrix reported is the extrapolated one. */
   extrapolated: true;
 }

@@ -183,7 +183,8 @@ export function forEachItemInBox(tree: BoxTree, box: Float64Array, visit: (item:
   }
 }
 
-function boxDistanceSq(b: Float64Array, o: number, x: number, y: number, z: number): number {
+/** Squared distance from a point to the box at b[o..o+5]; zero inside. */
+export function boxDistanceSq(b: Float64Array, o: number, x: number, y: number, z: number): number {
   const dx = x < b[o] ? b[o] - x : x > b[o + 3] ? x - b[o + 3] : 0;
   const dy = y < b[o + 1] ? b[o + 1] - y : y > b[o + 4] ? y - b[o + 4] : 0;
   const dz = z < b[o + 2] ? b[o + 2] - z : z > b[o + 5] ? z - b[o + 5] : 0;

@@ -308,8 +308,10 @@ export function orientSurfaces(mesh: SurfaceMesh, table: EdgeTable = buildEdgeTa
     c.flippedTriangles = flipped;
     if (c.status === "outward" && flipped > 0) c.status = flipped === c.triangles ? "inward-flipped" : "repaired";
   }
-  // Everything but the windings is shared with the input, the true faces and reference surface too.
-  return { mesh: { ...mesh, triangles }, components, componentOf };
+  // Faces and the reference surface stay: triangles are only turned over, not renumbered.
+  const oriented: SurfaceMesh = { positions: mesh.positions, triangles, conductor: mesh.conductor, names: mesh.names };
+  if (mesh.faces !== undefined) { oriented.faces = mesh.faces; oriented.reference = mesh.reference; }
+  return { mesh: oriented, components, componentOf };
 }
 
 /**

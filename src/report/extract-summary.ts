@@ -135,7 +135,9 @@ export function extractionSummary(r: ExtractionResult | SceneExtraction, given?:
     out.push(`Accuracy: estimated error ±${formatNumber(100 * a.richardson.relativeError, 2)} % of the largest entry in each row`);
     out.push(`  Richardson extrapolation over ${a.levels.map((l) => l.panels).join(" → ")} panels, order ${formatNumber(a.richardson.order, 3)} ${a.richardson.orderObserved ? "(observed)" : "(assumed; use --refine 2 to observe it)"}`);
     out.push("  capacitances, charges and energy are printed to the digits this estimate supports");
-    if (r.solver.method === "galerkin" && !r.dielectric) out.push(`  Galerkin values converge from below: the finest-mesh diagonal ${formatSI(a.levels[a.levels.length - 1].maxwell[0], "F")} is a lower bound for ${r.names[0]}`);
+    // Only nested refinements of the same flat panels bound from below (accuracy.ts).
+    if (a.lowerBound) out.push(`  Galerkin values converge from below: the finest-mesh diagonal ${formatSI(a.levels[a.levels.length - 1].maxwell[0], "F")} is a lower bound for ${r.names[0]}`);
+    else if (r.solver.method === "galerkin" && !r.dielectric && !a.nested) out.push("  refinement moved the panels toward the curved surface, so the finest-mesh values are not lower bounds");
   } else {
     out.push("Accuracy: not estimated (run with --refine 1 or more for a Richardson error estimate); values printed to 3 significant digits");
   }

@@ -105,6 +105,9 @@ export function extractionReport(r: ExtractionResult, ctx: ReportContext): Recor
           orderObserved: r.accuracy.richardson.orderObserved,
           errorEstimate: toRows(r.accuracy.richardson.errorEstimate, k),
           relativeError: r.accuracy.richardson.relativeError,
+          nested: r.accuracy.nested,
+          refinementDisplacement: r.accuracy.displacement,
+          lowerBound: r.accuracy.lowerBound,
         }
       : null,
     fieldCheck: {

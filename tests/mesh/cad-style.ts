@@ -8,15 +8,17 @@ import type { SurfaceMesh } from "../../src/mesh/model.js";
  * A prism over a rounded rectangle (half-sides a, b, corner radius r, k facets per quarter
  * arc), length L along z, tessellated the way CAD exporters do: every side face one quad
  * split into two slivers, each cap a fan from its first profile point. `float32` rounds the
- * coordinates as an STL file would. `arcFacet` tells which triangles are fillet facets.
+ * coordinates as an STL file would. `arcFacet` tells which triangles are fillet facets. `inset`
+ * (radians) starts and ends each arc that far in from the tangent points, so the flat sides meet
+ * the arcs at a crease instead of tangentially.
  */
-export function roundedPrism(a: number, b: number, r: number, k: number, L: number, float32 = false): { mesh: SurfaceMesh; arcFacet: boolean[] } {
+export function roundedPrism(a: number, b: number, r: number, k: number, L: number, float32 = false, inset = 0): { mesh: SurfaceMesh; arcFacet: boolean[] } {
   const prof: [number, number][] = [];
   const arc: boolean[] = [];
   const corners: [number, number, number][] = [[a - r, b - r, 0], [-(a - r), b - r, Math.PI / 2], [-(a - r), -(b - r), Math.PI], [a - r, -(b - r), 1.5 * Math.PI]];
   for (const [cx, cy, th0] of corners) {
     for (let i = 0; i <= k; i++) {
-      const th = th0 + (i * Math.PI) / 2 / k;
+      const th = th0 + inset + (i * (Math.PI / 2 - 2 * inset)) / k;
       prof.push([cx + r * Math.cos(th), cy + r * Math.sin(th)]);
       arc.push(i < k); // segment from point i to i+1 is on the arc; the last one leads to the flat side
     }
