@@ -1,0 +1,224 @@
+/**
+ * Rectangular plate with circular holes: an open sheet of zero thickness like ./plate.ts,
+ * graded toward its outer rim and toward each hole's rim, where the charge of a thin sheet is
+ * singular (inverse square root of the distance) at an inner rim as at the outer one.
+ *
+ * Points, then a constrained Delaunay triangulation:
+ *  - the plate's own lattice (./plate.ts: graded toward the outer rim), less the points near a hole;
+ *  - per hole, its rim polygon (m segments, at most the nominal spacing and at most the gap to
+ *    the nearest other rim) and rings around it whose radial steps start at the rim spacing over
+ *    `grading` and grow by 1.3 a ring until they reach the lattice's spacing, each ring with
+ *    about 2 pi rho / (its step) segments (strips along the rim, as on the outer rim, then
+ *    near-equilateral panels);
+ *  - where two regions meet (two holes, a hole and the outer rim), a point is kept only on its
+ *    own side (nearer its own rim), and a point closer than about half its spacing to one
+ *    already kept is dropped.
+ * The triangulation is delaunator's, with the outer rim and the hole rims made edges by
+ * constrainautor (a maintained constrained-Delaunay layer; no quality mesher of our own), and
+ * the triangles inside a hole removed.
+ *
+ * Hole rims are polygons inscribed in their circles, so the area is A B - sum of the polygon
+ * areas, which tends to A B - sum pi R^2 at second order in 1/m.
+ */
+import Delaunator from "delaunator";
+import * as constrainautorModule from "@kninnug/constrainautor";
+import type { SurfaceMesh } from "../model.js";
+import { symmetricNodes, placeSymmetric } from "./grading.js";
+import { type Axis, checkTriangleBudget } from "./placement.js";
+import { sideDivisions } from "./box.js";
+import { facedShape, referenceFactor, type FacedTriangulation } from "./reference.js";
+
+// The package's ES module exports the class as its default; its typings (a .ts source in a
+// package without "type": "module") read as CommonJS under NodeNext, hence the cast.
+type ConstrainautorClass = new (del: { coords: ArrayLike<number>; triangles: Uint32Array; halfedges: Int32Array }) => { constrainAll(edges: readonly [number, number][]): void };
+const Constrainautor = (constrainautorModule as unknown as { default: ConstrainautorClass }).default;
+
+/** A hole: centre x, y in the plate's plane from the plate's centre, and radius; metres. */
+export type Hole = readonly [number, number, number];
+
+export interface PlateHolesParams {
+  /** Side lengths in the plate's plane (local x, y); metres. */
+  size: readonly number[];
+  holes: readonly Hole[];
+  /** Divisions per side of the plate's lattice: one count for both, or one per side (default 16). */
+  divisions?: number | readonly number[];
+  /** Target mean panel edge length; metres. */
+  panelSize?: number;
+  /** Largest / smallest spacing toward the outer rim and toward each hole's rim; 1 = uniform. */
+  grading?: number;
+  axis?: Axis;
+  center?: readonly number[];
+  name?: string;
+}
+
+/** Why a set of holes cannot be cut from a plate of this size, or undefined when it can. Holes are numbered from 1. */
+export function holesFault(size: readonly number[], holes: readonly Hole[]): string | undefined {
+  for (let i = 0; i < holes.length; i++) {
+    const [x, y, r] = holes[i];
+    if (!(r > 0)) return `hole ${i + 1} has a radius of ${r}; it must be positive`;
+    if (!(Math.abs(x) + r < size[0] / 2 && Math.abs(y) + r < size[1] / 2)) return `hole ${i + 1} (${x}, ${y}, radius ${r}) reaches the plate's edge`;
+    for (let j = 0; j < i; j++) {
+      const [xj, yj, rj] = holes[j];
+      if (!(Math.hypot(x - xj, y - yj) > r + rj)) return `hole ${i + 1} overlaps or touches hole ${j + 1}`;
+    }
+  }
+  return undefined;
+}
+
+/** Distance from (x, y) to the rectangle's rim, inside; metres. */
+const rimDistance = (x: number, y: number, hx: number, hy: number): number => Math.min(hx - Math.abs(x), hy - Math.abs(y));
+
+interface Candidate { x: number; y: number; spacing: number }
+
+/** Keep points at least `fraction` of their own spacing away from every point kept before them (a uniform grid of buckets). */
+class PointSet {
+  readonly xs: number[] = [];
+  readonly ys: number[] = [];
+  private readonly buckets = new Map<number, number[]>();
+  constructor(private readonly cell: number, private readonly hx: number, private readonly hy: number) {}
+  private key(ix: number, iy: number): number { return ix * 1048576 + iy; }
+  add(x: number, y: number): void {
+    const ix = Math.floor((x + this.hx) / this.cell), iy = Math.floor((y + this.hy) / this.cell);
+    const k = this.key(ix, iy);
+    const list = this.buckets.get(k);
+    if (list) list.push(this.xs.length); else this.buckets.set(k, [this.xs.length]);
+    this.xs.push(x); this.ys.push(y);
+  }
+  /** True when no kept point lies within `radius` (at most one cell) of (x, y). */
+  clear(x: number, y: number, radius: number): boolean {
+    const ix = Math.floor((x + this.hx) / this.cell), iy = Math.floor((y + this.hy) / this.cell);
+    for (let a = ix - 1; a <= ix + 1; a++) {
+      for (let b = iy - 1; b <= iy + 1; b++) {
+        for (const p of this.buckets.get(this.key(a, b)) ?? []) if (Math.hypot(this.xs[p] - x, this.ys[p] - y) < radius) return false;
+      }
+    }
+    return true;
+  }
+}
+
+function plateHolesTriangulation(size: readonly number[], holes: readonly Hole[], nx: number, ny: number, grading: number): FacedTriangulation {
+  const hx = size[0] / 2, hy = size[1] / 2;
+  const h = Math.min(size[0] / nx, size[1] / ny);
+  const xs = placeSymmetric(symmetricNodes(nx, grading), 0, hx);
+  const ys = placeSymmetric(symmetricNodes(ny, grading), 0, hy);
+  // Hole rims and rings.
+  const rimFirst: number[] = [], rimCount: number[] = [];
+  const ringPoints: Candidate[][] = [];
+  const zone: number[] = [];
+  const rims: Candidate[] = [];
+  let smallest = h;
+  for (let i = 0; i < holes.length; i++) {
+    const [cx, cy, r] = holes[i];
+    let gap = rimDistance(cx, cy, hx, hy) - r;
+    for (let j = 0; j < holes.length; j++) if (j !== i) gap = Math.min(gap, Math.hypot(cx - holes[j][0], cy - holes[j][1]) - r - holes[j][2]);
+    const m = Math.max(8, Math.ceil((2 * Math.PI * r) / Math.min(h, gap) - 1e-9));
+    checkTriangleBudget(4 * m, `hole ${i + 1} with ${m} segments`);
+    const s = (2 * Math.PI * r) / m;
+    rimFirst.push(rims.length); rimCount.push(m);
+    for (let j = 0; j < m; j++) rims.push({ x: cx + r * Math.cos((2 * Math.PI * j) / m), y: cy + r * Math.sin((2 * Math.PI * j) / m), spacing: s });
+    const rings: Candidate[] = [];
+    let rho = r, step = s / grading;
+    smallest = Math.min(smallest, step);
+    while (step < h && rings.length < 1e6) {
+      rho += step;
+      const around = Math.max(step, s);
+      const mk = Math.max(m, Math.round((2 * Math.PI * rho) / around));
+      const offset = (rings.length % 2) * 0.5;
+      for (let j = 0; j < mk; j++) {
+        const a = (2 * Math.PI * (j + offset)) / mk;
+        rings.push({ x: cx + rho * Math.cos(a), y: cy + rho * Math.sin(a), spacing: Math.min(step * 1.3, around) });
+      }
+      step *= 1.3;
+    }
+    ringPoints.push(rings);
+    zone.push(rho - r + 0.5 * h);
+  }
+  // Which source (-1 the outer rim, else a hole) is nearest (x, y), and how far.
+  const nearestOther = (x: number, y: number, own: number): number => {
+    let d = own >= 0 ? rimDistance(x, y, hx, hy) : Infinity;
+    for (let k = 0; k < holes.length; k++) if (k !== own) d = Math.min(d, Math.hypot(x - holes[k][0], y - holes[k][1]) - holes[k][2]);
+    return d;
+  };
+  let widest = h;
+  for (let i = 0; i < nx; i++) widest = Math.max(widest, xs[i + 1] - xs[i]);
+  for (let j = 0; j < ny; j++) widest = Math.max(widest, ys[j + 1] - ys[j]);
+  // A cell as wide as the largest exclusion radius, so a query looks at the 3 x 3 cells around it only.
+  const kept = new PointSet(1.3 * widest, hx, hy);
+  const constraints: [number, number][] = [];
+  // The outer rim: the lattice's boundary nodes, counter-clockwise.
+  const boundary: [number, number][] = [];
+  for (let i = 0; i < nx; i++) boundary.push([xs[i], -hy]);
+  for (let j = 0; j < ny; j++) boundary.push([hx, ys[j]]);
+  for (let i = nx; i > 0; i--) boundary.push([xs[i], hy]);
+  for (let j = ny; j > 0; j--) boundary.push([-hx, ys[j]]);
+  for (let b = 0; b < boundary.length; b++) {
+    kept.add(boundary[b][0], boundary[b][1]);
+    constraints.push([b, (b + 1) % boundary.length]);
+  }
+  const rimBase = kept.xs.length;
+  for (let i = 0; i < holes.length; i++) {
+    for (let j = 0; j < rimCount[i]; j++) {
+      const p = rims[rimFirst[i] + j];
+      kept.add(p.x, p.y);
+      constraints.push([rimBase + rimFirst[i] + j, rimBase + rimFirst[i] + ((j + 1) % rimCount[i])]);
+    }
+  }
+  // Lattice interior points outside every hole's zone, or nearer the outer rim than the hole.
+  for (let j = 1; j < ny; j++) {
+    for (let i = 1; i < nx; i++) {
+      const x = xs[i], y = ys[j];
+      let inZone = false;
+      for (let k = 0; k < holes.length && !inZone; k++) {
+        const d = Math.hypot(x - holes[k][0], y - holes[k][1]) - holes[k][2];
+        inZone = d < zone[k] && d <= rimDistance(x, y, hx, hy);
+      }
+      const spacing = Math.min(xs[i + 1] - xs[i], xs[i] - xs[i - 1], ys[j + 1] - ys[j], ys[j] - ys[j - 1]);
+      if (!inZone && kept.clear(x, y, 0.45 * spacing)) kept.add(x, y);
+    }
+  }
+  // Ring points on their own hole's side.
+  for (let k = 0; k < holes.length; k++) {
+    for (const p of ringPoints[k]) {
+      const own = Math.hypot(p.x - holes[k][0], p.y - holes[k][1]) - holes[k][2];
+      if (nearestOther(p.x, p.y, k) <= own) continue;
+      if (rimDistance(p.x, p.y, hx, hy) < 0.45 * p.spacing) continue;
+      if (kept.clear(p.x, p.y, 0.45 * p.spacing)) kept.add(p.x, p.y);
+    }
+  }
+  const np = kept.xs.length;
+  const coords = new Float64Array(2 * np);
+  for (let p = 0; p < np; p++) { coords[2 * p] = kept.xs[p]; coords[2 * p + 1] = kept.ys[p]; }
+  const del = new Delaunator(coords);
+  new Constrainautor(del).constrainAll(constraints);
+  const t = del.triangles;
+  const inHole = (x: number, y: number): boolean => holes.some(([cx, cy, r]) => Math.hypot(x - cx, y - cy) < r);
+  const out: number[] = [];
+  for (let k = 0; k < t.length; k += 3) {
+    const a = t[k], b = t[k + 1], c = t[k + 2];
+    const gx = (coords[2 * a] + coords[2 * b] + coords[2 * c]) / 3, gy = (coords[2 * a + 1] + coords[2 * b + 1] + coords[2 * c + 1]) / 3;
+    if (inHole(gx, gy)) continue;
+    const area2 = (coords[2 * b] - coords[2 * a]) * (coords[2 * c + 1] - coords[2 * a + 1]) - (coords[2 * b + 1] - coords[2 * a + 1]) * (coords[2 * c] - coords[2 * a]);
+    // Normal +z: counter-clockwise in the plate's xy plane.
+    if (area2 > 0) out.push(a, b, c); else out.push(a, c, b);
+  }
+  checkTriangleBudget(out.length / 3, "plate with holes");
+  const positions = new Float64Array(3 * np);
+  for (let p = 0; p < np; p++) { positions[3 * p] = coords[2 * p]; positions[3 * p + 1] = coords[2 * p + 1]; }
+  return { positions, triangles: new Uint32Array(out), faces: new Uint32Array(out.length / 3) };
+}
+
+export function plateHolesMesh(params: PlateHolesParams): SurfaceMesh {
+  const size = params.size;
+  if (size.length !== 2 || !size.every((l) => l > 0 && Number.isFinite(l))) throw new RangeError("plateHolesMesh: size must be two positive lengths");
+  const fault = holesFault(size, params.holes);
+  if (fault) throw new RangeError(`plateHolesMesh: ${fault}`);
+  const [nx, ny] = sideDivisions(size, params.divisions, params.panelSize, 16);
+  if (!(Number.isInteger(nx) && Number.isInteger(ny) && nx >= 1 && ny >= 1)) throw new RangeError("plateHolesMesh: divisions must be positive integers");
+  checkTriangleBudget(2 * nx * ny, `plate divisions ${nx}x${ny}`);
+  const g = params.grading ?? 1;
+  const coarse = plateHolesTriangulation(size, params.holes, nx, ny, g);
+  const f = referenceFactor(coarse.faces.length);
+  const fine = f === 1 ? coarse : plateHolesTriangulation(size, params.holes, f * nx, f * ny, g);
+  const normal = (out: Float64Array, oo: number): void => { out[oo] = 0; out[oo + 1] = 0; out[oo + 2] = 1; };
+  return facedShape(coarse, fine, normal, params.name ?? "plate", params.axis ?? "z", params.center);
+}
