@@ -144,7 +144,8 @@ export function generateShape(shape: string, params: ShapeParams, opts: Generate
       case "plate": {
         const holes = values.holes as Hole[] | undefined;
         if (holes === undefined || holes.length === 0) return plateMesh(values as never);
-        const fault = holesFault(values.size as number[], holes.map(([x, y, r]) => [x / scale, y / scale, r / scale]));
+        // In the caller's unit, so the message reads as the input was written.
+        const fault = holesFault((values.size as number[]).map((l) => l / scale), holes.map(([x, y, r]) => [x / scale, y / scale, r / scale]));
         if (fault) throw error(`${describe("holes")}: ${fault}`);
         return plateHolesMesh(values as never);
       }
