@@ -184,6 +184,7 @@ function convert(kind: Kind, raw: ShapeParamValue, scale: number, fail: (why: st
     if (a !== "x" && a !== "y" && a !== "z") fail(`must be x, y or z, got "${String(raw)}"`);
     return a as Axis;
   }
+  if (kind === "circles" && Array.isArray(raw) && raw.length === 0) return [];
   // Circles on the command line may be separated by ";" ("0,0,1;2,2,0.5").
   if (kind !== "circles" && Array.isArray(raw) && raw.some((x) => Array.isArray(x))) fail("expected a number, a list of numbers, or text");
   if (kind === "circles" && Array.isArray(raw) && raw.some((x) => Array.isArray(x) && x.length !== 3)) fail("takes each circle as [x, y, radius]");
