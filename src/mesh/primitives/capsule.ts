@@ -37,15 +37,19 @@ export function capsuleSegments(params: CapsuleParams): number {
   return 32;
 }
 
-/** The capsule with m segments around its straight part, in its local frame (axis z, centred). */
-function capsuleTriangulation(r: number, length: number, m: number): FacedTriangulation {
+/**
+ * The capsule with m segments around its straight part, in its local frame (axis z, centred),
+ * every count multiplied by `factor` (a reference exactly that many times finer).
+ */
+function capsuleTriangulation(r: number, length: number, coarseM: number, factor = 1): FacedTriangulation {
+  const m = factor * coarseM;
   const h = (2 * Math.PI * r) / m;
   // Quarter meridian pi r / 2 in steps close to the spacing around: m / 4 rings per hemisphere.
-  const n = Math.max(1, Math.round(m / 4));
+  const n = factor * Math.max(1, Math.round(coarseM / 4));
   const zl = -length / 2, zu = length / 2;
   const profile: Profile = emptyProfile(false);
   addArc(profile, 0, zl, r, -Math.PI / 2, 0, n, LOWER);
-  if (length > 0) addLine(profile, { rho: r, z: zl }, { rho: r, z: zu }, Math.max(1, Math.ceil(length / h - 1e-9)), SIDE);
+  if (length > 0) addLine(profile, { rho: r, z: zl }, { rho: r, z: zu }, factor * Math.max(1, Math.ceil(length / (factor * h) - 1e-9)), SIDE);
   addArc(profile, 0, zu, r, 0, Math.PI / 2, n, UPPER);
   // The straight part and both equators keep exactly m; rings toward a pole never exceed it.
   const segments = profile.nodes.map((p) => (p.rho >= r ? m : Math.min(m, ringSegments(p.rho, h, 3))));
@@ -59,7 +63,7 @@ export function capsuleMesh(params: CapsuleParams): SurfaceMesh {
   const m = capsuleSegments(params);
   if (!(Number.isInteger(m) && m >= 3)) throw new RangeError("capsuleMesh: at least 3 segments around are needed");
   const coarse = capsuleTriangulation(r, length, m);
-  const fine = capsuleTriangulation(r, length, referenceFactor(coarse.faces.length) * m);
+  const fine = capsuleTriangulation(r, length, m, referenceFactor(coarse.faces.length));
   const zl = -length / 2, zu = length / 2;
   const normal = revolvedNormal([
     (rho, z) => [rho / r, (z - zl) / r],

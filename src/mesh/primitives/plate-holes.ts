@@ -96,9 +96,15 @@ class PointSet {
   }
 }
 
-function plateHolesTriangulation(size: readonly number[], holes: readonly Hole[], nx: number, ny: number, grading: number): FacedTriangulation {
+/**
+ * The plate with holes on an nx x ny lattice, every count (lattice divisions, segments around
+ * each hole) multiplied by `factor`, so a reference is exactly that many times finer even where
+ * a least count or a narrow gap sets the count.
+ */
+function plateHolesTriangulation(size: readonly number[], holes: readonly Hole[], coarseNx: number, coarseNy: number, grading: number, factor = 1): FacedTriangulation {
   const hx = size[0] / 2, hy = size[1] / 2;
-  const h = Math.min(size[0] / nx, size[1] / ny);
+  const coarseH = Math.min(size[0] / coarseNx, size[1] / coarseNy);
+  const nx = factor * coarseNx, ny = factor * coarseNy, h = coarseH / factor;
   const xs = placeSymmetric(symmetricNodes(nx, grading), 0, hx);
   const ys = placeSymmetric(symmetricNodes(ny, grading), 0, hy);
   // Hole rims and rings.
@@ -111,7 +117,7 @@ function plateHolesTriangulation(size: readonly number[], holes: readonly Hole[]
     const [cx, cy, r] = holes[i];
     let gap = rimDistance(cx, cy, hx, hy) - r;
     for (let j = 0; j < holes.length; j++) if (j !== i) gap = Math.min(gap, Math.hypot(cx - holes[j][0], cy - holes[j][1]) - r - holes[j][2]);
-    const m = Math.max(8, Math.ceil((2 * Math.PI * r) / Math.min(h, gap) - 1e-9));
+    const m = factor * Math.max(8, Math.ceil((2 * Math.PI * r) / Math.min(coarseH, gap) - 1e-9));
     checkTriangleBudget(4 * m, `hole ${i + 1} with ${m} segments`);
     const s = (2 * Math.PI * r) / m;
     rimFirst.push(rims.length); rimCount.push(m);
@@ -218,7 +224,7 @@ export function plateHolesMesh(params: PlateHolesParams): SurfaceMesh {
   const g = params.grading ?? 1;
   const coarse = plateHolesTriangulation(size, params.holes, nx, ny, g);
   const f = referenceFactor(coarse.faces.length);
-  const fine = f === 1 ? coarse : plateHolesTriangulation(size, params.holes, f * nx, f * ny, g);
+  const fine = f === 1 ? coarse : plateHolesTriangulation(size, params.holes, nx, ny, g, f);
   const normal = (out: Float64Array, oo: number): void => { out[oo] = 0; out[oo + 1] = 0; out[oo + 2] = 1; };
   return facedShape(coarse, fine, normal, params.name ?? "plate", params.axis ?? "z", params.center);
 }

@@ -52,7 +52,11 @@ const steps = (l: number, h: number): number => Math.max(1, Math.ceil(l / h - 1e
 /** Steps along an arc of radius e through a quarter turn at spacing h: at least 2, so a fillet is never one chord. */
 const arcSteps = (e: number, h: number): number => Math.max(2, Math.ceil((0.5 * Math.PI * e) / h - 1e-9));
 
-function washerTriangulation(a: number, b: number, t: number, e: number, h: number, g: number): { mesh: FacedTriangulation; normals: ProfileNormal[] } {
+/**
+ * The washer at spacing h, every count (steps along the section, segments around) multiplied
+ * by `factor`, so a reference is exactly that many times finer even where a least count applies.
+ */
+function washerTriangulation(a: number, b: number, t: number, e: number, h: number, g: number, factor = 1): { mesh: FacedTriangulation; normals: ProfileNormal[] } {
   const zb = -t / 2, zt = t / 2;
   const profile: Profile = emptyProfile(true);
   const normals: ProfileNormal[] = [];
@@ -60,12 +64,12 @@ function washerTriangulation(a: number, b: number, t: number, e: number, h: numb
   const line = (p0: [number, number], p1: [number, number], n: [number, number]): void => {
     const l = Math.hypot(p1[0] - p0[0], p1[1] - p0[1]);
     if (!(l > 0)) return;
-    addLine(profile, { rho: p0[0], z: p0[1] }, { rho: p1[0], z: p1[1] }, steps(l, h), normals.length, grading);
+    addLine(profile, { rho: p0[0], z: p0[1] }, { rho: p1[0], z: p1[1] }, factor * steps(l, h), normals.length, grading);
     normals.push(() => n);
   };
   const arc = (rc: number, zc: number, a0: number): void => {
     if (!(e > 0)) return;
-    addArc(profile, rc, zc, e, a0, a0 + Math.PI / 2, arcSteps(e, h), normals.length);
+    addArc(profile, rc, zc, e, a0, a0 + Math.PI / 2, factor * arcSteps(e, h), normals.length);
     normals.push((rho, z) => [(rho - rc) / e, (z - zc) / e]);
   };
   // Counter-clockwise in the (rho, z) plane: the section on the left.
@@ -79,7 +83,7 @@ function washerTriangulation(a: number, b: number, t: number, e: number, h: numb
   arc(a + e, zb + e, Math.PI);
   // The loop came back to its first node: drop the repeat.
   profile.nodes.pop();
-  const segments = profile.nodes.map((p) => ringSegments(p.rho, h, MIN_RING_SEGMENTS));
+  const segments = profile.nodes.map((p) => factor * ringSegments(p.rho, h, MIN_RING_SEGMENTS));
   return { mesh: revolve(profile, segments), normals };
 }
 
@@ -93,6 +97,6 @@ export function washerMesh(params: WasherParams): SurfaceMesh {
   if (!(h > 0 && Number.isFinite(h))) throw new RangeError("washerMesh: the panel spacing must be positive");
   const g = params.grading ?? 1;
   const coarse = washerTriangulation(a, b, t, e, h, g);
-  const fine = washerTriangulation(a, b, t, e, h / referenceFactor(coarse.mesh.faces.length), g);
+  const fine = washerTriangulation(a, b, t, e, h, g, referenceFactor(coarse.mesh.faces.length));
   return facedShape(coarse.mesh, fine.mesh, revolvedNormal(fine.normals), params.name ?? "washer", params.axis ?? "z", params.center);
 }

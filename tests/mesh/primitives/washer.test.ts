@@ -68,6 +68,17 @@ describe("washer", () => {
       .toEqual(["bottom", "inner+", "inner-", "outer+", "outer-", "top"]);
   });
 
+  it("the reference has four times the steps along the section, even where the least 2 steps per quarter arc apply", () => {
+    const sectionNodes = (p: Float64Array): number => {
+      const keys = new Set<string>();
+      for (let i = 0; i < p.length; i += 3) keys.add(`${Math.hypot(p[i], p[i + 1]).toFixed(9)},${p[i + 2].toFixed(9)}`);
+      return keys.size;
+    };
+    // Panel size 0.8 against quarter arcs of 0.39: 2 steps on each arc both in the mesh and, by panel size alone, at a quarter of it.
+    const m = washerMesh({ innerRadius: 1, outerRadius: 3, thickness: 0.5, edgeRadius: 0.25, panelSize: 0.8 });
+    expect(sectionNodes(m.reference!.positions)).toBe(4 * sectionNodes(m.positions));
+  });
+
   it("square edges are graded: the steps along each side shrink toward both ends by the grading ratio", () => {
     const m = washerMesh({ innerRadius: 1, outerRadius: 3, thickness: 1, panelSize: 0.25, grading: 5 });
     const radii = new Set<number>();
