@@ -24,7 +24,8 @@ import Delaunator from "delaunator";
 import * as constrainautorModule from "@kninnug/constrainautor";
 import type { SurfaceMesh } from "../model.js";
 import { symmetricNodes, placeSymmetric } from "./grading.js";
-import { type Axis, checkTriangleBudget } from "./placement.js";
+import { checkTriangleBudget } from "./placement.js";
+import type { PlateParams } from "./plate.js";
 import { sideDivisions } from "./box.js";
 import { facedShape, referenceFactor, type FacedTriangulation } from "./reference.js";
 
@@ -36,19 +37,9 @@ const Constrainautor = (constrainautorModule as unknown as { default: Constraina
 /** A hole: centre x, y in the plate's plane from the plate's centre, and radius; metres. */
 export type Hole = readonly [number, number, number];
 
-export interface PlateHolesParams {
-  /** Side lengths in the plate's plane (local x, y); metres. */
-  size: readonly number[];
+/** The plate's parameters (./plate.ts) and its holes. */
+export interface PlateHolesParams extends PlateParams {
   holes: readonly Hole[];
-  /** Divisions per side of the plate's lattice: one count for both, or one per side (default 16). */
-  divisions?: number | readonly number[];
-  /** Target mean panel edge length; metres. */
-  panelSize?: number;
-  /** Largest / smallest spacing toward the outer rim and toward each hole's rim; 1 = uniform. */
-  grading?: number;
-  axis?: Axis;
-  center?: readonly number[];
-  name?: string;
 }
 
 /** Why a set of holes cannot be cut from a plate of this size, or undefined when it can. Holes are numbered from 1. */
