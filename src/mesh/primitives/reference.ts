@@ -24,7 +24,7 @@ export interface FacedTriangulation {
 }
 
 /** The most reference triangles a shape carries; a finer reference is coarsened (4x, then 2x, then 1x the mesh's resolution). */
-export const REFERENCE_TRIANGLE_BUDGET = 2 ** 22;
+export const REFERENCE_TRIANGLE_BUDGET = 2 ** 20;
 
 /**
  * How many times finer than the mesh the reference is built: 4 (16x the triangles) when that fits
