@@ -50,7 +50,11 @@ export function filletedBoxDivisions(params: FilletedBoxParams): { flat: number[
     const spacings = flatLength.flatMap((l, i) => (l > 0 ? [l / flat[i]] : []));
     h = spacings.length > 0 ? spacings.reduce((s, x) => s + x, 0) / spacings.length : (0.5 * Math.PI * r) / (typeof d === "number" ? d : d[0]);
   } else {
-    h = params.panelSize ?? Math.max(...size) / 8;
+    // Default: 8 panels along the longest side, finer where the fillet would otherwise give
+    // strips longer than about 4 times their width (a quarter turn of 2 steps is pi r / 4 wide),
+    // but never more than 40 along the longest side.
+    const longest = Math.max(...size);
+    h = params.panelSize ?? Math.min(longest / 8, Math.max(Math.PI * r, longest / 40));
     flat = flatLength.map((l) => (l > 0 ? Math.max(1, Math.ceil(l / h - 1e-9)) : 0));
   }
   return { flat, half: Math.max(1, Math.ceil((0.25 * Math.PI * r) / h - 1e-9)) };

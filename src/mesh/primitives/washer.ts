@@ -25,7 +25,7 @@ export interface WasherParams {
   thickness: number;
   /** Radius of the rounded edges; metres, 0 (square, the default) up to half the thickness and half the ring's width. */
   edgeRadius?: number;
-  /** Segments around the outer rim (default 48). */
+  /** Segments around the outer rim (default 48, more for small rounded edges: `washerSpacing`). */
   divisions?: number;
   /** Target panel edge length; metres. Used when `divisions` is not given. */
   panelSize?: number;
@@ -38,10 +38,16 @@ export interface WasherParams {
   name?: string;
 }
 
+/**
+ * Nominal spacing: from the segments around the outer rim or the panel size; by default 48
+ * around the rim, finer where rounded edges would otherwise give strips longer than about 4
+ * times their width (a quarter arc of 2 steps), but never more than 160 around the rim.
+ */
 export function washerSpacing(params: WasherParams): number {
   if (params.divisions !== undefined) return (2 * Math.PI * params.outerRadius) / params.divisions;
   if (params.panelSize !== undefined) return params.panelSize;
-  return (2 * Math.PI * params.outerRadius) / 48;
+  const rim = 2 * Math.PI * params.outerRadius, e = params.edgeRadius ?? 0;
+  return e > 0 ? Math.min(rim / 48, Math.max(Math.PI * e, rim / 160)) : rim / 48;
 }
 
 /** Fewest segments around the hole: a smaller count would turn a small hole into a triangle or a square. */
