@@ -61,26 +61,44 @@ const rimDistance = (x: number, y: number, hx: number, hy: number): number => Ma
 
 interface Candidate { x: number; y: number; spacing: number }
 
-/** Keep points at least `fraction` of their own spacing away from every point kept before them (a uniform grid of buckets). */
+/**
+ * The points kept so far, with a query "is any kept point within `radius`?" answered from a
+ * grid whose cell is at least the radius: one grid per power of two from the finest spacing to
+ * the widest, so a dense rim's queries look at small cells and a coarse lattice point's at
+ * large ones (one grid of the widest cell made a gap of 1/1000 of the plate quadratic).
+ */
 class PointSet {
   readonly xs: number[] = [];
   readonly ys: number[] = [];
-  private readonly buckets = new Map<number, number[]>();
-  constructor(private readonly cell: number, private readonly hx: number, private readonly hy: number) {}
-  private key(ix: number, iy: number): number { return ix * 1048576 + iy; }
+  private readonly levels: Map<number, number[]>[] = [];
+  private readonly cells: number[] = [];
+  constructor(finest: number, widest: number, private readonly hx: number, private readonly hy: number) {
+    for (let c = Math.max(finest, (widest + hx + hy) * 1e-12); ; c *= 2) {
+      this.cells.push(c);
+      this.levels.push(new Map());
+      if (c >= widest) break;
+    }
+  }
+  // Two cells may share a key when a grid has more than 2^26 cells a side; that only merges their lists (distances are checked).
+  private key(ix: number, iy: number): number { return ix * 67108864 + iy; }
   add(x: number, y: number): void {
-    const ix = Math.floor((x + this.hx) / this.cell), iy = Math.floor((y + this.hy) / this.cell);
-    const k = this.key(ix, iy);
-    const list = this.buckets.get(k);
-    if (list) list.push(this.xs.length); else this.buckets.set(k, [this.xs.length]);
+    for (let l = 0; l < this.cells.length; l++) {
+      const k = this.key(Math.floor((x + this.hx) / this.cells[l]), Math.floor((y + this.hy) / this.cells[l]));
+      const list = this.levels[l].get(k);
+      if (list) list.push(this.xs.length); else this.levels[l].set(k, [this.xs.length]);
+    }
     this.xs.push(x); this.ys.push(y);
   }
-  /** True when no kept point lies within `radius` (at most one cell) of (x, y). */
+  /** True when no kept point lies within `radius` of (x, y). */
   clear(x: number, y: number, radius: number): boolean {
-    const ix = Math.floor((x + this.hx) / this.cell), iy = Math.floor((y + this.hy) / this.cell);
-    for (let a = ix - 1; a <= ix + 1; a++) {
-      for (let b = iy - 1; b <= iy + 1; b++) {
-        for (const p of this.buckets.get(this.key(a, b)) ?? []) if (Math.hypot(this.xs[p] - x, this.ys[p] - y) < radius) return false;
+    let l = 0;
+    while (l < this.cells.length - 1 && this.cells[l] < radius) l++;
+    const cell = this.cells[l], grid = this.levels[l];
+    const ix = Math.floor((x + this.hx) / cell), iy = Math.floor((y + this.hy) / cell);
+    const reach = Math.ceil(radius / cell);
+    for (let a = ix - reach; a <= ix + reach; a++) {
+      for (let b = iy - reach; b <= iy + reach; b++) {
+        for (const p of grid.get(this.key(a, b)) ?? []) if (Math.hypot(this.xs[p] - x, this.ys[p] - y) < radius) return false;
       }
     }
     return true;
@@ -119,7 +137,7 @@ function plateHolesTriangulation(size: readonly number[], holes: readonly Hole[]
     while (step < h && rings.length < 1e6) {
       rho += step;
       const around = Math.max(step, s);
-      const mk = Math.max(m, Math.round((2 * Math.PI * rho) / around));
+      const mk = Math.max(8, Math.round((2 * Math.PI * rho) / around));
       const offset = (rings.length % 2) * 0.5;
       for (let j = 0; j < mk; j++) {
         const a = (2 * Math.PI * (j + offset)) / mk;
@@ -139,15 +157,39 @@ function plateHolesTriangulation(size: readonly number[], holes: readonly Hole[]
   let widest = h;
   for (let i = 0; i < nx; i++) widest = Math.max(widest, xs[i + 1] - xs[i]);
   for (let j = 0; j < ny; j++) widest = Math.max(widest, ys[j + 1] - ys[j]);
-  // A cell as wide as the largest exclusion radius, so a query looks at the 3 x 3 cells around it only.
-  const kept = new PointSet(1.3 * widest, hx, hy);
+  const kept = new PointSet(smallest, 1.3 * widest, hx, hy);
   const constraints: [number, number][] = [];
-  // The outer rim: the lattice's boundary nodes, counter-clockwise.
+  // The outer rim: the lattice's boundary nodes, counter-clockwise, each lattice step that
+  // passes closer to a hole than its own length cut into steps no longer than the distance to
+  // the nearest hole rim, so a hole near the edge meets edge nodes as close as its own.
+  const holeDistance = (x: number, y: number): number => {
+    let d = Infinity;
+    for (const [cx, cy, r] of holes) d = Math.min(d, Math.hypot(x - cx, y - cy) - r);
+    return d;
+  };
   const boundary: [number, number][] = [];
-  for (let i = 0; i < nx; i++) boundary.push([xs[i], -hy]);
-  for (let j = 0; j < ny; j++) boundary.push([hx, ys[j]]);
-  for (let i = nx; i > 0; i--) boundary.push([xs[i], hy]);
-  for (let j = ny; j > 0; j--) boundary.push([-hx, ys[j]]);
+  const side = (x0: number, y0: number, x1: number, y1: number): void => {
+    boundary.push([x0, y0]);
+    const len = Math.hypot(x1 - x0, y1 - y0);
+    // The closest approach of a hole to this step (a point on a segment against a circle).
+    let near = Infinity;
+    for (const [cx, cy, r] of holes) {
+      const t = Math.max(0, Math.min(1, ((cx - x0) * (x1 - x0) + (cy - y0) * (y1 - y0)) / (len * len)));
+      near = Math.min(near, Math.hypot(x0 + t * (x1 - x0) - cx, y0 + t * (y1 - y0) - cy) - r);
+    }
+    if (!(near < len)) return;
+    let t = 0;
+    for (;;) {
+      const step = Math.max(holeDistance(x0 + (t / len) * (x1 - x0), y0 + (t / len) * (y1 - y0)), near);
+      if (t + 1.5 * step >= len) break;
+      t += step;
+      boundary.push([x0 + (t / len) * (x1 - x0), y0 + (t / len) * (y1 - y0)]);
+    }
+  };
+  for (let i = 0; i < nx; i++) side(xs[i], -hy, xs[i + 1], -hy);
+  for (let j = 0; j < ny; j++) side(hx, ys[j], hx, ys[j + 1]);
+  for (let i = nx; i > 0; i--) side(xs[i], hy, xs[i - 1], hy);
+  for (let j = ny; j > 0; j--) side(-hx, ys[j], -hx, ys[j - 1]);
   for (let b = 0; b < boundary.length; b++) {
     kept.add(boundary[b][0], boundary[b][1]);
     constraints.push([b, (b + 1) % boundary.length]);
