@@ -57,6 +57,10 @@ export function filletedBoxDivisions(params: FilletedBoxParams): { flat: number[
     h = params.panelSize ?? Math.min(longest / 8, Math.max(Math.PI * r, longest / 40));
     flat = flatLength.map((l) => (l > 0 ? Math.max(1, Math.ceil(l / h - 1e-9)) : 0));
   }
+  // A flat part narrower than 1 % of a panel (a fillet of almost half a side) would be one
+  // sliver strip: the fillets' panels span it instead. Every vertex still lies on the true
+  // surface (the projection below uses the exact inner box); the strip's own face is left out.
+  for (let i = 0; i < 3; i++) if (flatLength[i] < 0.01 * h) flat[i] = 0;
   return { flat, half: Math.max(1, Math.ceil((0.25 * Math.PI * r) / h - 1e-9)) };
 }
 

@@ -64,6 +64,18 @@ describe("box with filleted edges", () => {
     for (let i = 0; i < ball.positions.length; i += 3) expect(Math.hypot(ball.positions[i], ball.positions[i + 1], ball.positions[i + 2])).toBeCloseTo(1, 14);
   });
 
+  it("a flat part far narrower than a panel is spanned by the fillets' panels, every vertex still on the surface", () => {
+    const size = [2, 2, 2 + 1e-6], r = 1;
+    const m = filletedBoxMesh({ size, fillet: r, panelSize: 0.3 });
+    expectClosed(m, 0, 0.2);
+    const s = roundedBox(size, r);
+    for (let i = 0; i < m.positions.length; i += 3) expect(Math.abs(s.distance("", m.positions[i], m.positions[i + 1], m.positions[i + 2]))).toBeLessThan(1e-15);
+    // The same panels as the sphere of radius 1 (a fillet of half every side), 1e-6 apart.
+    const ball = filletedBoxMesh({ size: [2, 2, 2], fillet: r, panelSize: 0.3 });
+    expect(m.triangles.length).toBe(ball.triangles.length);
+    expect(Math.abs(surfaceArea(m) - surfaceArea(ball))).toBeLessThan(1e-5);
+  });
+
   it("area converges to Steiner's formula at second order as the panels shrink", () => {
     const size = [10, 6, 4], r = 1.5, exact = filletArea(size, r);
     // Panel sizes that put 2, 4, 8 steps on each half fillet (pi r / 4).
