@@ -134,11 +134,12 @@ function plateHolesTriangulation(size: readonly number[], holes: readonly Hole[]
     const rings: Candidate[] = [];
     let rho = r, step = s / grading;
     smallest = Math.min(smallest, step);
-    while (step < h && rings.length < 1e6) {
+    for (let ring = 1; step < h; ring++) {
       rho += step;
       const around = Math.max(step, s);
       const mk = Math.max(8, Math.round((2 * Math.PI * rho) / around));
-      const offset = (rings.length % 2) * 0.5;
+      // Every other ring turned by half a segment, so neighbouring rings' points interleave.
+      const offset = (ring % 2) * 0.5;
       for (let j = 0; j < mk; j++) {
         const a = (2 * Math.PI * (j + offset)) / mk;
         rings.push({ x: cx + rho * Math.cos(a), y: cy + rho * Math.sin(a), spacing: Math.min(step * 1.3, around) });
