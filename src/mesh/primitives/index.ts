@@ -86,6 +86,9 @@ export interface GenerateOptions {
   place?: string;
 }
 
+/** A length back in the caller's unit for a message, without the last-digit noise of the scaling. */
+const shown = (metres: number, scale: number): number => Number((metres / scale).toPrecision(12));
+
 const DECIMAL = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 
 function numbersOf(value: ShapeParamValue, fail: (why: string) => never): number[] {
@@ -137,7 +140,7 @@ export function generateShape(shape: string, params: ShapeParams, opts: Generate
       case "box": {
         const r = (values.fillet as number | undefined) ?? 0;
         const sides = values.size as number[];
-        if (r > Math.min(...sides) / 2) throw error(`${describe("fillet")} must be at most half the smallest side (${Math.min(...sides) / 2 / scale}), got ${r / scale}`);
+        if (r > Math.min(...sides) / 2) throw error(`${describe("fillet")} must be at most half the smallest side (${shown(Math.min(...sides) / 2, scale)}), got ${shown(r, scale)}`);
         // A fillet of 0 is the plain box, mesh for mesh.
         return r > 0 ? filletedBoxMesh(values as never) : boxMesh(values as never);
       }
@@ -145,7 +148,7 @@ export function generateShape(shape: string, params: ShapeParams, opts: Generate
         const holes = values.holes as Hole[] | undefined;
         if (holes === undefined || holes.length === 0) return plateMesh(values as never);
         // In the caller's unit, so the message reads as the input was written.
-        const fault = holesFault((values.size as number[]).map((l) => l / scale), holes.map(([x, y, r]) => [x / scale, y / scale, r / scale]));
+        const fault = holesFault((values.size as number[]).map((l) => shown(l, scale)), holes.map(([x, y, r]) => [shown(x, scale), shown(y, scale), shown(r, scale)]));
         if (fault) throw error(`${describe("holes")}: ${fault}`);
         return plateHolesMesh(values as never);
       }
@@ -160,7 +163,7 @@ export function generateShape(shape: string, params: ShapeParams, opts: Generate
       case "washer": {
         const a = values.innerRadius as number, b = values.outerRadius as number, t = values.thickness as number, e = (values.edgeRadius as number | undefined) ?? 0;
         if (!(a < b)) throw error(`${describe("innerRadius")} must be less than ${describe("outerRadius")}`);
-        if (e > t / 2 || e > (b - a) / 2) throw error(`${describe("edgeRadius")} must be at most half the thickness and half the ring's width (${Math.min(t, b - a) / 2 / scale}), got ${e / scale}`);
+        if (e > t / 2 || e > (b - a) / 2) throw error(`${describe("edgeRadius")} must be at most half the thickness and half the ring's width (${shown(Math.min(t, b - a) / 2, scale)}), got ${shown(e, scale)}`);
         return washerMesh(values as never);
       }
     }
