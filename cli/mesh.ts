@@ -17,21 +17,26 @@ import { displayText } from "../src/io/display-text.js";
 const flag = (param: string): string => "--" + param.replace(/[A-Z]/g, (c) => "-" + c.toLowerCase());
 
 const PARAMETERS: [string, string][] = [
-  ["radius", "radius (sphere, disk, cylinder)"],
+  ["radius", "radius (sphere, disk, cylinder, capsule)"],
   ["majorRadius", "axis to tube centre (torus)"],
   ["minorRadius", "tube radius (torus)"],
   ["size", "edge lengths LX,LY,LZ (box) or LX,LY (plate)"],
-  ["length", "length along the axis (bar)"],
+  ["fillet", "radius of every edge and corner of a box (0 = sharp, up to half the smallest side)"],
+  ["holes", "circular holes in a plate: X,Y,R[;X,Y,R...] from the plate's centre, in its plane"],
+  ["length", "length along the axis (bar); of the straight part between the hemispheres (capsule, 0 = sphere)"],
   ["width", "width (bar)"],
-  ["thickness", "thickness (bar)"],
+  ["thickness", "thickness (bar, washer)"],
+  ["innerRadius", "hole radius (washer)"],
+  ["outerRadius", "outer radius (washer)"],
+  ["edgeRadius", "radius of the washer's edges (0 = square, the default; up to half the thickness)"],
   ["height", "length cap to cap (cylinder)"],
   ["level", "icosphere subdivision level L, 20*4^L triangles (sphere; default 3)"],
   ["panels", "least number of triangles (sphere)"],
-  ["divisions", "divisions per side N or NX,NY[,NZ]; rings (disk); segments around (cylinder, torus NU[,NV])"],
+  ["divisions", "divisions per side N or NX,NY[,NZ] (of a box's flat part when filleted); rings (disk); segments around (cylinder, capsule, washer's outer rim, torus NU[,NV])"],
   ["panelSize", "target panel edge length, instead of divisions"],
   ["grading", "largest/smallest spacing along a side, toward edges and rims (1 = uniform)"],
   ["center", "centre X,Y,Z"],
-  ["axis", "axis x, y or z: normal of a plate or disk, axis of a cylinder, torus or bar"],
+  ["axis", "axis x, y or z: normal of a plate or disk, axis of a cylinder, capsule, washer, torus or bar"],
   ["name", "conductor name (default: the shape)"],
 ];
 

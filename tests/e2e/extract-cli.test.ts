@@ -206,11 +206,19 @@ describe("sigmesh extract", () => {
     ["intersecting conductors", ["anode.stl", "overlap.stl"], /anode and overlap intersect/],
     ["a scene with a bad key", ["badscene.json"], /badscene\.json: conductors\[0\]\.potential: expected a number/],
     ["a scene that is not JSON", ["broken.json"], /broken\.json: line 2, column \d+: not valid JSON/],
+    ["a scene whose plate holes overlap", ["badholes.json"], /badholes\.json: conductors\[0\]\.shape\.plate\.holes: hole 2 overlaps or touches hole 1$/m],
+    ["a scene whose box fillet is too large", ["badfillet.json"], /badfillet\.json: conductors\[0\]\.shape\.box\.fillet must be at most half the smallest side \(0\.5\), got 1$/m],
+    ["a scene whose washer's edge radius is too large", ["badwasher.json"], /badwasher\.json: conductors\[0\]\.shape\.washer\.edgeRadius must be at most half the thickness and half the ring's width \(0\.5\), got 0\.75$/m],
+    ["a scene whose capsule has a negative length", ["badcapsule.json"], /badcapsule\.json: conductors\[0\]\.shape\.capsule\.length must be 0 or more, got -3$/m],
   ];
   for (const [what, args, message] of bad) {
     it(`refuses ${what} with one line, exit code 2, and writes no report`, () => {
       writeFileSync(join(dir, "badscene.json"), JSON.stringify({ conductors: [{ mesh: "anode.stl", potential: "high" }] }));
       writeFileSync(join(dir, "broken.json"), '{ "conductors": [\n  { "mesh": "anode.stl" ]\n}');
+      writeFileSync(join(dir, "badholes.json"), JSON.stringify({ conductors: [{ shape: { plate: { size: [10, 6], holes: [[0, 0, 1], [1, 0, 1]] } } }] }));
+      writeFileSync(join(dir, "badfillet.json"), JSON.stringify({ conductors: [{ shape: { box: { size: [4, 4, 1], fillet: 1 } } }] }));
+      writeFileSync(join(dir, "badwasher.json"), JSON.stringify({ conductors: [{ shape: { washer: { innerRadius: 1, outerRadius: 4, thickness: 1, edgeRadius: 0.75 } } }] }));
+      writeFileSync(join(dir, "badcapsule.json"), JSON.stringify({ conductors: [{ shape: { capsule: { radius: 1, length: -3 } } }] }));
       const out = join(dir, "never.json");
       const r = run(["extract", ...args, "--json", out], dir);
       expect(r.code).toBe(2);

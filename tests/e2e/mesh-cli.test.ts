@@ -62,6 +62,11 @@ describe("sigmesh mesh", () => {
       ["torus", ["--major-radius", "3", "--minor-radius", "1", "--divisions", "24,8"], 2 * 24 * 8],
       ["plate", ["--size", "2,1", "--divisions", "4,2", "--grading", "2"], 16],
       ["bar", ["--length", "10", "--width", "1", "--thickness", "0.1", "--name", "trace"], 4 * (40 * 4 + 4 + 40)],
+      // Filleted box: 2 flat divisions (spacing 1) and one step per half fillet (pi/4 < 1) on each axis, a 4 x 4 x 4 lattice.
+      ["box", ["--size", "4,4,4", "--fillet", "1", "--divisions", "2"], 4 * 3 * 16],
+      ["capsule", ["--radius", "1", "--length", "2", "--axis", "y"], undefined],
+      ["washer", ["--inner-radius", "1", "--outer-radius", "3", "--thickness", "0.5", "--edge-radius", "0.1"], undefined],
+      ["plate", ["--size", "20,10", "--holes", "-5,0,1.5;5,0,1.5", "--grading", "3"], undefined],
     ] as [string, string[], number | undefined][]) {
       const out = join(dir, `${shape}.obj`);
       const r = run(["mesh", shape, ...args, "-o", out]);
@@ -84,6 +89,10 @@ describe("sigmesh mesh", () => {
     [["mesh", "dodecahedron", "--radius", "1"], /unknown shape/],
     [["mesh", "sphere", "--radius", "1", "--unit", "furlong"], /--unit: unknown length unit/],
     [["mesh", "box", "--size", "1,1,1", "--divisions", "5000"], /more than the limit/],
+    [["mesh", "box", "--size", "4,4,1", "--fillet", "0.6"], /--fillet must be at most half the smallest side \(0\.5\), got 0\.6/],
+    [["mesh", "plate", "--size", "10,6", "--holes", "0,0,1;1.5,0,1"], /--holes: hole 2 overlaps or touches hole 1/],
+    [["mesh", "washer", "--inner-radius", "3", "--outer-radius", "1", "--thickness", "1"], /--inner-radius must be less than --outer-radius/],
+    [["mesh", "capsule", "--radius", "1", "--length", "-1"], /--length must be 0 or more/],
   ];
   it.each(bad)("%j: exit 2, one line on stderr, no file written", (args, re) => {
     const out = join(dir, "bad", "x.stl");

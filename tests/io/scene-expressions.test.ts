@@ -88,6 +88,10 @@ describe("parameters in scenes", () => {
     bad([{ name: "a", shape: { cube: { size: 1 } } }], /conductors\[0\]\.shape\.cube: unknown shape/);
     bad([{ name: "a", shape: { box: { size: [1, 1, 1], radius: 2 } } }], /conductors\[0\]\.shape\.box\.radius: not a parameter of a box/);
     bad([{ name: "a", shape: { box: { divisions: 2 } } }], /conductors\[0\]\.shape\.box: a box needs "size"/);
+    bad([{ name: "a", shape: { box: { size: [1, 1, 1], fillet: [[0.1]] } } }], /^s\.json: conductors\[0\]\.shape\.box\.fillet: expected a number, a list of numbers, or text$/);
+    bad([{ name: "a", shape: { plate: { size: [10, 6], holes: 5 } } }], /^s\.json: conductors\[0\]\.shape\.plate\.holes: expected a list of circles \[x, y, radius\]$/);
+    bad([{ name: "a", shape: { capsule: { radius: 1 } } }], /^s\.json: conductors\[0\]\.shape\.capsule: a capsule needs "length"$/);
+    bad([{ name: "a", shape: { washer: { innerRadius: 1, outerRadius: 2, thickness: 1, edge: 0.1 } } }], /^s\.json: conductors\[0\]\.shape\.washer\.edge: not a parameter of a washer \(it takes innerRadius, outerRadius, thickness, edgeRadius,/);
     bad([{ name: "a", shape: { box: { size: [1, 1, 1] } }, place: { rotate: { axis: [0, 0, 0], degrees: 5 } } }], /conductors\[0\]\.place\.rotate\.axis: the axis has zero length/);
     bad([{ name: "a", shape: { box: { size: [1, 1, 1] } }, place: { scale: [1, 0, 1] } }], /conductors\[0\]\.place\.scale\[1\]: a scale factor of 0/);
     bad([{ name: "a", shape: { box: { size: [1, 1, 1] } }, place: { move: [1, 0, 1] } }], /conductors\[0\]\.place\.move: unknown key/);

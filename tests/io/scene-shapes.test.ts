@@ -9,7 +9,7 @@ import { mkdtempSync, writeFileSync, rmSync } from "node:fs";
 import { join } from "node:path";
 import { tmpdir } from "node:os";
 import { placeMesh, placementMatrix } from "../../src/io/placement.js";
-import { boxMesh, generateShape } from "../../src/mesh/primitives/index.js";
+import { boxMesh, generateShape, filletedBoxMesh, capsuleMesh, washerMesh, plateHolesMesh } from "../../src/mesh/primitives/index.js";
 import { signedVolume, surfaceArea } from "../../src/mesh/measure.js";
 import { loadScene } from "../../src/io/inputs.js";
 import { writeMeshFile } from "../../src/io/write.js";
@@ -101,5 +101,55 @@ describe("shapes in scenes", () => {
     let cx = 0;
     for (let i = 0; i < s.mesh.positions.length; i += 3) cx += s.mesh.positions[i];
     expect(cx / (s.mesh.positions.length / 3)).toBeCloseTo(1e-3, 15);
+  });
+});
+
+describe("rounded shapes in scenes", () => {
+  it("a filleted box, a capsule, a washer and a plate with holes load in the scene's unit, as the generator makes them", () => {
+    writeFileSync(join(dir, "rounded.json"), JSON.stringify({ unit: "mm", parameters: { r: 1.5 }, conductors: [
+      { name: "electrode", shape: { box: { size: [10, 10, 4], fillet: "=r", panelSize: 2 } }, potential: 1 },
+      { name: "pin", shape: { capsule: { radius: 0.5, length: 4, axis: "x", divisions: 12 } }, place: { translate: [0, 0, 6] } },
+      { name: "ring", shape: { washer: { innerRadius: 2, outerRadius: 5, thickness: 1, edgeRadius: 0.25, divisions: 24 } }, place: { translate: [0, 0, -6] } },
+      { name: "shield", shape: { plate: { size: [20, 12], holes: [[-5, 0, "=r"], [5, 0, 2]], panelSize: 2 } }, place: { translate: [0, 0, 10] } },
+      { shape: { washer: { innerRadius: 1, outerRadius: 2, thickness: 0.5 } }, place: { translate: [12, 0, 0] } },
+    ] }));
+    const s = loadScene(join(dir, "rounded.json"));
+    expect(s.mesh.names).toEqual(["electrode", "pin", "ring", "shield", "washer"]);
+    const mm = 1e-3;
+    const made = [
+      filletedBoxMesh({ size: [10 * mm, 10 * mm, 4 * mm], fillet: 1.5 * mm, panelSize: 2 * mm }),
+      capsuleMesh({ radius: 0.5 * mm, length: 4 * mm, axis: "x", divisions: 12 }),
+      washerMesh({ innerRadius: 2 * mm, outerRadius: 5 * mm, thickness: 1 * mm, edgeRadius: 0.25 * mm, divisions: 24 }),
+      plateHolesMesh({ size: [20 * mm, 12 * mm], holes: [[-5 * mm, 0, 1.5 * mm], [5 * mm, 0, 2 * mm]], panelSize: 2 * mm }),
+      washerMesh({ innerRadius: 1 * mm, outerRadius: 2 * mm, thickness: 0.5 * mm }),
+    ];
+    const count = new Array(5).fill(0);
+    for (const c of s.mesh.conductor) count[c]++;
+    expect(count).toEqual(made.map((m) => m.triangles.length / 3));
+    const areas = new Array(5).fill(0);
+    for (let t = 0; t < count.length; t++) areas[t] = surfaceArea(made[t]);
+    const total = surfaceArea(s.mesh);
+    expect(total / areas.reduce((a, b) => a + b, 0) - 1).toBeLessThan(1e-12);
+    expect(signedVolume(s.mesh)).toBeGreaterThan(0);
+    // The pin runs along x and sits 6 mm up.
+    let zmin = Infinity, xmax = -Infinity;
+    for (let t = 0; t < s.mesh.conductor.length; t++) {
+      if (s.mesh.conductor[t] !== 1) continue;
+      for (let j = 0; j < 3; j++) { const v = 3 * s.mesh.triangles[3 * t + j]; zmin = Math.min(zmin, s.mesh.positions[v + 2]); xmax = Math.max(xmax, s.mesh.positions[v]); }
+    }
+    expect(zmin).toBeCloseTo(5.5e-3, 12);
+    expect(xmax).toBeCloseTo(2.5e-3, 12);
+  });
+
+  it("names each rounded shape's fault by key path at load time, in the scene's unit", () => {
+    const bad = (shape: unknown, re: RegExp): void => {
+      writeFileSync(join(dir, "badround.json"), JSON.stringify({ unit: "mm", conductors: [{ name: "ok", shape: { sphere: { radius: 1 } } }, { name: "x", shape, place: { translate: [10, 0, 0] } }] }));
+      expect(() => loadScene(join(dir, "badround.json"))).toThrow(re);
+    };
+    bad({ box: { size: [4, 4, 1], fillet: 0.6 } }, /badround\.json: conductors\[1\]\.shape\.box\.fillet must be at most half the smallest side \(0\.5\), got 0\.6$/);
+    bad({ capsule: { radius: 1, length: -2 } }, /badround\.json: conductors\[1\]\.shape\.capsule\.length must be 0 or more, got -2$/);
+    bad({ washer: { innerRadius: 1, outerRadius: 3, thickness: 0.5, edgeRadius: 0.3 } }, /badround\.json: conductors\[1\]\.shape\.washer\.edgeRadius must be at most half the thickness and half the ring's width \(0\.25\), got 0\.3$/);
+    bad({ plate: { size: [10, 6], holes: [[0, 0, 1], [1.5, 0, 1]] } }, /badround\.json: conductors\[1\]\.shape\.plate\.holes: hole 2 overlaps or touches hole 1$/);
+    bad({ plate: { size: [10, 6], holes: [[0, 0, 1], [4, 0]] } }, /badround\.json: conductors\[1\]\.shape\.plate\.holes takes each circle as \[x, y, radius\]$/);
   });
 });

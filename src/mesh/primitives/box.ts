@@ -43,6 +43,24 @@ export function boxMesh(params: BoxParams): SurfaceMesh {
   const c = params.center ?? [0, 0, 0];
   const coord = [0, 1, 2].map((a) => placeSymmetric(symmetricNodes(n[a], grading), c[a], size[a] / 2));
 
+  const { positions, triangles } = boxSurfaceLattice(coord);
+  return { positions, triangles, conductor: new Uint32Array(nt), names: [params.name ?? "box"] };
+}
+
+/**
+ * A face code for the quad of the box face normal to `axis` on `side` (0 low, 1 high) whose
+ * lattice intervals are `next` along axis (axis + 1) % 3 and `last` along (axis + 2) % 3.
+ */
+export type QuadFace = (axis: number, side: number, next: number, last: number) => number;
+
+/**
+ * All six faces share one lattice of node coordinates per axis, so neighbouring faces meet on
+ * the same vertices. Each quad is split along the diagonal toward its nearer face corner.
+ */
+export function boxSurfaceLattice(coord: readonly Float64Array[], quadFace?: QuadFace): { positions: Float64Array; triangles: Uint32Array; faces?: Uint32Array } {
+  const n = coord.map((c) => c.length - 1);
+  const [nx, ny, nz] = n;
+  const nt = 4 * (nx * ny + ny * nz + nz * nx);
   const nvSurface = (nx + 1) * (ny + 1) * (nz + 1) - Math.max(0, nx - 1) * Math.max(0, ny - 1) * Math.max(0, nz - 1);
   const positions = new Float64Array(3 * nvSurface);
   const triangles = new Uint32Array(3 * nt);
@@ -61,6 +79,7 @@ export function boxMesh(params: BoxParams): SurfaceMesh {
     }
     return v;
   };
+  const faces = quadFace ? new Uint32Array(nt) : undefined;
   let k = 0;
   for (let f = 0; f < 3; f++) {
     for (const side of [0, 1]) {
@@ -75,6 +94,7 @@ export function boxMesh(params: BoxParams): SurfaceMesh {
           ijk[a] = i + 1; const p10 = vertex();
           ijk[b] = j + 1; const p11 = vertex();
           ijk[a] = i; const p01 = vertex();
+          if (faces) faces[k / 3] = faces[k / 3 + 1] = (quadFace as QuadFace)(f, side, a === (f + 1) % 3 ? i : j, a === (f + 1) % 3 ? j : i);
           if (diagonalTowardCorner(i, j, na, nb)) {
             triangles[k++] = p00; triangles[k++] = p10; triangles[k++] = p11;
             triangles[k++] = p00; triangles[k++] = p11; triangles[k++] = p01;
@@ -86,6 +106,6 @@ export function boxMesh(params: BoxParams): SurfaceMesh {
       }
     }
   }
-  if (nv !== nvSurface || k !== 3 * nt) throw new Error(`boxMesh: internal count mismatch (${nv} vs ${nvSurface} vertices)`);
-  return { positions, triangles, conductor: new Uint32Array(nt), names: [params.name ?? "box"] };
+  if (nv !== nvSurface || k !== 3 * nt) throw new Error(`boxSurfaceLattice: internal count mismatch (${nv} vs ${nvSurface} vertices)`);
+  return { positions, triangles, faces };
 }
