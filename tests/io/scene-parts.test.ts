@@ -31,8 +31,8 @@ const sceneFile = (name: string, value: unknown): string => {
 
 describe("multi-part conductors", () => {
   it("a net of a shape and a mesh file carries the charge of both parts held at the same potential", async () => {
-    // The mesh-file part is a box written in millimetres; the shape part a plate 3 mm away.
-    writeMeshFile(join(dir, "pin.stl"), { ...boxMesh({ size: [1, 1, 2], divisions: [2, 2, 4] }), names: ["pin"] }, "stl", "mm");
+    // The mesh-file part is a 1 × 1 × 2 mm box (the generator works in metres) written in millimetres; the shape part a plate 3 mm away.
+    writeMeshFile(join(dir, "pin.stl"), { ...boxMesh({ size: [1e-3, 1e-3, 2e-3], divisions: [2, 2, 4] }), names: ["pin"] }, "stl", "mm");
     const plate = { shape: { plate: { size: [4, 2], divisions: [6, 3] } }, place: { translate: [0, 0, 3] } };
     const pin = { mesh: "pin.stl", place: { translate: [-1, 0, 0] } };
     const net = loadScene(sceneFile("net.json", { unit: "mm", conductors: [{ name: "net", parts: [plate, pin] }] }));
