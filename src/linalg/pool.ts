@@ -33,21 +33,25 @@ export function compiledUrl(url: string): string {
   return pathToFileURL(js).href;
 }
 
+// Read as CommonJS or, when the parent runs with --input-type=module (a script given with -e), as
+// a module: only dynamic import() works in both, so the source uses nothing else.
 const WORKER_SOURCE = `
-const { parentPort } = require("node:worker_threads");
-const modules = new Map();
-parentPort.on("message", async (msg) => {
-  try {
-    let mod = modules.get(msg.module);
-    if (!mod) { mod = await import(msg.module); modules.set(msg.module, mod); }
-    const fn = mod[msg.fn];
-    if (typeof fn !== "function") throw new Error("no task " + msg.fn + " in " + msg.module);
-    const result = await fn(...msg.args);
-    parentPort.postMessage({ id: msg.id, ok: true, result });
-  } catch (err) {
-    parentPort.postMessage({ id: msg.id, ok: false, error: String(err && err.stack || err) });
-  }
-});
+(async () => {
+  const { parentPort } = await import("node:worker_threads");
+  const modules = new Map();
+  parentPort.on("message", async (msg) => {
+    try {
+      let mod = modules.get(msg.module);
+      if (!mod) { mod = await import(msg.module); modules.set(msg.module, mod); }
+      const fn = mod[msg.fn];
+      if (typeof fn !== "function") throw new Error("no task " + msg.fn + " in " + msg.module);
+      const result = await fn(...msg.args);
+      parentPort.postMessage({ id: msg.id, ok: true, result });
+    } catch (err) {
+      parentPort.postMessage({ id: msg.id, ok: false, error: String(err && err.stack || err) });
+    }
+  });
+})();
 `;
 
 interface Pending { resolve: (v: unknown) => void; reject: (e: Error) => void }
@@ -61,9 +65,7 @@ export class WorkerPool {
   constructor(size: number = defaultThreads()) {
     this.size = Math.max(1, size);
     for (let i = 0; i < this.size; i++) {
-      // The worker's source is CommonJS: a parent started with --input-type=module (a script
-      // given with -e) must not pass that flag on, or the source would be read as a module.
-      const w = new Worker(WORKER_SOURCE, { eval: true, execArgv: process.execArgv.filter((a) => !a.startsWith("--input-type")) });
+      const w = new Worker(WORKER_SOURCE, { eval: true });
       w.on("message", (msg: { id: number; ok: boolean; result?: unknown; error?: string }) => {
         const p = this.pending.get(msg.id);
         if (!p) return;
