@@ -3,14 +3,16 @@
  * Parameters are in the user's unit; the library works in metres.
  */
 import type { Command } from "commander";
-import { action } from "./common.js";
+import { statSync } from "node:fs";
+import { action, printWarnings } from "./common.js";
 import { InputError } from "../src/errors.js";
 import { parseUnit, metresPer, DEFAULT_UNIT } from "../src/io/units.js";
 import { encodeMesh, outputFormatFromPath, writeMeshFile } from "../src/io/write.js";
 import { checkOutputPaths } from "../src/io/atomic.js";
 import { generateShape, SHAPES, type ShapeParams } from "../src/mesh/primitives/index.js";
 import { surfaceArea } from "../src/mesh/measure.js";
-import { formatArea, unitLabel } from "../src/io/si.js";
+import { formatArea, formatSI, unitLabel } from "../src/io/si.js";
+import { compressedBytes } from "../src/extract/memory.js";
 import { displayText } from "../src/io/display-text.js";
 
 /** Option flag for a parameter name: panelSize -> --panel-size. */
@@ -39,6 +41,9 @@ const PARAMETERS: [string, string][] = [
   ["axis", "axis x, y or z: normal of a plate or disk, axis of a cylinder, capsule, washer, torus or bar"],
   ["name", "conductor name (default: the shape)"],
 ];
+
+/** Triangles above which `mesh` warns that the mesh is far finer than an extraction needs. */
+const LARGE_MESH = 1_000_000;
 
 export function registerMesh(program: Command): void {
   const cmd = program
@@ -69,9 +74,14 @@ export function registerMesh(program: Command): void {
         process.stdout.write(encodeMesh(mesh, format, unit));
       }
       else writeMeshFile(output, mesh, format, unit);
+      const n = mesh.triangles.length / 3;
+      // A mesh far beyond what an extraction needs is said so, with what its solve would take.
+      if (n > LARGE_MESH) {
+        printWarnings([{ message: `${n} triangles${output === "-" ? "" : ` (${formatSI(statSync(output).size, "B", 3)})`}: an extraction of this mesh needs about ${formatSI(compressedBytes(n, 1), "B", 2)} and minutes; a coarser mesh (a smaller --level or a larger --panel-size) usually gives the capacitance to 0.1 % with --refine` }], false);
+      }
       if (!opts.quiet) {
         // Area as `check` and `extract` print it (same digits, same unit notation).
-        process.stderr.write(displayText(`sigmesh: ${shape} "${mesh.names[0]}": ${mesh.triangles.length / 3} triangles, ${mesh.positions.length / 3} vertices, area ${formatArea(surfaceArea(mesh), unit)}, lengths in ${unitLabel(unit)} -> ${output === "-" ? "stdout" : output}`) + "\n");
+        process.stderr.write(displayText(`sigmesh: ${shape} "${mesh.names[0]}": ${n} triangles, ${mesh.positions.length / 3} vertices, area ${formatArea(surfaceArea(mesh), unit)}, lengths in ${unitLabel(unit)} -> ${output === "-" ? "stdout" : `${output} (${formatSI(statSync(output).size, "B", 3)})`}`) + "\n");
       }
     }));
 }

@@ -24,11 +24,19 @@ beforeAll(() => {
 afterAll(() => { if (dir) rmSync(dir, { recursive: true, force: true }); });
 
 describe("sigmesh mesh", () => {
+  it("says when a mesh is far finer than an extraction needs, with its file size and what its solve would take", () => {
+    const out = join(dir, "big.stl");
+    const r = run(["mesh", "sphere", "--radius", "2", "--level", "8", "-o", out, "--quiet"]);
+    expect(r.code).toBe(0);
+    expect(r.err).toMatch(/^sigmesh: warning: 1310720 triangles \(65\.5 MB\): an extraction of this mesh needs about \d+(\.\d)? GB and minutes; a coarser mesh/);
+  });
+
   it("writes a binary STL sphere in mm that reads back with 320 triangles and the polyhedral area", () => {
     const out = join(dir, "s.stl");
     const r = run(["mesh", "sphere", "--radius", "2", "--level", "2", "--unit", "mm", "-o", out]);
     expect(r.code).toBe(0);
-    expect(r.err).toMatch(/sphere.*320 triangles.*lengths in mm.*s\.stl/);
+    expect(r.err).toMatch(/sphere.*320 triangles.*lengths in mm.*s\.stl \(16\.1 kB\)/);
+    expect(r.err).not.toMatch(/warning/);
     // The area reads as `check` prints it: same digits, mm² rather than mm^2.
     const printed = /area (\S+) mm², /.exec(r.err)?.[1];
     expect(printed, r.err).toMatch(/^\d+\.\d{2}$/);
