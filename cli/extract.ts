@@ -82,6 +82,7 @@ export function registerExtract(program: Command): void {
 
 /** The whole extract command for these inputs and options (also used by `sigmesh demo`). */
 export async function runExtract(inputs: string[], opts: ExtractCliOptions): Promise<void> {
+  const start = performance.now();
   const settings = solveSettings(opts);
   const permittivity = opts.permittivity === undefined ? undefined : numberOption(opts.permittivity, "--permittivity", (x) => x >= 1, "a relative permittivity of at least 1");
   const breakdownField = opts.breakdownField === undefined ? undefined : numberOption(opts.breakdownField, "--breakdown-field", (x) => x > 0, "a positive field in V/m, e.g. 3e6");
@@ -121,11 +122,15 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
     bar.stop();
     await closeSharedPool();
   }
+  // The reports (the HTML's field data above all) can take a while: say so, and count it.
+  const reportStart = performance.now();
+  if (!opts.quiet && process.stderr.isTTY && (targets.html || targets.jsonPanels)) process.stderr.write("sigmesh: writing the reports (the field data of the 3D view)…\n");
   const { piped, written } = writeOutputs(result, targets);
+  const timing = { total: (performance.now() - start) / 1e3, reports: (performance.now() - reportStart) / 1e3 };
   // "-" is standard output (one output at most); the summary then goes to stderr.
   if (piped !== undefined) process.stdout.write(piped);
   if (!opts.quiet) {
-    const text = extractionSummary(result, { unit: scene.unit, unitAssumed: scene.unitAssumed, source: result.input.source });
+    const text = extractionSummary(result, { unit: scene.unit, unitAssumed: scene.unitAssumed, source: result.input.source, timing });
     const files = written.length > 0 ? `Written: ${written.map(displayText).join(", ")}\n` : "";
     (piped !== undefined ? process.stderr : process.stdout).write(text + files);
   } else {

@@ -28,6 +28,8 @@ export interface SummaryContext {
   unit: LengthUnit;
   unitAssumed: boolean;
   source: string;
+  /** Wall-clock seconds of the whole run and of writing its reports (the command line measures them). */
+  timing?: { total: number; reports: number };
 }
 
 /**
@@ -136,7 +138,13 @@ export function extractionSummary(r: ExtractionResult | SceneExtraction, given?:
     out.push(`  Richardson extrapolation over ${a.levels.map((l) => l.panels).join(" → ")} panels, order ${formatNumber(a.richardson.order, 3)} ${a.richardson.orderObserved ? "(observed)" : "(assumed; use --refine 2 to observe it)"}`);
     out.push("  capacitances, charges and energy are printed to the digits this estimate supports");
     // Only nested refinements of the same flat panels bound from below (accuracy.ts).
-    if (a.lowerBound) out.push(`  Galerkin values converge from below: the finest-mesh diagonal ${formatSI(a.levels[a.levels.length - 1].maxwell[0], "F")} is a lower bound for ${r.names[0]}`);
+    if (a.lowerBound) {
+      // With the digits of the table's entry, rounded down so that it stays a bound.
+      const finest = a.levels[a.levels.length - 1].maxwell[0];
+      const d = cDigits(r.maxwell[0], err?.[0]);
+      const step = 10 ** (Math.floor(Math.log10(Math.abs(finest))) - d + 1);
+      out.push(`  Galerkin values converge from below: the finest-mesh diagonal ${formatSI(Math.floor(finest / step) * step, "F", d)} is a lower bound for ${r.names[0]}`);
+    }
     else if (r.solver.method === "galerkin" && !r.dielectric && !a.nested) out.push("  refinement moved the panels toward the curved surface, so the finest-mesh values are not lower bounds");
   } else {
     out.push("Accuracy: not estimated (run with --refine 1 or more for a Richardson error estimate); values printed to 3 significant digits");
@@ -149,7 +157,9 @@ export function extractionSummary(r: ExtractionResult | SceneExtraction, given?:
     : s.compressionRatio !== undefined
       ? `compressed (storage ${formatNumber(100 * s.compressionRatio, 3)} % of dense, ranks ≤ ${s.maxRank}, operator ${formatSI(s.operatorBytes ?? NaN, "B", 3)}; ${s.iterations} iterations, residual ${s.residual?.toExponential(1)})`
       : `iterative (${s.iterations} iterations, residual ${s.residual?.toExponential(1)})`;
-  out.push(`Solver: ${s.method}, ${solverLine}; ${s.panels} panels, ${formatNumber(s.seconds, 3)} s total, peak memory ${formatSI(s.peakMemory, "B", 3)}`);
+  out.push(`Solver: ${s.method}, ${solverLine}; ${s.panels} panels, ${formatNumber(s.seconds, 3)} s of solve and fields, peak memory ${formatSI(s.peakMemory, "B", 3)}`);
+  const t = (ctx as Partial<SummaryContext>).timing;
+  if (t) out.push(`Time: ${formatNumber(t.total, 3)} s in all (solve and fields ${formatNumber(s.seconds, 3)} s, reports ${formatNumber(t.reports, 3)} s, reading and checks ${formatNumber(Math.max(0, t.total - s.seconds - t.reports), 3)} s)`);
   out.push("");
 
   const perMedium = r.media.length > 1;

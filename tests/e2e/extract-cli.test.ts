@@ -43,6 +43,11 @@ describe("sigmesh extract", () => {
     expect(r.out).toMatch(/Maxwell capacitance matrix/);
     expect(r.out).toMatch(/fF/);
     expect(r.out).toMatch(/Cautions/);
+    // The whole run's time, the reports' writing counted: in all ≥ solve + reports.
+    const time = /Time: (\S+) s in all \(solve and fields (\S+) s, reports (\S+) s, reading and checks (\S+) s\)/.exec(r.out);
+    expect(time, r.out).not.toBeNull();
+    const [all, solve, reports] = time!.slice(1, 4).map(Number);
+    expect(all).toBeGreaterThanOrEqual(0.99 * (solve + reports));
     const rep = JSON.parse(readFileSync(json, "utf8"));
     expect(rep.format).toBe("sigmesh-extraction/1");
     expect(rep.conductors.map((c: { name: string }) => c.name)).toEqual(["anode", "cathode"]);

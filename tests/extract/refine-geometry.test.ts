@@ -31,7 +31,15 @@ describe("the lower-bound claim", () => {
     // And it holds: the finest diagonal is under the refined value and the published one (Hwang & Mascagni 2004: 0.66068).
     expect(r.accuracy!.levels[1].maxwell[0]).toBeGreaterThan(r.accuracy!.levels[0].maxwell[0]);
     expect(r.accuracy!.levels[1].maxwell[0]).toBeLessThan(0.66068 * FOUR_PI_EPS0);
-    expect(extractionSummary(r, ctx)).toMatch(/is a lower bound for/);
+    const text = extractionSummary(r, ctx);
+    expect(text).toMatch(/is a lower bound for/);
+    // Printed with the digits of the matrix entry, rounded down so that it stays a bound.
+    const bound = /the finest-mesh diagonal (\S+) (\S?)F is a lower bound/.exec(text)!;
+    const scale: Record<string, number> = { "": 1, m: 1e-3, µ: 1e-6, n: 1e-9, p: 1e-12, f: 1e-15 };
+    const printed = Number(bound[1]) * scale[bound[2]];
+    expect(printed).toBeLessThanOrEqual(r.accuracy!.levels[1].maxwell[0]);
+    const entry = new RegExp(`^\\s*\\S+\\s+(\\d[\\d.]*) ${bound[2]}F`, "m").exec(text.slice(text.indexOf("Maxwell")))!;
+    expect(bound[1].replace(/\D/g, "").length).toBe(entry[1].replace(/\D/g, "").length);
     const json = extractionReport(r, { version: "test", files: [], unit: "m", inputWarnings: [] }) as Record<string, any>;
     expect(json.accuracy.lowerBound).toBe(true);
     expect(json.accuracy.nested).toBe(true);
