@@ -13,7 +13,8 @@
  * faces of the reference surface whose exact normals meet at more than SHARP_ANGLE somewhere
  * (a box's edge, not a fillet's tangent join; the facet creases inside one smooth face never
  * count); without a reference surface, a crease of the mesh above SHARP_ANGLE (featureEdges).
- * The rim of a conductor closed only by a symmetry plane is the cut, not an edge.
+ * A rim along a symmetry plane is the cut of a half model, not an edge (nor is any rim of a
+ * conductor closed by symmetry).
  */
 import type { SurfaceMesh } from "../mesh/model.js";
 import { NO_FACE } from "../mesh/model.js";
@@ -22,19 +23,29 @@ import { meshEdges, faceNormals, featureEdges } from "../mesh/edges.js";
 /** Crease angle above which two faces meet at an edge; degrees (the feature angle refinement uses). */
 export const SHARP_ANGLE = 30;
 
-/** Per panel of `mesh`: 1 where one of its corners lies on a sharp edge (see the header). `closed` per conductor. */
-export function sharpPanels(mesh: SurfaceMesh, closed: boolean[]): Uint8Array {
+/** A symmetry plane: axis index (0 x, 1 y, 2 z) and offset; metres. */
+export interface CutPlane { axis: number; offset: number }
+
+/**
+ * Per panel of `mesh`: 1 where one of its corners lies on a sharp edge (see the header).
+ * `closed` per conductor; `cuts` the symmetry planes the mesh was cut along.
+ */
+export function sharpPanels(mesh: SurfaceMesh, closed: boolean[], cuts: CutPlane[] = []): Uint8Array {
   const cosSharp = Math.cos((SHARP_ANGLE * Math.PI) / 180);
   const edges = meshEdges(mesh);
   const crease = featureEdges(mesh, edges, faceNormals(mesh), cosSharp);
   const pairs = mesh.faces && mesh.reference ? sharpFacePairs(mesh, cosSharp) : undefined;
   const tr = mesh.triangles, nt = tr.length / 3;
   const onEdge = new Uint8Array(mesh.positions.length / 3);
+  const pos = mesh.positions;
+  let size = 0;
+  for (let i = 0; i < pos.length; i++) size = Math.max(size, Math.abs(pos[i]));
+  const inCut = (v: number) => cuts.some((c) => Math.abs(pos[3 * v + c.axis] - c.offset) <= 1e-9 * size);
   for (let e = 0; e < edges.count; e++) {
     const h0 = edges.half0[e], h1 = edges.half1[e];
     const t0 = (h0 - (h0 % 3)) / 3;
     let sharp: boolean;
-    if (edges.faces[e] !== 2) sharp = edges.faces[e] > 2 || !closed[mesh.conductor[t0]];
+    if (edges.faces[e] !== 2) sharp = edges.faces[e] > 2 || (!closed[mesh.conductor[t0]] && !(inCut(edges.v0[e]) && inCut(edges.v1[e])));
     else {
       const t1 = (h1 - (h1 % 3)) / 3;
       const f0 = mesh.faces?.[t0] ?? NO_FACE, f1 = mesh.faces?.[t1] ?? NO_FACE;

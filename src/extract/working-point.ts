@@ -5,7 +5,7 @@
  * field check per medium.
  */
 import type { PanelSet } from "../bem/panels.js";
-import { imageSet, foldVectors, type ImageSet, type KernelSpec } from "../bem/images.js";
+import { imageSet, foldVectors, kernelPlanes, PLANE_EVEN, PLANE_ODD, type ImageSet, type KernelSpec } from "../bem/images.js";
 import { EPSILON_0 } from "./constants.js";
 import { compressionTolerance } from "./solve.js";
 import { panelExcitation, peakFields, conductorForces, criticalFields, type PanelExcitation, type PeakField, type CriticalField } from "./excitation.js";
@@ -13,7 +13,7 @@ import { centroidFieldsFast } from "./probe.js";
 import { dielectricExcitation } from "./dielectric-excitation.js";
 import { dielectricBodyForces } from "./dielectric-force.js";
 import type { ResolvedOptions } from "./options.js";
-import { sharpPanels, assessPeak, peakSpread, type PeakFieldAssessment } from "./peak-field.js";
+import { sharpPanels, assessPeak, peakSpread, type PeakFieldAssessment, type CutPlane } from "./peak-field.js";
 import type { LevelSolves } from "./levels.js";
 import type { DielectricResult } from "./result.js";
 import type { DielectricSolution, FinestSolution } from "./result.js";
@@ -52,11 +52,20 @@ export async function workingPointFields(finest: FinestSolution, K: number, work
     model ? (p) => weakerMedium(model.conductorMediumPlus[p], model.conductorMediumMinus[p], o.strengths) : () => -1,
     (m) => m < 0 ? o.breakdownField : o.strengths[m]);
   const force = kernel ? foldVectors(kernel, fields.rawForce) : fields.rawForce;
-  const sharp = sharpPanels(mesh, closed);
+  const sharp = sharpPanels(mesh, closed, symmetryCuts(kernel));
   const perLevel = await coarsePeaks(coarse, K, working, closed, kernel, o);
   const peakAssessments = peaks.map((pk, c) => assessPeak(perLevel ? [...perLevel.map((l) => l[c]), pk.value] : [pk.value],
     pk.panel >= 0 && sharp[pk.panel] === 1, pk.panel >= 0 ? peakSpread(fields.excitation.field, mesh, pk.panel) : 0));
   return { excitation: fields.excitation, force, forcesComplete: fields.complete, peaks, critical, images, dielectric: fields.dielectric, sharp, peakAssessments };
+}
+
+/** The symmetry planes of a kernel, along which a half model is cut (peak-field.ts). */
+function symmetryCuts(kernel: KernelSpec | undefined): CutPlane[] {
+  if (!kernel) return [];
+  const { offsets, kinds } = kernelPlanes(kernel);
+  const cuts: CutPlane[] = [];
+  for (let a = 0; a < 3; a++) if (kinds[a] === PLANE_EVEN || kinds[a] === PLANE_ODD) cuts.push({ axis: a, offset: offsets[a] });
+  return cuts;
 }
 
 /**

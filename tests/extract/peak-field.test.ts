@@ -56,6 +56,16 @@ describe("sharp panels", () => {
     expect(count(sharpPanels(plate, [true]))).toBe(0);
   });
 
+  it("a half plate's rim along its symmetry plane is the cut, not an edge", () => {
+    const plate = generateShape("plate", { size: [1, 1], divisions: 4 });
+    const sharp = sharpPanels(plate, [false], [{ axis: 0, offset: -0.5 }]);
+    // Expected: the panels with a corner on the other three sides (the cut's end points lie on them too).
+    const p = plate.positions, tr = plate.triangles;
+    const onRim = (v: number) => Math.abs(Math.abs(p[3 * v + 1]) - 0.5) < 1e-12 || Math.abs(p[3 * v] - 0.5) < 1e-12;
+    for (let t = 0; t < tr.length / 3; t++) expect(sharp[t]).toBe(onRim(tr[3 * t]) || onRim(tr[3 * t + 1]) || onRim(tr[3 * t + 2]) ? 1 : 0);
+    expect(count(sharp)).toBeLessThan(24);
+  });
+
   it("a filleted box: faces meeting tangentially are smooth, though the mesh creases there", () => {
     const m = generateShape("box", { size: [1, 1, 1], fillet: 0.2, divisions: 3 });
     expect(count(sharpPanels(m, [true]))).toBe(0);
