@@ -16,6 +16,7 @@ import { generateShape } from "../../src/mesh/primitives/index.js";
 import type { SurfaceMesh } from "../../src/mesh/model.js";
 import { sharpPanels, assessPeak, peakSpread } from "../../src/extract/peak-field.js";
 import { extractionReport } from "../../src/report/json.js";
+import { markdownReport, reportData } from "../../src/report/csv.js";
 import { extractionSummary, fieldCheckLine } from "../../src/report/extract-summary.js";
 import type { ConductorResult, ExtractionResult } from "../../src/extract/result.js";
 import { closeSharedPool } from "../../src/linalg/pool.js";
@@ -190,5 +191,8 @@ describe("reports", () => {
     expect(json.fieldCheck.exceeded).toEqual([]);
     expect(json.fieldCheck.sharpEdges).toEqual([r.names[0]]);
     expect(r.conductors[0].fieldRatio).toBeGreaterThan(1);
+    const md = markdownReport(reportData(JSON.parse(JSON.stringify(json))));
+    expect(md).toContain("sharp edge: grows with refinement, model the real radius");
+    expect(md).not.toContain("exceeds breakdown");
   });
 });
