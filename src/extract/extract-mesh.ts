@@ -97,7 +97,7 @@ async function extractMeshMetered(input: SurfaceMesh, opts: MeshExtractOptions, 
 
   const matrices = reportedMatrices(solves.levels, K, layout.names, oriented, bodies !== undefined, o, warnings);
   const reduced = floatingElimination(matrices.maxwell, K, o.floating, o.potentials, layout.names);
-  const point = await workingPointFields(finest, K, reduced.working, netClosed, layout.kernel, o, warnings);
+  const point = await workingPointFields(finest, K, reduced.working, netClosed, layout.kernel, o, warnings, solves.coarse);
 
   return assembledResult({ t0, peakMemory: meter.stop(), layout, o, cut, oriented, netClosed, netCounts, solves, finest, matrices, reduced, point, warnings });
 }
@@ -296,6 +296,9 @@ function assembledResult(r: Phases): ExtractionResult {
     charge: q[i],
     peakField: peaks[i].value,
     peakFieldAt: peaks[i].at,
+    peakFieldSingular: point.peakAssessments[i].singular,
+    peakFieldError: point.peakAssessments[i].error,
+    peakFieldGrowth: point.peakAssessments[i].growth,
     fieldRatio: critical[i].ratio,
     criticalField: critical[i].field,
     criticalFieldAt: critical[i].at,
@@ -313,7 +316,7 @@ function assembledResult(r: Phases): ExtractionResult {
     media: [{ name: "background", relativePermittivity: o.relativePermittivity, breakdownField: o.breakdownField },
       ...(r.solves.bodies ?? []).map((b, i) => ({ name: b.name, relativePermittivity: b.permittivity, breakdownField: o.strengths[i] }))],
     maxwell, mutual: matrices.mutual, asymmetry: matrices.asymmetry, energy, potentials: working, mesh, panelConductor: mesh.conductor,
-    excitation: point.excitation, panels: finest.unit.panels,
+    excitation: point.excitation, panels: finest.unit.panels, sharpPanels: point.sharp,
     unitCharges: scaleCopy(finest.unit.x, 4 * Math.PI * (model ? EPSILON_0 : o.permittivity)), peaks, forcesComplete: point.forcesComplete,
     accuracy: matrices.accuracy,
     solver: { ...lastInfo, seconds, peakMemory: r.peakMemory, levels },

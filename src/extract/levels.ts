@@ -29,6 +29,11 @@ export interface LevelSolves extends FinestSolution {
   patterns: Float64Array[];
   /** The dielectric bodies as refined for the finest level. */
   bodies?: PreparedBody[];
+  /**
+   * The coarser levels' meshes and unit solutions, coarsest first, for the peak field per level
+   * (peak-field.ts): conductors in a uniform medium solved in one pattern only; undefined otherwise.
+   */
+  coarse?: Array<{ mesh: SurfaceMesh; unit: UnitSolution }>;
 }
 
 /** One level's solves: its Maxwell matrix and its panel solutions. */
@@ -45,7 +50,9 @@ export async function solveLevels(oriented: SurfaceMesh, bodies: PreparedBody[] 
   const levels: LevelResult[] = [];
   let mesh = oriented;
   let solve: LevelSolve | undefined;
+  const coarse: Array<{ mesh: SurfaceMesh; unit: UnitSolution }> | undefined = !bodies && layout.nets === 1 ? [] : undefined;
   for (let level = 0; level <= o.refine; level++) {
+    if (coarse && solve) coarse.push({ mesh, unit: solve.unit });
     // How far this refinement moved the geometry off the coarse panels (conductors and bodies).
     let displacement = 0;
     if (level > 0) {
@@ -68,7 +75,7 @@ export async function solveLevels(oriented: SurfaceMesh, bodies: PreparedBody[] 
     levels.push({ ...solve.level, displacement });
   }
   if (!solve) throw new Error("no level solved");
-  return { levels, mesh, unit: solve.unit, patterns: solve.patterns, dielectric: solve.dielectric, bodies };
+  return { levels, mesh, unit: solve.unit, patterns: solve.patterns, dielectric: solve.dielectric, bodies, coarse };
 }
 
 /**

@@ -44,6 +44,12 @@ export interface ConductorResult {
   peakField: number;
   /** Centroid of the panel with the peak field; metres. */
   peakFieldAt: [number, number, number];
+  /** The peak panel touches a sharp edge or corner (peak-field.ts): the exact field there is unbounded and the computed peak depends on the mesh. */
+  peakFieldSingular: boolean;
+  /** Estimated relative error of a converged peak from the refinement levels; null when singular or without refinement. */
+  peakFieldError: number | null;
+  /** A singular peak's growth with refinement, p in E ∝ h^(−p) from the last two levels; null otherwise. */
+  peakFieldGrowth: number | null;
   /** Largest ratio over its panels of the field to the breakdown strength of the medium just outside. */
   fieldRatio: number;
   /** The panel deciding `fieldRatio`: its field (V/m), centroid (metres), medium and that medium's strength (V/m). */
@@ -108,6 +114,8 @@ export interface ExtractionResult {
   excitation: PanelExcitation;
   /** Panels of the finest mesh (for probes). */
   panels: PanelSet;
+  /** Per finest panel: 1 where one of its corners lies on a sharp edge (peak-field.ts). */
+  sharpPanels: Uint8Array;
   /** Unit-potential solutions on the finest mesh, n×k: Q = 4πε x (the columns of the Maxwell matrix per panel). */
   unitCharges: Float64Array;
   peaks: PeakField[];

@@ -5,7 +5,7 @@
  * field check per medium.
  */
 import type { PanelSet } from "../bem/panels.js";
-import { imageSet, foldVectors, type ImageSet, type KernelSpec } from "../bem/images.js";
+import { imageSet, foldVectors, kernelPlanes, PLANE_EVEN, PLANE_ODD, type ImageSet, type KernelSpec } from "../bem/images.js";
 import { EPSILON_0 } from "./constants.js";
 import { compressionTolerance } from "./solve.js";
 import { panelExcitation, peakFields, conductorForces, criticalFields, type PanelExcitation, type PeakField, type CriticalField } from "./excitation.js";
@@ -13,6 +13,8 @@ import { centroidFieldsFast } from "./probe.js";
 import { dielectricExcitation } from "./dielectric-excitation.js";
 import { dielectricBodyForces } from "./dielectric-force.js";
 import type { ResolvedOptions } from "./options.js";
+import { sharpPanels, assessPeak, peakSpread, type PeakFieldAssessment, type CutPlane } from "./peak-field.js";
+import type { LevelSolves } from "./levels.js";
 import type { DielectricResult } from "./result.js";
 import type { DielectricSolution, FinestSolution } from "./result.js";
 
@@ -28,11 +30,15 @@ export interface WorkingPoint {
   /** Mirror images of the finest panels, shared so the field workers read them in place. */
   images?: ImageSet;
   dielectric?: DielectricResult;
+  /** Per finest panel: 1 where it touches a sharp edge (peak-field.ts). */
+  sharp: Uint8Array;
+  /** Per conductor: its peak singular or converged, with the growth or the error from the levels. */
+  peakAssessments: PeakFieldAssessment[];
 }
 
 /** Panels' charge, fields and forces for the K conductors of `finest` at `working` potentials (V). */
 export async function workingPointFields(finest: FinestSolution, K: number, working: Float64Array, closed: boolean[],
-  kernel: KernelSpec | undefined, o: ResolvedOptions, warnings: string[]): Promise<WorkingPoint> {
+  kernel: KernelSpec | undefined, o: ResolvedOptions, warnings: string[], coarse?: LevelSolves["coarse"]): Promise<WorkingPoint> {
   const { mesh } = finest, P = finest.unit.panels;
   const images = kernel ? imageSet(P, kernel, { shared: true }) : undefined;
   const fields = finest.dielectric
@@ -46,7 +52,39 @@ export async function workingPointFields(finest: FinestSolution, K: number, work
     model ? (p) => weakerMedium(model.conductorMediumPlus[p], model.conductorMediumMinus[p], o.strengths) : () => -1,
     (m) => m < 0 ? o.breakdownField : o.strengths[m]);
   const force = kernel ? foldVectors(kernel, fields.rawForce) : fields.rawForce;
-  return { excitation: fields.excitation, force, forcesComplete: fields.complete, peaks, critical, images, dielectric: fields.dielectric };
+  const sharp = sharpPanels(mesh, closed, symmetryCuts(kernel));
+  const perLevel = await coarsePeaks(coarse, K, working, closed, kernel, o);
+  const peakAssessments = peaks.map((pk, c) => assessPeak(perLevel ? [...perLevel.map((l) => l[c]), pk.value] : [pk.value],
+    pk.panel >= 0 && sharp[pk.panel] === 1, pk.panel >= 0 ? peakSpread(fields.excitation.field, mesh, pk.panel) : 0));
+  return { excitation: fields.excitation, force, forcesComplete: fields.complete, peaks, critical, images, dielectric: fields.dielectric, sharp, peakAssessments };
+}
+
+/** The symmetry planes of a kernel, along which a half model is cut (peak-field.ts). */
+function symmetryCuts(kernel: KernelSpec | undefined): CutPlane[] {
+  if (!kernel) return [];
+  const { offsets, kinds } = kernelPlanes(kernel);
+  const cuts: CutPlane[] = [];
+  for (let a = 0; a < 3; a++) if (kinds[a] === PLANE_EVEN || kinds[a] === PLANE_ODD) cuts.push({ axis: a, offset: offsets[a] });
+  return cuts;
+}
+
+/**
+ * The peak field of each conductor on each coarser level, computed as the finest level's is
+ * (the same working potentials, the two-sided field on open sheets), so that the levels compare
+ * like with like; coarsest first. Undefined without coarser levels.
+ */
+async function coarsePeaks(coarse: LevelSolves["coarse"], K: number, working: Float64Array, closed: boolean[],
+  kernel: KernelSpec | undefined, o: ResolvedOptions): Promise<number[][] | undefined> {
+  if (!coarse || coarse.length === 0) return undefined;
+  const quiet: ResolvedOptions = { ...o, progress: undefined };
+  const out: number[][] = [];
+  for (const level of coarse) {
+    const P = level.unit.panels;
+    const images = kernel ? imageSet(P, kernel, { shared: true }) : undefined;
+    const f = await conductorFields(level.unit.x, P, K, working, level.mesh.conductor, closed, images, quiet);
+    out.push(peakFields(f.excitation.field, level.mesh.conductor, K, P).map((pk) => pk.value));
+  }
+  return out;
 }
 
 interface Fields {

@@ -43,6 +43,8 @@ export interface ReportConductor {
   /** metres */
   peakFieldAt: (number | null)[];
   fieldRatio: number | null;
+  /** The peak is at a sharp edge: its value depends on the mesh (absent in reports written before it was carried). */
+  peakFieldSingular?: boolean;
   /** N */
   force: number[];
 }
@@ -108,6 +110,7 @@ export function reportData(value: unknown, file?: string): ReportData {
     num(o.potential, `${p}.potential`);
     num(o.charge, `${p}.charge`);
     num(o.peakField, `${p}.peakField`, true);
+    if (o.peakFieldSingular !== undefined && typeof o.peakFieldSingular !== "boolean") fail(`${p}.peakFieldSingular`, "expected true or false");
     num(o.fieldRatio, `${p}.fieldRatio`, true);
     if (!Array.isArray(o.peakFieldAt) || o.peakFieldAt.length !== 3) fail(`${p}.peakFieldAt`, "expected 3 coordinates");
     (o.peakFieldAt as unknown[]).forEach((x, j) => num(x, `${p}.peakFieldAt[${j}]`, true));
@@ -388,7 +391,9 @@ export function markdownReport(data: ReportData, opts: { title?: string } = {}):
   out.push("");
   const frows = data.conductors.map((c, i) => {
     const r = c.fieldRatio;
-    const verdict = r === null ? "n/a" : r >= 1 ? "**exceeds breakdown**" : r > 0 ? `${formatNumber(1 / r, 3)}× below` : "no field";
+    // A peak at a sharp edge grows with refinement: no verdict (peak-field.ts).
+    const verdict = c.peakFieldSingular ? "sharp edge: grows with refinement, model the real radius"
+      : r === null ? "n/a" : r >= 1 ? "**exceeds breakdown**" : r > 0 ? `${formatNumber(1 / r, 3)}× below` : "no field";
     return [names[i], field(c.peakField), ratio(r), verdict];
   });
   out.push(...markdownTable(["conductor", "peak \\|E\\|", "E/Eb", "margin"], frows, [false, true, true, false]));

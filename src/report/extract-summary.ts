@@ -166,14 +166,7 @@ export function extractionSummary(r: ExtractionResult | SceneExtraction, given?:
   out.push(perMedium
     ? `Field check (each panel against the medium just outside it: ${r.media.map((m) => `${m.name} ${formatFieldStrength(m.breakdownField)}`).join(", ")})`
     : `Field check (breakdown field ${formatFieldStrength(r.breakdownField)})`);
-  for (const c of r.conductors) {
-    const margin = c.fieldRatio > 0 ? 1 / c.fieldRatio : Infinity;
-    const verdict = c.fieldRatio >= 1 ? "EXCEEDS the breakdown field" : `${formatNumber(margin, 3)}× below breakdown`;
-    const where = perMedium
-      ? `; critical in ${c.medium} (${formatFieldStrength(c.mediumBreakdownField)}): ${formatFieldStrength(c.criticalField)} at ${formatPoint(c.criticalFieldAt, ctx.unit, 3)}`
-      : "";
-    out.push(`  ${c.name}: peak ${formatFieldStrength(c.peakField)}${where} — ${verdict}`);
-  }
+  for (const c of r.conductors) out.push(`  ${c.name}: ${fieldCheckLine(c, perMedium, ctx.unit)}`);
   out.push("");
   out.push("Cautions");
   for (const line of cautionsFor(r.potentials, { perMedium: r.media.length > 1 })) out.push(`  - ${line}`);
@@ -185,4 +178,28 @@ export function extractionSummary(r: ExtractionResult | SceneExtraction, given?:
     for (const w of warnings) out.push(`  - ${w}`);
   }
   return out.map(displayText).join("\n") + "\n";
+}
+
+/**
+ * One conductor's field check. A converged peak gets its value (to the digits its error supports,
+ * with the error when refinement measured it) and the margin to breakdown. A peak at a sharp edge
+ * is no breakdown verdict: the exact field there is unbounded and the computed one depends on the
+ * mesh, so the line says so, with the growth exponent when refinement measured it.
+ */
+export function fieldCheckLine(c: ExtractionResult["conductors"][number], perMedium: boolean, unit: LengthUnit): string {
+  const where = perMedium
+    ? `; critical in ${c.medium} (${formatFieldStrength(c.mediumBreakdownField)}): ${formatFieldStrength(c.criticalField)} at ${formatPoint(c.criticalFieldAt, unit, 3)}`
+    : "";
+  if (c.peakFieldSingular) {
+    const growth = c.peakFieldGrowth !== null
+      ? `the computed peak grows as the mesh is refined (exponent ${formatNumber(c.peakFieldGrowth, 2)})`
+      : "the computed peak grows as the mesh is refined (run with --refine 1 or more to measure how fast)";
+    return `peak ${formatFieldStrength(c.peakField)} at ${formatPoint(c.peakFieldAt, unit, 3)}${where} — sharp edge: ${growth}; model the real edge radius`;
+  }
+  const margin = c.fieldRatio > 0 ? 1 / c.fieldRatio : Infinity;
+  const verdict = c.fieldRatio >= 1 ? "EXCEEDS the breakdown field" : `${formatNumber(margin, 3)}× below breakdown`;
+  const error = c.peakFieldError !== null ? c.peakFieldError * c.peakField : undefined;
+  const value = formatFieldStrength(c.peakField, digitsFor(c.peakField, error));
+  const plusMinus = c.peakFieldError !== null ? ` ± ${formatNumber(100 * c.peakFieldError, 2)} %` : "";
+  return `peak ${value}${plusMinus}${where} — ${verdict}`;
 }

@@ -56,6 +56,9 @@ export function extractionReport(r: ExtractionResult, ctx: ReportContext): Recor
       charge: c.charge,
       peakField: finiteOrNull(c.peakField),
       peakFieldAt: c.peakFieldAt.map(finiteOrNull),
+      peakFieldSingular: c.peakFieldSingular,
+      peakFieldError: c.peakFieldError === null ? null : finiteOrNull(c.peakFieldError),
+      peakFieldGrowth: c.peakFieldGrowth === null ? null : finiteOrNull(c.peakFieldGrowth),
       fieldRatio: finiteOrNull(c.fieldRatio),
       fieldCheck: {
         medium: c.medium,
@@ -116,7 +119,9 @@ export function extractionReport(r: ExtractionResult, ctx: ReportContext): Recor
       worstConductor: worst.name,
       peakField: finiteOrNull(worst.peakField),
       fieldRatio: finiteOrNull(worst.fieldRatio),
-      exceeded: r.conductors.filter((c) => c.fieldRatio >= 1).map((c) => c.name),
+      // A peak at a sharp edge is no verdict (its value depends on the mesh): listed apart.
+      exceeded: r.conductors.filter((c) => c.fieldRatio >= 1 && !c.peakFieldSingular).map((c) => c.name),
+      sharpEdges: r.conductors.filter((c) => c.peakFieldSingular).map((c) => c.name),
       cautions: cautionsFor(r.potentials, { perMedium: r.media.length > 1 }),
     },
     forcesComplete: r.forcesComplete,

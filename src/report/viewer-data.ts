@@ -26,8 +26,10 @@ export interface HotSpot {
   sigma: number;
   /** Panel centroid; metres (absolute, not relative to `origin`). */
   at: [number, number, number];
-  /** Field over the breakdown strength (≥ 1: breakdown expected there). */
+  /** Field over the breakdown strength (≥ 1: breakdown expected there, unless at a sharp edge). */
   fieldRatio: number;
+  /** The panel touches a sharp edge (peak-field.ts): its value depends on the mesh and is no breakdown verdict. Absent otherwise. */
+  sharpEdge?: true;
 }
 
 export interface ViewerExcitation {
@@ -110,6 +112,7 @@ export interface ViewerDataOptions {
 export function hotSpots(
   field: ArrayLike<number>, sigma: ArrayLike<number>, panelConductor: Uint32Array, k: number,
   centroids: Float64Array, breakdownField: number, count: number, separation: number,
+  sharpPanels?: ArrayLike<number>,
 ): HotSpot[] {
   const n = field.length;
   const best = new Int32Array(k).fill(-1);
@@ -140,6 +143,7 @@ export function hotSpots(
     sigma: sigma[p],
     at: [centroids[3 * p], centroids[3 * p + 1], centroids[3 * p + 2]],
     fieldRatio: field[p] / breakdownField,
+    ...(sharpPanels?.[p] ? { sharpEdge: true as const } : {}),
   }));
 }
 
@@ -184,7 +188,7 @@ export function viewerData(result: ExtractionResult, opts: ViewerDataOptions = {
       sigma: Float32Array.from(sigma), field: Float32Array.from(field),
       sigmaRange: range(sigma), fieldRange: range(field), fieldMinPositive: minPositive(field),
       sheetFieldBound: bound,
-      hotSpots: hotSpots(field, sigma, result.panelConductor, k, P.centroids, result.breakdownField, nHot, separation),
+      hotSpots: hotSpots(field, sigma, result.panelConductor, k, P.centroids, result.breakdownField, nHot, separation, result.sharpPanels),
     });
   };
   add("scene", Array.from(result.potentials), result.excitation.sigma, result.excitation.field, false);

@@ -146,6 +146,10 @@ describe("viewerData", () => {
     const field = [10, 9.9, 5, 8], centroids = new Float64Array([0, 0, 0, 0.01, 0, 0, 0.5, 0, 0, 1, 0, 0]);
     const h = hotSpots(field, [1, 1, 1, 1], new Uint32Array([0, 0, 0, 0]), 1, centroids, 20, 3, 0.1);
     expect(h.map((x) => x.panel)).toEqual([0, 3, 2]);
+    expect(h.some((x) => "sharpEdge" in x)).toBe(false);
+    // Panels at a sharp edge carry the flag (the result's sharpPanels), the others nothing.
+    const flagged = hotSpots(field, [1, 1, 1, 1], new Uint32Array([0, 0, 0, 0]), 1, centroids, 20, 3, 0.1, Uint8Array.of(0, 0, 1, 0));
+    expect(flagged.map((x) => x.sharpEdge ?? false)).toEqual([false, false, true]);
   });
 
   it("viewerDataJson is plain JSON", () => {

@@ -160,6 +160,12 @@ describe("content", () => {
     expect(hotSpotClass(spot({ fieldRatio: 1 }))).toBe("sm-hot sm-exceeded");
   });
 
+  it("a hot spot at a sharp edge says so, with no margin and no breakdown mark", () => {
+    const sharp = spot({ fieldRatio: 2, sharpEdge: true });
+    expect(hotSpotText(sharp, 1, ["ball", MARKUP], "mm")).toBe(`1. ${MARKUP} — 1.500 MV/m — sharp edge: grows with refinement, model the real radius — at (1.000, 2.000, -3.000) mm`);
+    expect(hotSpotClass(sharp)).toBe("sm-hot");
+  });
+
   it("tells how to read a unit excitation's fields, and when sheet fields are bounds", () => {
     expect(hotSpotNote(excitation("scene"), 3e6)).toBe("Breakdown strength used: 3.000 MV/m. Margin is breakdown strength over field; below ×1 breakdown is expected.");
     expect(hotSpotNote(excitation("unit:0"), 3e6)).toMatch(/ Unit excitation \(1 V\): scale fields by the working voltage\.$/);

@@ -8,6 +8,8 @@ export interface Packed { dtype: "float32" | "uint32" | "uint16" | "uint8"; leng
 
 export interface HotSpot {
   panel: number; conductor: number; field: number; sigma: number; at: [number, number, number]; fieldRatio: number;
+  /** At a sharp edge: the value depends on the mesh (no breakdown verdict). */
+  sharpEdge?: true;
 }
 
 export interface Excitation {

@@ -119,13 +119,15 @@ export function meshRows(report: Record<string, any>, names: string[], unit: Len
 
 /** One hot spot in the list: rank, conductor, field, share of breakdown, margin and place. */
 export function hotSpotText(h: HotSpot, rank: number, names: string[], unit: LengthUnit): string {
+  // At a sharp edge the value grows as the mesh is refined: no margin to breakdown is given.
+  if (h.sharpEdge) return `${rank}. ${names[h.conductor]} — ${formatSI(h.field, "V/m")} — sharp edge: grows with refinement, model the real radius — at ${formatPoint(h.at, unit)}`;
   const margin = h.fieldRatio > 0 ? formatNumber(1 / h.fieldRatio, 3) : "inf";
   return `${rank}. ${names[h.conductor]} — ${formatSI(h.field, "V/m")} — ${formatNumber(100 * h.fieldRatio, 3)} % of breakdown (margin ×${margin}) — at ${formatPoint(h.at, unit)}`;
 }
 
-/** A hot spot at or above the breakdown strength is marked. */
+/** A hot spot at or above the breakdown strength is marked, unless at a sharp edge (no verdict there). */
 export function hotSpotClass(h: HotSpot): string {
-  return h.fieldRatio >= 1 ? "sm-hot sm-exceeded" : "sm-hot";
+  return h.fieldRatio >= 1 && !h.sharpEdge ? "sm-hot sm-exceeded" : "sm-hot";
 }
 
 export function hotSpotNote(e: Excitation, breakdownField: number): string {

@@ -1,0 +1,148 @@
+/**
+ * How far to trust a conductor's peak field: is it at a sharp edge (where the exact field is
+ * unbounded and the computed peak grows as the panels shrink), and if not, how large is its error.
+ *
+ * Near an edge of opening angle β (inside the conductor measured from outside: a thin sheet's rim
+ * has β = 2π, a right-angle solid edge β = 3π/2) the surface charge density behaves as
+ * σ ~ ρ^(π/β − 1) (Jackson, Classical Electrodynamics, 3rd ed., §2.11): ρ^(−1/2) at a sheet's rim,
+ * ρ^(−1/3) at a right-angle edge. A panel of size h touching the edge averages σ over it, so its
+ * field grows as h^(−p) with p = 1 − π/β. Away from edges the panel field converges.
+ *
+ * The rule: a panel is at a sharp feature when one of its corners lies on a sharp edge of the
+ * conductor. A sharp edge is a rim of an open sheet or a non-manifold edge; an edge between two
+ * faces of the reference surface whose exact normals meet at more than SHARP_ANGLE somewhere
+ * (a box's edge, not a fillet's tangent join; the facet creases inside one smooth face never
+ * count); without a reference surface, a crease of the mesh above SHARP_ANGLE (featureEdges).
+ * A rim along a symmetry plane is the cut of a half model, not an edge (nor is any rim of a
+ * conductor closed by symmetry).
+ */
+import type { SurfaceMesh } from "../mesh/model.js";
+import { NO_FACE } from "../mesh/model.js";
+import { meshEdges, faceNormals, featureEdges } from "../mesh/edges.js";
+
+/** Crease angle above which two faces meet at an edge; degrees (the feature angle refinement uses). */
+export const SHARP_ANGLE = 30;
+
+/** A symmetry plane: axis index (0 x, 1 y, 2 z) and offset; metres. */
+export interface CutPlane { axis: number; offset: number }
+
+/**
+ * Per panel of `mesh`: 1 where one of its corners lies on a sharp edge (see the header).
+ * `closed` per conductor; `cuts` the symmetry planes the mesh was cut along.
+ */
+export function sharpPanels(mesh: SurfaceMesh, closed: boolean[], cuts: CutPlane[] = []): Uint8Array {
+  const cosSharp = Math.cos((SHARP_ANGLE * Math.PI) / 180);
+  const edges = meshEdges(mesh);
+  const crease = featureEdges(mesh, edges, faceNormals(mesh), cosSharp);
+  const pairs = mesh.faces && mesh.reference ? sharpFacePairs(mesh, cosSharp) : undefined;
+  const tr = mesh.triangles, nt = tr.length / 3;
+  const onEdge = new Uint8Array(mesh.positions.length / 3);
+  const pos = mesh.positions;
+  let size = 0;
+  for (let i = 0; i < pos.length; i++) size = Math.max(size, Math.abs(pos[i]));
+  const inCut = (v: number) => cuts.some((c) => Math.abs(pos[3 * v + c.axis] - c.offset) <= 1e-9 * size);
+  for (let e = 0; e < edges.count; e++) {
+    const h0 = edges.half0[e], h1 = edges.half1[e];
+    const t0 = (h0 - (h0 % 3)) / 3;
+    let sharp: boolean;
+    if (edges.faces[e] !== 2) sharp = edges.faces[e] > 2 || (!closed[mesh.conductor[t0]] && !(inCut(edges.v0[e]) && inCut(edges.v1[e])));
+    else {
+      const t1 = (h1 - (h1 % 3)) / 3;
+      const f0 = mesh.faces?.[t0] ?? NO_FACE, f1 = mesh.faces?.[t1] ?? NO_FACE;
+      if (pairs && f0 !== NO_FACE && f1 !== NO_FACE) sharp = f0 !== f1 && pairs.has(pairKey(f0, f1));
+      else sharp = crease[e] === 1;
+    }
+    if (sharp) { onEdge[edges.v0[e]] = 1; onEdge[edges.v1[e]] = 1; }
+  }
+  const out = new Uint8Array(nt);
+  for (let t = 0; t < nt; t++) out[t] = onEdge[tr[3 * t]] | onEdge[tr[3 * t + 1]] | onEdge[tr[3 * t + 2]];
+  return out;
+}
+
+function pairKey(a: number, b: number): number {
+  return a < b ? a * 0x100000 + b : b * 0x100000 + a;
+}
+
+/**
+ * Pairs of reference faces that meet at an angle: a reference vertex appears once per face it
+ * lies on, with that face's exact normal, so the vertices at one position on the curve where
+ * two faces meet compare their normals there.
+ */
+function sharpFacePairs(mesh: SurfaceMesh, cosSharp: number): Set<number> {
+  const r = mesh.reference!;
+  const nv = r.positions.length / 3;
+  const faceOf = new Uint32Array(nv).fill(NO_FACE);
+  for (let t = 0; t < r.face.length; t++) for (let j = 0; j < 3; j++) faceOf[r.triangles[3 * t + j]] = r.face[t];
+  let size = 0;
+  for (let i = 0; i < r.positions.length; i++) size = Math.max(size, Math.abs(r.positions[i]));
+  // Positions equal to rounding: a grid of 1e-9 of the model's extent.
+  const q = (size > 0 ? size : 1) * 1e-9;
+  const groups = new Map<string, number[]>();
+  for (let v = 0; v < nv; v++) {
+    const key = `${Math.round(r.positions[3 * v] / q)},${Math.round(r.positions[3 * v + 1] / q)},${Math.round(r.positions[3 * v + 2] / q)}`;
+    const g = groups.get(key);
+    if (g) g.push(v); else groups.set(key, [v]);
+  }
+  const pairs = new Set<number>();
+  const n = r.normals;
+  for (const g of groups.values()) {
+    for (let a = 0; a < g.length; a++) for (let b = a + 1; b < g.length; b++) {
+      const va = g[a], vb = g[b], fa = faceOf[va], fb = faceOf[vb];
+      if (fa === fb || fa === NO_FACE || fb === NO_FACE) continue;
+      const cos = n[3 * va] * n[3 * vb] + n[3 * va + 1] * n[3 * vb + 1] + n[3 * va + 2] * n[3 * vb + 2];
+      if (cos < cosSharp) pairs.add(pairKey(fa, fb));
+    }
+  }
+  return pairs;
+}
+
+export interface PeakFieldAssessment {
+  /** The peak panel touches a sharp edge. */
+  singular: boolean;
+  /** Relative error of a converged peak (see assessPeak); null when singular or without refinement. */
+  error: number | null;
+  /** p in E ∝ h^(−p) from the last two levels (h halves per level) for a singular peak; null otherwise. */
+  growth: number | null;
+}
+
+/**
+ * The spread of the field around a panel: (largest − smallest) field over the panels of the same
+ * conductor that share a corner with it, relative to its own. On a smooth surface the exact field
+ * varies by h·|∇E| across these panels, so their spread is the size of the discretisation's
+ * panel-to-panel error plus the variation a panel average hides: an estimate of how far the peak
+ * panel's value may sit from the true peak, available on the finest level itself.
+ */
+export function peakSpread(field: ArrayLike<number>, mesh: SurfaceMesh, panel: number): number {
+  const tr = mesh.triangles, c = mesh.conductor[panel];
+  const a = tr[3 * panel], b = tr[3 * panel + 1], d = tr[3 * panel + 2];
+  let lo = field[panel], hi = field[panel];
+  for (let t = 0; t < mesh.conductor.length; t++) {
+    if (mesh.conductor[t] !== c) continue;
+    const u = tr[3 * t], v = tr[3 * t + 1], w = tr[3 * t + 2];
+    if (u === a || u === b || u === d || v === a || v === b || v === d || w === a || w === b || w === d) {
+      if (field[t] < lo) lo = field[t];
+      if (field[t] > hi) hi = field[t];
+    }
+  }
+  return field[panel] > 0 ? (hi - lo) / field[panel] : 0;
+}
+
+/**
+ * Assess one conductor's peak from its values on the levels, coarsest first (the last is the
+ * reported one; each level halves the panel size), and the finest level's `spread` (peakSpread).
+ *
+ * Converged: max(|E_L − E_{L−1}| / E_L, spread). The first term is the Richardson correction for
+ * first order, the slowest a converging panel field has; it alone fell short of the true error on
+ * spheres (measured in tests/extract/peak-field.test.ts: the maximum over panels picks the panel
+ * whose discretisation error is largest, and that error does not decay smoothly level to level),
+ * while the spread covered it on every sphere measured.
+ * Singular: the growth exponent p = log2(E_L / E_{L−1}) over the last two levels, those nearest
+ * the asymptotic range (a singularity decides only the finest panels' values).
+ */
+export function assessPeak(values: number[], singular: boolean, spread: number): PeakFieldAssessment {
+  const L = values.length - 1;
+  if (L < 1 || !values.every((v) => Number.isFinite(v) && v > 0)) return { singular, error: null, growth: null };
+  const fine = values[L], coarse = values[L - 1];
+  if (singular) return { singular, error: null, growth: Math.log2(fine / coarse) };
+  return { singular, error: Math.max(Math.abs(fine - coarse) / fine, spread), growth: null };
+}
