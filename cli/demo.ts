@@ -38,7 +38,8 @@ export function registerDemo(program: Command): void {
           probe: d.probes, probeCsv: `${stem}.probes.csv`,
           convergenceSvg: Number(refine) > 0 ? `${stem}.convergence.svg` : undefined,
         });
-        process.stdout.write(displayText(`written: ${stem}.html (open it in a browser), ${stem}.report.json, .cir (SPICE), .md, .csv, .probes.csv and plots`) + "\n");
+        // extract lists every file it wrote; point at the one to open.
+        process.stdout.write(displayText(`open ${stem}.html in a browser for the 3D view of the charge and field`) + "\n");
       }
     }));
 }
