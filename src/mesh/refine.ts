@@ -107,6 +107,35 @@ export function refineUniform(mesh: SurfaceMesh, opts: RefineOptions = {}): Surf
   return refineLevel(mesh, opts).mesh;
 }
 
+/**
+ * Whether the mesh lies on its reference surface: a sample of its vertices (up to 64, spread
+ * over the triangles) each within 1e-6 of the mesh's size of its own face. A mesh moved without
+ * its reference (positions changed by hand, not by a placement that moves both) would otherwise
+ * have its new points pulled onto a surface elsewhere; it is refined from the mesh alone instead.
+ */
+function onReference(mesh: SurfaceMesh, projector: ReferenceProjector): boolean {
+  const p = mesh.positions, tr = mesh.triangles, faces = mesh.faces!;
+  const nt = tr.length / 3;
+  if (nt === 0) return true;
+  let lo0 = Infinity, lo1 = Infinity, lo2 = Infinity, hi0 = -Infinity, hi1 = -Infinity, hi2 = -Infinity;
+  for (let i = 0; i < p.length; i += 3) {
+    lo0 = Math.min(lo0, p[i]); lo1 = Math.min(lo1, p[i + 1]); lo2 = Math.min(lo2, p[i + 2]);
+    hi0 = Math.max(hi0, p[i]); hi1 = Math.max(hi1, p[i + 1]); hi2 = Math.max(hi2, p[i + 2]);
+  }
+  const tol = 1e-6 * Math.hypot(hi0 - lo0, hi1 - lo1, hi2 - lo2);
+  const out = new Float64Array(6);
+  const samples = Math.min(64, nt);
+  for (let k = 0; k < samples; k++) {
+    const t = Math.floor((k * nt) / samples);
+    // Triangles of no face (a mesh part joined with a CAD part: NO_FACE) say nothing here.
+    if (faces[t] >= projector.reference.faceCount) continue;
+    const v = 3 * tr[3 * t];
+    if (!projector.projectToFace(faces[t], p[v], p[v + 1], p[v + 2], out)) return false;
+    if (Math.hypot(out[0] - p[v], out[1] - p[v + 1], out[2] - p[v + 2]) > tol) return false;
+  }
+  return true;
+}
+
 /** `refineUniform`, with the largest displacement of a new point off its straight midpoint. */
 export function refineLevel(mesh: SurfaceMesh, opts: RefineOptions = {}): RefinedMesh {
   const smooth = opts.smooth ?? true;
@@ -122,8 +151,10 @@ export function refineLevel(mesh: SurfaceMesh, opts: RefineOptions = {}): Refine
     const a = 3 * edges.v0[e], b = 3 * edges.v1[e], o = 3 * (nv + e);
     positions[o] = 0.5 * (p[a] + p[b]); positions[o + 1] = 0.5 * (p[a + 1] + p[b + 1]); positions[o + 2] = 0.5 * (p[a + 2] + p[b + 2]);
   }
-  const withReference = smooth && mesh.faces !== undefined && mesh.reference !== undefined && mesh.faces.length === nt;
-  if (withReference) placeOnReference(mesh, edges, referenceProjector(mesh.reference!), positions);
+  const projector = smooth && mesh.faces !== undefined && mesh.reference !== undefined && mesh.faces.length === nt
+    ? referenceProjector(mesh.reference) : undefined;
+  const withReference = projector !== undefined && onReference(mesh, projector);
+  if (withReference) placeOnReference(mesh, edges, projector, positions);
   else if (smooth) placeOnPatches(mesh, edges, featureAngle, opts.tangentBlends ?? true, positions);
 
   let displacement = 0;

@@ -56,13 +56,15 @@ describe("refineUniform", () => {
   it("puts new sphere vertices near the sphere, the error falling at fourth order in h", () => {
     // Exact sphere through the coarse vertices; a PN edge curve from exact normals misses it by
     // (3/8) R (theta/2)^4 for an edge of angle theta (Taylor expansion of R cos(s)(1 + sin^2(s)/2), s = theta/2).
+    // The mesh alone: the generated sphere's own reference surface is left out here (see the next test).
+    const bare = (L: number) => ({ ...sphereMesh({ radius: 1, level: L }), faces: undefined, reference: undefined });
     const errors: number[] = [];
     for (const L of [1, 2, 3, 4]) {
-      const coarse = sphereMesh({ radius: 1, level: L });
+      const coarse = bare(L);
       const fine = refineUniform(coarse);
       errors.push(maxRadialError(fine, 1, coarse.positions.length / 3));
     }
-    const flat = maxRadialError(refineUniform(sphereMesh({ radius: 1, level: 3 }), { smooth: false }), 1);
+    const flat = maxRadialError(refineUniform(bare(3), { smooth: false }), 1);
     expect(errors[2]).toBeLessThan(flat / 10);
     const rates = errors.slice(1).map((e, i) => errors[i] / e);
     for (const q of rates) expect(q).toBeGreaterThanOrEqual(8);
@@ -70,6 +72,23 @@ describe("refineUniform", () => {
     expect(rates[rates.length - 1]).toBeGreaterThan(14);
     // Observed: errors and ratios printed for the record.
     console.log("PN midpoint radial error by level 1..4:", errors.map((e) => e.toExponential(3)).join(" "), "ratios:", rates.map((q) => q.toFixed(2)).join(" "));
+  });
+
+  it("with the generated sphere's reference surface, puts new vertices on the sphere far closer than PN from the mesh alone", () => {
+    for (const L of [1, 3]) {
+      const s = sphereMesh({ radius: 1, level: L });
+      expect(s.reference).toBeDefined();
+      const withRef = maxRadialError(refineUniform(s), 1, s.positions.length / 3);
+      const alone = maxRadialError(refineUniform({ ...s, faces: undefined, reference: undefined }), 1, s.positions.length / 3);
+      expect(withRef).toBeLessThan(alone / 10);
+    }
+    // A sphere moved by hand without its reference is refined from the mesh alone, not pulled back.
+    const s = sphereMesh({ radius: 1, level: 2 });
+    const moved = { ...s, positions: s.positions.map((x, i) => (i % 3 === 0 ? x + 5 : x)) };
+    const r = refineUniform(moved);
+    for (let i = 3 * (s.positions.length / 3); i < r.positions.length; i += 3) {
+      expect(Math.abs(Math.hypot(r.positions[i] - 5, r.positions[i + 1], r.positions[i + 2]) - 1)).toBeLessThan(0.05);
+    }
   });
 
   it("leaves a box exactly a box: same area and volume, every vertex on a face", () => {
@@ -166,7 +185,7 @@ describe("refineUniform", () => {
   });
 
   it("a feature angle of 0 keeps every edge straight, 180 smooths across the icosahedron's edges", () => {
-    const ico = sphereMesh({ radius: 1, level: 0 });
+    const ico = { ...sphereMesh({ radius: 1, level: 0 }), faces: undefined, reference: undefined };
     expect(Math.abs(surfaceArea(refineUniform(ico, { featureAngle: 0 })) / surfaceArea(ico) - 1)).toBeLessThan(1e-14);
     // Default 30 degrees: the icosahedron's faces meet at 41.8 degrees between normals, so its edges are features.
     expect(Math.abs(surfaceArea(refineUniform(ico)) / surfaceArea(ico) - 1)).toBeLessThan(1e-14);

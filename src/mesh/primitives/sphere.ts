@@ -7,6 +7,7 @@
 import type { SurfaceMesh } from "../model.js";
 import { refineUniform } from "../refine.js";
 import { checkTriangleBudget } from "./placement.js";
+import { facedShape, referenceFactor, type FacedTriangulation, type FaceNormal } from "./reference.js";
 import { triangleAreaVector } from "../../geometry/triangle.js";
 
 export interface SphereParams {
@@ -76,6 +77,22 @@ export function sphereMesh(params: SphereParams): SurfaceMesh {
   const level = sphereLevel(params);
   if (!(Number.isInteger(level) && level >= 0 && level <= MAX_SPHERE_LEVEL)) throw new RangeError(`sphere level must be an integer from 0 to ${MAX_SPHERE_LEVEL}, got ${level}`);
   checkTriangleBudget(20 * 4 ** level, `sphere level ${level}`);
+  // The mesh, and its reference surface: the icosphere up to two levels finer (4x in every
+  // count, within the reference budget), one face, its exact normal the radial direction, so that
+  // refinement places new points on the sphere itself (reference.ts).
+  const factor = referenceFactor(20 * 4 ** level);
+  const fineLevel = level + Math.log2(factor);
+  const coarse = unitIcosphere(level, r);
+  const fine = level === fineLevel ? unitIcosphere(level, r) : unitIcosphere(fineLevel, r);
+  const radial: FaceNormal = (out, oo, _face, q, o) => {
+    const x = q[o], y = q[o + 1], z = q[o + 2], l = Math.sqrt(x * x + y * y + z * z);
+    out[oo] = x / l; out[oo + 1] = y / l; out[oo + 2] = z / l;
+  };
+  return facedShape(coarse, fine, radial, params.name ?? "sphere", "z", params.center);
+}
+
+/** The icosphere of `level` subdivisions of radius r about the origin, every triangle on face 0. */
+function unitIcosphere(level: number, r: number): FacedTriangulation {
   let mesh = icosahedron();
   for (let l = 0; l < level; l++) {
     mesh = refineUniform(mesh, { smooth: false });
@@ -86,10 +103,6 @@ export function sphereMesh(params: SphereParams): SurfaceMesh {
     }
   }
   const p = mesh.positions;
-  const c = params.center ?? [0, 0, 0];
-  for (let i = 0; i < p.length; i += 3) {
-    p[i] = r * p[i] + c[0]; p[i + 1] = r * p[i + 1] + c[1]; p[i + 2] = r * p[i + 2] + c[2];
-  }
-  mesh.names = [params.name ?? "sphere"];
-  return mesh;
+  for (let i = 0; i < p.length; i++) p[i] *= r;
+  return { positions: p, triangles: mesh.triangles, faces: new Uint32Array(mesh.triangles.length / 3) };
 }
