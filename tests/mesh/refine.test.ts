@@ -1,7 +1,7 @@
 import { describe, it, expect } from "vitest";
 import { refineUniform, refineLevel, NESTED_DISPLACEMENT } from "../../src/mesh/refine.js";
 import { meshEdges } from "../../src/mesh/edges.js";
-import { sphereMesh, boxMesh, plateMesh, diskMesh, cylinderMesh } from "../../src/mesh/primitives/index.js";
+import { sphereMesh, boxMesh, plateMesh, diskMesh, cylinderMesh, torusMesh } from "../../src/mesh/primitives/index.js";
 import { surfaceArea, signedVolume } from "../../src/mesh/measure.js";
 import { concatMeshes, type SurfaceMesh } from "../../src/mesh/model.js";
 import { topology } from "./edge-census.js";
@@ -89,6 +89,24 @@ describe("refineUniform", () => {
     for (let i = 3 * (s.positions.length / 3); i < r.positions.length; i += 3) {
       expect(Math.abs(Math.hypot(r.positions[i] - 5, r.positions[i + 1], r.positions[i + 2]) - 1)).toBeLessThan(0.05);
     }
+  });
+
+  it("with the generated torus's reference surface, puts new vertices on the torus far closer than from the mesh alone", () => {
+    const R = 2, r = 0.5;
+    const offTorus = (m: SurfaceMesh, first: number): number => {
+      let worst = 0;
+      for (let i = 3 * first; i < m.positions.length; i += 3) {
+        const p = m.positions;
+        worst = Math.max(worst, Math.abs(Math.hypot(Math.hypot(p[i], p[i + 1]) - R, p[i + 2]) - r));
+      }
+      return worst;
+    };
+    const t = torusMesh({ majorRadius: R, minorRadius: r, divisions: [24, 8] });
+    expect(t.reference).toBeDefined();
+    const first = t.positions.length / 3;
+    const withRef = offTorus(refineUniform(t), first);
+    const alone = offTorus(refineUniform({ ...t, faces: undefined, reference: undefined }), first);
+    expect(withRef).toBeLessThan(alone / 10);
   });
 
   it("leaves a box exactly a box: same area and volume, every vertex on a face", () => {

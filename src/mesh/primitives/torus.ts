@@ -6,7 +6,8 @@
  * counter-clockwise seen from outside.
  */
 import type { SurfaceMesh } from "../model.js";
-import { type Axis, checkTriangleBudget, placeShape } from "./placement.js";
+import { type Axis, checkTriangleBudget } from "./placement.js";
+import { facedShape, referenceFactor, type FacedTriangulation, type FaceNormal } from "./reference.js";
 
 export interface TorusParams {
   /** Distance from the axis to the centre of the tube; metres. */
@@ -39,8 +40,21 @@ export function torusMesh(params: TorusParams): SurfaceMesh {
   if (!(r < R)) throw new RangeError("torusMesh: the minor radius must be less than the major radius");
   const [nu, nv] = torusSegments(params);
   if (!(Number.isInteger(nu) && Number.isInteger(nv) && nu >= 3 && nv >= 3)) throw new RangeError("torusMesh: at least 3 segments each way are needed");
+  checkTriangleBudget(2 * nu * nv, `torus with ${nu}x${nv} segments`);
+  // The mesh and its reference surface (reference.ts): the same grid up to 4x finer each way,
+  // one face, its exact normal pointing away from the tube's centre circle.
+  const factor = referenceFactor(2 * nu * nv);
+  const tube: FaceNormal = (out, oo, _face, q, o) => {
+    const x = q[o], y = q[o + 1], z = q[o + 2], rho = Math.hypot(x, y);
+    const nx = x - (R * x) / rho, ny = y - (R * y) / rho, l = Math.hypot(nx, ny, z);
+    out[oo] = nx / l; out[oo + 1] = ny / l; out[oo + 2] = z / l;
+  };
+  return facedShape(torusGrid(R, r, nu, nv), torusGrid(R, r, factor * nu, factor * nv), tube, params.name ?? "torus", params.axis ?? "z", params.center);
+}
+
+/** The torus grid of nu × nv segments about the local z axis, every triangle on face 0. */
+function torusGrid(R: number, r: number, nu: number, nv: number): FacedTriangulation {
   const nt = 2 * nu * nv;
-  checkTriangleBudget(nt, `torus with ${nu}x${nv} segments`);
   const positions = new Float64Array(3 * nu * nv);
   for (let i = 0; i < nu; i++) {
     const u = (2 * Math.PI * i) / nu, cu = Math.cos(u), su = Math.sin(u);
@@ -60,6 +74,5 @@ export function torusMesh(params: TorusParams): SurfaceMesh {
       triangles[o++] = p00; triangles[o++] = p11; triangles[o++] = p01;
     }
   }
-  placeShape(positions, params.axis ?? "z", params.center);
-  return { positions, triangles, conductor: new Uint32Array(nt), names: [params.name ?? "torus"] };
+  return { positions, triangles, faces: new Uint32Array(nt) };
 }
