@@ -23,7 +23,7 @@
 import type { SurfaceMesh } from "./model.js";
 import { meshEdges, faceNormals } from "./edges.js";
 import { planarRegions, neighboursAcross } from "./planar-regions.js";
-import { triangleAspect } from "./quality.js";
+import { triangleAspect, panelSizes } from "./quality.js";
 import { triangulatePatch } from "./remesh-patch.js";
 import { sizeAt, otherConductors, type SizeField, type OtherConductors } from "./size-field.js";
 import { nearestTriangle } from "./proximity.js";
@@ -111,17 +111,15 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
   const region = regions.region;
 
   const aspect = new Float64Array(nt);
+  // Each panel's longest edge, for the size and gap triggers below.
+  const size = panelSizes(p, tr);
   const worst = new Float64Array(nr), longest = new Float64Array(nr);
   const allowed = new Uint8Array(nr).fill(1);
   for (let t = 0; t < nt; t++) {
     const r = region[t];
     aspect[t] = triangleAspect(p, tr, t);
     if (aspect[t] > worst[r]) worst[r] = aspect[t];
-    for (let j = 0; j < 3; j++) {
-      const a = 3 * tr[3 * t + j], b = 3 * tr[3 * t + (j + 1) % 3];
-      const l = Math.hypot(p[b] - p[a], p[b + 1] - p[a + 1], p[b + 2] - p[a + 2]);
-      if (l > longest[r]) longest[r] = l;
-    }
+    if (size[t] > longest[r]) longest[r] = size[t];
     if (opts.only && !opts.only[t]) allowed[r] = 0;
   }
   const summary: RemeshSummary = { patches: 0, neighbours: 0, panelsBefore: 0, panelsAfter: 0, worstAspectBefore: 0, worstAspectAfter: 0, trianglesBefore: nt, trianglesAfter: nt };
@@ -134,21 +132,19 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
   // A flat patch facing another conductor across a gap narrower than its panels (an electrode's
   // face of two triangles over a plate) is remeshed too: its panels may be at most GAP_FACTOR
   // times the gap there, and it is remeshed when one exceeds that by SIZE_TRIGGER.
+  // The other conductors of each conductor, as a BVH: built once, for this check and the size fields.
+  const others = new Map<number, OtherConductors | undefined>();
+  const othersOf = (c: number) => {
+    if (!others.has(c)) others.set(c, mesh.names.length > 1 ? otherConductors(p, tr, mesh.conductor, c) : undefined);
+    return others.get(c);
+  };
   if (mesh.names.length > 1) {
-    const trees = new Map<number, OtherConductors | undefined>();
     for (let t = 0; t < nt; t++) {
       const r = region[t];
       if (chosen[r] || !regions.flat[r] || !allowed[r]) continue;
-      let h = 0;
-      for (let j = 0; j < 3; j++) {
-        const a = 3 * tr[3 * t + j], b = 3 * tr[3 * t + (j + 1) % 3];
-        h = Math.max(h, Math.hypot(p[b] - p[a], p[b + 1] - p[a + 1], p[b + 2] - p[a + 2]));
-      }
-      const c = mesh.conductor[t];
-      if (!trees.has(c)) trees.set(c, otherConductors(p, tr, mesh.conductor, c));
-      const o = trees.get(c);
+      const o = othersOf(mesh.conductor[t]);
       if (!o) continue;
-      const reach = h / (SIZE_TRIGGER * GAP_FACTOR);
+      const reach = size[t] / (SIZE_TRIGGER * GAP_FACTOR);
       // The gap measured from the panel's centroid.
       const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], cc = 3 * tr[3 * t + 2];
       const near = nearestTriangle(o.tree, o.positions, o.triangles, (p[a] + p[b] + p[cc]) / 3, (p[a + 1] + p[b + 1] + p[cc + 1]) / 3, (p[a + 2] + p[b + 2] + p[cc + 2]) / 3, reach);
@@ -174,11 +170,6 @@ export function remeshFlatPatches(mesh: SurfaceMesh, opts: RemeshOptions = {}): 
     const c = mesh.conductor[members[start[r]]];
     floors[c] = Math.max(floors[c], (opts.panelSize ?? AREA_CAP * Math.sqrt(regions.area[r])) / FLOOR_RATIO);
   }
-  const others = new Map<number, OtherConductors | undefined>();
-  const othersOf = (c: number) => {
-    if (!others.has(c)) others.set(c, mesh.names.length > 1 ? otherConductors(p, tr, mesh.conductor, c) : undefined);
-    return others.get(c);
-  };
   const segs: number[][] = Array.from({ length: nr }, () => []);
   const sizes: number[][] = Array.from({ length: nr }, () => []);
   const fields = new Map<number, SizeField>();
