@@ -121,13 +121,17 @@ export function digitsFor(value: number, absError: number | undefined, fallback 
  * Error estimates of the values derived from a Maxwell matrix, given its entries' estimates
  * `maxwell` (k×k, absolute) and the working potentials: a two-terminal diagonal (a row sum) and
  * a conductor's charge (Σ_j C_ij V_j) take the sums of their row's estimates, weighted by |V_j|
- * for the charge; the off-diagonal two-terminal values those of their Maxwell entries. Every
+ * for the charge, the stored energy ½ Σ |V_i||V_j| e_ij; the off-diagonal two-terminal values those of their Maxwell entries. Every
  * report prints these values to `digitsFor` their estimates.
  */
-export function derivedErrors(maxwell: readonly (readonly number[])[], potentials: readonly number[]): { maxwell: number[][]; mutual: number[][]; charge: number[] } {
+export function derivedErrors(maxwell: readonly (readonly number[])[], potentials: readonly number[]): { maxwell: number[][]; mutual: number[][]; charge: number[]; energy: number } {
+  // W = ½ VᵀCV: its estimate ½ Σ |V_i||V_j| e_ij.
+  let energy = 0;
+  maxwell.forEach((row, i) => row.forEach((y, j) => { energy += 0.5 * y * Math.abs((potentials[i] ?? 0) * (potentials[j] ?? 0)); }));
   return {
     maxwell: maxwell.map((row) => [...row]),
     mutual: maxwell.map((row, i) => row.map((x, j) => (i === j ? row.reduce((s, y) => s + y, 0) : x))),
     charge: maxwell.map((row) => row.reduce((s, y, j) => s + y * Math.abs(potentials[j] ?? 0), 0)),
+    energy,
   };
 }

@@ -362,10 +362,7 @@ export function markdownReport(data: ReportData, opts: { title?: string } = {}):
   out.push(...markdownTable(["between", "capacitance"], mrows, [false, true]));
   out.push("");
   if (data.energy !== undefined) {
-    // W = ½ VᵀCV: its estimate ½ Σ |V_i||V_j| e_ij.
-    const v = data.conductors.map((c) => c.potential);
-    const e = data.accuracy?.errorEstimate ? 0.5 * data.accuracy.errorEstimate.reduce((s, row, i) => s + row.reduce((t, x, j) => t + x * Math.abs(v[i] * v[j]), 0), 0) : undefined;
-    out.push(`Stored energy at the working potentials: ${formatSI(data.energy, "J", digitsFor(data.energy, e))}.`);
+    out.push(`Stored energy at the working potentials: ${formatSI(data.energy, "J", digitsFor(data.energy, errors?.energy))}.`);
     out.push("");
   }
 

@@ -6,7 +6,7 @@ import { remeshSentence } from "../mesh/remesh.js";
 import type { ExtractionResult } from "../extract/result.js";
 import type { SceneExtraction } from "../extract/extract.js";
 import type { LengthUnit } from "../io/units.js";
-import { formatSI, formatNumber, formatArea, formatPoint, formatFieldStrength, formatLength, unitLabel, digitsFor } from "../io/si.js";
+import { formatSI, formatNumber, formatArea, formatPoint, formatFieldStrength, formatLength, unitLabel, digitsFor, derivedErrors } from "../io/si.js";
 import { displayText } from "../io/display-text.js";
 import { cautionsFor } from "./cautions.js";
 
@@ -48,13 +48,8 @@ export function extractionSummary(r: ExtractionResult | SceneExtraction, given?:
   // (per entry); without an estimate three, the accuracy a default mesh usually reaches.
   const err = r.accuracy?.richardson.errorEstimate;
   const cDigits = (v: number, e: number | undefined) => (err ? digitsFor(v, e) : 3);
-  const rowError = (i: number, weights?: ArrayLike<number>) => {
-    if (!err) return undefined;
-    let e = 0;
-    for (let j = 0; j < k; j++) e += err[i * k + j] * (weights ? Math.abs(weights[j]) : 1);
-    return e;
-  };
-  const potentialsAll = r.conductors.map((c) => c.potential);
+  // The estimates of the two-terminal values, charges and energy, as every report derives them.
+  const derived = err ? derivedErrors(Array.from({ length: k }, (_, i) => Array.from(err.subarray(i * k, (i + 1) * k))), r.conductors.map((c) => c.potential)) : undefined;
   const unitNote = ctx.unitAssumed ? `${unitLabel(ctx.unit)} (assumed; set with --unit)` : unitLabel(ctx.unit);
   out.push(`sigmesh extract: ${ctx.source}`);
   out.push(`  ${k} conductor${k === 1 ? "" : "s"}, ${r.solver.panels} panels, length unit ${unitNote}, εr = ${formatNumber(r.relativePermittivity)}`);
@@ -82,7 +77,7 @@ export function extractionSummary(r: ExtractionResult | SceneExtraction, given?:
   const rows = [["name", "triangles", "area", "closed", "potential", "charge", "peak |E|", "at", "E/Eb"]];
   for (const c of r.conductors) {
     rows.push([c.name, String(c.triangles), formatArea(c.area, ctx.unit), c.closed ? "yes" : "sheet", formatSI(c.potential, "V"),
-      c.floating ? "0 (floating)" : formatSI(c.charge, "C", cDigits(c.charge, rowError(r.conductors.indexOf(c), potentialsAll))), formatFieldStrength(c.peakField), formatPoint(c.peakFieldAt, ctx.unit, 3), formatNumber(c.fieldRatio, 3)]);
+      c.floating ? "0 (floating)" : formatSI(c.charge, "C", cDigits(c.charge, derived?.charge[r.conductors.indexOf(c)])), formatFieldStrength(c.peakField), formatPoint(c.peakFieldAt, ctx.unit, 3), formatNumber(c.fieldRatio, 3)]);
   }
   out.push(...table(rows, [false, true, true, false, true, true, true, false, true]).map((l) => "  " + l));
   out.push("");
@@ -95,7 +90,7 @@ export function extractionSummary(r: ExtractionResult | SceneExtraction, given?:
   out.push("Two-terminal capacitances (circuit values)");
   const crows: string[][] = [];
   const refName = r.reference === "ground plane" ? "ground plane" : "reference (infinity)";
-  for (let i = 0; i < k; i++) crows.push([`${r.names[i]} – ${refName}`, formatSI(r.mutual[i * k + i], "F", cDigits(r.mutual[i * k + i], rowError(i)))]);
+  for (let i = 0; i < k; i++) crows.push([`${r.names[i]} – ${refName}`, formatSI(r.mutual[i * k + i], "F", cDigits(r.mutual[i * k + i], derived?.mutual[i][i]))]);
   for (let i = 0; i < k; i++) for (let j = i + 1; j < k; j++) crows.push([`${r.names[i]} – ${r.names[j]}`, formatSI(r.mutual[i * k + j], "F", cDigits(r.mutual[i * k + j], err?.[i * k + j]))]);
   out.push(...table(crows, [false, true]).map((l) => "  " + l));
   out.push("");
@@ -107,12 +102,7 @@ export function extractionSummary(r: ExtractionResult | SceneExtraction, given?:
     out.push(...table(rrows, [false, ...r.reducedNames.map(() => true)]).map((l) => "  " + l));
     out.push("");
   }
-  let energyError: number | undefined;
-  if (err) {
-    energyError = 0;
-    for (let i = 0; i < k; i++) for (let j = 0; j < k; j++) energyError += 0.5 * err[i * k + j] * Math.abs(potentialsAll[i] * potentialsAll[j]);
-  }
-  out.push(`Stored energy at the working potentials: ${formatSI(r.energy, "J", cDigits(r.energy, energyError))}`);
+  out.push(`Stored energy at the working potentials: ${formatSI(r.energy, "J", cDigits(r.energy, derived?.energy))}`);
   // Dielectric bodies: a net force far below energy / size is what is left of a sum of large,
   // cancelling panel forces after a solve to a relative residual of about 1e-6.
   const size = Math.sqrt(r.conductors.reduce((a, c) => a + c.area, 0));
