@@ -136,14 +136,30 @@ function onReference(mesh: SurfaceMesh, projector: ReferenceProjector): boolean 
   return true;
 }
 
-/** `refineUniform`, with the largest displacement of a new point off its straight midpoint. */
-export function refineLevel(mesh: SurfaceMesh, opts: RefineOptions = {}): RefinedMesh {
+/** The new point of every edge of a mesh, placed as refinement places it (see the file comment). */
+export interface EdgePoints {
+  /** The mesh's vertices followed by one new point per edge (edge e's at vertex nv + e); metres. */
+  positions: Float64Array;
+  /** Whether the new points went onto the mesh's reference surface (then `faces` and `reference` pass to the children). */
+  withReference: boolean;
+  /** Per edge: distance of its new point from the edge's straight midpoint over the edge's length (0 for an edge of zero length). */
+  displacement: Float64Array;
+}
+
+/**
+ * New points on the edges of `edges` (the table of `mesh`): on the reference surface when the
+ * mesh carries one and lies on it, else on the surface rebuilt from the mesh (flat regions
+ * flat, PN curves in curved patches), or straight midpoints with `smooth: false`. The one
+ * placement both uniform (`refineLevel`) and local (adaptive-refine.ts) refinement use. With
+ * `only`, edges e with `only[e] = 0` keep their straight midpoint, saving the placement of
+ * points the caller will not use.
+ */
+export function edgePoints(mesh: SurfaceMesh, edges: MeshEdges, opts: RefineOptions = {}, only?: Uint8Array): EdgePoints {
   const smooth = opts.smooth ?? true;
   const featureAngle = opts.featureAngle ?? 30;
   if (!(featureAngle >= 0 && featureAngle <= 180)) throw new RangeError(`refineUniform: featureAngle must be in [0, 180] degrees, got ${featureAngle}`);
-  const p = mesh.positions, tr = mesh.triangles;
-  const nv = p.length / 3, nt = tr.length / 3, nh = tr.length;
-  const edges = meshEdges(mesh);
+  const p = mesh.positions;
+  const nv = p.length / 3, nt = mesh.triangles.length / 3;
   const ne = edges.count;
   const positions = new Float64Array(3 * (nv + ne));
   positions.set(p);
@@ -154,17 +170,27 @@ export function refineLevel(mesh: SurfaceMesh, opts: RefineOptions = {}): Refine
   const projector = smooth && mesh.faces !== undefined && mesh.reference !== undefined && mesh.faces.length === nt
     ? referenceProjector(mesh.reference) : undefined;
   const withReference = projector !== undefined && onReference(mesh, projector);
-  if (withReference) placeOnReference(mesh, edges, projector, positions);
-  else if (smooth) placeOnPatches(mesh, edges, featureAngle, opts.tangentBlends ?? true, positions);
+  if (withReference) placeOnReference(mesh, edges, projector, positions, only);
+  else if (smooth) placeOnPatches(mesh, edges, featureAngle, opts.tangentBlends ?? true, positions, only);
 
-  let displacement = 0;
+  const displacement = new Float64Array(ne);
   for (let e = 0; e < ne; e++) {
     const a = 3 * edges.v0[e], b = 3 * edges.v1[e], o = 3 * (nv + e);
     const len = Math.hypot(p[b] - p[a], p[b + 1] - p[a + 1], p[b + 2] - p[a + 2]);
     if (len === 0) continue;
-    const d = Math.hypot(positions[o] - 0.5 * (p[a] + p[b]), positions[o + 1] - 0.5 * (p[a + 1] + p[b + 1]), positions[o + 2] - 0.5 * (p[a + 2] + p[b + 2])) / len;
-    if (d > displacement) displacement = d;
+    displacement[e] = Math.hypot(positions[o] - 0.5 * (p[a] + p[b]), positions[o + 1] - 0.5 * (p[a + 1] + p[b + 1]), positions[o + 2] - 0.5 * (p[a + 2] + p[b + 2])) / len;
   }
+  return { positions, withReference, displacement };
+}
+
+/** `refineUniform`, with the largest displacement of a new point off its straight midpoint. */
+export function refineLevel(mesh: SurfaceMesh, opts: RefineOptions = {}): RefinedMesh {
+  const tr = mesh.triangles;
+  const nv = mesh.positions.length / 3, nt = tr.length / 3, nh = tr.length;
+  const edges = meshEdges(mesh);
+  const { positions, withReference, displacement: moved } = edgePoints(mesh, edges, opts);
+  let displacement = 0;
+  for (let e = 0; e < edges.count; e++) if (moved[e] > displacement) displacement = moved[e];
 
   const triangles = new Uint32Array(4 * nh);
   const conductor = new Uint32Array(4 * nt);
@@ -191,10 +217,11 @@ const ends = new Float64Array(12);
 const proj = new Float64Array(6);
 
 /** New points on the reference surface (see the file comment); positions hold the straight midpoints on entry. */
-function placeOnReference(mesh: SurfaceMesh, edges: MeshEdges, R: ReferenceProjector, positions: Float64Array): void {
+function placeOnReference(mesh: SurfaceMesh, edges: MeshEdges, R: ReferenceProjector, positions: Float64Array, only?: Uint8Array): void {
   const p = mesh.positions, tr = mesh.triangles, faces = mesh.faces!;
   const nv = p.length / 3;
   for (let e = 0; e < edges.count; e++) {
+    if (only !== undefined && only[e] === 0) continue;
     const o = 3 * (nv + e);
     const mx = positions[o], my = positions[o + 1], mz = positions[o + 2];
     const h0 = edges.half0[e], h1 = edges.half1[e];
@@ -227,7 +254,7 @@ function placeOnReference(mesh: SurfaceMesh, edges: MeshEdges, R: ReferenceProje
 }
 
 /** New points on the surface rebuilt from the mesh: flat regions flat, PN curves within curved patches (see the file comment). */
-function placeOnPatches(mesh: SurfaceMesh, edges: MeshEdges, featureAngle: number, tangentBlends: boolean, positions: Float64Array): void {
+function placeOnPatches(mesh: SurfaceMesh, edges: MeshEdges, featureAngle: number, tangentBlends: boolean, positions: Float64Array, only?: Uint8Array): void {
   const cosFeature = Math.cos((featureAngle * Math.PI) / 180);
   const p = mesh.positions, tr = mesh.triangles;
   const nv = p.length / 3, nh = tr.length, ne = edges.count;
@@ -298,7 +325,7 @@ function placeOnPatches(mesh: SurfaceMesh, edges: MeshEdges, featureAngle: numbe
   }
 
   for (let e = 0; e < ne; e++) {
-    if (edges.faces[e] !== 2) continue;
+    if (edges.faces[e] !== 2 || (only !== undefined && only[e] === 0)) continue;
     const h0 = edges.half0[e], h1 = edges.half1[e];
     const t0 = (h0 - (h0 % 3)) / 3, t1 = (h1 - (h1 % 3)) / 3;
     if (flat[t0] && flat[t1]) continue;
