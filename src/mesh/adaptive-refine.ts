@@ -7,8 +7,10 @@
  * The vertex order of a triangle [v0, v1, v2] carries its state: (v0, v1) is its refinement
  * edge, v2 its newest vertex. Bisecting at the new point m of the refinement edge gives
  * [v2, v0, m] and [v1, v2, m]: both keep the parent's orientation, m is their newest vertex and
- * their refinement edges are the parent's two other edges. Marking a triangle marks its
- * refinement edge; the closure marks the refinement edge of every triangle with a marked edge,
+ * their refinement edges are the parent's two other edges. Marking a triangle marks its three
+ * edges (as refineNVB of Funken et al. does), so a marked triangle is split into four, its
+ * edges halved as in uniform refinement; the closure marks the refinement edge of every
+ * triangle with a marked edge,
  * to a fixed point (one pass of a stack over edges: each edge enters once). A triangle is then
  * split by its marked edges: the refinement edge alone gives 2 children (green), with one
  * other edge 3 (blue, two variants), with all three 4 (bisec3, two levels of bisection). Every
@@ -70,8 +72,8 @@ function dist2(p: Float64Array, i: number, j: number): number {
 }
 
 /**
- * Bisect the marked triangles (`marked[t]` nonzero; newest-vertex bisection) and as few others
- * as conformity needs. Marking nothing returns the input mesh itself, each triangle its own parent.
+ * Bisect the marked triangles (`marked[t]` nonzero; newest-vertex bisection, each marked
+ * triangle into four) and as few others as conformity needs. Marking nothing returns the input mesh itself, each triangle its own parent.
  */
 export function refineMarked(mesh: SurfaceMesh, marked: Uint8Array, opts: RefineOptions = {}): LocalRefinement {
   const tr = mesh.triangles;
@@ -88,13 +90,14 @@ export function refineMarked(mesh: SurfaceMesh, marked: Uint8Array, opts: Refine
   const halves = new Uint32Array(nh);
   for (let h = 0; h < nh; h++) halves[fill[eh[h]]++] = h;
 
-  // Closure: a triangle with a marked edge gets its refinement edge (half-edge 3t) marked.
+  // A marked triangle has all three edges marked (bisec3); closure: a triangle with a marked
+  // edge gets its refinement edge (half-edge 3t) marked.
   const split = new Uint8Array(ne);
   const stack = new Uint32Array(ne);
   let top = 0;
-  for (let t = 0; t < nt; t++) {
-    if (marked[t] === 0) continue;
-    const e = eh[3 * t];
+  for (let h = 0; h < nh; h++) {
+    if (marked[(h - (h % 3)) / 3] === 0) continue;
+    const e = eh[h];
     if (split[e] === 0) { split[e] = 1; stack[top++] = e; }
   }
   while (top > 0) {
