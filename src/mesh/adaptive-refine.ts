@@ -19,12 +19,13 @@
  * that share its vertices, or a non-manifold edge, is split once for all its triangles.
  *
  * Shape: the descendants of a triangle under NVB fall into at most four similarity classes
- * (W. F. Mitchell, "A comparison of adaptive refinement techniques for elliptic problems", ACM
- * TOMS 15 (1989); R. Stevenson, Math. Comp. 77 (2008)): the triangle, its two children, and the
+ * (E. G. Sewell's and W. F. Mitchell's result, surveyed in W. F. Mitchell, "30 years of newest
+ * vertex bisection", AIP Conf. Proc. 1738 (2016)): the triangle, its two children, and the
  * half of the parallelogram bisec3 leaves in the middle, whose angles are the children's angles
  * at v2 and pi - (the angle at v2). With the longest edge as the first refinement edge
  * (`withLongestRefinementEdges`) the children are longest-edge bisections, whose angles are at
- * least half the parent's smallest (I. G. Rosenberg, F. Stenger, Math. Comp. 29 (1975)); so no
+ * least half the parent's smallest (I. G. Rosenberg, F. Stenger, "A lower bound on the angles of
+ * triangles constructed by bisecting the longest side", Math. Comp. 29 (1975)); so no
  * triangle of any refinement has an angle under half the smallest angle of the initial mesh
  * (on flat faces; on curved ones new points leave the midpoints by O(h^2) of the edge and the
  * bound holds to that order).

@@ -277,7 +277,7 @@ describe("withLongestRefinementEdges", () => {
 
 describe("refineMarked: shape regularity and growth", () => {
   // Descendants of a triangle under newest-vertex bisection fall into at most four similarity
-  // classes (Mitchell 1989; Stevenson 2008); with the longest edge refined first, each class's
+  // classes (Sewell, Mitchell; surveyed by Mitchell 2016); with the longest edge refined first, each class's
   // angles are angles of longest-edge bisections of the triangle, which are at least half its
   // smallest angle (Rosenberg & Stenger 1975). See the comment of src/mesh/adaptive-refine.ts.
   it("refining 12 times toward a box corner keeps right isosceles triangles and grows linearly", () => {
