@@ -37,7 +37,7 @@ import { kernelPlanes, symmetryCopies, conductorRanges, checkSides, trianglesInS
 import { EPSILON_0 } from "./constants.js";
 import { forceResolutions } from "./excitation.js";
 import { capacitanceMatrices, chargesAt, storedEnergy, mutualFromMaxwell } from "./capacitance.js";
-import { richardson } from "./accuracy.js";
+import { richardson, sequenceRichardson } from "./accuracy.js";
 import { runPeakMeter } from "./memory.js";
 import { eliminateFloating, withFloatingPotentials } from "./floating.js";
 import { prepareBodies, type PreparedBody } from "./dielectric-bodies.js";
@@ -45,6 +45,7 @@ import { resolveOptions, lengthDescriber, type MeshExtractOptions, type Resolved
 import type { Accuracy, ConductorResult, ExtractionResult, LevelResult } from "./result.js";
 import { symmetryLayout, unfoldedFinest, withoutTriangles, closeBySymmetry, unfolding, type SymmetryLayout, type BodyUnfolding } from "./symmetry-unfold.js";
 import { solveLevels, type LevelSolves } from "./levels.js";
+import { solveAdaptive, type AdaptiveRecord } from "./adaptive.js";
 import type { FinestSolution } from "./result.js";
 import { workingPointFields, scaleCopy, type WorkingPoint } from "./working-point.js";
 
@@ -89,13 +90,15 @@ async function extractMeshMetered(input: SurfaceMesh, opts: MeshExtractOptions, 
   const { bodies, unfold } = dielectricBodies(o, layout, cut.sides, warnings);
   const oriented = orientedConductors(cut.mesh, layout.checkKernel, warnings);
 
-  const solves = await solveLevels(oriented.mesh, bodies, unfold, layout, o);
+  const solves: LevelSolves & { adaptive?: AdaptiveRecord } = o.accuracy !== undefined
+    ? await solveAdaptive(oriented.mesh, bodies, unfold, layout, o, warnings)
+    : await solveLevels(oriented.mesh, bodies, unfold, layout, o);
   const finest = layout.nets > 1 ? unfoldedFinest(solves, solves.patterns, layout, k) : solves;
   // Per net: a mirror copy is closed, and has as many triangles, as the conductor it mirrors.
   const netClosed = layout.nets > 1 ? layout.names.map((_, i) => oriented.closed[i % k]) : oriented.closed;
   const netCounts = layout.nets > 1 ? Uint32Array.from(layout.names, (_, i) => oriented.counts[i % k]) : oriented.counts;
 
-  const matrices = reportedMatrices(solves.levels, K, layout.names, oriented, bodies !== undefined, o, warnings);
+  const matrices = reportedMatrices(solves.levels, K, layout.names, oriented, bodies !== undefined, o, warnings, solves.adaptive);
   const reduced = floatingElimination(matrices.maxwell, K, o.floating, o.potentials, layout.names);
   const point = await workingPointFields(finest, K, reduced.working, netClosed, layout.kernel, o, warnings, solves.coarse);
 
@@ -202,11 +205,24 @@ interface ReportedMatrices {
 
 /** The K×K Maxwell matrix of the finest level, or Richardson-extrapolated over all levels with its error estimate. */
 function reportedMatrices(levels: LevelResult[], K: number, names: string[], oriented: OrientedConductors, withBodies: boolean,
-  o: ResolvedOptions, warnings: string[]): ReportedMatrices {
+  o: ResolvedOptions, warnings: string[], adaptive?: AdaptiveRecord): ReportedMatrices {
   const finest = capacitanceMatrices(levels[levels.length - 1].maxwell, K, names);
   let maxwell = finest.maxwell;
   let accuracy: Accuracy | undefined;
-  if (o.refine > 0) {
+  const refined = levels.length > 1;
+  if (refined && (adaptive || levels.length >= 3 && o.assumedOrder === undefined)) {
+    // Three or more solves: the order observed, in the panel count (adaptive or uniform).
+    const sym = levels.map((l) => capacitanceMatrices(l.maxwell, K, names).maxwell);
+    const displacement = levels.reduce((m, l) => Math.max(m, l.displacement ?? 0), 0);
+    const nested = displacement <= NESTED_DISPLACEMENT;
+    const lowerBound = o.method === "galerkin" && !withBodies && nested;
+    if (levels.length >= 3) {
+      const r = sequenceRichardson(sym, levels.map((l) => l.panels), K, { fromBelow: lowerBound });
+      accuracy = { levels: levels.map((l, i) => ({ panels: l.panels, maxwell: sym[i] })), richardson: r, nested, displacement, lowerBound, extrapolated: true, adaptive };
+      maxwell = r.extrapolated;
+      warnings.push(...r.warnings);
+    }
+  } else if (refined) {
     const sharp = oriented.closed.some((c) => !c) || hasFeatureEdges(oriented.mesh);
     const sym = levels.map((l) => capacitanceMatrices(l.maxwell, K, names).maxwell);
     // Galerkin values rise toward the limit only over nested levels (accuracy.ts).
@@ -218,7 +234,7 @@ function reportedMatrices(levels: LevelResult[], K: number, names: string[], ori
     maxwell = r.extrapolated;
     warnings.push(...r.warnings);
   }
-  const checked = o.refine > 0 ? capacitanceMatrices(maxwell, K, names) : finest;
+  const checked = accuracy ? capacitanceMatrices(maxwell, K, names) : finest;
   warnings.push(...checked.warnings);
   return { maxwell, mutual: mutualFromMaxwell(maxwell, K), asymmetry: finest.asymmetry, accuracy };
 }

@@ -37,7 +37,7 @@ export interface LevelSolves extends FinestSolution {
 }
 
 /** One level's solves: its Maxwell matrix and its panel solutions. */
-interface LevelSolve {
+export interface LevelSolve {
   level: LevelResult;
   unit: UnitSolution;
   patterns: Float64Array[];
@@ -84,7 +84,7 @@ export async function solveLevels(oriented: SurfaceMesh, bodies: PreparedBody[] 
  * each triangle in four), solved on the path the solver choice takes at that size.
  */
 function checkFinestLevel(n0: number, k: number, o: ResolvedOptions, entries: "conductors" | "interfaces"): void {
-  if (o.refine === 0) return;
+  if (o.refine === 0 || o.accuracy !== undefined) return;
   const n = n0 * 4 ** o.refine;
   const { solver } = resolveSolver(o.solver, n, k, entries);
   assertFinestFits(solver, n, k, o.refine, o.memoryLimit, 32, PRECONDITIONER_CLUSTER);
@@ -92,11 +92,13 @@ function checkFinestLevel(n0: number, k: number, o: ResolvedOptions, entries: "c
 
 /** Progress of pattern s of a level, counted over all levels' patterns. */
 function patternProgress(o: ResolvedOptions, level: number, s: number, nets: number) {
-  return (phase: string, f: number) => o.progress?.(phase, f, level * nets + s, (o.refine + 1) * nets);
+  // Adaptive steps (adaptive.ts) are counted as they come: the last level is the current one.
+  const levels = o.accuracy !== undefined ? level + 1 : o.refine + 1;
+  return (phase: string, f: number) => o.progress?.(phase, f, level * nets + s, levels * nets);
 }
 
 /** Conductors in a uniform medium: per pattern, Q = 4πε x summed over each conductor (and its even mirrors). */
-async function solveConductorLevel(mesh: SurfaceMesh, level: number, layout: SymmetryLayout, o: ResolvedOptions): Promise<LevelSolve> {
+export async function solveConductorLevel(mesh: SurfaceMesh, level: number, layout: SymmetryLayout, o: ResolvedOptions): Promise<LevelSolve> {
   const { nets, tied } = layout, k = mesh.names.length;
   if (level === 0) checkFinestLevel(mesh.conductor.length, k, o, "conductors");
   const perPattern: Float64Array[] = [], xs: Float64Array[] = [];
@@ -119,7 +121,7 @@ async function solveConductorLevel(mesh: SurfaceMesh, level: number, layout: Sym
  * Conductors and dielectric interfaces: per pattern, the free charges (ε-weighted, bem/interface.ts)
  * summed over each conductor give Q; every charge, free and polarisation, radiates in vacuum.
  */
-async function solveDielectricLevel(mesh: SurfaceMesh, bodies: PreparedBody[], unfold: BodyUnfolding | undefined, level: number,
+export async function solveDielectricLevel(mesh: SurfaceMesh, bodies: PreparedBody[], unfold: BodyUnfolding | undefined, level: number,
   layout: SymmetryLayout, o: ResolvedOptions): Promise<LevelSolve> {
   const { nets, tied } = layout, k = mesh.names.length, er = o.relativePermittivity;
   const model = unfold ? unfold.restrict(dielectricModel(unfold.surface(mesh), bodies, er, o.groundPlane), mesh.conductor.length)

@@ -27,6 +27,14 @@ export interface MeshExtractOptions {
   breakdownField?: number;
   /** Uniform refinements for the error estimate (0 = none). */
   refine?: number;
+  /**
+   * Requested relative accuracy of the capacitances (e.g. 1e-3): refine adaptively until every
+   * diagonal entry and every coupling above 5 % of its row's diagonal is estimated within it
+   * (adaptive.ts). Excludes `refine`. The solver tolerance follows (at most accuracy / 10).
+   */
+  accuracy?: number;
+  /** With `accuracy`: the most panels the refinement may reach (default 200,000). */
+  maxPanels?: number;
   /** Convergence order assumed when only two meshes are solved (default: see `assumedOrder`). */
   assumedOrder?: number;
   pool?: WorkerPool;
@@ -69,6 +77,9 @@ export interface ResolvedOptions {
   tolerance: number;
   /** Uniform refinements after the first mesh (0 to 4). */
   refine: number;
+  /** Requested relative accuracy of adaptive refinement; undefined for uniform refinement. */
+  accuracy?: number;
+  maxPanels?: number;
   /** Breakdown strength of the background; V/m. */
   breakdownField: number;
   pool: WorkerPool;
@@ -103,8 +114,12 @@ export function resolveOptions(opts: MeshExtractOptions, k: number, nets: number
   if (!(er >= 1) || !Number.isFinite(er)) throw new InputError(`relative permittivity must be a number of at least 1, got ${er}`);
   const eps = EPSILON_0 * er;
   const method = opts.method ?? "galerkin";
-  const tolerance = opts.tolerance ?? 1e-4;
   const refine = checkedRefine(opts.refine);
+  const accuracy = checkedAccuracy(opts.accuracy);
+  if (accuracy !== undefined && refine > 0) throw new InputError(`accuracy ${accuracy} and refine ${refine} are two ways to refine: give one`);
+  const maxPanels = opts.maxPanels;
+  if (maxPanels !== undefined && !(Number.isInteger(maxPanels) && maxPanels > 0)) throw new InputError(`the most panels must be a positive whole number, got ${maxPanels}`);
+  const tolerance = accuracy !== undefined ? Math.min(opts.tolerance ?? 1e-4, accuracy / 10) : opts.tolerance ?? 1e-4;
   const breakdownField = opts.breakdownField ?? AIR_BREAKDOWN_FIELD;
   if (!(breakdownField > 0) || !Number.isFinite(breakdownField)) throw new InputError(`breakdown field must be a positive number of V/m, got ${breakdownField}`);
   const potentials = new Float64Array(K);
@@ -122,7 +137,7 @@ export function resolveOptions(opts: MeshExtractOptions, k: number, nets: number
   const dielectrics = opts.dielectrics ?? [];
   const strengths = bodyStrengths(dielectrics, breakdownField);
   return {
-    floating, potentials, relativePermittivity: er, permittivity: eps, method, solver: opts.solver ?? "auto", tolerance, refine, breakdownField,
+    floating, potentials, relativePermittivity: er, permittivity: eps, method, solver: opts.solver ?? "auto", tolerance, refine, accuracy, maxPanels, breakdownField,
     pool, memoryLimit: opts.memoryLimit, groundPlane: opts.groundPlane, assumedOrder: opts.assumedOrder, progress: opts.progress,
     dielectrics, testing, strengths, describeLength: lengthDescriber(opts.lengthUnit),
     describePoint: opts.lengthUnit === undefined ? (p) => `(${p.join(", ")}) m` : (p) => formatPoint(p, opts.lengthUnit!),
@@ -139,6 +154,18 @@ export function checkedRefine(refine: number | undefined): number {
   const r = refine ?? 0;
   if (!Number.isInteger(r) || r < 0 || r > 4) throw new InputError(`refine must be a whole number from 0 to 4, got ${r}`);
   return r;
+}
+
+/** Smallest and largest relative accuracy an adaptive refinement may be asked for. */
+export const ACCURACY_RANGE: readonly [number, number] = [1e-7, 0.1];
+
+/** The requested relative accuracy; InputError unless a number in ACCURACY_RANGE (undefined: none). */
+export function checkedAccuracy(accuracy: number | undefined): number | undefined {
+  if (accuracy === undefined) return undefined;
+  if (typeof accuracy !== "number" || !(accuracy >= ACCURACY_RANGE[0] && accuracy <= ACCURACY_RANGE[1])) {
+    throw new InputError(`accuracy must be a relative error from ${ACCURACY_RANGE[0]} to ${ACCURACY_RANGE[1]} (e.g. 1e-3 or 0.1%), got ${String(accuracy)}`);
+  }
+  return accuracy;
 }
 
 /** Breakdown strength per body (V/m): its own, else the background's. */

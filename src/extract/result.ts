@@ -9,6 +9,7 @@ import type { InterfaceTesting } from "../bem/interface.js";
 import type { AxisPlane, ImageSet, SymmetryPlane } from "../bem/images.js";
 import type { SolveInfo, UnitSolution } from "./solve.js";
 import type { RichardsonResult } from "./accuracy.js";
+import type { AdaptiveRecord } from "./adaptive.js";
 import type { PanelExcitation, PeakField } from "./excitation.js";
 import type { BodySummary, DielectricModel } from "./dielectric-model.js";
 
@@ -89,6 +90,8 @@ export interface Accuracy {
   lowerBound: boolean;
   /** The matrix reported is the extrapolated one. */
   extrapolated: true;
+  /** With a requested accuracy: what the adaptive refinement reached (adaptive.ts). */
+  adaptive?: AdaptiveRecord;
 }
 
 export interface ExtractionResult {
