@@ -11,7 +11,7 @@
  * The disk carries its face and reference surface (reference.ts), so that refinement puts new
  * rim points on the circle and keeps new inner points in the plane, and converges to the true
  * disk instead of the rim polygon. A flat face needs no finer inside: the reference is the same
- * layout with only the rim ring finer (`referenceRimSegments`).
+ * layout with only the rim ring finer (`referenceRimSegments`: 4,096 segments and more).
  */
 import type { SurfaceMesh } from "../model.js";
 import { rimNodes } from "./grading.js";
@@ -117,22 +117,25 @@ export function diskRings(params: DiskParams): number {
 }
 
 /** Fewest rim segments of a reference (see `referenceRimSegments`). */
-const REFERENCE_RIM = 4096;
+const REFERENCE_RIM = 1024;
+/** Largest sagitta of a reference rim segment, relative to the shape's size (see `referenceRimSegments`). */
+const REFERENCE_SAGITTA = 1.5e-7;
 
 /**
- * Segments of the reference's rim for a rim of m segments: m times a power of two, at least 4 and
- * enough for 4096 segments. The rim lift (reference-surface.ts: a cubic over each reference
- * segment, tangents by central differences, exact on a regular polygon) is then off the circle by
- * about (3/128) θ^4 R for θ = 2π/segments, 1.3e-13 R at 4096 (measured in
- * tests/mesh/primitive-references.test.ts); and the polygon's sagitta π²R/(2·4096²) = 2.9e-7 R
- * stays inside the 1e-6 of the mesh's size by which refine.ts's `onReference` accepts a mesh
- * whose rim points lie on the circle between reference vertices. Costs some 4096 triangles.
- * Power-of-two multiples keep every coarse rim vertex, and those of the first refinements, on
- * reference vertices.
+ * Segments of the reference's rim for a rim of m segments on a circle of radius r, on a shape of
+ * size `size` (its bounding-box diagonal; metres): m times a power of two, at least 4, at least
+ * 1024 and enough that a segment's sagitta π²r/(2n²) is below 1.5e-7 of the size (4096 and more
+ * for a disk). The rim lift (reference-surface.ts: a cubic over each reference segment, tangents
+ * by central differences, exact on a regular polygon) is then off the circle by about
+ * (3/128)(2π/n)^4 r, 3.3e-11 r at 1024; and rim points that refinement puts on the circle between
+ * reference vertices stay well inside the 1e-6 of the mesh's size by which refine.ts's
+ * `onReference` accepts a mesh as lying on its reference. Power-of-two multiples keep every
+ * coarse rim vertex, and those of the first refinements, on reference vertices.
  */
-export function referenceRimSegments(m: number): number {
+export function referenceRimSegments(m: number, r: number, size: number): number {
+  const sagitta = (n: number): number => (Math.PI * Math.PI * r) / (2 * n * n);
   let k = 4;
-  while (m * k < REFERENCE_RIM) k *= 2;
+  while (m * k < REFERENCE_RIM || sagitta(m * k) > REFERENCE_SAGITTA * size) k *= 2;
   return m * k;
 }
 
@@ -151,7 +154,7 @@ export function diskMesh(params: DiskParams): SurfaceMesh {
   const layout = diskLayout(r, rings, g);
   const rim = layout.segments[rings - 1];
   const coarse = facedDisk(layout);
-  const fine = facedDisk(diskLayout(r, rings, g, referenceRimSegments(rim)));
+  const fine = facedDisk(diskLayout(r, rings, g, referenceRimSegments(rim, r, 2 * r)));
   const up: FaceNormal = (out, oo) => { out[oo] = 0; out[oo + 1] = 0; out[oo + 2] = 1; };
   return facedShape(coarse, fine, up, params.name ?? "disk", params.axis ?? "z", params.center);
 }
