@@ -1,8 +1,9 @@
 /**
- * Reference values by Kelvin's method of iterated images (W. Thomson, 1848; the construction
- * as in J. D. Jackson, Classical Electrodynamics, 3rd ed., §2.2–2.3: a point charge q at
- * distance D from the centre of a grounded sphere of radius a has the image −q a/D at distance
- * a²/D from the centre, on the line to q; a grounded plane mirrors q as −q).
+ * Reference values by Kelvin's method of iterated images (W. Thomson, later Lord Kelvin, 1840s;
+ * the construction as in J. D. Jackson, Classical Electrodynamics, 3rd ed., §2.2–2.3, section
+ * numbers from memory: a point charge q at distance D from the centre of a grounded sphere of
+ * radius a has the image −q a/D at distance a²/D from the centre, on the line to q; a grounded
+ * plane mirrors q as −q).
  *
  * Independent of src/: plain point charges in SI, the fields summed exactly as Coulomb fields.
  * Every series is iterated until a new generation of charges is below 1e-16 of the total.
