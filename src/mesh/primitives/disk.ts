@@ -7,10 +7,16 @@
  *
  * The area is exactly that of the rim polygon, (m/2) R^2 sin(2 pi / m) for m rim segments,
  * so it tends to pi R^2 at second order in 1/m.
+ *
+ * The disk carries its face and reference surface (reference.ts), so that refinement puts new
+ * rim points on the circle and keeps new inner points in the plane, and converges to the true
+ * disk instead of the rim polygon. A flat face needs no finer inside: the reference is the same
+ * layout with only the rim ring finer (`referenceRimSegments`: 4,096 segments and more).
  */
 import type { SurfaceMesh } from "../model.js";
 import { rimNodes } from "./grading.js";
-import { type Axis, checkTriangleBudget, placeShape } from "./placement.js";
+import { type Axis, checkTriangleBudget } from "./placement.js";
+import { facedShape, type FacedTriangulation, type FaceNormal } from "./reference.js";
 
 export interface DiskParams {
   /** metres */
@@ -110,12 +116,45 @@ export function diskRings(params: DiskParams): number {
   return 12;
 }
 
+/** Fewest rim segments of a reference (see `referenceRimSegments`). */
+const REFERENCE_RIM = 1024;
+/** Largest sagitta of a reference rim segment, relative to the shape's size (see `referenceRimSegments`). */
+const REFERENCE_SAGITTA = 1.5e-7;
+
+/**
+ * Segments of the reference's rim for a rim of m segments on a circle of radius r, on a shape of
+ * size `size` (its bounding-box diagonal; metres): m times a power of two, at least 4, at least
+ * 1024 and enough that a segment's sagitta π²r/(2n²) is below 1.5e-7 of the size (4096 and more
+ * for a disk). The rim lift (reference-surface.ts: a cubic over each reference segment, tangents
+ * by central differences, exact on a regular polygon) is then off the circle by about
+ * (3/128)(2π/n)^4 r, 3.3e-11 r at 1024; and rim points that refinement puts on the circle between
+ * reference vertices stay well inside the 1e-6 of the mesh's size by which refine.ts's
+ * `onReference` accepts a mesh as lying on its reference. Power-of-two multiples keep every
+ * coarse rim vertex, and those of the first refinements, on reference vertices.
+ */
+export function referenceRimSegments(m: number, r: number, size: number): number {
+  const sagitta = (n: number): number => (Math.PI * Math.PI * r) / (2 * n * n);
+  let k = 4;
+  while (m * k < REFERENCE_RIM || sagitta(m * k) > REFERENCE_SAGITTA * size) k *= 2;
+  return m * k;
+}
+
+/** A disk layout's triangulation with every triangle on face `face`. */
+export function facedDisk(layout: DiskLayout, face = 0): FacedTriangulation {
+  const d = diskFromLayout(layout);
+  return { positions: d.positions, triangles: d.triangles, faces: new Uint32Array(layout.triangles).fill(face) };
+}
+
 export function diskMesh(params: DiskParams): SurfaceMesh {
   const r = params.radius;
   if (!(r > 0 && Number.isFinite(r))) throw new RangeError("diskMesh: radius must be positive");
   const rings = diskRings(params);
   if (!(Number.isInteger(rings) && rings >= 1)) throw new RangeError("diskMesh: the ring count must be a positive integer");
-  const mesh = diskFromLayout(diskLayout(r, rings, params.grading ?? 1), params.name ?? "disk");
-  placeShape(mesh.positions, params.axis ?? "z", params.center);
-  return mesh;
+  const g = params.grading ?? 1;
+  const layout = diskLayout(r, rings, g);
+  const rim = layout.segments[rings - 1];
+  const coarse = facedDisk(layout);
+  const fine = facedDisk(diskLayout(r, rings, g, referenceRimSegments(rim, r, 2 * r)));
+  const up: FaceNormal = (out, oo) => { out[oo] = 0; out[oo + 1] = 0; out[oo + 2] = 1; };
+  return facedShape(coarse, fine, up, params.name ?? "disk", params.axis ?? "z", params.center);
 }
