@@ -14,7 +14,8 @@ import { writeOutputs, checkOutputTargets, defaultProbeCsv, type OutputTargets }
 import { displayText } from "../src/io/display-text.js";
 import { closeSharedPool } from "../src/linalg/pool.js";
 import { action, printWarnings } from "./common.js";
-import { collect, numberOption, parsePotentials, solveSettings } from "./options.js";
+import { accuracyOption, collect, numberOption, parsePotentials, solveSettings } from "./options.js";
+import { checkedAccuracy } from "../src/extract/options.js";
 import { progressBar } from "./progress.js";
 
 export interface ExtractCliOptions {
@@ -24,6 +25,8 @@ export interface ExtractCliOptions {
   method: string;
   solver: string;
   refine: string;
+  accuracy?: string;
+  maxPanels?: string;
   tol: string;
   permittivity?: string;
   breakdownField?: string;
@@ -56,6 +59,8 @@ export function registerExtract(program: Command): void {
     .option("--method <method>", "discretisation: galerkin or collocation", "galerkin")
     .option("--solver <solver>", "auto, direct (dense factorisation), iterative (dense Krylov) or compressed (hierarchical low-rank + Krylov, for large models)", "auto")
     .option("--refine <K>", "also solve on K uniform refinements and extrapolate, with an error estimate", "0")
+    .option("--accuracy <relative>", "refine where the error is until every capacitance that matters is estimated within this relative error, e.g. 1e-3 or 0.1% (instead of --refine)")
+    .option("--max-panels <N>", "with --accuracy: the most panels the refinement may reach (default 200000)")
     .option("--tol <relative>", "requested relative accuracy of the capacitances (solver tolerance)", "1e-4")
     .option("--permittivity <er>", "relative permittivity of the medium (overrides the scene)")
     .option("--breakdown-field <V/m>", "breakdown strength of the medium for the field check (default 3e6, air)")
@@ -83,7 +88,11 @@ export function registerExtract(program: Command): void {
 /** The whole extract command for these inputs and options (also used by `sigmesh demo`). */
 export async function runExtract(inputs: string[], opts: ExtractCliOptions): Promise<void> {
   const start = performance.now();
-  const settings = solveSettings(opts);
+  const settings = { ...solveSettings(opts), accuracy: accuracyOption(opts.accuracy),
+    maxPanels: opts.maxPanels === undefined ? undefined : numberOption(opts.maxPanels, "--max-panels", (x) => Number.isInteger(x) && x > 0, "a positive whole number of panels") };
+  if (settings.accuracy !== undefined && settings.refine > 0) throw new InputError("--accuracy and --refine are two ways to refine: give one");
+  if (settings.accuracy !== undefined) checkedAccuracy(settings.accuracy);
+  const refining = settings.accuracy !== undefined ? 1 : settings.refine;
   const permittivity = opts.permittivity === undefined ? undefined : numberOption(opts.permittivity, "--permittivity", (x) => x >= 1, "a relative permittivity of at least 1");
   const breakdownField = opts.breakdownField === undefined ? undefined : numberOption(opts.breakdownField, "--breakdown-field", (x) => x > 0, "a positive field in V/m, e.g. 3e6");
   if (opts.split && opts.merge) throw new InputError("--split and --merge cannot be used together");
@@ -94,7 +103,7 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
     json: opts.json, jsonPanels: opts.jsonPanels, html: opts.html, spice: opts.spice, spiceThreshold, csv: opts.csv, markdown: opts.markdown,
     probeCsv: opts.probeCsv, convergenceSvg: opts.convergenceSvg,
   };
-  checkOutputTargets(targets, settings.refine);
+  checkOutputTargets(targets, refining);
 
   const scene = loadScene(inputs, {
     unit: opts.unit === undefined ? undefined : parseUnit(opts.unit, "--unit"),
@@ -107,7 +116,7 @@ export async function runExtract(inputs: string[], opts: ExtractCliOptions): Pro
   // Probe results go beside the report, named after the input, unless told otherwise.
   if (targets.probeCsv === undefined && scene.probes.length + probes.length > 0) {
     targets.probeCsv = defaultProbeCsv(targets, scene.scene ?? scene.files[0]);
-    checkOutputTargets(targets, settings.refine);
+    checkOutputTargets(targets, refining);
   }
 
   const bar = progressBar(!opts.quiet);

@@ -30,6 +30,19 @@ export function solveSettings(opts: SolveOptionText): Required<Pick<ExtractSetti
   return { method, solver, tolerance, refine };
 }
 
+/**
+ * --accuracy as a relative error: a number (1e-3) or a percentage (0.1%). Range and meaning are
+ * the library's (checkedAccuracy); this only reads the text.
+ */
+export function accuracyOption(text: string | undefined): number | undefined {
+  if (text === undefined) return undefined;
+  const t = text.trim();
+  const percent = t.endsWith("%");
+  const x = Number(percent ? t.slice(0, -1) : t);
+  if (t === "" || t === "%" || !Number.isFinite(x) || !(x > 0)) throw new InputError(`--accuracy "${text}": expected a relative error, e.g. 1e-3 or 0.1%`);
+  return percent ? x / 100 : x;
+}
+
 /** Repeated NAME=VOLTS options as a map of potentials. */
 export function parsePotentials(items: string[]): Record<string, number> {
   // No prototype: a conductor named "__proto__" is a name like any other, not the map's prototype.

@@ -23,7 +23,7 @@ import { probePoints, type ProbeSpec } from "../io/probe-spec.js";
 import { probeExtraction, type ProbeResult } from "./probe.js";
 import type { SolverChoice } from "./solve.js";
 import { extractMesh } from "./extract-mesh.js";
-import { checkedRefine } from "./options.js";
+import { checkedAccuracy, checkedRefine } from "./options.js";
 import type { ExtractionResult } from "./result.js";
 import { checkConductors, implausibleSize } from "./scene-check.js";
 import { physicalSizeFault } from "../mesh/physical-size.js";
@@ -42,6 +42,13 @@ export interface ExtractSettings {
   refine?: number;
   /** Convergence order assumed when only two meshes are solved (default: by the geometry). */
   assumedOrder?: number;
+  /**
+   * Requested relative accuracy of the capacitances (e.g. 1e-3): adaptive refinement until every
+   * diagonal entry and every coupling above 5 % of its row's diagonal is estimated within it. Excludes `refine`.
+   */
+  accuracy?: number;
+  /** With `accuracy`: the most panels the refinement may reach (default 200,000). */
+  maxPanels?: number;
   /** Probe requests added to the scene's own (coordinates in the scene's unit). */
   probes?: ProbeSpec[];
   /** Progress: phase ("tree", "near field", "far field", "solve", "fields", ...), its fraction done, the solve's index and count. */
@@ -112,6 +119,8 @@ export async function extract(scene: LoadedScene, settings: ExtractSettings = {}
   signal?.throwIfAborted();
   // A fault of the run's own settings names no file; every later one concerns the input.
   checkedRefine(settings.refine);
+  checkedAccuracy(settings.accuracy);
+  if (settings.accuracy !== undefined && (settings.refine ?? 0) > 0) throw new InputError(`accuracy ${settings.accuracy} and refine ${settings.refine} are two ways to refine: give one`);
   const result = await extractMesh(scene.mesh, {
     permittivity: scene.permittivity,
     breakdownField: scene.breakdownField,
@@ -124,6 +133,8 @@ export async function extract(scene: LoadedScene, settings: ExtractSettings = {}
     solver: settings.solver,
     tolerance: settings.tolerance,
     refine: settings.refine,
+    accuracy: settings.accuracy,
+    maxPanels: settings.maxPanels,
     assumedOrder: settings.assumedOrder,
     memoryLimit: settings.memoryLimit,
     pool: settings.pool,

@@ -137,12 +137,19 @@ export function peakSpread(field: ArrayLike<number>, mesh: SurfaceMesh, panel: n
  * whose discretisation error is largest, and that error does not decay smoothly level to level),
  * while the spread covered it on every sphere measured.
  * Singular: the growth exponent p = log2(E_L / E_{L−1}) over the last two levels, those nearest
- * the asymptotic range (a singularity decides only the finest panels' values).
+ * the asymptotic range (a singularity decides only the finest panels' values); with `sizes` (the
+ * peak panel's √area per level) against the ratio of those sizes, as adaptive levels need. When the
+ * peak panel was not refined between the two levels the growth is not measured (null).
  */
-export function assessPeak(values: number[], singular: boolean, spread: number): PeakFieldAssessment {
+export function assessPeak(values: number[], singular: boolean, spread: number, sizes?: number[]): PeakFieldAssessment {
   const L = values.length - 1;
   if (L < 1 || !values.every((v) => Number.isFinite(v) && v > 0)) return { singular, error: null, growth: null };
   const fine = values[L], coarse = values[L - 1];
-  if (singular) return { singular, error: null, growth: Math.log2(fine / coarse) };
+  if (singular) {
+    // Against the peak panels' own sizes where given (adaptive levels refine some panels only):
+    // p = log(E_L/E_{L−1}) / log(h_{L−1}/h_L); uniform levels halve h, and this is log2(E_L/E_{L−1}).
+    const ratio = sizes && sizes[L] > 0 && sizes[L - 1] > 0 ? sizes[L - 1] / sizes[L] : 2;
+    return { singular, error: null, growth: Math.abs(Math.log(ratio)) > 0.05 ? Math.log(fine / coarse) / Math.log(ratio) : null };
+  }
   return { singular, error: Math.max(Math.abs(fine - coarse) / fine, spread), growth: null };
 }

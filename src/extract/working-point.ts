@@ -54,8 +54,10 @@ export async function workingPointFields(finest: FinestSolution, K: number, work
   const force = kernel ? foldVectors(kernel, fields.rawForce) : fields.rawForce;
   const sharp = sharpPanels(mesh, closed, symmetryCuts(kernel));
   const perLevel = await coarsePeaks(coarse, K, working, closed, kernel, o);
-  const peakAssessments = peaks.map((pk, c) => assessPeak(perLevel ? [...perLevel.map((l) => l[c]), pk.value] : [pk.value],
-    pk.panel >= 0 && sharp[pk.panel] === 1, pk.panel >= 0 ? peakSpread(fields.excitation.field, mesh, pk.panel) : 0));
+  const peakAssessments = peaks.map((pk, c) => assessPeak(perLevel ? [...perLevel.map((l) => l[c].value), pk.value] : [pk.value],
+    pk.panel >= 0 && sharp[pk.panel] === 1, pk.panel >= 0 ? peakSpread(fields.excitation.field, mesh, pk.panel) : 0,
+    // Adaptive levels refine some panels only: the growth is measured against the peak panels' sizes.
+    perLevel && o.accuracy !== undefined ? [...perLevel.map((l) => l[c].size), pk.panel >= 0 ? Math.sqrt(P.areas[pk.panel]) : NaN] : undefined));
   return { excitation: fields.excitation, force, forcesComplete: fields.complete, peaks, critical, images, dielectric: fields.dielectric, sharp, peakAssessments };
 }
 
@@ -71,18 +73,19 @@ function symmetryCuts(kernel: KernelSpec | undefined): CutPlane[] {
 /**
  * The peak field of each conductor on each coarser level, computed as the finest level's is
  * (the same working potentials, the two-sided field on open sheets), so that the levels compare
- * like with like; coarsest first. Undefined without coarser levels.
+ * like with like; coarsest first, each with its peak panel's size. Undefined without coarser levels.
  */
 async function coarsePeaks(coarse: LevelSolves["coarse"], K: number, working: Float64Array, closed: boolean[],
-  kernel: KernelSpec | undefined, o: ResolvedOptions): Promise<number[][] | undefined> {
+  kernel: KernelSpec | undefined, o: ResolvedOptions): Promise<Array<Array<{ value: number; size: number }>> | undefined> {
   if (!coarse || coarse.length === 0) return undefined;
   const quiet: ResolvedOptions = { ...o, progress: undefined };
-  const out: number[][] = [];
+  const out: Array<Array<{ value: number; size: number }>> = [];
   for (const level of coarse) {
     const P = level.unit.panels;
     const images = kernel ? imageSet(P, kernel, { shared: true }) : undefined;
     const f = await conductorFields(level.unit.x, P, K, working, level.mesh.conductor, closed, images, quiet);
-    out.push(peakFields(f.excitation.field, level.mesh.conductor, K, P).map((pk) => pk.value));
+    // The peak panel's size (√area) with its value: adaptive levels do not halve every panel.
+    out.push(peakFields(f.excitation.field, level.mesh.conductor, K, P).map((pk) => ({ value: pk.value, size: pk.panel >= 0 ? Math.sqrt(P.areas[pk.panel]) : NaN })));
   }
   return out;
 }

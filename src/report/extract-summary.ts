@@ -4,6 +4,7 @@
  */
 import { remeshSentence } from "../mesh/remesh.js";
 import type { ExtractionResult } from "../extract/result.js";
+import { governingError } from "../extract/adaptive.js";
 import type { SceneExtraction } from "../extract/extract.js";
 import type { LengthUnit } from "../io/units.js";
 import { formatSI, formatNumber, formatArea, formatPoint, formatFieldStrength, formatLength, unitLabel, digitsFor, derivedErrors } from "../io/si.js";
@@ -125,7 +126,11 @@ export function extractionSummary(r: ExtractionResult | SceneExtraction, given?:
   if (r.accuracy) {
     const a = r.accuracy;
     out.push(`Accuracy: estimated error ±${formatNumber(100 * a.richardson.relativeError, 2)} % of the largest entry in each row`);
-    out.push(`  Richardson extrapolation over ${a.levels.map((l) => l.panels).join(" → ")} panels, order ${formatNumber(a.richardson.order, 3)} ${a.richardson.orderObserved ? "(observed)" : "(assumed; use --refine 2 to observe it)"}`);
+    const ad = a.adaptive;
+    if (ad) {
+      out.push(`  requested ${formatNumber(100 * ad.requested, 2)} % on every diagonal entry and every coupling above ${formatNumber(100 * ad.couplingThreshold, 2)} % of its row's diagonal: ${ad.reached ? "reached" : "NOT reached"}, worst ${formatNumber(100 * governingError(a.richardson, ad.governing), 2)} %`);
+      out.push(`  ${ad.marking === "dorfler" ? "adaptive" : "uniform"} refinement over ${a.levels.map((l) => l.panels).join(" → ")} panels; extrapolated with a fitted order ${Number.isFinite(a.richardson.order) ? formatNumber(a.richardson.order, 3) : "(none: no steady convergence)"}`);
+    } else out.push(`  Richardson extrapolation over ${a.levels.map((l) => l.panels).join(" → ")} panels, order ${formatNumber(a.richardson.order, 3)} ${a.richardson.orderObserved ? "(observed)" : "(assumed; use --refine 2 to observe it)"}`);
     out.push("  capacitances, charges and energy are printed to the digits this estimate supports");
     // Only nested refinements of the same flat panels bound from below (accuracy.ts).
     if (a.lowerBound) {
@@ -193,3 +198,4 @@ export function fieldCheckLine(c: ExtractionResult["conductors"][number], perMed
   const plusMinus = c.peakFieldError !== null ? ` ± ${formatNumber(100 * c.peakFieldError, 2)} %` : "";
   return `peak ${value}${plusMinus}${where} — ${verdict}`;
 }
+

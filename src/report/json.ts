@@ -111,6 +111,18 @@ export function extractionReport(r: ExtractionResult, ctx: ReportContext): Recor
           nested: r.accuracy.nested,
           refinementDisplacement: r.accuracy.displacement,
           lowerBound: r.accuracy.lowerBound,
+          adaptive: r.accuracy.adaptive
+            ? {
+                requested: r.accuracy.adaptive.requested,
+                reached: r.accuracy.adaptive.reached,
+                stop: r.accuracy.adaptive.stop,
+                marking: r.accuracy.adaptive.marking,
+                couplingThreshold: r.accuracy.adaptive.couplingThreshold,
+                governing: toRows(Float64Array.from(r.accuracy.adaptive.governing), k).map((row) => row.map((x) => x === 1)),
+                relativeErrorEstimate: toRows(Float64Array.from(r.accuracy.richardson.errorEstimate, (e, i) => (r.maxwell[i] !== 0 ? e / Math.abs(r.maxwell[i]) : 0)), k),
+                steps: r.accuracy.levels.length,
+              }
+            : null,
         }
       : null,
     fieldCheck: {
