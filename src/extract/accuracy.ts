@@ -122,18 +122,28 @@ export function sequenceRichardson(levels: Float64Array[], panels: readonly numb
   const n = panels.slice(first);
   const g = (q: number, j: number) => n[j] ** -q - n[j + 1] ** -q;
   const Q0 = 0.05, Q1 = 4;
+  // The misfit of the log increments at order q (the best log a is their mean).
+  const misfit = (qq: number) => {
+    let mean = 0;
+    for (let j = 0; j < m; j++) mean += Math.log(Math.abs(d[j]) / g(qq, j));
+    mean /= m;
+    let ss = 0;
+    for (let j = 0; j < m; j++) { const r = Math.log(Math.abs(d[j]) / g(qq, j)) - mean; ss += r * r; }
+    return ss;
+  };
   let q = NaN;
   if (steady) {
+    // A grid over the range, then a golden-section search in the grid cell around its best point.
+    const STEPS = 400, h = (Q1 - Q0) / STEPS;
     let best = Infinity;
-    for (let s = 0; s <= 800; s++) {
-      const qq = Q0 + (s * (Q1 - Q0)) / 800;
-      let mean = 0;
-      for (let j = 0; j < m; j++) mean += Math.log(Math.abs(d[j]) / g(qq, j));
-      mean /= m;
-      let ss = 0;
-      for (let j = 0; j < m; j++) { const r = Math.log(Math.abs(d[j]) / g(qq, j)) - mean; ss += r * r; }
-      if (ss < best) { best = ss; q = qq; }
+    for (let s = 0; s <= STEPS; s++) { const qq = Q0 + s * h, f = misfit(qq); if (f < best) { best = f; q = qq; } }
+    let lo = Math.max(Q0, q - h), hi = Math.min(Q1, q + h);
+    const r = (Math.sqrt(5) - 1) / 2;
+    for (let it = 0; it < 60; it++) {
+      const a = hi - r * (hi - lo), b = lo + r * (hi - lo);
+      if (misfit(a) < misfit(b)) hi = b; else lo = a;
     }
+    if (misfit(0.5 * (lo + hi)) <= best) q = 0.5 * (lo + hi);
   }
   const extrapolated = new Float64Array(k * k);
   const errorEstimate = new Float64Array(k * k);
