@@ -30,7 +30,9 @@ import { refineMarked, withLongestRefinementEdges } from "../mesh/adaptive-refin
 import { InputError } from "../errors.js";
 import type { PreparedBody } from "./dielectric-bodies.js";
 import type { ResolvedOptions } from "./options.js";
-import type { LevelResult } from "./result.js";
+import type { LevelResult, AdaptiveRecord } from "./result.js";
+
+export type { AdaptiveRecord } from "./result.js";
 import type { SymmetryLayout, BodyUnfolding } from "./symmetry-unfold.js";
 import { solveConductorLevel, solveDielectricLevel, type LevelSolve, type LevelSolves } from "./levels.js";
 import { capacitanceMatrices } from "./capacitance.js";
@@ -52,21 +54,6 @@ export const MAX_STEPS = 40;
 /** Most panels an adaptive run refines to unless told otherwise. */
 export const DEFAULT_MAX_PANELS = 200_000;
 
-/** What an adaptive run did and reached. */
-export interface AdaptiveRecord {
-  /** The requested relative accuracy. */
-  requested: number;
-  /** Coupling threshold used (fraction of the row's diagonal). */
-  couplingThreshold: number;
-  /** Whether every entry that matters reached the requested accuracy. */
-  reached: boolean;
-  /** Per entry (row-major K×K): 1 where the entry holds the refinement to R. */
-  governing: Uint8Array;
-  /** Uniform steps (dielectric bodies) or local ones. */
-  marking: "dorfler" | "uniform";
-  /** Why the loop stopped. */
-  stop: "reached" | "memory" | "steps" | "panels";
-}
 
 /** Which entries must meet R: diagonals, and couplings ≥ threshold × their row's diagonal. */
 export function governingEntries(maxwell: Float64Array, K: number, threshold = COUPLING_THRESHOLD): Uint8Array {

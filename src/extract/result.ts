@@ -9,7 +9,6 @@ import type { InterfaceTesting } from "../bem/interface.js";
 import type { AxisPlane, ImageSet, SymmetryPlane } from "../bem/images.js";
 import type { SolveInfo, UnitSolution } from "./solve.js";
 import type { RichardsonResult } from "./accuracy.js";
-import type { AdaptiveRecord } from "./adaptive.js";
 import type { PanelExcitation, PeakField } from "./excitation.js";
 import type { BodySummary, DielectricModel } from "./dielectric-model.js";
 
@@ -72,6 +71,22 @@ export interface LevelResult {
   info: SolveInfo;
   /** Largest distance of a new point from its edge's straight midpoint in the refinement that made this level, over the edge length (0 on the first level; refine.ts). */
   displacement?: number;
+}
+
+/** What an adaptive run did and reached (adaptive.ts). */
+export interface AdaptiveRecord {
+  /** The requested relative accuracy. */
+  requested: number;
+  /** Coupling threshold used (fraction of the row's diagonal). */
+  couplingThreshold: number;
+  /** Whether every entry that matters reached the requested accuracy. */
+  reached: boolean;
+  /** Per entry (row-major K×K): 1 where the entry holds the refinement to R. */
+  governing: Uint8Array;
+  /** Uniform steps (dielectric bodies) or local ones. */
+  marking: "dorfler" | "uniform";
+  /** Why the loop stopped. */
+  stop: "reached" | "memory" | "steps" | "panels";
 }
 
 export interface Accuracy {
