@@ -4,7 +4,7 @@
  * (1e-4, 1e-5) are measured in tests/bench/adaptive.bench.mjs.
  */
 import { describe, it, expect } from "vitest";
-import { extractMesh, boxMesh, plateMesh, sphereMesh } from "../../src/index.js";
+import { extractMesh, boxMesh, plateMesh, sphereMesh, concatMeshes } from "../../src/index.js";
 import { EPSILON_0 } from "../../src/extract/constants.js";
 import { dorflerMarking, panelIndicators } from "../../src/extract/error-indicator.js";
 import { sequenceRichardson } from "../../src/extract/accuracy.js";
@@ -137,5 +137,47 @@ describe("sequenceRichardson", () => {
     expect(r.extrapolated[0]).toBe(1.25);
     expect(r.errorEstimate[0]).toBeCloseTo(0.3, 12);
     expect(r.warnings.length).toBe(1);
+  });
+});
+
+describe("--accuracy with the rest of the model", () => {
+  it("with a dielectric body every step is uniform, and the coated sphere's C is within its estimate (closed form for a concentric shell)", async () => {
+    // Sphere radius 1 in a shell of εr 4 out to radius 2: C = 4πε0 / (1/(εr)(1/a − 1/b) + 1/b) (Gauss's law).
+    const a = 1, b = 2, er = 4;
+    const ref = K4 / ((1 / er) * (1 / a - 1 / b) + 1 / b);
+    const r = await extractMesh(sphereMesh({ radius: a, level: 1 }), { accuracy: 2e-2, dielectrics: [{ name: "coat", mesh: sphereMesh({ radius: b, level: 1 }), permittivity: er }] });
+    expect(r.accuracy!.adaptive!.marking).toBe("uniform");
+    const panels = r.accuracy!.levels.map((l) => l.panels);
+    for (let i = 1; i < panels.length; i++) expect(panels[i]).toBe(4 * panels[i - 1]);
+    const err = Math.abs(r.maxwell[0] - ref) / ref;
+    expect(err).toBeLessThanOrEqual(r.accuracy!.richardson.errorEstimate[0] / r.maxwell[0]);
+  });
+
+  it("a floating conductor and a pair: the reduced matrix and the governing couplings come from the extrapolated one", async () => {
+    const one = boxMesh({ size: [1, 1, 1], divisions: 3, center: [0, 0, 0] });
+    const two = boxMesh({ size: [1, 1, 1], divisions: 3, center: [1.6, 0, 0] });
+    const three = boxMesh({ size: [1, 1, 1], divisions: 3, center: [3.2, 0, 0] });
+    const m = concatMeshes([{ ...one, names: ["one"] }, { ...two, names: ["two"] }, { ...three, names: ["three"] }]);
+    const r = await extractMesh(m, { accuracy: 1e-2, floating: [false, true, false], potentials: [1, 0, 0] });
+    const g = r.accuracy!.adaptive!.governing;
+    // one–two and two–three couple strongly (above 5 %); one–three, behind two, less.
+    expect(g[1]).toBe(1);
+    expect(g[5]).toBe(1);
+    expect(r.reducedNames).toEqual(["one", "three"]);
+    expect(r.accuracy!.adaptive!.reached).toBe(true);
+    for (let e = 0; e < 9; e++) if (g[e]) expect(r.accuracy!.richardson.errorEstimate[e]).toBeLessThanOrEqual(1e-2 * Math.abs(r.maxwell[e]));
+  });
+});
+
+describe("--accuracy with symmetry planes", () => {
+  it("a half model with images both gives the full pair's Maxwell matrix within the estimates", async () => {
+    const half = boxMesh({ size: [1, 1, 1], divisions: 3, center: [1, 0, 0] });
+    const sym = await extractMesh(half, { accuracy: 1e-2, symmetry: [{ axis: "x", offset: 0, images: "both" }] });
+    const full = await extractMesh(concatMeshes([{ ...half, names: ["a"] }, { ...boxMesh({ size: [1, 1, 1], divisions: 3, center: [-1, 0, 0] }), names: ["b"] }]), { accuracy: 1e-2 });
+    expect(sym.k).toBe(2);
+    for (const e of [0, 1]) {
+      const tol = sym.accuracy!.richardson.errorEstimate[e] + full.accuracy!.richardson.errorEstimate[e];
+      expect(Math.abs(sym.maxwell[e] - full.maxwell[e])).toBeLessThanOrEqual(tol);
+    }
   });
 });
