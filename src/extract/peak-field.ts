@@ -139,7 +139,7 @@ export function peakSpread(field: ArrayLike<number>, mesh: SurfaceMesh, panel: n
  * Singular: the growth exponent p = log2(E_L / E_{L−1}) over the last two levels, those nearest
  * the asymptotic range (a singularity decides only the finest panels' values); with `sizes` (the
  * peak panel's √area per level) against the ratio of those sizes, as adaptive levels need. When the
- * peak panel was not refined between the two levels the growth is not measured (null).
+ * peak panel shrank by less than a factor 1.3 between the two levels the growth is not measured (null).
  */
 export function assessPeak(values: number[], singular: boolean, spread: number, sizes?: number[]): PeakFieldAssessment {
   const L = values.length - 1;
@@ -149,7 +149,8 @@ export function assessPeak(values: number[], singular: boolean, spread: number, 
     // Against the peak panels' own sizes where given (adaptive levels refine some panels only):
     // p = log(E_L/E_{L−1}) / log(h_{L−1}/h_L); uniform levels halve h, and this is log2(E_L/E_{L−1}).
     const ratio = sizes && sizes[L] > 0 && sizes[L - 1] > 0 ? sizes[L - 1] / sizes[L] : 2;
-    return { singular, error: null, growth: Math.abs(Math.log(ratio)) > 0.05 ? Math.log(fine / coarse) / Math.log(ratio) : null };
+    // A peak panel that shrank by less than 1.3 between the levels says little of the growth.
+    return { singular, error: null, growth: ratio >= 1.3 ? Math.log(fine / coarse) / Math.log(ratio) : null };
   }
   return { singular, error: Math.max(Math.abs(fine - coarse) / fine, spread), growth: null };
 }
