@@ -100,6 +100,9 @@ describe("content", () => {
   it("states the matrix's estimated error only when the report has one", () => {
     expect(accuracyNote({})).toBeUndefined();
     expect(accuracyNote({ accuracy: { relativeError: 0.0123 } })).toBe("Estimated relative error of the matrix (Richardson): 0.012");
+    const adaptive = { requested: 1e-3, reached: false, couplingThreshold: 0.05, marking: "dorfler" };
+    expect(accuracyNote({ accuracy: { relativeError: 0.0012, levels: [{ panels: 100 }, { panels: 180 }, { panels: 300 }], adaptive } }))
+      .toBe("Estimated relative error of the matrix (Richardson): 0.0012. Requested 0.10 % on every diagonal entry and every coupling above 5.0 % of its row's diagonal: NOT reached; adaptive refinement over 100 → 180 → 300 panels.");
   });
 
   it("shows a capacitance with its prefix, to the digits its estimate supports as the terminal does, and keeps the exact value beside it", () => {

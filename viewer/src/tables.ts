@@ -68,7 +68,11 @@ export function excitationLabel(e: Excitation, names: string[]): string {
 
 export function accuracyNote(report: Record<string, any>): string | undefined {
   if (report.accuracy?.relativeError === undefined) return undefined;
-  return `Estimated relative error of the matrix (Richardson): ${formatNumber(report.accuracy.relativeError, 2)}`;
+  const note = `Estimated relative error of the matrix (Richardson): ${formatNumber(report.accuracy.relativeError, 2)}`;
+  const a = report.accuracy.adaptive;
+  if (!a) return note;
+  const panels = (report.accuracy.levels as Array<{ panels: number }>).map((l) => l.panels).join(" → ");
+  return `${note}. Requested ${formatNumber(100 * a.requested, 2)} % on every diagonal entry and every coupling above ${formatNumber(100 * a.couplingThreshold, 2)} % of its row's diagonal: ${a.reached ? "reached" : "NOT reached"}; ${a.marking === "dorfler" ? "adaptive" : "uniform"} refinement over ${panels} panels.`;
 }
 
 /**
