@@ -112,7 +112,7 @@ export interface ViewerDataOptions {
 export function hotSpots(
   field: ArrayLike<number>, sigma: ArrayLike<number>, panelConductor: Uint32Array, k: number,
   centroids: Float64Array, breakdownField: number, count: number, separation: number,
-  sharpPanels?: ArrayLike<number>,
+  sharpPanels?: ArrayLike<number>, peaks?: ReadonlyArray<{ panel: number; value: number; at: [number, number, number] }>,
 ): HotSpot[] {
   const n = field.length;
   const best = new Int32Array(k).fill(-1);
@@ -135,16 +135,23 @@ export function hotSpots(
     }
     if (!near) chosen.push(p);
   }
-  chosen.sort((a, b) => field[b] - field[a]);
-  return chosen.map((p) => ({
-    panel: p,
-    conductor: panelConductor[p],
-    field: field[p],
-    sigma: sigma[p],
-    at: [centroids[3 * p], centroids[3 * p + 1], centroids[3 * p + 2]],
-    fieldRatio: field[p] / breakdownField,
-    ...(sharpPanels?.[p] ? { sharpEdge: true as const } : {}),
-  }));
+  // A conductor's peak as the report gives it (a smooth peak is recovered at a vertex, peak-field.ts).
+  const reported = new Map<number, { value: number; at: [number, number, number] }>();
+  for (const pk of peaks ?? []) if (pk.panel >= 0 && Number.isFinite(pk.value)) reported.set(pk.panel, pk);
+  const spots: HotSpot[] = chosen.map((p) => {
+    const r = reported.get(p);
+    const f = r ? r.value : field[p];
+    return {
+      panel: p,
+      conductor: panelConductor[p],
+      field: f,
+      sigma: sigma[p],
+      at: r ? [...r.at] as [number, number, number] : [centroids[3 * p], centroids[3 * p + 1], centroids[3 * p + 2]],
+      fieldRatio: f / breakdownField,
+      ...(sharpPanels?.[p] ? { sharpEdge: true as const } : {}),
+    };
+  });
+  return spots.sort((a, b) => b.field - a.field);
 }
 
 function range(a: ArrayLike<number>): [number, number] {
@@ -182,16 +189,16 @@ export function viewerData(result: ExtractionResult, opts: ViewerDataOptions = {
   for (let p = 0; p < n; p++) { openPanel[p] = closed[result.panelConductor[p]] ? 0 : 1; nOpen += openPanel[p]; }
 
   const excitations: ViewerExcitation[] = [];
-  const add = (id: string, potentials: number[], sigma: Float64Array, field: Float64Array, bound: boolean): void => {
+  const add = (id: string, potentials: number[], sigma: Float64Array, field: Float64Array, bound: boolean, peaks?: ExtractionResult["peaks"]): void => {
     excitations.push({
       id, potentials,
       sigma: Float32Array.from(sigma), field: Float32Array.from(field),
       sigmaRange: range(sigma), fieldRange: range(field), fieldMinPositive: minPositive(field),
       sheetFieldBound: bound,
-      hotSpots: hotSpots(field, sigma, result.panelConductor, k, P.centroids, result.breakdownField, nHot, separation, result.sharpPanels),
+      hotSpots: hotSpots(field, sigma, result.panelConductor, k, P.centroids, result.breakdownField, nHot, separation, result.sharpPanels, peaks),
     });
   };
-  add("scene", Array.from(result.potentials), result.excitation.sigma, result.excitation.field, false);
+  add("scene", Array.from(result.potentials), result.excitation.sigma, result.excitation.field, false, result.peaks);
 
   // unitCharges = 4πε·x, so potentials with 1/(4πε) at conductor j give the unit column's charges.
   const fourPiEps = 4 * Math.PI * result.permittivity;

@@ -132,12 +132,16 @@ describe.skipIf(missing !== undefined)("HTML report in Chromium", () => {
     expect(drawn.variance).toBeGreaterThan(50);
     expect(drawn.foreground).toBeGreaterThan(0.05 * drawn.pixels);
 
-    // Colour bar: |E| linear from 0 to the report's peak field.
+    // Colour bar: |E| linear from 0 to the largest panel field; the report's peak field (recovered
+    // at a vertex on a smooth surface, peak-field.ts) lies within a few per cent below it.
     const bar = page.locator("#sm-colourbar");
     expect(await bar.getAttribute("data-quantity")).toBe("field");
-    expect(Number(await bar.getAttribute("data-max"))).toBe(report.fieldCheck.peakField);
+    const barMax = Number(await bar.getAttribute("data-max"));
+    expect(barMax).toBe(Math.max(...result.excitation.field));
+    expect(report.fieldCheck.peakField).toBeLessThanOrEqual(barMax);
+    expect(report.fieldCheck.peakField).toBeGreaterThan(0.95 * barMax);
     expect(Number(await bar.getAttribute("data-min"))).toBe(0);
-    expect(await bar.locator("[data-role=max]").textContent()).toBe(formatSI(report.fieldCheck.peakField, "V/m"));
+    expect(await bar.locator("[data-role=max]").textContent()).toBe(formatSI(barMax, "V/m"));
     expect(await bar.locator("[data-role=min]").textContent()).toBe(formatSI(0, "V/m"));
 
     // Hot spots: the strongest is the report's peak; every conductor's peak is listed with its name.
@@ -575,7 +579,7 @@ describe("sigmesh view", () => {
       if (browser) {
         const requests: string[] = [], dialogs: string[] = [];
         const page = await openReport(url, requests, dialogs);
-        expect(Number(await page.locator("#sm-colourbar").getAttribute("data-max"))).toBe(report.fieldCheck.peakField);
+        expect(Number(await page.locator("#sm-colourbar").getAttribute("data-max"))).toBe(Math.max(...result.excitation.field));
         expect(requests.filter((r) => r !== url && !r.startsWith("data:") && !r.startsWith("blob:"))).toEqual([]);
         await page.close();
       }

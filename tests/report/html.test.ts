@@ -107,7 +107,12 @@ describe("viewerData", () => {
       // Closed bodies: Gauss's law at a conductor surface, |E| = |σ|/ε.
       expect(s.field[p]).toBeCloseTo(Math.abs(s.sigma[p]) / pair.permittivity, -Math.log10(s.fieldRange[1]) + 5);
     }
-    expect(s.fieldRange[1]).toBe(Math.max(...pair.conductors.map((c) => c.peakField)));
+    // The colour range ends at the largest panel field; the report's peaks are recovered at a
+    // vertex on smooth surfaces (peak-field.ts recoveredPeak), a few per cent below it at most.
+    const peak = Math.max(...pair.conductors.map((c) => c.peakField));
+    expect(s.fieldRange[1]).toBe(Math.max(...Array.from(pair.excitation.field)));
+    expect(peak).toBeLessThanOrEqual(s.fieldRange[1]);
+    expect(peak).toBeGreaterThan(0.95 * s.fieldRange[1]);
   });
 
   it("an isolated sphere at 1 V carries σ = ε/a and |E| = 1/a (closed form)", async () => {
