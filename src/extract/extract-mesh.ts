@@ -211,7 +211,8 @@ function reportedMatrices(levels: LevelResult[], K: number, names: string[], ori
   let accuracy: Accuracy | undefined;
   const refined = levels.length > 1;
   if (refined && (adaptive || levels.length >= 3 && o.assumedOrder === undefined)) {
-    // Three or more solves: the order observed, in the panel count (adaptive or uniform).
+    // Three or more solves, adaptive or uniform: the power law in the panel count fitted over the
+    // last ones (accuracy.ts sequenceRichardson); two uniform levels assume the order below.
     const sym = levels.map((l) => capacitanceMatrices(l.maxwell, K, names).maxwell);
     const displacement = levels.reduce((m, l) => Math.max(m, l.displacement ?? 0), 0);
     const nested = displacement <= NESTED_DISPLACEMENT;
