@@ -15,7 +15,8 @@ import { sweepFiles, mergeSweepCsv } from "../src/report/sweep-table.js";
 import { displayText } from "../src/io/display-text.js";
 import { unitLabel } from "../src/io/si.js";
 import { action, printWarnings, reportFailure } from "./common.js";
-import { collect, countOption, solveSettings } from "./options.js";
+import { accuracyOption, collect, countOption, numberOption, solveSettings } from "./options.js";
+import { checkedAccuracy } from "../src/extract/options.js";
 
 
 export interface SweepCliOptions {
@@ -29,6 +30,8 @@ export interface SweepCliOptions {
   solver: string;
   tol: string;
   refine: string;
+  accuracy?: string;
+  maxPanels?: string;
   resume?: boolean;
   quiet?: boolean;
 }
@@ -37,6 +40,10 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
   if (extname(scene).toLowerCase() !== ".json") throw new InputError("a sweep takes a scene file (.json) with parameters", scene);
   if (opts.vary.length === 0) throw new InputError("--vary NAME=START:STOP:COUNT is required (e.g. --vary gap=1:5:9)");
   const { method, solver, tolerance, refine } = solveSettings(opts);
+  const accuracy = accuracyOption(opts.accuracy);
+  const maxPanels = opts.maxPanels === undefined ? undefined : numberOption(opts.maxPanels, "--max-panels", (x) => Number.isInteger(x) && x > 0, "a positive whole number of panels");
+  if (accuracy !== undefined && refine > 0) throw new InputError("--accuracy and --refine are two ways to refine: give one");
+  if (accuracy !== undefined) checkedAccuracy(accuracy);
   const processes = opts.processes === undefined ? 0 : countOption(opts.processes, "--processes", 256);
   const axes = opts.vary.map(parseVary);
   const points = sweepGrid(axes);
@@ -48,7 +55,7 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
   const names = sceneConductorNames(scene, points[0]);
   const entries = opts.entries === undefined ? defaultEntries(names) : parseEntries(opts.entries, names);
   // The journal keeps finished points across a failed or interrupted run; --resume reuses them.
-  const runOpts = { method, solver, tolerance, refine, processes } as const;
+  const runOpts = { method, solver, tolerance, refine, accuracy, maxPanels, processes } as const;
   const plan = planResume(scene, points, indices, runOpts, opts.csv, Boolean(opts.resume));
   const { journalFile, toRun } = plan;
   const kept = plan.kept.size;
@@ -135,6 +142,8 @@ export function registerSweep(program: Command): void {
     .option("--solver <solver>", "auto, direct, iterative or compressed", "auto")
     .option("--tol <relative>", "requested relative accuracy of the capacitances", "1e-4")
     .option("--refine <K>", "solve on K uniform refinements at each point and extrapolate", "0")
+    .option("--accuracy <relative>", "refine each point where the error is until its capacitances are estimated within this relative error, e.g. 1e-3 or 0.1% (instead of --refine)")
+    .option("--max-panels <N>", "with --accuracy: the most panels per point (default 200000)")
     .option("--resume", "keep the points an earlier, failed or interrupted run finished (kept in <csv>.journal) and run only the others")
     .option("--quiet", "print only errors and warnings")
     .action(action((scene: string, opts: SweepCliOptions) => runSweepCommand(scene, opts)));

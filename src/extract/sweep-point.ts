@@ -13,7 +13,7 @@ import { InputError } from "../errors.js";
 import { extract, extractionWarnings, type ExtractSettings } from "./extract.js";
 
 /** The settings a sweep passes to each point (plain JSON). */
-export type PointSettings = Pick<ExtractSettings, "method" | "solver" | "tolerance" | "refine">;
+export type PointSettings = Pick<ExtractSettings, "method" | "solver" | "tolerance" | "refine" | "accuracy" | "maxPanels">;
 
 async function main(argv: string[]): Promise<number> {
   const [scene, settingsText] = argv;

@@ -176,6 +176,10 @@ export interface SweepRunOptions {
   solver?: "auto" | "direct" | "iterative" | "compressed";
   tolerance?: number;
   refine?: number;
+  /** Requested relative accuracy at every point (adaptive refinement; excludes refine). */
+  accuracy?: number;
+  /** With accuracy: the most panels per point. */
+  maxPanels?: number;
   /** Child processes at once (each with one thread); 0 runs the points in this process, one after another, on every core. */
   processes?: number;
   /** Called after each point (for progress). */
@@ -183,8 +187,8 @@ export interface SweepRunOptions {
 }
 
 /** The settings every point is extracted with. */
-function pointSettings(opts: SweepRunOptions): Required<PointSettings> {
-  return { method: opts.method ?? "galerkin", solver: opts.solver ?? "auto", tolerance: opts.tolerance ?? 1e-4, refine: opts.refine ?? 0 };
+function pointSettings(opts: SweepRunOptions): PointSettings {
+  return { method: opts.method ?? "galerkin", solver: opts.solver ?? "auto", tolerance: opts.tolerance ?? 1e-4, refine: opts.refine ?? 0, accuracy: opts.accuracy, maxPanels: opts.maxPanels };
 }
 
 /** An InputError of point `k` attributed to the scene and the point. */
@@ -352,7 +356,8 @@ export function sweepPointKey(scene: string, point: Record<string, number>, opts
   };
   for (const key of ["conductors", "dielectrics"]) if (Array.isArray(value[key])) (value[key] as unknown[]).forEach(collect);
   const h = createHash("sha256");
-  h.update(JSON.stringify({ version, method: opts.method ?? "galerkin", solver: opts.solver ?? "auto", tolerance: opts.tolerance ?? 1e-4, refine: opts.refine ?? 0 }));
+  // accuracy and maxPanels only when given: journals of runs without them keep their key.
+  h.update(JSON.stringify({ version, method: opts.method ?? "galerkin", solver: opts.solver ?? "auto", tolerance: opts.tolerance ?? 1e-4, refine: opts.refine ?? 0, accuracy: opts.accuracy, maxPanels: opts.maxPanels }));
   h.update("\n");
   h.update(text);
   for (const f of [...new Set(files)].sort()) {

@@ -18,6 +18,9 @@ beforeAll(() => {
   if (!existsSync(cli)) throw new Error("dist/cli/main.js missing: run `npm run build` first");
   dir = mkdtempSync(join(tmpdir(), "sigmesh-accuracy-"));
   writeFileSync(join(dir, "cube.json"), JSON.stringify({ unit: "mm", conductors: [{ name: "cube", shape: { box: { size: [10, 10, 10], divisions: 4 } } }] }));
+  writeFileSync(join(dir, "cubes.json"), JSON.stringify({ unit: "mm", parameters: { gap: 4 }, conductors: [
+    { name: "a", shape: { box: { size: [4, 4, 4], divisions: 2 } } },
+    { name: "b", shape: { box: { size: [4, 4, 4], divisions: 2 } }, place: { translate: ["=gap + 4", 0, 0] } }] }));
 });
 afterAll(() => { if (dir) rmSync(dir, { recursive: true, force: true }); });
 
@@ -47,5 +50,19 @@ describe("sigmesh extract --accuracy", () => {
     expect(r.err.trim().split("\n")).toHaveLength(1);
     expect(r.err).toMatch(message);
     expect(existsSync(join(dir, "bad.json"))).toBe(false);
+  });
+
+  it("sweep --accuracy extracts every point to the requested accuracy, and refuses it with --refine", () => {
+    const r = run(["sweep", "cubes.json", "--vary", "gap=4:8:2", "--accuracy", "2%", "--csv", "sweep.csv", "--quiet"]);
+    expect(r.code).toBe(0);
+    const rows = readFileSync(join(dir, "sweep.csv"), "utf8").trim().split("\n");
+    expect(rows).toHaveLength(3);
+    // The coupling falls as the gap widens.
+    const cm = rows.slice(1).map((line) => Number(line.split(",").at(-1)));
+    expect(cm[1]).toBeLessThan(cm[0]);
+    const bad = run(["sweep", "cubes.json", "--vary", "gap=4:8:2", "--accuracy", "2%", "--refine", "1", "--csv", "bad.csv"]);
+    expect(bad.code).toBe(2);
+    expect(bad.err).toMatch(/--accuracy and --refine are two ways to refine/);
+    expect(existsSync(join(dir, "bad.csv"))).toBe(false);
   });
 });
