@@ -63,6 +63,8 @@ export interface ReportData {
     orderObserved?: boolean;
     errorEstimate?: number[][];
     relativeError?: number;
+    /** With --accuracy (json.ts). */
+    adaptive?: { requested: number; reached: boolean; marking: string; couplingThreshold: number; steps: number } | null;
   } | null;
   fieldCheck?: {
     breakdownField?: number;
@@ -134,6 +136,13 @@ export function reportData(value: unknown, file?: string): ReportData {
     });
     if (a.errorEstimate !== undefined) matrix(a.errorEstimate, "accuracy.errorEstimate", k);
     if (a.relativeError !== undefined) num(a.relativeError, "accuracy.relativeError");
+    if (a.adaptive !== undefined && a.adaptive !== null) {
+      if (!isObject(a.adaptive)) fail("accuracy.adaptive", "expected an object or null");
+      const ad = a.adaptive as Record<string, unknown>;
+      for (const key of ["requested", "couplingThreshold", "steps"]) num(ad[key], `accuracy.adaptive.${key}`);
+      if (typeof ad.reached !== "boolean") fail("accuracy.adaptive.reached", "expected true or false");
+      if (ad.marking !== "dorfler" && ad.marking !== "uniform") fail("accuracy.adaptive.marking", "expected dorfler or uniform");
+    }
   }
   if (top.input !== undefined && isObject(top.input) && top.input.unit !== undefined) {
     if (typeof top.input.unit !== "string" || !(top.input.unit in { m: 1, cm: 1, mm: 1, um: 1, in: 1, mil: 1 })) fail("input.unit", "expected one of m, cm, mm, um, in, mil");
@@ -370,7 +379,10 @@ export function markdownReport(data: ReportData, opts: { title?: string } = {}):
   out.push("");
   if (data.accuracy) {
     const a = data.accuracy;
-    if (a.relativeError !== undefined) out.push(`Estimated error: ±${formatNumber(100 * a.relativeError, 2)} % of the largest entry in each row (Richardson extrapolation over ${a.levels.map((l) => l.panels).join(" → ")} panels${a.order !== undefined ? `, order ${formatNumber(a.order, 3)} ${a.orderObserved ? "observed" : "assumed"}` : ""}).`);
+    const order = typeof a.order === "number" && Number.isFinite(a.order) ? `, order ${formatNumber(a.order, 3)} ${a.orderObserved ? "observed" : "assumed"}`
+      : a.levels.length >= 3 ? ", no steady convergence: the finest values with twice their last change" : "";
+    if (a.relativeError !== undefined) out.push(`Estimated error: ±${formatNumber(100 * a.relativeError, 2)} % of the largest entry in each row (Richardson extrapolation over ${a.levels.map((l) => l.panels).join(" → ")} panels${order}).`);
+    if (a.adaptive) out.push("", `Requested ${formatNumber(100 * a.adaptive.requested, 2)} % on every diagonal entry and every coupling above ${formatNumber(100 * a.adaptive.couplingThreshold, 2)} % of its row's diagonal: ${a.adaptive.reached ? "reached" : "NOT reached"} (${a.adaptive.marking === "dorfler" ? "adaptive" : "uniform"} refinement, ${a.adaptive.steps} solves).`);
     out.push("");
     out.push(...markdownTable(["panels", ...names.map((n) => `C(${n})`)],
       [...a.levels.map((l) => [String(l.panels), ...l.maxwell.map((row, i) => formatSI(row[i], "F"))]),

@@ -130,7 +130,8 @@ export function extractionSummary(r: ExtractionResult | SceneExtraction, given?:
     if (ad) {
       out.push(`  requested ${formatNumber(100 * ad.requested, 2)} % on every diagonal entry and every coupling above ${formatNumber(100 * ad.couplingThreshold, 2)} % of its row's diagonal: ${ad.reached ? "reached" : "NOT reached"}, worst ${formatNumber(100 * governingError(a.richardson, ad.governing), 2)} %`);
       out.push(`  ${ad.marking === "dorfler" ? "adaptive" : "uniform"} refinement over ${a.levels.map((l) => l.panels).join(" → ")} panels; extrapolated with a fitted order ${Number.isFinite(a.richardson.order) ? formatNumber(a.richardson.order, 3) : "(none: no steady convergence)"}`);
-    } else out.push(`  Richardson extrapolation over ${a.levels.map((l) => l.panels).join(" → ")} panels, order ${formatNumber(a.richardson.order, 3)} ${a.richardson.orderObserved ? "(observed)" : "(assumed; use --refine 2 to observe it)"}`);
+    } else if (!Number.isFinite(a.richardson.order)) out.push(`  over ${a.levels.map((l) => l.panels).join(" → ")} panels: no steady convergence, the finest values are reported with twice their last change as the error`);
+    else out.push(`  Richardson extrapolation over ${a.levels.map((l) => l.panels).join(" → ")} panels, order ${formatNumber(a.richardson.order, 3)} ${a.richardson.orderObserved ? "(observed)" : "(assumed; use --refine 2 to observe it)"}`);
     out.push("  capacitances, charges and energy are printed to the digits this estimate supports");
     // Only nested refinements of the same flat panels bound from below (accuracy.ts).
     if (a.lowerBound) {

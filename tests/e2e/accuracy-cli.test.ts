@@ -26,7 +26,7 @@ afterAll(() => { if (dir) rmSync(dir, { recursive: true, force: true }); });
 
 describe("sigmesh extract --accuracy", () => {
   it("refines to 1 % and says so in the summary and the JSON report (cube: Hwang & Mascagni 0.6606782·4πε0·L)", () => {
-    const r = run(["extract", "cube.json", "--accuracy", "1%", "--json", "out.json"]);
+    const r = run(["extract", "cube.json", "--accuracy", "1%", "--json", "out.json", "--markdown", "out.md"]);
     expect(r.code).toBe(0);
     expect(r.out).toMatch(/requested 1\.0 % on every diagonal entry and every coupling above 5\.0 % of its row's diagonal: reached, worst \d/);
     expect(r.out).toMatch(/adaptive refinement over 192 → \d+ → \d+/);
@@ -37,6 +37,7 @@ describe("sigmesh extract --accuracy", () => {
     const c = j.capacitance.maxwell[0][0], ref = 4 * Math.PI * 8.8541878128e-12 * 0.6606782 * 0.01;
     expect(Math.abs(c - ref)).toBeLessThanOrEqual(j.accuracy.errorEstimate[0][0]);
     expect(j.accuracy.errorEstimate[0][0] / c).toBeLessThanOrEqual(0.01);
+    expect(readFileSync(join(dir, "out.md"), "utf8")).toMatch(/Requested 1\.0 % on every diagonal entry and every coupling above 5\.0 % of its row's diagonal: reached \(adaptive refinement, \d+ solves\)\./);
   });
 
   it.each([
