@@ -58,7 +58,7 @@ export async function workingPointFields(finest: FinestSolution, K: number, work
   // Closed conductors in one medium: a smooth peak is the recovered (vertex-averaged) field, and
   // the field check takes it too (the same panel decides both there).
   const recover = (c: number) => !model && closed[c] && peaks[c].panel >= 0 && sharp[peaks[c].panel] === 0;
-  const recovered = peaks.map((pk, c) => (recover(c) ? recoveredPeak(fields.excitation.field, mesh, P.areas, c, onEdge) : null));
+  const recovered = peaks.map((_, c) => (recover(c) ? recoveredPeak(fields.excitation.field, mesh, P.areas, c, onEdge) : null));
   recovered.forEach((rec, c) => {
     if (!rec) return;
     const p = mesh.positions, v = 3 * rec.vertex;
