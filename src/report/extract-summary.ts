@@ -162,7 +162,7 @@ export function extractionSummary(r: ExtractionResult | SceneExtraction, given?:
   out.push(perMedium
     ? `Field check (each panel against the medium just outside it: ${r.media.map((m) => `${m.name} ${formatFieldStrength(m.breakdownField)}`).join(", ")})`
     : `Field check (breakdown field ${formatFieldStrength(r.breakdownField)})`);
-  for (const c of r.conductors) out.push(`  ${c.name}: ${fieldCheckLine(c, perMedium, ctx.unit)}`);
+  for (const c of r.conductors) out.push(`  ${c.name}: ${fieldCheckLine(c, perMedium, ctx.unit, r.accuracy !== undefined)}`);
   out.push("");
   out.push("Cautions");
   for (const line of cautionsFor(r.potentials, { perMedium: r.media.length > 1 })) out.push(`  - ${line}`);
@@ -182,14 +182,18 @@ export function extractionSummary(r: ExtractionResult | SceneExtraction, given?:
  * is no breakdown verdict: the exact field there is unbounded and the computed one depends on the
  * mesh, so the line says so, with the growth exponent when refinement measured it.
  */
-export function fieldCheckLine(c: ExtractionResult["conductors"][number], perMedium: boolean, unit: LengthUnit): string {
+export function fieldCheckLine(c: ExtractionResult["conductors"][number], perMedium: boolean, unit: LengthUnit, refined = false): string {
   const where = perMedium
     ? `; critical in ${c.medium} (${formatFieldStrength(c.mediumBreakdownField)}): ${formatFieldStrength(c.criticalField)} at ${formatPoint(c.criticalFieldAt, unit, 3)}`
     : "";
   if (c.peakFieldSingular) {
     const growth = c.peakFieldGrowth !== null
       ? `the computed peak grows as the mesh is refined (exponent ${formatNumber(c.peakFieldGrowth, 2)})`
-      : "the computed peak grows as the mesh is refined (run with --refine 1 or more to measure how fast)";
+      : refined
+        // Refined, yet no growth: per-level peaks are not computed with dielectric bodies or images
+        // "both", and an adaptive step may have left the peak panel as it was.
+        ? "the computed peak grows as the mesh is refined (its rate is not measured in this run)"
+        : "the computed peak grows as the mesh is refined (run with --refine 1 or more to measure how fast)";
     return `peak ${formatFieldStrength(c.peakField)} at ${formatPoint(c.peakFieldAt, unit, 3)}${where} — sharp edge: ${growth}; model the real edge radius`;
   }
   const margin = c.fieldRatio > 0 ? 1 / c.fieldRatio : Infinity;

@@ -174,6 +174,10 @@ describe("reports", () => {
     expect(singular).toContain("sharp edge: the computed peak grows as the mesh is refined (exponent 0.69); model the real edge radius");
     const unrefined = fieldCheckLine({ ...base, peakFieldSingular: true, peakFieldError: null, peakFieldGrowth: null }, false, "m");
     expect(unrefined).toContain("--refine 1 or more");
+    // Refined, yet no growth (dielectric bodies, images "both", an adaptive step that left the peak): no advice to refine.
+    const refinedNoGrowth = fieldCheckLine({ ...base, peakFieldSingular: true, peakFieldError: null, peakFieldGrowth: null }, false, "m", true);
+    expect(refinedNoGrowth).toContain("its rate is not measured in this run");
+    expect(refinedNoGrowth).not.toContain("--refine");
     const below = fieldCheckLine({ ...base, fieldRatio: 0.5, peakFieldSingular: false, peakFieldError: null, peakFieldGrowth: null }, false, "m");
     expect(below).toContain("2.00× below breakdown");
   });
