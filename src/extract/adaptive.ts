@@ -34,7 +34,7 @@ import type { LevelResult, AdaptiveRecord } from "./result.js";
 
 export type { AdaptiveRecord } from "./result.js";
 import type { SymmetryLayout, BodyUnfolding } from "./symmetry-unfold.js";
-import { solveConductorLevel, solveDielectricLevel, type LevelSolve, type LevelSolves } from "./levels.js";
+import { solveConductorLevel, solveDielectricLevel, refineModel, type LevelSolve, type LevelSolves } from "./levels.js";
 import { capacitanceMatrices } from "./capacitance.js";
 import { sequenceRichardson, type RichardsonResult } from "./accuracy.js";
 import { panelIndicators, dorflerMarking, panelSag } from "./error-indicator.js";
@@ -124,14 +124,7 @@ export async function solveAdaptive(oriented: SurfaceMesh, bodies: PreparedBody[
       const bodyPanels = bodies.reduce((s, b) => s + b.mesh.triangles.length / 3, 0);
       if (4 * (n + bodyPanels) > maxPanels) { stop = "panels"; break; }
       if (!fits(4 * (n + bodyPanels), K, o, "interfaces")) { stop = "memory"; break; }
-      const r = refineLevel(mesh);
-      mesh = r.mesh;
-      displacement = r.displacement;
-      bodies = bodies.map((b) => {
-        const rb = refineLevel(b.mesh);
-        displacement = Math.max(displacement, rb.displacement);
-        return { ...b, mesh: rb.mesh };
-      });
+      ({ mesh, bodies, displacement } = refineModel(mesh, bodies));
       continue;
     }
     const weights = new Float64Array(oriented.names.length);

@@ -55,27 +55,27 @@ export async function solveLevels(oriented: SurfaceMesh, bodies: PreparedBody[] 
     if (coarse && solve) coarse.push({ mesh, unit: solve.unit });
     // How far this refinement moved the geometry off the coarse panels (conductors and bodies).
     let displacement = 0;
-    if (level > 0) {
-      const r = refineLevel(mesh);
-      mesh = r.mesh;
-      displacement = r.displacement;
-    }
-    if (bodies) {
-      if (level > 0) {
-        bodies = bodies.map((b) => {
-          const r = refineLevel(b.mesh);
-          displacement = Math.max(displacement, r.displacement);
-          return { ...b, mesh: r.mesh };
-        });
-      }
-      solve = await solveDielectricLevel(mesh, bodies, unfold, level, layout, o);
-    } else {
-      solve = await solveConductorLevel(mesh, level, layout, o);
-    }
+    if (level > 0) ({ mesh, bodies, displacement } = refineModel(mesh, bodies));
+    solve = bodies ? await solveDielectricLevel(mesh, bodies, unfold, level, layout, o) : await solveConductorLevel(mesh, level, layout, o);
     levels.push({ ...solve.level, displacement });
   }
   if (!solve) throw new Error("no level solved");
   return { levels, mesh, unit: solve.unit, patterns: solve.patterns, dielectric: solve.dielectric, bodies, coarse };
+}
+
+/**
+ * One uniform refinement of the conductors and of the dielectric bodies, with the largest
+ * displacement of a new point off its straight midpoint over all of them (refine.ts).
+ */
+export function refineModel(mesh: SurfaceMesh, bodies: PreparedBody[] | undefined): { mesh: SurfaceMesh; bodies: PreparedBody[] | undefined; displacement: number } {
+  const r = refineLevel(mesh);
+  let displacement = r.displacement;
+  const refined = bodies?.map((b) => {
+    const rb = refineLevel(b.mesh);
+    displacement = Math.max(displacement, rb.displacement);
+    return { ...b, mesh: rb.mesh };
+  });
+  return { mesh: r.mesh, bodies: refined, displacement };
 }
 
 /**
