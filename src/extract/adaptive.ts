@@ -24,7 +24,7 @@
  * reached.
  */
 import type { SurfaceMesh } from "../mesh/model.js";
-import { refineLevel } from "../mesh/refine.js";
+import { refineLevel, edgePoints } from "../mesh/refine.js";
 import { meshEdges } from "../mesh/edges.js";
 import { refineMarked, withLongestRefinementEdges } from "../mesh/adaptive-refine.js";
 import { InputError } from "../errors.js";
@@ -135,10 +135,11 @@ export async function solveAdaptive(oriented: SurfaceMesh, bodies: PreparedBody[
       for (let t = 0; t < n; t++) s += x0[t * k + j];
       weights[j] = s !== 0 ? 1 / Math.abs(s) : 0;
     }
+    // The new points refinement would place (without building the refined mesh): the curved panels' sag.
     const edges = meshEdges(mesh);
-    const uniform = refineLevel(mesh);
-    const sag = uniform.displacement > 0 ? panelSag(mesh, uniform.mesh.positions, edges.edgeOfHalf, edges.v0, edges.v1) : undefined;
-    const eta = panelIndicators(mesh, solve.patterns, k, weights, sag);
+    const points = edgePoints(mesh, edges);
+    const sag = points.displacement.some((d) => d > 0) ? panelSag(mesh, edges, points.positions) : undefined;
+    const eta = panelIndicators(mesh, solve.unit.panels.areas, solve.patterns, k, weights, sag);
     const marked = dorflerMarking(eta, DORFLER_THETA);
     let count = 0;
     for (let t = 0; t < n; t++) count += marked[t];
@@ -152,6 +153,7 @@ export async function solveAdaptive(oriented: SurfaceMesh, bodies: PreparedBody[
     if (count === n) {
       // Every panel: the uniform split into four similar triangles (better shaped than bisection's
       // four), then the refinement edges set afresh.
+      const uniform = refineLevel(mesh);
       mesh = withLongestRefinementEdges(uniform.mesh);
       displacement = uniform.displacement;
     } else {

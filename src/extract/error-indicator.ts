@@ -28,23 +28,17 @@
  * the reported estimate comes from the sequence of solves (accuracy.ts).
  */
 import type { SurfaceMesh } from "../mesh/model.js";
+import type { MeshEdges } from "../mesh/edges.js";
 
 /**
  * Per-panel indicators of the unit solutions `xs` (each n×k, column j = conductor j at 1 V, as the
- * solver returns them), each column weighted by `weights[j]` (e.g. 1/Σx_j for a relative error).
+ * solver returns them) on panels of `area` (the solve's PanelSet areas), each column weighted by
+ * `weights[j]` (e.g. 1/Σx_j for a relative error).
  * `sag`: per panel, the distance of the true surface from the flat panel (0 on flat faces; metres).
  */
-export function panelIndicators(mesh: SurfaceMesh, xs: Float64Array[], k: number, weights: Float64Array, sag?: Float64Array): Float64Array {
-  const p = mesh.positions, tr = mesh.triangles, cond = mesh.conductor;
-  const nt = cond.length, nv = p.length / 3;
-  const area = new Float64Array(nt);
-  for (let t = 0; t < nt; t++) {
-    const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], c = 3 * tr[3 * t + 2];
-    const ux = p[b] - p[a], uy = p[b + 1] - p[a + 1], uz = p[b + 2] - p[a + 2];
-    const vx = p[c] - p[a], vy = p[c + 1] - p[a + 1], vz = p[c + 2] - p[a + 2];
-    const nx = uy * vz - uz * vy, ny = uz * vx - ux * vz, nz = ux * vy - uy * vx;
-    area[t] = 0.5 * Math.sqrt(nx * nx + ny * ny + nz * nz);
-  }
+export function panelIndicators(mesh: SurfaceMesh, area: ArrayLike<number>, xs: Float64Array[], k: number, weights: Float64Array, sag?: Float64Array): Float64Array {
+  const tr = mesh.triangles;
+  const nt = mesh.conductor.length, nv = mesh.positions.length / 3;
   // Vertices are shared within one conductor only (conductors do not touch), so a vertex's
   // average is over its own conductor's panels.
   const out = new Float64Array(nt);
@@ -102,16 +96,16 @@ export function dorflerMarking(indicators: Float64Array, theta: number): Uint8Ar
 
 /**
  * Per panel, the distance of the true surface from the flat panel, from the new points refinement
- * would place (`refinedPositions`: the uniform refinement's positions, vertex nv + e the new point
- * of edge e) and the edges of the panels (`edgeOfHalf`: edge of each corner's outgoing side).
+ * would place on the edges of `edges` (`points`: as refine.ts `edgePoints` returns them, the mesh's
+ * vertices then vertex nv + e the new point of edge e).
  */
-export function panelSag(mesh: SurfaceMesh, refinedPositions: Float64Array, edgeOfHalf: Uint32Array, v0: Uint32Array, v1: Uint32Array): Float64Array {
+export function panelSag(mesh: SurfaceMesh, edges: MeshEdges, points: Float64Array): Float64Array {
   const p = mesh.positions, nv = p.length / 3, nt = mesh.conductor.length;
-  const ne = v0.length;
+  const { v0, v1, edgeOfHalf } = edges, ne = edges.count;
   const d = new Float64Array(ne);
   for (let e = 0; e < ne; e++) {
     const a = 3 * v0[e], b = 3 * v1[e], o = 3 * (nv + e);
-    d[e] = Math.hypot(refinedPositions[o] - 0.5 * (p[a] + p[b]), refinedPositions[o + 1] - 0.5 * (p[a + 1] + p[b + 1]), refinedPositions[o + 2] - 0.5 * (p[a + 2] + p[b + 2]));
+    d[e] = Math.hypot(points[o] - 0.5 * (p[a] + p[b]), points[o + 1] - 0.5 * (p[a + 1] + p[b + 1]), points[o + 2] - 0.5 * (p[a + 2] + p[b + 2]));
   }
   const sag = new Float64Array(nt);
   for (let t = 0; t < nt; t++) sag[t] = (2 / 3) * (d[edgeOfHalf[3 * t]] + d[edgeOfHalf[3 * t + 1]] + d[edgeOfHalf[3 * t + 2]]) / 3;

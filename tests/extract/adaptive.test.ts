@@ -89,7 +89,7 @@ describe("indicators and marking", () => {
       const a = 3 * tr[3 * t], b = 3 * tr[3 * t + 1], c = 3 * tr[3 * t + 2];
       areas[t] = 0.5 * Math.abs((p[b] - p[a]) * (p[c + 1] - p[a + 1]) - (p[c] - p[a]) * (p[b + 1] - p[a + 1]));
     }
-    const eta0 = panelIndicators(m, [Float64Array.from(areas)], 1, Float64Array.of(1));
+    const eta0 = panelIndicators(m, areas, [Float64Array.from(areas)], 1, Float64Array.of(1));
     expect(Math.max(...eta0)).toBeLessThan(1e-15);
     // A rim-singular density: σ = 1/√(distance to the nearest side).
     const x = new Float64Array(n);
@@ -101,7 +101,7 @@ describe("indicators and marking", () => {
       const dist = Math.min(0.5 - Math.abs(cx), 0.5 - Math.abs(cy));
       x[t] = areas[t] / Math.sqrt(dist);
     }
-    const eta = panelIndicators(m, [x], 1, Float64Array.of(1));
+    const eta = panelIndicators(m, areas, [x], 1, Float64Array.of(1));
     for (let t = 0; t < n; t++) {
       const p = m.positions, tr = m.triangles;
       const onRim = [0, 1, 2].some((j) => Math.abs(Math.abs(p[3 * tr[3 * t + j]]) - 0.5) < 1e-12 || Math.abs(Math.abs(p[3 * tr[3 * t + j] + 1]) - 0.5) < 1e-12);
