@@ -116,28 +116,34 @@ export interface RecoveredPeak {
 }
 
 /**
- * The peak of a smooth surface's field, recovered from the panel fields: at each vertex of
- * conductor c off any sharp edge (`onEdge`, sharpVertices), the area-weighted mean of the fields of
- * c's panels around it, and the largest of these. The piecewise-constant charge scatters from panel
+ * The peak of a smooth surface's field, recovered from the panel fields: at each vertex off any
+ * sharp edge (`onEdge`, sharpVertices), the area-weighted mean of the fields of the panels around
+ * it, and per conductor the largest of these. The piecewise-constant charge scatters from panel
  * to panel by O(h), and the largest panel picks the worst of that scatter: on a sphere of 1 mm 1.5 mm
  * over a grounded plane the largest panel field stalls 1e-3 above Kelvin's value from 5,120 panels
  * on, while the vertex average at the lowest point converges as h² (−3.2e-2, −8.7e-3, −2.2e-3,
  * −5.4e-4 over 320 … 20,480 panels; tests/extract/peak-field.test.ts). Averaging recovers the
- * smooth field as the ZZ-type estimators do (error-indicator.ts). Null without such a vertex.
+ * smooth field as the ZZ-type estimators do (error-indicator.ts). One pass for every conductor
+ * asked for (`want`): conductors share no vertices (touching ones are refused), so each vertex's
+ * panels are its conductor's. Null for a conductor not asked for or without such a vertex.
  */
-export function recoveredPeak(field: ArrayLike<number>, mesh: SurfaceMesh, areas: ArrayLike<number>, c: number, onEdge: Uint8Array): RecoveredPeak | null {
+export function recoveredPeaks(field: ArrayLike<number>, mesh: SurfaceMesh, areas: ArrayLike<number>, onEdge: Uint8Array, want: readonly boolean[]): Array<RecoveredPeak | null> {
   const tr = mesh.triangles, nt = mesh.conductor.length, nv = mesh.positions.length / 3;
   const sum = new Float64Array(nv), area = new Float64Array(nv), count = new Uint32Array(nv);
+  const owner = new Int32Array(nv).fill(-1);
   for (let t = 0; t < nt; t++) {
-    if (mesh.conductor[t] !== c) continue;
+    const c = mesh.conductor[t];
+    if (!want[c]) continue;
     const A = areas[t];
-    for (let j = 0; j < 3; j++) { const v = tr[3 * t + j]; sum[v] += field[t] * A; area[v] += A; count[v]++; }
+    for (let j = 0; j < 3; j++) { const v = tr[3 * t + j]; sum[v] += field[t] * A; area[v] += A; count[v]++; owner[v] = c; }
   }
-  let best: RecoveredPeak | null = null;
+  const best: Array<RecoveredPeak | null> = want.map(() => null);
   for (let v = 0; v < nv; v++) {
-    if (area[v] === 0 || onEdge[v]) continue;
+    const c = owner[v];
+    if (c < 0 || area[v] === 0 || onEdge[v]) continue;
     const value = sum[v] / area[v];
-    if (!best || value > best.value) best = { value, vertex: v, size: Math.sqrt(area[v] / count[v]) };
+    const b = best[c];
+    if (!b || value > b.value) best[c] = { value, vertex: v, size: Math.sqrt(area[v] / count[v]) };
   }
   return best;
 }
@@ -194,21 +200,18 @@ export function assessPeak(values: number[], singular: boolean, spread: number, 
   const L = values.length - 1;
   if (L < 1 || !values.every((v) => Number.isFinite(v) && v > 0)) return { singular, error: null, growth: null };
   const fine = values[L], coarse = values[L - 1];
+  // How much the panels at the peak shrank between the levels: their own sizes where given
+  // (adaptive levels refine some panels only), else 2 (uniform levels halve h). Below 1.3 the two
+  // levels say little of the peak's growth or error (null).
+  const ratio = sizes && sizes[L] > 0 && sizes[L - 1] > 0 ? sizes[L - 1] / sizes[L] : 2;
   if (recovered && !singular) {
-    // Recovered peaks converge as h² (recoveredPeak): the finest value's error is the Richardson
-    // correction |E_L − E_{L−1}|/(r² − 1) for the size ratio r at the peak (2 for uniform levels),
-    // times Roache's safety factor for two grids and an assumed order, 3 (J. Fluids Eng. 116, 1994;
-    // measured on the sphere over a plane against Kelvin's images: the correction alone is 0.8–0.9
-    // of the true error). A peak not refined between the levels (r < 1.3) has no error from them (null).
-    const r = sizes && sizes[L] > 0 && sizes[L - 1] > 0 ? sizes[L - 1] / sizes[L] : 2;
-    return { singular, error: r >= 1.3 ? (RECOVERED_SAFETY * Math.abs(fine - coarse) / fine) / (r * r - 1) : null, growth: null };
+    // Recovered peaks converge as h² (recoveredPeaks): the finest value's error is the Richardson
+    // correction |E_L − E_{L−1}|/(r² − 1) for the size ratio r at the peak, times Roache's safety
+    // factor for two grids and an assumed order, 3 (J. Fluids Eng. 116, 1994; measured on the sphere
+    // over a plane against Kelvin's images: the correction alone is 0.8–0.9 of the true error).
+    return { singular, error: ratio >= 1.3 ? (RECOVERED_SAFETY * Math.abs(fine - coarse) / fine) / (ratio * ratio - 1) : null, growth: null };
   }
-  if (singular) {
-    // Against the peak panels' own sizes where given (adaptive levels refine some panels only):
-    // p = log(E_L/E_{L−1}) / log(h_{L−1}/h_L); uniform levels halve h, and this is log2(E_L/E_{L−1}).
-    const ratio = sizes && sizes[L] > 0 && sizes[L - 1] > 0 ? sizes[L - 1] / sizes[L] : 2;
-    // A peak panel that shrank by less than 1.3 between the levels says little of the growth.
-    return { singular, error: null, growth: ratio >= 1.3 ? Math.log(fine / coarse) / Math.log(ratio) : null };
-  }
+  // p = log(E_L/E_{L−1}) / log(h_{L−1}/h_L); for uniform levels log2(E_L/E_{L−1}).
+  if (singular) return { singular, error: null, growth: ratio >= 1.3 ? Math.log(fine / coarse) / Math.log(ratio) : null };
   return { singular, error: Math.max(Math.abs(fine - coarse) / fine, spread), growth: null };
 }

@@ -13,7 +13,7 @@ import { centroidFieldsFast } from "./probe.js";
 import { dielectricExcitation } from "./dielectric-excitation.js";
 import { dielectricBodyForces } from "./dielectric-force.js";
 import type { ResolvedOptions } from "./options.js";
-import { sharpVertices, panelsOnEdges, recoveredPeak, assessPeak, peakSpread, type PeakFieldAssessment, type CutPlane } from "./peak-field.js";
+import { sharpVertices, panelsOnEdges, recoveredPeaks, assessPeak, peakSpread, type PeakFieldAssessment, type CutPlane } from "./peak-field.js";
 import type { LevelSolves } from "./levels.js";
 import type { DielectricResult } from "./result.js";
 import type { DielectricSolution, FinestSolution } from "./result.js";
@@ -57,8 +57,8 @@ export async function workingPointFields(finest: FinestSolution, K: number, work
   const sharp = panelsOnEdges(mesh, onEdge);
   // Closed conductors in one medium: a smooth peak is the recovered (vertex-averaged) field, and
   // the field check takes it too (the same panel decides both there).
-  const recover = (c: number) => !model && closed[c] && peaks[c].panel >= 0 && sharp[peaks[c].panel] === 0;
-  const recovered = peaks.map((_, c) => (recover(c) ? recoveredPeak(fields.excitation.field, mesh, P.areas, c, onEdge) : null));
+  const recover = peaks.map((pk, c) => !model && closed[c] && pk.panel >= 0 && sharp[pk.panel] === 0);
+  const recovered = recoveredPeaks(fields.excitation.field, mesh, P.areas, onEdge, recover);
   recovered.forEach((rec, c) => {
     if (!rec) return;
     const p = mesh.positions, v = 3 * rec.vertex;
@@ -66,7 +66,7 @@ export async function workingPointFields(finest: FinestSolution, K: number, work
     peaks[c] = { value: rec.value, panel: peaks[c].panel, at };
     if (critical[c].panel === peaks[c].panel) critical[c] = { ...critical[c], field: rec.value, ratio: rec.value / critical[c].strength, at };
   });
-  const perLevel = await coarsePeaks(coarse, K, working, closed, kernel, o, recovered.map((r) => r !== null));
+  const perLevel = await coarsePeaks(coarse, K, working, closed, kernel, o, recovered.map((r) => r !== null), cuts);
   const peakAssessments = peaks.map((pk, c) => assessPeak(perLevel ? [...perLevel.map((l) => l[c].value), pk.value] : [pk.value],
     pk.panel >= 0 && sharp[pk.panel] === 1, pk.panel >= 0 ? peakSpread(fields.excitation.field, mesh, pk.panel) : 0,
     // Adaptive levels refine some panels only: growth and error are measured against the peak's own sizes.
@@ -90,7 +90,7 @@ function symmetryCuts(kernel: KernelSpec | undefined): CutPlane[] {
  * like with like; coarsest first, each with its peak panel's size. Undefined without coarser levels.
  */
 async function coarsePeaks(coarse: LevelSolves["coarse"], K: number, working: Float64Array, closed: boolean[],
-  kernel: KernelSpec | undefined, o: ResolvedOptions, recover: boolean[]): Promise<Array<Array<{ value: number; size: number }>> | undefined> {
+  kernel: KernelSpec | undefined, o: ResolvedOptions, recover: boolean[], cuts: CutPlane[]): Promise<Array<Array<{ value: number; size: number }>> | undefined> {
   if (!coarse || coarse.length === 0) return undefined;
   const quiet: ResolvedOptions = { ...o, progress: undefined };
   const out: Array<Array<{ value: number; size: number }>> = [];
@@ -99,11 +99,11 @@ async function coarsePeaks(coarse: LevelSolves["coarse"], K: number, working: Fl
     const images = kernel ? imageSet(P, kernel, { shared: true }) : undefined;
     const f = await conductorFields(level.unit.x, P, K, working, level.mesh.conductor, closed, images, quiet);
     // The peak panel's size (√area) with its value: adaptive levels do not halve every panel.
-    // Recovered on the levels where the finest peak is (recoveredPeak), like with like.
-    const onEdge = recover.some((r) => r) ? sharpVertices(level.mesh, closed, symmetryCuts(kernel)) : undefined;
+    // Recovered on the levels where the finest peak is (recoveredPeaks), like with like.
+    const rec = recover.some((r) => r) ? recoveredPeaks(f.excitation.field, level.mesh, P.areas, sharpVertices(level.mesh, closed, cuts), recover) : [];
     out.push(peakFields(f.excitation.field, level.mesh.conductor, K, P).map((pk, c) => {
-      const rec = recover[c] ? recoveredPeak(f.excitation.field, level.mesh, P.areas, c, onEdge!) : null;
-      return rec ? { value: rec.value, size: rec.size } : { value: pk.value, size: pk.panel >= 0 ? Math.sqrt(P.areas[pk.panel]) : NaN };
+      const r = rec[c];
+      return r ? { value: r.value, size: r.size } : { value: pk.value, size: pk.panel >= 0 ? Math.sqrt(P.areas[pk.panel]) : NaN };
     }));
   }
   return out;

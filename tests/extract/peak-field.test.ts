@@ -108,7 +108,7 @@ describe("peak field of a run", () => {
       const trueError = Math.abs(c.peakField / exact - 1);
       expect(c.peakFieldSingular).toBe(false);
       expect(c.peakFieldGrowth).toBeNull();
-      // Recovered peaks (recoveredPeak), measured: level 1 estimate 3.65e-2 against 1.13e-2 (3.2×),
+      // Recovered peaks (recoveredPeaks), measured: level 1 estimate 3.65e-2 against 1.13e-2 (3.2×),
       // level 2 6.6e-3 against 4.75e-3 (1.4×); the largest panel field was 2.8e-2 and 1.05e-2 off.
       expect(c.peakFieldError!).toBeGreaterThanOrEqual(trueError);
       expect(c.peakFieldError!).toBeLessThan(4 * trueError);

@@ -146,7 +146,7 @@ describe("sigmesh against Kelvin's images (public API)", () => {
   // Measured (Galerkin, default options, 2026-12): level 2 (320 panels) with refine 2 (5,120):
   // C true error 3.1e-5 against the estimate 1.2e-3 (39x); the peak at the lowest point true
   // error 2.22e-3 against peakFieldError 6.46e-3 (2.9x). The peak is the recovered (vertex-averaged)
-  // field, which converges as h² (recoveredPeak, peak-field.ts); the largest panel field, reported
+  // field, which converges as h² (recoveredPeaks, peak-field.ts); the largest panel field, reported
   // before, stalled near 1e-3 (O(h) panel-to-panel scatter: 1.0e-3 here against an estimate 15x as
   // large).
   it("sphere of 1 mm at d = 1.5 mm over the ground plane, refine 2: C and the lowest-point peak within their estimates", async () => {

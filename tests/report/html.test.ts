@@ -108,7 +108,7 @@ describe("viewerData", () => {
       expect(s.field[p]).toBeCloseTo(Math.abs(s.sigma[p]) / pair.permittivity, -Math.log10(s.fieldRange[1]) + 5);
     }
     // The colour range ends at the largest panel field; the report's peaks are recovered at a
-    // vertex on smooth surfaces (peak-field.ts recoveredPeak), a few per cent below it at most.
+    // vertex on smooth surfaces (peak-field.ts recoveredPeaks), a few per cent below it at most.
     const peak = Math.max(...pair.conductors.map((c) => c.peakField));
     expect(s.fieldRange[1]).toBe(Math.max(...Array.from(pair.excitation.field)));
     expect(peak).toBeLessThanOrEqual(s.fieldRange[1]);
