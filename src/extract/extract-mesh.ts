@@ -37,7 +37,7 @@ import { kernelPlanes, symmetryCopies, conductorRanges, checkSides, trianglesInS
 import { EPSILON_0 } from "./constants.js";
 import { forceResolutions } from "./excitation.js";
 import { capacitanceMatrices, chargesAt, storedEnergy, mutualFromMaxwell } from "./capacitance.js";
-import { richardson, sequenceRichardson } from "./accuracy.js";
+import { richardson, sequenceRichardson, type RichardsonResult } from "./accuracy.js";
 import { runPeakMeter } from "./memory.js";
 import { eliminateFloating, withFloatingPotentials } from "./floating.js";
 import { prepareBodies, type PreparedBody } from "./dielectric-bodies.js";
@@ -209,31 +209,27 @@ function reportedMatrices(levels: LevelResult[], K: number, names: string[], ori
   const finest = capacitanceMatrices(levels[levels.length - 1].maxwell, K, names);
   let maxwell = finest.maxwell;
   let accuracy: Accuracy | undefined;
-  const refined = levels.length > 1;
-  if (refined && (adaptive || levels.length >= 3 && o.assumedOrder === undefined)) {
-    // Three or more solves, adaptive or uniform: the power law in the panel count fitted over the
-    // last ones (accuracy.ts sequenceRichardson); two uniform levels assume the order below.
-    const sym = levels.map((l) => capacitanceMatrices(l.maxwell, K, names).maxwell);
-    const displacement = levels.reduce((m, l) => Math.max(m, l.displacement ?? 0), 0);
-    const nested = displacement <= NESTED_DISPLACEMENT;
-    const lowerBound = o.method === "galerkin" && !withBodies && nested;
-    if (levels.length >= 3) {
-      const r = sequenceRichardson(sym, levels.map((l) => l.panels), K, { fromBelow: lowerBound });
-      accuracy = { levels: levels.map((l, i) => ({ panels: l.panels, maxwell: sym[i] })), richardson: r, nested, displacement, lowerBound, extrapolated: true, adaptive };
-      maxwell = r.extrapolated;
-      warnings.push(...r.warnings);
-    }
-  } else if (refined) {
-    const sharp = oriented.closed.some((c) => !c) || hasFeatureEdges(oriented.mesh);
+  if (levels.length > 1) {
     const sym = levels.map((l) => capacitanceMatrices(l.maxwell, K, names).maxwell);
     // Galerkin values rise toward the limit only over nested levels (accuracy.ts).
     const displacement = levels.reduce((m, l) => Math.max(m, l.displacement ?? 0), 0);
     const nested = displacement <= NESTED_DISPLACEMENT;
     const lowerBound = o.method === "galerkin" && !withBodies && nested;
-    const r = richardson(sym, K, { assumedOrder: o.assumedOrder ?? assumedOrder(sharp), fromBelow: lowerBound });
-    accuracy = { levels: levels.map((l, i) => ({ panels: l.panels, maxwell: sym[i] })), richardson: r, nested, displacement, lowerBound, extrapolated: true };
-    maxwell = r.extrapolated;
-    warnings.push(...r.warnings);
+    // Three or more solves, adaptive or uniform: the power law in the panel count fitted over the
+    // last ones (sequenceRichardson); two uniform levels assume the order by the geometry. An
+    // adaptive run stopped after two solves has no estimate.
+    let r: RichardsonResult | undefined;
+    if (adaptive || (levels.length >= 3 && o.assumedOrder === undefined)) {
+      if (levels.length >= 3) r = sequenceRichardson(sym, levels.map((l) => l.panels), K, { fromBelow: lowerBound });
+    } else {
+      const sharp = oriented.closed.some((c) => !c) || hasFeatureEdges(oriented.mesh);
+      r = richardson(sym, K, { assumedOrder: o.assumedOrder ?? assumedOrder(sharp), fromBelow: lowerBound });
+    }
+    if (r) {
+      accuracy = { levels: levels.map((l, i) => ({ panels: l.panels, maxwell: sym[i] })), richardson: r, nested, displacement, lowerBound, extrapolated: true, adaptive };
+      maxwell = r.extrapolated;
+      warnings.push(...r.warnings);
+    }
   }
   const checked = accuracy ? capacitanceMatrices(maxwell, K, names) : finest;
   warnings.push(...checked.warnings);
