@@ -14,8 +14,7 @@ import { writeOutputs, checkOutputTargets, defaultProbeCsv, type OutputTargets }
 import { displayText } from "../src/io/display-text.js";
 import { closeSharedPool } from "../src/linalg/pool.js";
 import { action, printWarnings } from "./common.js";
-import { accuracyOption, collect, numberOption, parsePotentials, solveSettings } from "./options.js";
-import { checkedAccuracy } from "../src/extract/options.js";
+import { accuracySettings, collect, numberOption, parsePotentials, solveSettings } from "./options.js";
 import { progressBar } from "./progress.js";
 
 export interface ExtractCliOptions {
@@ -88,10 +87,8 @@ export function registerExtract(program: Command): void {
 /** The whole extract command for these inputs and options (also used by `sigmesh demo`). */
 export async function runExtract(inputs: string[], opts: ExtractCliOptions): Promise<void> {
   const start = performance.now();
-  const settings = { ...solveSettings(opts), accuracy: accuracyOption(opts.accuracy),
-    maxPanels: opts.maxPanels === undefined ? undefined : numberOption(opts.maxPanels, "--max-panels", (x) => Number.isInteger(x) && x > 0, "a positive whole number of panels") };
-  if (settings.accuracy !== undefined && settings.refine > 0) throw new InputError("--accuracy and --refine are two ways to refine: give one");
-  if (settings.accuracy !== undefined) checkedAccuracy(settings.accuracy);
+  const solve = solveSettings(opts);
+  const settings = { ...solve, ...accuracySettings(opts, solve.refine) };
   const refining = settings.accuracy !== undefined ? 1 : settings.refine;
   const permittivity = opts.permittivity === undefined ? undefined : numberOption(opts.permittivity, "--permittivity", (x) => x >= 1, "a relative permittivity of at least 1");
   const breakdownField = opts.breakdownField === undefined ? undefined : numberOption(opts.breakdownField, "--breakdown-field", (x) => x > 0, "a positive field in V/m, e.g. 3e6");

@@ -4,6 +4,7 @@
  */
 import { InputError } from "../src/errors.js";
 import type { ExtractSettings } from "../src/extract/extract.js";
+import { checkedRefinement } from "../src/extract/options.js";
 
 /** A finite number passing `check`, else an InputError "OPTION "TEXT": expected WHAT". */
 export function numberOption(text: string, option: string, check: (x: number) => boolean, what: string): number {
@@ -41,6 +42,18 @@ export function accuracyOption(text: string | undefined): number | undefined {
   const x = Number(percent ? t.slice(0, -1) : t);
   if (t === "" || t === "%" || !Number.isFinite(x) || !(x > 0)) throw new InputError(`--accuracy "${text}": expected a relative error, e.g. 1e-3 or 0.1%`);
   return percent ? x / 100 : x;
+}
+
+/**
+ * --accuracy and --max-panels as settings, refused beside --refine (`refine`, already read) with the
+ * options' own names; the values' ranges are the library's (checkedRefinement).
+ */
+export function accuracySettings(opts: { accuracy?: string; maxPanels?: string }, refine: number): { accuracy?: number; maxPanels?: number } {
+  const accuracy = accuracyOption(opts.accuracy);
+  const maxPanels = opts.maxPanels === undefined ? undefined : numberOption(opts.maxPanels, "--max-panels", (x) => Number.isInteger(x) && x > 0, "a positive whole number of panels");
+  if (accuracy !== undefined && refine > 0) throw new InputError("--accuracy and --refine are two ways to refine: give one");
+  checkedRefinement({ accuracy, maxPanels });
+  return { accuracy, maxPanels };
 }
 
 /** Repeated NAME=VOLTS options as a map of potentials. */

@@ -15,8 +15,7 @@ import { sweepFiles, mergeSweepCsv } from "../src/report/sweep-table.js";
 import { displayText } from "../src/io/display-text.js";
 import { unitLabel } from "../src/io/si.js";
 import { action, printWarnings, reportFailure } from "./common.js";
-import { accuracyOption, collect, countOption, numberOption, solveSettings } from "./options.js";
-import { checkedAccuracy } from "../src/extract/options.js";
+import { accuracySettings, collect, countOption, solveSettings } from "./options.js";
 
 
 export interface SweepCliOptions {
@@ -40,10 +39,7 @@ export async function runSweepCommand(scene: string, opts: SweepCliOptions): Pro
   if (extname(scene).toLowerCase() !== ".json") throw new InputError("a sweep takes a scene file (.json) with parameters", scene);
   if (opts.vary.length === 0) throw new InputError("--vary NAME=START:STOP:COUNT is required (e.g. --vary gap=1:5:9)");
   const { method, solver, tolerance, refine } = solveSettings(opts);
-  const accuracy = accuracyOption(opts.accuracy);
-  const maxPanels = opts.maxPanels === undefined ? undefined : numberOption(opts.maxPanels, "--max-panels", (x) => Number.isInteger(x) && x > 0, "a positive whole number of panels");
-  if (accuracy !== undefined && refine > 0) throw new InputError("--accuracy and --refine are two ways to refine: give one");
-  if (accuracy !== undefined) checkedAccuracy(accuracy);
+  const { accuracy, maxPanels } = accuracySettings(opts, refine);
   const processes = opts.processes === undefined ? 0 : countOption(opts.processes, "--processes", 256);
   const axes = opts.vary.map(parseVary);
   const points = sweepGrid(axes);

@@ -23,7 +23,7 @@ import { probePoints, type ProbeSpec } from "../io/probe-spec.js";
 import { probeExtraction, type ProbeResult } from "./probe.js";
 import type { SolverChoice } from "./solve.js";
 import { extractMesh } from "./extract-mesh.js";
-import { checkedAccuracy, checkedRefine } from "./options.js";
+import { checkedRefinement } from "./options.js";
 import type { ExtractionResult } from "./result.js";
 import { checkConductors, implausibleSize } from "./scene-check.js";
 import { physicalSizeFault } from "../mesh/physical-size.js";
@@ -118,9 +118,7 @@ export async function extract(scene: LoadedScene, settings: ExtractSettings = {}
   warnings.push(...found);
   signal?.throwIfAborted();
   // A fault of the run's own settings names no file; every later one concerns the input.
-  checkedRefine(settings.refine);
-  checkedAccuracy(settings.accuracy);
-  if (settings.accuracy !== undefined && (settings.refine ?? 0) > 0) throw new InputError(`accuracy ${settings.accuracy} and refine ${settings.refine} are two ways to refine: give one`);
+  checkedRefinement(settings);
   const result = await extractMesh(scene.mesh, {
     permittivity: scene.permittivity,
     breakdownField: scene.breakdownField,

@@ -114,11 +114,7 @@ export function resolveOptions(opts: MeshExtractOptions, k: number, nets: number
   if (!(er >= 1) || !Number.isFinite(er)) throw new InputError(`relative permittivity must be a number of at least 1, got ${er}`);
   const eps = EPSILON_0 * er;
   const method = opts.method ?? "galerkin";
-  const refine = checkedRefine(opts.refine);
-  const accuracy = checkedAccuracy(opts.accuracy);
-  if (accuracy !== undefined && refine > 0) throw new InputError(`accuracy ${accuracy} and refine ${refine} are two ways to refine: give one`);
-  const maxPanels = opts.maxPanels;
-  if (maxPanels !== undefined && !(Number.isInteger(maxPanels) && maxPanels > 0)) throw new InputError(`the most panels must be a positive whole number, got ${maxPanels}`);
+  const { refine, accuracy, maxPanels } = checkedRefinement(opts);
   const tolerance = accuracy !== undefined ? Math.min(opts.tolerance ?? 1e-4, accuracy / 10) : opts.tolerance ?? 1e-4;
   const breakdownField = opts.breakdownField ?? AIR_BREAKDOWN_FIELD;
   if (!(breakdownField > 0) || !Number.isFinite(breakdownField)) throw new InputError(`breakdown field must be a positive number of V/m, got ${breakdownField}`);
@@ -154,6 +150,19 @@ export function checkedRefine(refine: number | undefined): number {
   const r = refine ?? 0;
   if (!Number.isInteger(r) || r < 0 || r > 4) throw new InputError(`refine must be a whole number from 0 to 4, got ${r}`);
   return r;
+}
+
+/**
+ * The refinement asked for: `refine` uniform levels or adaptive refinement to `accuracy` (not both),
+ * with its panel budget; InputError naming the fault.
+ */
+export function checkedRefinement(opts: { refine?: number; accuracy?: number; maxPanels?: number }): { refine: number; accuracy?: number; maxPanels?: number } {
+  const refine = checkedRefine(opts.refine);
+  const accuracy = checkedAccuracy(opts.accuracy);
+  if (accuracy !== undefined && refine > 0) throw new InputError(`accuracy ${accuracy} and refine ${refine} are two ways to refine: give one`);
+  const maxPanels = opts.maxPanels;
+  if (maxPanels !== undefined && !(Number.isInteger(maxPanels) && maxPanels > 0)) throw new InputError(`the most panels must be a positive whole number, got ${maxPanels}`);
+  return { refine, accuracy, maxPanels };
 }
 
 /** Smallest and largest relative accuracy an adaptive refinement may be asked for. */
