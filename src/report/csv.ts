@@ -28,6 +28,15 @@ import type { LengthUnit } from "../io/units.js";
 import { formatSI, formatNumber, formatFieldStrength, formatPoint, formatArea, unitLabel, digitsFor, derivedErrors } from "../io/si.js";
 import { displayText } from "../io/display-text.js";
 
+/**
+ * What an `--accuracy` run was asked and whether it got it, as the terminal summary and the
+ * Markdown page both say it: "0.10 % on every diagonal entry and every coupling above 5.0 % of its
+ * row's diagonal: reached".
+ */
+export function accuracyRequest(a: { requested: number; couplingThreshold: number; reached: boolean }): string {
+  return `${formatNumber(100 * a.requested, 2)} % on every diagonal entry and every coupling above ${formatNumber(100 * a.couplingThreshold, 2)} % of its row's diagonal: ${a.reached ? "reached" : "NOT reached"}`;
+}
+
 export interface ReportConductor {
   name: string;
   triangles?: number;
@@ -382,7 +391,7 @@ export function markdownReport(data: ReportData, opts: { title?: string } = {}):
     const order = typeof a.order === "number" && Number.isFinite(a.order) ? `, order ${formatNumber(a.order, 3)} ${a.orderObserved ? "observed" : "assumed"}`
       : a.levels.length >= 3 ? ", no steady convergence: the finest values with twice their last change" : "";
     if (a.relativeError !== undefined) out.push(`Estimated error: ±${formatNumber(100 * a.relativeError, 2)} % of the largest entry in each row (Richardson extrapolation over ${a.levels.map((l) => l.panels).join(" → ")} panels${order}).`);
-    if (a.adaptive) out.push("", `Requested ${formatNumber(100 * a.adaptive.requested, 2)} % on every diagonal entry and every coupling above ${formatNumber(100 * a.adaptive.couplingThreshold, 2)} % of its row's diagonal: ${a.adaptive.reached ? "reached" : "NOT reached"} (${a.adaptive.marking === "dorfler" ? "adaptive" : "uniform"} refinement, ${a.adaptive.steps} solves).`);
+    if (a.adaptive) out.push("", `Requested ${accuracyRequest(a.adaptive)} (${a.adaptive.marking === "dorfler" ? "adaptive" : "uniform"} refinement, ${a.adaptive.steps} solves).`);
     out.push("");
     out.push(...markdownTable(["panels", ...names.map((n) => `C(${n})`)],
       [...a.levels.map((l) => [String(l.panels), ...l.maxwell.map((row, i) => formatSI(row[i], "F"))]),

@@ -10,6 +10,7 @@ import type { LengthUnit } from "../io/units.js";
 import { formatSI, formatNumber, formatArea, formatPoint, formatFieldStrength, formatLength, unitLabel, digitsFor, derivedErrors } from "../io/si.js";
 import { displayText } from "../io/display-text.js";
 import { cautionsFor } from "./cautions.js";
+import { accuracyRequest } from "./csv.js";
 
 /**
  * Lay out rows as columns; `right` marks right-aligned columns. Cells are escaped for the
@@ -128,7 +129,7 @@ export function extractionSummary(r: ExtractionResult | SceneExtraction, given?:
     out.push(`Accuracy: estimated error ±${formatNumber(100 * a.richardson.relativeError, 2)} % of the largest entry in each row`);
     const ad = a.adaptive;
     if (ad) {
-      out.push(`  requested ${formatNumber(100 * ad.requested, 2)} % on every diagonal entry and every coupling above ${formatNumber(100 * ad.couplingThreshold, 2)} % of its row's diagonal: ${ad.reached ? "reached" : "NOT reached"}, worst ${formatNumber(100 * governingError(a.richardson, ad.governing), 2)} %`);
+      out.push(`  requested ${accuracyRequest(ad)}, worst ${formatNumber(100 * governingError(a.richardson, ad.governing), 2)} %`);
       out.push(`  ${ad.marking === "dorfler" ? "adaptive" : "uniform"} refinement over ${a.levels.map((l) => l.panels).join(" → ")} panels; extrapolated with a fitted order ${Number.isFinite(a.richardson.order) ? formatNumber(a.richardson.order, 3) : "(none: no steady convergence)"}`);
     } else if (!Number.isFinite(a.richardson.order)) out.push(`  over ${a.levels.map((l) => l.panels).join(" → ")} panels: no steady convergence, the finest values are reported with twice their last change as the error`);
     else out.push(`  Richardson extrapolation over ${a.levels.map((l) => l.panels).join(" → ")} panels, order ${formatNumber(a.richardson.order, 3)} ${a.richardson.orderObserved ? "(observed)" : "(assumed; use --refine 2 to observe it)"}`);
@@ -203,4 +204,3 @@ export function fieldCheckLine(c: ExtractionResult["conductors"][number], perMed
   const plusMinus = c.peakFieldError !== null ? ` ± ${formatNumber(100 * c.peakFieldError, 2)} %` : "";
   return `peak ${value}${plusMinus}${where} — ${verdict}`;
 }
-
