@@ -11,8 +11,8 @@
  *  2. estimate the error of the entries from the sequence of solves so far (accuracy.ts,
  *     `sequenceRichardson`): stop when every entry that matters is within R;
  *  3. per-panel indicators (error-indicator.ts: ZZ-type averaging of the charge density plus the
- *     geometric sag of curved panels), each unit solution weighted by 1/Σx so that every
- *     conductor's relative error counts alike;
+ *     geometric sag of curved panels), each unit solution weighted by 1/Σx over its own
+ *     conductor (its diagonal entry) so that every conductor's relative error counts alike;
  *  4. Dörfler's marking with θ = `DORFLER_THETA`;
  *  5. newest-vertex bisection of the marked panels with its conforming closure, new points on the
  *     true surface as uniform refinement places them (mesh/adaptive-refine.ts).
@@ -35,7 +35,7 @@ import type { LevelResult, AdaptiveRecord } from "./result.js";
 export type { AdaptiveRecord } from "./result.js";
 import type { SymmetryLayout, BodyUnfolding } from "./symmetry-unfold.js";
 import { solveConductorLevel, solveDielectricLevel, refineModel, type LevelSolve, type LevelSolves } from "./levels.js";
-import { capacitanceMatrices } from "./capacitance.js";
+import { capacitanceMatrices, conductorCharges } from "./capacitance.js";
 import { sequenceRichardson, type RichardsonResult } from "./accuracy.js";
 import { panelIndicators, dorflerMarking, panelSag } from "./error-indicator.js";
 import { resolveSolver } from "./solver-choice.js";
@@ -127,14 +127,11 @@ export async function solveAdaptive(oriented: SurfaceMesh, bodies: PreparedBody[
       ({ mesh, bodies, displacement } = refineModel(mesh, bodies));
       continue;
     }
-    const weights = new Float64Array(oriented.names.length);
-    const x0 = solve.patterns[0];
+    // Each unit solution weighted by 1/Σx over its own conductor (its diagonal entry, up to 4πε):
+    // every conductor's relative error counts alike.
     const k = oriented.names.length;
-    for (let j = 0; j < k; j++) {
-      let s = 0;
-      for (let t = 0; t < n; t++) s += x0[t * k + j];
-      weights[j] = s !== 0 ? 1 / Math.abs(s) : 0;
-    }
+    const own = conductorCharges(solve.patterns[0], mesh.conductor, k);
+    const weights = Float64Array.from({ length: k }, (_, j) => (own[j * k + j] !== 0 ? 1 / Math.abs(own[j * k + j]) : 0));
     // The new points refinement would place (without building the refined mesh): the curved panels' sag.
     const edges = meshEdges(mesh);
     const points = edgePoints(mesh, edges);
